@@ -1,0 +1,102 @@
+# steep — build, test and install. `make help` lists the targets.
+
+LUA        ?= lua5.4
+PREFIX     ?= /usr/local
+DESTDIR    ?=
+LUA_LIBDIR  = $(PREFIX)/lib/lua/5.4
+LUA_SHARE   = $(PREFIX)/share/lua/5.4
+
+# Debian packages the build and the tests need (make deps installs the missing ones).
+DEB_PACKAGES = gcc make pkg-config lua5.4 liblua5.4-dev libgsl-dev lua-unit
+
+CC         ?= cc
+WARN        = -std=c99 -Wall -Wextra -Werror
+PKG_CFLAGS  = $(shell pkg-config --cflags lua5.4 gsl)
+# The module does not link liblua: the host program (lua5.4 or an embedding
+# application) provides the Lua API, as Lua's own C modules expect.
+PKG_LIBS    = $(shell pkg-config --libs gsl)
+
+SRC  = $(wildcard ext/*.c)
+HDR  = $(wildcard ext/*.h)
+MODULE      = lua/steep/core.so
+ASAN_MODULE = ext/asan/steep/core.so
+SAN_FLAGS   = -fsanitize=address,undefined -fno-sanitize-recover=all -fno-omit-frame-pointer
+KERNEL_SRC  = ext/series.c ext/tape.c
+
+.PHONY: all deps test asan bench demo install uninstall env clean help
+
+all: $(MODULE)
+
+$(MODULE): $(SRC) $(HDR)
+	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) $(CFLAGS) -o $@ $(SRC) $(PKG_LIBS) -lm $(LDFLAGS)
+
+$(ASAN_MODULE): $(SRC) $(HDR)
+	@mkdir -p $(dir $@)
+	$(CC) $(WARN) -O1 -g -fPIC -shared $(SAN_FLAGS) $(PKG_CFLAGS) -o $@ $(SRC) $(PKG_LIBS) -lm
+
+# C-level tests of the numerical kernels (no Lua involved).
+tests/c/test_kernels: tests/c/test_kernels.c $(KERNEL_SRC) $(HDR)
+	$(CC) $(WARN) -O2 -Iext -o $@ tests/c/test_kernels.c $(KERNEL_SRC) -lm
+
+tests/c/test_kernels_asan: tests/c/test_kernels.c $(KERNEL_SRC) $(HDR)
+	$(CC) $(WARN) -O1 -g $(SAN_FLAGS) -Iext -o $@ tests/c/test_kernels.c $(KERNEL_SRC) -lm
+
+deps:
+	@missing=$$(for p in $(DEB_PACKAGES); do \
+	    dpkg-query -W -f='$${Status}\n' $$p 2>/dev/null | grep -q '^install ok installed' || echo $$p; \
+	  done); \
+	if [ -z "$$missing" ]; then exit 0; fi; \
+	if [ "$$(id -u)" = 0 ]; then \
+	  echo "installing: $$missing"; \
+	  apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq $$missing; \
+	else \
+	  echo "missing packages; run as root:"; \
+	  echo "  apt-get update && apt-get install -y $$missing"; exit 1; \
+	fi
+
+test: deps
+	@$(MAKE) --no-print-directory $(MODULE) tests/c/test_kernels
+	$(LUA) tests/run.lua
+
+# The whole suite with AddressSanitizer and UndefinedBehaviorSanitizer. lua5.4 itself is
+# not instrumented, so the ASan runtime is preloaded.
+asan: deps
+	@$(MAKE) --no-print-directory $(ASAN_MODULE) tests/c/test_kernels_asan
+	LD_PRELOAD=$$($(CC) -print-file-name=libasan.so) ASAN_OPTIONS=detect_leaks=1 \
+	  STEEP_CPATH='ext/asan/?.so' STEEP_KERNEL_TESTS=tests/c/test_kernels_asan \
+	  $(LUA) tests/run.lua
+
+bench: deps $(MODULE) tests/bench/native.so
+	$(LUA) tests/bench/run.lua
+
+tests/bench/native.so: tests/bench/native.c ext/bind.h ext/steep.h
+	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) -Iext -o $@ tests/bench/native.c -lm
+
+demo: deps $(MODULE)
+	$(LUA) -e 'package.path="lua/?.lua;lua/?/init.lua;"..package.path; package.cpath="lua/?.so;"..package.cpath' recipes/demo.lua
+
+install: $(MODULE)
+	install -d $(DESTDIR)$(LUA_LIBDIR)/steep $(DESTDIR)$(LUA_SHARE)/steep
+	install -m 755 $(MODULE) $(DESTDIR)$(LUA_LIBDIR)/steep/core.so
+	install -m 644 lua/steep/*.lua $(DESTDIR)$(LUA_SHARE)/steep/
+
+uninstall:
+	rm -rf $(DESTDIR)$(LUA_LIBDIR)/steep $(DESTDIR)$(LUA_SHARE)/steep
+
+# `eval "$$(make -s env)"` lets a plain lua5.4 find the uninstalled tree.
+env:
+	@echo "export LUA_PATH='$(CURDIR)/lua/?.lua;$(CURDIR)/lua/?/init.lua;;'"
+	@echo "export LUA_CPATH='$(CURDIR)/lua/?.so;;'"
+
+clean:
+	rm -rf $(MODULE) ext/asan tests/c/test_kernels tests/c/test_kernels_asan tests/bench/native.so
+
+help:
+	@echo "make deps     install missing Debian packages (as root)"
+	@echo "make          build the C module $(MODULE)"
+	@echo "make test     run every test (Lua and C)"
+	@echo "make asan     the test suite under ASan + UBSan"
+	@echo "make bench    benchmarks (figures printed, nothing asserted)"
+	@echo "make demo     the demo analysis"
+	@echo "make install  PREFIX=$(PREFIX) [DESTDIR=...]"
+	@echo "make env      shell lines to use the tree uninstalled"

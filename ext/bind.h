@@ -1,0 +1,46 @@
+/*
+ * bind.h — helpers shared by the binding files (bind_*.c): conversions between Lua
+ * values and C numbers, and the registration functions each binding file exports.
+ *
+ * Complex values live on the Lua side as tables {re, im} whose metatable is registered
+ * under STEEP_COMPLEX_MT (created in luaopen_steep_core, methods filled in by
+ * lua/steep/complex.lua); C reads and creates them through these helpers.
+ */
+#ifndef STEEP_BIND_H
+#define STEEP_BIND_H
+
+#include <lua.h>
+#include <lauxlib.h>
+#include "steep.h"
+
+/* 1 and *z set if the value at idx is a number or a steep complex value. */
+int bind_tocomplex(lua_State *L, int idx, cplx *z);
+
+/* The complex value at argument arg, or a Lua argument error. */
+cplx bind_checkcomplex(lua_State *L, int arg);
+
+/* Pushes z as a steep complex value. */
+void bind_pushcomplex(lua_State *L, cplx z);
+
+/* An integer order in 0..STEEP_MAX_ORDER at argument arg, or an argument error. */
+size_t bind_checkorder(lua_State *L, int arg);
+
+/* Scratch memory owned by a fresh userdata on the stack (freed by the collector, so a
+ * Lua error raised afterwards leaks nothing). */
+void *bind_scratch(lua_State *L, size_t bytes);
+
+/* A new steep.series userdata holding c[0..n-1] (bind_series.c). */
+void bind_pushseries(lua_State *L, const cplx *c, size_t n);
+
+/* Complex vectors (bind_cvec.c): the data of the steep.cvec at idx, or NULL; and a
+ * new steep.cvec of n points pushed on the stack. */
+cplx *bind_tocvec(lua_State *L, int idx, size_t *n);
+cplx *bind_newcvec(lua_State *L, size_t n);
+
+/* Per-file registration, called from luaopen_steep_core with the module table on top. */
+void bind_series_open(lua_State *L);
+void bind_tape_open(lua_State *L);
+void bind_cvec_open(lua_State *L);
+void bind_cmath_open(lua_State *L);
+
+#endif

@@ -1,0 +1,53 @@
+/*
+ * bind_common.c — conversions shared by the binding files; see bind.h.
+ */
+#include <math.h>
+#include "bind.h"
+
+int bind_tocomplex(lua_State *L, int idx, cplx *z) {
+  idx = lua_absindex(L, idx);
+  if (lua_type(L, idx) == LUA_TNUMBER) {
+    *z = lua_tonumber(L, idx);
+    return 1;
+  }
+  if (lua_type(L, idx) != LUA_TTABLE || !lua_getmetatable(L, idx)) return 0;
+  luaL_getmetatable(L, STEEP_COMPLEX_MT);
+  int ok = lua_rawequal(L, -1, -2);
+  lua_pop(L, 2);
+  if (!ok) return 0;
+  lua_rawgeti(L, idx, 1);
+  lua_rawgeti(L, idx, 2);
+  *z = lua_tonumber(L, -2) + I * lua_tonumber(L, -1);
+  lua_pop(L, 2);
+  return 1;
+}
+
+cplx bind_checkcomplex(lua_State *L, int arg) {
+  cplx z = 0;
+  if (!bind_tocomplex(L, arg, &z))
+    luaL_typeerror(L, arg, "number or complex");
+  return z;
+}
+
+void bind_pushcomplex(lua_State *L, cplx z) {
+  lua_createtable(L, 2, 0);
+  lua_pushnumber(L, creal(z));
+  lua_rawseti(L, -2, 1);
+  lua_pushnumber(L, cimag(z));
+  lua_rawseti(L, -2, 2);
+  luaL_setmetatable(L, STEEP_COMPLEX_MT);
+}
+
+size_t bind_checkorder(lua_State *L, int arg) {
+  lua_Integer n = 0;
+  int isint = 0;
+  if (lua_type(L, arg) == LUA_TNUMBER) n = lua_tointegerx(L, arg, &isint);
+  if (!isint) luaL_typeerror(L, arg, "integer order");
+  if (n < 0 || n > STEEP_MAX_ORDER)
+    luaL_argerror(L, arg, lua_pushfstring(L, "order %I outside 0..%d", n, STEEP_MAX_ORDER));
+  return (size_t)n;
+}
+
+void *bind_scratch(lua_State *L, size_t bytes) {
+  return lua_newuserdatauv(L, bytes ? bytes : 1, 0);
+}

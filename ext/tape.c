@@ -1,0 +1,227 @@
+/*
+ * tape.c — checking and evaluating tapes; contracts in tape.h.
+ */
+#include <math.h>
+#include <string.h>
+#include "tape.h"
+#include "series.h"
+
+static const struct { const char *name; int arity; } op_info[OP_COUNT] = {
+  [OP_CONST] = {"const", 0}, [OP_VAR] = {"var", 0},   [OP_PARAM] = {"param", 0},
+  [OP_ADD] = {"add", 2},     [OP_SUB] = {"sub", 2},   [OP_MUL] = {"mul", 2},
+  [OP_DIV] = {"div", 2},     [OP_NEG] = {"neg", 1},   [OP_POWI] = {"powi", 1},
+  [OP_POWC] = {"powc", 1},   [OP_EXP] = {"exp", 1},   [OP_LOG] = {"log", 1},
+  [OP_SQRT] = {"sqrt", 1},   [OP_SIN] = {"sin", 1},   [OP_COS] = {"cos", 1},
+  [OP_TAN] = {"tan", 1},     [OP_SINH] = {"sinh", 1}, [OP_COSH] = {"cosh", 1},
+  [OP_TANH] = {"tanh", 1},   [OP_ATAN] = {"atan", 1},
+};
+
+int tape_arity(int op) { return op >= 0 && op < OP_COUNT ? op_info[op].arity : -1; }
+
+const char *tape_op_name(int op) { return op >= 0 && op < OP_COUNT ? op_info[op].name : "?"; }
+
+int tape_op_lookup(const char *name) {
+  for (int op = 0; op < OP_COUNT; op++)
+    if (strcmp(op_info[op].name, name) == 0) return op;
+  return -1;
+}
+
+long tape_check(tape *t, const char **why) {
+  for (size_t j = 0; j < t->n; j++) {
+    const tape_ins *in = &t->ins[j];
+    int ar = tape_arity(in->op);
+    if (ar < 0) { *why = "unknown operation"; return (long)j; }
+    if ((ar >= 1 && (in->a < 0 || (size_t)in->a >= j)) ||
+        (ar == 2 && (in->b < 0 || (size_t)in->b >= j))) {
+      *why = "operand is not an earlier slot";
+      return (long)j;
+    }
+    if (in->op == OP_PARAM && (in->k < 0 || (size_t)in->k >= t->nparams)) {
+      *why = "parameter index out of range";
+      return (long)j;
+    }
+    switch (ar) {
+      case 0: t->varying[j] = in->op == OP_VAR; break;
+      case 1: t->varying[j] = t->varying[in->a]; break;
+      default: t->varying[j] = t->varying[in->a] | t->varying[in->b]; break;
+    }
+  }
+  if (t->nout == 0) { *why = "no output"; return (long)t->n; }
+  for (size_t o = 0; o < t->nout; o++)
+    if (t->out[o] < 0 || (size_t)t->out[o] >= t->n) {
+      *why = "output is not a slot";
+      return (long)t->n;
+    }
+  return -1;
+}
+
+/* z^m for an integer m by binary powering (exact for small integers). */
+static cplx powi(cplx z, long m) {
+  unsigned long e = m < 0 ? 0UL - (unsigned long)m : (unsigned long)m;
+  cplx r = 1;
+  while (e) {
+    if (e & 1UL) r *= z;
+    e >>= 1;
+    if (e) z *= z;
+  }
+  return m < 0 ? 1.0 / r : r;
+}
+
+/* Principal-branch power with an exactly real result for a real base > 0 and real
+ * exponent (cexp(c*clog(a)) leaves a rounding-level imaginary part otherwise). */
+static cplx powc(cplx a, cplx c) {
+  if (cimag(a) == 0 && creal(a) > 0 && cimag(c) == 0) return pow(creal(a), creal(c));
+  if (a == 0) return creal(c) > 0 ? 0 : (cplx)NAN;
+  return cexp(c * clog(a));
+}
+
+static cplx apply1(const tape_ins *in, cplx a, cplx b, cplx x, const cplx *params) {
+  switch (in->op) {
+    case OP_CONST: return in->c;
+    case OP_VAR:   return x;
+    case OP_PARAM: return params[in->k];
+    case OP_ADD:   return a + b;
+    case OP_SUB:   return a - b;
+    case OP_MUL:   return a * b;
+    case OP_DIV:   return a / b;
+    case OP_NEG:   return -a;
+    case OP_POWI:  return powi(a, in->k);
+    case OP_POWC:  return powc(a, in->c);
+    case OP_EXP:   return cexp(a);
+    case OP_LOG:   return clog(a);
+    case OP_SQRT:  return csqrt(a);
+    case OP_SIN:   return csin(a);
+    case OP_COS:   return ccos(a);
+    case OP_TAN:   return ctan(a);
+    case OP_SINH:  return csinh(a);
+    case OP_COSH:  return ccosh(a);
+    case OP_TANH:  return ctanh(a);
+    case OP_ATAN:  return catan(a);
+    default:       return NAN;
+  }
+}
+
+void tape_eval(const tape *t, cplx x, const cplx *params, cplx *out, cplx *work) {
+  for (size_t j = 0; j < t->n; j++) {
+    const tape_ins *in = &t->ins[j];
+    cplx a = in->a >= 0 ? work[in->a] : 0, b = in->b >= 0 ? work[in->b] : 0;
+    work[j] = apply1(in, a, b, x, params);
+  }
+  for (size_t o = 0; o < t->nout; o++) out[o] = work[t->out[o]];
+}
+
+/* One instruction over a block of m <= TAPE_BLOCK points. The switch sits outside the
+ * loop over points so the compiler can keep the loops tight. */
+static void apply_block(const tape_ins *in, cplx *w, const cplx *a, const cplx *b,
+                        const cplx *xs, size_t m, const cplx *params) {
+  size_t i;
+  switch (in->op) {
+    case OP_CONST: for (i = 0; i < m; i++) w[i] = in->c; break;
+    case OP_VAR:   for (i = 0; i < m; i++) w[i] = xs[i]; break;
+    case OP_PARAM: for (i = 0; i < m; i++) w[i] = params[in->k]; break;
+    case OP_ADD:   for (i = 0; i < m; i++) w[i] = a[i] + b[i]; break;
+    case OP_SUB:   for (i = 0; i < m; i++) w[i] = a[i] - b[i]; break;
+    case OP_MUL:   for (i = 0; i < m; i++) w[i] = a[i] * b[i]; break;
+    case OP_DIV:   for (i = 0; i < m; i++) w[i] = a[i] / b[i]; break;
+    case OP_NEG:   for (i = 0; i < m; i++) w[i] = -a[i]; break;
+    case OP_POWI:
+      if (in->k == 2) for (i = 0; i < m; i++) w[i] = a[i] * a[i];
+      else if (in->k == 3) for (i = 0; i < m; i++) w[i] = a[i] * a[i] * a[i];
+      else for (i = 0; i < m; i++) w[i] = powi(a[i], in->k);
+      break;
+    case OP_EXP:   for (i = 0; i < m; i++) w[i] = cexp(a[i]); break;
+    case OP_LOG:   for (i = 0; i < m; i++) w[i] = clog(a[i]); break;
+    case OP_SQRT:  for (i = 0; i < m; i++) w[i] = csqrt(a[i]); break;
+    default:       for (i = 0; i < m; i++) w[i] = apply1(in, a[i], b ? b[i] : 0, xs[i], params);
+  }
+}
+
+void tape_eval_batch(const tape *t, const cplx *xs, size_t m, const cplx *params,
+                     cplx *out, cplx *work) {
+  for (size_t start = 0; start < m; start += TAPE_BLOCK) {
+    size_t len = m - start < TAPE_BLOCK ? m - start : TAPE_BLOCK;
+    for (size_t j = 0; j < t->n; j++) {
+      const tape_ins *in = &t->ins[j];
+      const cplx *a = in->a >= 0 ? work + (size_t)in->a * TAPE_BLOCK : NULL;
+      const cplx *b = in->b >= 0 ? work + (size_t)in->b * TAPE_BLOCK : NULL;
+      apply_block(in, work + j * TAPE_BLOCK, a, b, xs + start, len, params);
+    }
+    for (size_t o = 0; o < t->nout; o++)
+      memcpy(out + o * m + start, work + (size_t)t->out[o] * TAPE_BLOCK, len * sizeof *out);
+  }
+}
+
+/* Jet of one varying instruction. Operands that do not depend on the variable are
+ * constants (only coefficient 0 is non-zero), which turns products into scalings. */
+static int jet1(const tape *t, size_t j, cplx *w, const cplx *a, const cplx *b, size_t n,
+                cplx x, cplx *scratch) {
+  const tape_ins *in = &t->ins[j];
+  int ca = in->a >= 0 && !t->varying[in->a], cb = in->b >= 0 && !t->varying[in->b];
+  size_t k;
+  switch (in->op) {
+    case OP_VAR: memset(w, 0, n * sizeof *w); w[0] = x; if (n > 1) w[1] = 1; return STEEP_OK;
+    case OP_ADD:
+    case OP_SUB: {
+      double sg = in->op == OP_ADD ? 1.0 : -1.0;
+      if (ca) { for (k = 0; k < n; k++) w[k] = sg * b[k]; w[0] += a[0]; }
+      else if (cb) { memcpy(w, a, n * sizeof *w); w[0] += sg * b[0]; }
+      else for (k = 0; k < n; k++) w[k] = a[k] + sg * b[k];
+      return STEEP_OK;
+    }
+    case OP_MUL:
+      if (ca) for (k = 0; k < n; k++) w[k] = a[0] * b[k];
+      else if (cb) for (k = 0; k < n; k++) w[k] = a[k] * b[0];
+      else ser_mul(w, a, b, n);
+      return STEEP_OK;
+    case OP_DIV:
+      if (cb) {
+        if (b[0] == 0) return STEEP_SINGULAR;
+        for (k = 0; k < n; k++) w[k] = a[k] / b[0];
+        return STEEP_OK;
+      }
+      if (ca) {   /* a / b with constant a: a * (1/b) */
+        memset(scratch, 0, n * sizeof *scratch);
+        scratch[0] = a[0];
+        return ser_div(w, scratch, b, n);
+      }
+      return ser_div(w, a, b, n);
+    case OP_NEG: for (k = 0; k < n; k++) w[k] = -a[k]; return STEEP_OK;
+    case OP_POWI:
+      if (in->k == 2) { ser_mul(w, a, a, n); return STEEP_OK; }
+      return ser_powi(w, a, in->k, n, scratch);
+    case OP_POWC: return ser_pow(w, a, in->c, n);
+    case OP_EXP: ser_exp(w, a, n); return STEEP_OK;
+    case OP_LOG: return ser_log(w, a, n);
+    case OP_SQRT: return ser_sqrt(w, a, n);
+    case OP_SIN: ser_sincos(w, scratch, a, n); return STEEP_OK;
+    case OP_COS: ser_sincos(scratch, w, a, n); return STEEP_OK;
+    case OP_SINH: ser_sinhcosh(w, scratch, a, n); return STEEP_OK;
+    case OP_COSH: ser_sinhcosh(scratch, w, a, n); return STEEP_OK;
+    case OP_TAN: return ser_tan(w, a, n, scratch);
+    case OP_TANH: return ser_tanh(w, a, n, scratch);
+    case OP_ATAN: return ser_atan(w, a, n, scratch);
+    default: return STEEP_NONFINITE;
+  }
+}
+
+int tape_jet(const tape *t, cplx x, const cplx *params, size_t order, cplx *work,
+             cplx *scratch, long *bad) {
+  size_t n = order + 1;
+  for (size_t j = 0; j < t->n; j++) {
+    const tape_ins *in = &t->ins[j];
+    cplx *w = work + j * n;
+    const cplx *a = in->a >= 0 ? work + (size_t)in->a * n : NULL;
+    const cplx *b = in->b >= 0 ? work + (size_t)in->b * n : NULL;
+    int st = STEEP_OK;
+    if (!t->varying[j]) {
+      memset(w, 0, n * sizeof *w);
+      w[0] = apply1(in, a ? a[0] : 0, b ? b[0] : 0, x, params);
+      if (!isfinite(creal(w[0])) || !isfinite(cimag(w[0]))) st = STEEP_NONFINITE;
+    } else {
+      st = jet1(t, j, w, a, b, n, x, scratch);
+      if (st == STEEP_OK && !ser_isfinite(w, n)) st = STEEP_NONFINITE;
+    }
+    if (st != STEEP_OK) { *bad = (long)j; return st; }
+  }
+  return STEEP_OK;
+}

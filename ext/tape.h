@@ -1,0 +1,69 @@
+/*
+ * tape.h — compiled expressions: a flat array of instructions in SSA form.
+ *
+ * Instruction j writes slot j; its operands are earlier slots (a, b < j). One slot is
+ * fed by the variable, others by named parameters (bound by index at evaluation) and
+ * constants. A tape has one or more outputs (slots). It evaluates in three modes:
+ * a value at one point, values at a batch of points (instruction-major over blocks of
+ * points, so the dispatch cost is shared), and a jet: the Taylor coefficients to
+ * order N at a point by truncated series arithmetic (Griewank & Walther 2008, ch. 13).
+ */
+#ifndef STEEP_TAPE_H
+#define STEEP_TAPE_H
+
+#include <stddef.h>
+#include "steep.h"
+
+enum tape_op {
+  OP_CONST, OP_VAR, OP_PARAM,
+  OP_ADD, OP_SUB, OP_MUL, OP_DIV, OP_NEG,
+  OP_POWI,            /* a^k, integer k: binary powering */
+  OP_POWC,            /* a^c, constant complex c: principal branch */
+  OP_EXP, OP_LOG, OP_SQRT,
+  OP_SIN, OP_COS, OP_TAN, OP_SINH, OP_COSH, OP_TANH, OP_ATAN,
+  OP_COUNT
+};
+
+typedef struct tape_ins {
+  int op;
+  int a, b;     /* operand slots (unused ones are -1) */
+  long k;       /* OP_PARAM: parameter index; OP_POWI: exponent */
+  cplx c;       /* OP_CONST: value; OP_POWC: exponent */
+} tape_ins;
+
+typedef struct tape {
+  size_t n;                 /* instructions = slots */
+  size_t nparams;
+  size_t nout;
+  tape_ins *ins;            /* n */
+  int *out;                 /* nout output slots */
+  unsigned char *varying;   /* n flags: slot depends on the variable */
+} tape;
+
+/* Number of operands (0, 1 or 2) of an op; -1 for an unknown op. */
+int tape_arity(int op);
+const char *tape_op_name(int op);
+int tape_op_lookup(const char *name);   /* -1 if unknown */
+
+/* Checks operands, parameter indices and outputs; fills t->varying. Returns -1 when the
+ * tape is well formed, else the index of the first bad instruction (n for bad outputs),
+ * with a reason in *why. */
+long tape_check(tape *t, const char **why);
+
+/* Values of the outputs at x: out[nout]. work: n entries. */
+void tape_eval(const tape *t, cplx x, const cplx *params, cplx *out, cplx *work);
+
+/* Block size of tape_eval_batch; work needs n * TAPE_BLOCK entries. */
+#define TAPE_BLOCK 64
+
+/* Values at m points: out[o * m + i] is output o at xs[i]. */
+void tape_eval_batch(const tape *t, const cplx *xs, size_t m, const cplx *params,
+                     cplx *out, cplx *work);
+
+/* Jets of order N (N+1 coefficients) of every slot at x: jet slot j occupies
+ * work[j*(N+1) .. j*(N+1)+N]; scratch needs 4*(N+1) entries. Returns STEEP_OK or the
+ * status of the first failing instruction, whose index goes to *bad. */
+int tape_jet(const tape *t, cplx x, const cplx *params, size_t order, cplx *work,
+             cplx *scratch, long *bad);
+
+#endif

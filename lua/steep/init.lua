@@ -1,0 +1,64 @@
+-- steep — asymptotic analysis of integrals with a large parameter.
+--
+-- The public table. Expressions are built from symbols with ordinary Lua arithmetic,
+-- compiled to tapes in C, and evaluated as values, batches or Taylor jets.
+
+local core = require "steep.core"
+local complex = require "steep.complex"
+local expr = require "steep.expr"
+
+local steep = {}
+
+steep.version = "0.1.0"
+steep.max_order = core.max_order
+
+-- symbols and values
+function steep.var(name) return expr.symbol("var", name) end
+function steep.param(name) return expr.symbol("param", name) end
+
+function steep.complex(re, im)
+  if type(re) ~= "number" then
+    error(string.format("bad argument #1 to 'complex' (number expected, got %s)", type(re)), 2)
+  end
+  if im ~= nil and type(im) ~= "number" then
+    error(string.format("bad argument #2 to 'complex' (number expected, got %s)", type(im)), 2)
+  end
+  return complex.new(re, im or 0)
+end
+steep.I = complex.I
+steep.is_complex = complex.is
+steep.is_expr = expr.is
+
+-- elementary functions on numbers, complex values and expressions (principal branches);
+-- on a steep.series they apply the series kernel.
+for _, name in ipairs(complex.function_names) do
+  steep[name] = function(v)
+    if getmetatable(v) == getmetatable(steep.series { 0 }) then return v[name](v) end
+    return expr.fn(name, v)
+  end
+end
+
+-- tapes and series
+--- steep.compile(exprs, var) -> tape (see lua/steep/expr.lua).
+function steep.compile(exprs, var) return expr.compile(exprs, var) end
+
+steep.series = core.series
+steep.cvec = core.cvec
+steep.cvec_range = core.cvec_range
+
+--- steep.taylor(e, var, at, order, params) -> series: the Taylor coefficients of e in
+-- var about `at` to the given order (params binds every other symbol by name).
+function steep.taylor(e, var, at, order, params)
+  if not expr.is(var) then
+    error("bad argument #2 to 'taylor' (symbol expected, got " .. type(var) .. ")", 2)
+  end
+  if type(order) ~= "number" or math.tointeger(order) == nil or order < 0
+      or order > core.max_order then
+    error(string.format("bad argument #4 to 'taylor' (order in 0..%d expected, got %s)",
+      core.max_order, tostring(order)), 2)
+  end
+  local tape = expr.compile(e, var)
+  return (tape:jet(at, math.tointeger(order), params or {}))
+end
+
+return steep
