@@ -37,10 +37,17 @@ void bind_pushseries(lua_State *L, const cplx *c, size_t n);
 cplx *bind_tocvec(lua_State *L, int idx, size_t *n);
 cplx *bind_newcvec(lua_State *L, size_t n);
 
+/* Tapes (bind_tape.c): the tape at idx (or an argument error), and its parameter
+ * values read by name from the table at pidx (errors name unbound parameters). */
+struct tape;
+const struct tape *bind_checktape(lua_State *L, int idx);
+cplx *bind_tapeparams(lua_State *L, int tidx, int pidx);
+
 /* Per-file registration, called from luaopen_steep_core with the module table on top. */
 void bind_series_open(lua_State *L);
 void bind_tape_open(lua_State *L);
 void bind_cvec_open(lua_State *L);
 void bind_cmath_open(lua_State *L);
+void bind_landscape_open(lua_State *L);
 
 #endif

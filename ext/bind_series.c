@@ -160,9 +160,11 @@ static int series_fn(lua_State *L, int f, const char *name) {
     case F_TANH: st = ser_tanh(r->c, a->c, n, work); break;
     default: st = ser_atan(r->c, a->c, n, work); break;
   }
-  if (st != STEEP_OK)
-    return luaL_error(L, "series %s: singular at the constant term %f%+fi", name,
-                      creal(a->c[0]), cimag(a->c[0]));
+  if (st != STEEP_OK) {
+    char c0[64];   /* lua_pushfstring has no %g nor flags such as %+ */
+    snprintf(c0, sizeof c0, "%.15g%+.15gi", creal(a->c[0]), cimag(a->c[0]));
+    return luaL_error(L, "series %s: singular at the constant term %s", name, c0);
+  }
   return 1;
 }
 

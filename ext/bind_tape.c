@@ -115,14 +115,22 @@ static int tape_new(lua_State *L) {
   return 1;
 }
 
-/* Reads the parameter values of tape t (userdata at index 1) from the table at pidx,
+/* Reads the parameter values of tape t (userdata at index tidx) from the table at pidx,
  * by name. Unbound, non-numeric and non-finite values are errors naming the parameter. */
-static cplx *read_params(lua_State *L, const tape *t, int pidx) {
-  cplx *p = bind_scratch(L, t->nparams * sizeof(cplx));
-  if (t->nparams == 0) return p;
+static cplx *params_of(lua_State *L, const tape *t, int tidx, int pidx) {
+  if (t->nparams == 0) return bind_scratch(L, 0);
+  /* Checked before the scratch below is pushed: with the argument absent, pidx would
+   * otherwise name that scratch userdata. */
+  if (lua_isnoneornil(L, pidx)) {
+    lua_getiuservalue(L, tidx, 1);
+    lua_rawgeti(L, -1, 1);
+    luaL_error(L, "unbound parameter '%s' (no table of parameter values given)",
+               lua_tostring(L, -1));
+  }
   if (lua_type(L, pidx) != LUA_TTABLE)
     luaL_typeerror(L, pidx, "table of parameter values");
-  lua_getiuservalue(L, 1, 1);
+  cplx *p = bind_scratch(L, t->nparams * sizeof(cplx));
+  lua_getiuservalue(L, tidx, 1);
   for (size_t i = 0; i < t->nparams; i++) {
     lua_rawgeti(L, -1, (lua_Integer)i + 1);
     const char *name = lua_tostring(L, -1);
@@ -137,6 +145,16 @@ static cplx *read_params(lua_State *L, const tape *t, int pidx) {
   }
   lua_pop(L, 1);
   return p;
+}
+
+static cplx *read_params(lua_State *L, const tape *t, int pidx) {
+  return params_of(L, t, 1, pidx);
+}
+
+const tape *bind_checktape(lua_State *L, int idx) { return checktape(L, idx); }
+
+cplx *bind_tapeparams(lua_State *L, int tidx, int pidx) {
+  return params_of(L, checktape(L, tidx), lua_absindex(L, tidx), lua_absindex(L, pidx));
 }
 
 /* tape:eval(x [, params]) -> one complex value per output. */
@@ -210,9 +228,12 @@ static int tape_jet_l(lua_State *L) {
   cplx *scratch = bind_scratch(L, 4 * n * sizeof(cplx));
   long bad = -1;
   int st = tape_jet(t, x, p, order, work, scratch, &bad);
-  if (st != STEEP_OK)
-    return luaL_error(L, "jet at %f%+fi: %s (instruction %d) %s", creal(x), cimag(x),
+  if (st != STEEP_OK) {
+    char at[64];   /* lua_pushfstring has no %g nor flags such as %+ */
+    snprintf(at, sizeof at, "%.15g%+.15gi", creal(x), cimag(x));
+    return luaL_error(L, "jet at %s: %s (instruction %d) %s", at,
                       tape_op_name(t->ins[bad].op), (int)bad + 1, status_text(st));
+  }
   luaL_checkstack(L, (int)t->nout, "too many outputs");
   for (size_t o = 0; o < t->nout; o++) bind_pushseries(L, work + (size_t)t->out[o] * n, n);
   return (int)t->nout;

@@ -18,6 +18,7 @@ int luaopen_steep_core(lua_State *L) {
   bind_tape_open(L);
   bind_cvec_open(L);
   bind_cmath_open(L);
+  bind_landscape_open(L);
   lua_pushinteger(L, STEEP_MAX_ORDER);
   lua_setfield(L, -2, "max_order");
   return 1;

@@ -142,6 +142,8 @@ void tape_eval_batch(const tape *t, const cplx *xs, size_t m, const cplx *params
     size_t len = m - start < TAPE_BLOCK ? m - start : TAPE_BLOCK;
     for (size_t j = 0; j < t->n; j++) {
       const tape_ins *in = &t->ins[j];
+      /* slots that do not depend on the variable keep their value from the first block */
+      if (start > 0 && !t->varying[j]) continue;
       const cplx *a = in->a >= 0 ? work + (size_t)in->a * TAPE_BLOCK : NULL;
       const cplx *b = in->b >= 0 ? work + (size_t)in->b * TAPE_BLOCK : NULL;
       apply_block(in, work + j * TAPE_BLOCK, a, b, xs + start, len, params);

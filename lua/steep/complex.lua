@@ -34,7 +34,8 @@ end
 
 -- Hands `a <op> b` to the operand that is neither a number nor a complex value.
 local function delegate(event, a, b)
-  local other = parts(a) and b or a
+  local other = a
+  if parts(a) then other = b end   -- not `parts(a) and b or a`: b may be nil or false
   local m = getmetatable(other)
   local h = m and m[event]
   if h and m ~= mt then return h(a, b) end

@@ -141,7 +141,14 @@ end
 local function pow(a, b)
   a, b = lift(a, 3), lift(b, 3)
   local va, vb = value_of(a), value_of(b)
-  if va and vb then return const(va ^ vb) end
+  if va and vb then
+    -- a negative real base with a non-integer real exponent: the principal complex
+    -- value, as powc gives on the tape (Lua's real ^ gives NaN there)
+    if type(va) == "number" and va < 0 and type(vb) == "number" and vb ~= floor(vb) then
+      va = cnew(va, 0)
+    end
+    return const(va ^ vb)
+  end
   if vb then
     local br, bi = cparts(vb)
     if bi == 0 and br == floor(br) and math.abs(br) <= 1e9 then

@@ -6,6 +6,8 @@
 local core = require "steep.core"
 local complex = require "steep.complex"
 local expr = require "steep.expr"
+local contour = require "steep.contour"
+local integral = require "steep.integral"
 
 local steep = {}
 
@@ -31,9 +33,10 @@ steep.is_expr = expr.is
 
 -- elementary functions on numbers, complex values and expressions (principal branches);
 -- on a steep.series they apply the series kernel.
+local series_mt = getmetatable(core.series { 0 })
 for _, name in ipairs(complex.function_names) do
   steep[name] = function(v)
-    if getmetatable(v) == getmetatable(steep.series { 0 }) then return v[name](v) end
+    if getmetatable(v) == series_mt then return v[name](v) end
     return expr.fn(name, v)
   end
 end
@@ -60,5 +63,13 @@ function steep.taylor(e, var, at, order, params)
   local tape = expr.compile(e, var)
   return (tape:jet(at, math.tointeger(order), params or {}))
 end
+
+-- contours and integrals
+steep.inf = contour.inf
+steep.line = contour.line
+steep.path = contour.path
+steep.circle = contour.circle
+steep.is_contour = contour.is
+steep.integral = integral.new
 
 return steep

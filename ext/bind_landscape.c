@@ -1,0 +1,335 @@
+/*
+ * bind_landscape.c — Lua bindings of the landscape kernels: zeros (roots.c), steepest
+ * paths (path.c), quadrature along polylines (quad.c) and polyline geometry (geom.c).
+ * They only convert arguments; the orchestration (seeds, classification, decomposition)
+ * is in lua/steep/landscape.lua and lua/steep/integral.lua.
+ *
+ * Every function taking (tape, params, ...) evaluates the tape with the parameters bound
+ * by name: output 1 is the exponent F, output 2 (if any) the amplitude g.
+ */
+#include <math.h>
+#include <string.h>
+#include "bind.h"
+#include "geom.h"
+#include "path.h"
+#include "quad.h"
+#include "roots.h"
+
+/* A problem over the tape at argument 1 with the parameters at argument 2. */
+static problem *checkproblem(lua_State *L) {
+  const tape *t = bind_checktape(L, 1);
+  cplx *params = bind_tapeparams(L, 1, 2);
+  problem *p = bind_scratch(L, sizeof(problem));
+  problem_init(p, t, params, bind_scratch(L, problem_bytes(t)));
+  return p;
+}
+
+/* Points from a steep.cvec or a list of numbers/complex values at idx. */
+static cplx *checkpoints(lua_State *L, int idx, size_t *n) {
+  cplx *v = bind_tocvec(L, idx, n);
+  if (v) return v;
+  luaL_checktype(L, idx, LUA_TTABLE);
+  lua_Integer len = luaL_len(L, idx);
+  *n = len > 0 ? (size_t)len : 0;
+  v = bind_scratch(L, *n * sizeof(cplx));
+  for (size_t i = 0; i < *n; i++) {
+    lua_geti(L, idx, (lua_Integer)i + 1);
+    if (!bind_tocomplex(L, -1, &v[i]))
+      luaL_error(L, "point %d is a %s (number or complex expected)", (int)i + 1,
+                 luaL_typename(L, -1));
+    lua_pop(L, 1);
+  }
+  return v;
+}
+
+static double optnum(lua_State *L, int t, const char *key, double dflt) {
+  lua_getfield(L, t, key);
+  double v = luaL_optnumber(L, -1, dflt);
+  lua_pop(L, 1);
+  return v;
+}
+
+static cplx optcomplex(lua_State *L, int t, const char *key, cplx dflt) {
+  lua_getfield(L, t, key);
+  cplx v = dflt;
+  if (!lua_isnil(L, -1) && !bind_tocomplex(L, -1, &v))
+    luaL_error(L, "option '%s' must be a number or complex value", key);
+  lua_pop(L, 1);
+  return v;
+}
+
+/* ---- zeros ---------------------------------------------------------------------- */
+
+/* h = the d-th derivative of tape output `out`: its Taylor coefficients at t follow from
+ * the jet of the output, c_k(h) = (k+d)!/k! a_{k+d}. */
+typedef struct {
+  problem *p;
+  int out, deriv;
+} zero_fn;
+
+static int zero_jet(void *ctx, cplx t, size_t order, cplx *c) {
+  zero_fn *z = ctx;
+  cplx a[PROBLEM_MAX_JET + 1];
+  size_t need = order + (size_t)z->deriv;
+  if (need > PROBLEM_MAX_JET) return STEEP_NONFINITE;
+  int st = problem_jet(z->p, t, need, z->out, a);
+  if (st != STEEP_OK) return st;
+  for (size_t k = 0; k <= order; k++) {
+    double f = 1;
+    for (size_t j = k + 1; j <= k + (size_t)z->deriv; j++) f *= (double)j;
+    c[k] = f * a[k + (size_t)z->deriv];
+    if (!isfinite(creal(c[k])) || !isfinite(cimag(c[k]))) return STEEP_NONFINITE;
+  }
+  return STEEP_OK;
+}
+
+static void checkzerofn(lua_State *L, int idx, problem *p, zero_fn *z) {
+  luaL_checktype(L, idx, LUA_TTABLE);
+  z->p = p;
+  z->out = (int)optnum(L, idx, "out", 1) - 1;
+  z->deriv = (int)optnum(L, idx, "deriv", 0);
+  if (z->out < 0 || (size_t)z->out >= p->t->nout) luaL_error(L, "zero: no such tape output");
+  if (z->deriv < 0 || z->deriv > 4) luaL_error(L, "zero: derivative order out of range");
+}
+
+static const char *root_text[] = {"ok", "noconv", "left", "fail", "oncircle"};
+
+/* core.zero(tape, params, {out=, deriv=}, seed, center, radius, scale, maxit)
+ *   -> status, root, multiplicity, evaluations */
+static int land_zero(lua_State *L) {
+  problem *p = checkproblem(L);
+  zero_fn z;
+  checkzerofn(L, 3, p, &z);
+  cplx seed = bind_checkcomplex(L, 4), center = bind_checkcomplex(L, 5);
+  double radius = luaL_checknumber(L, 6), scale = luaL_checknumber(L, 7);
+  int maxit = (int)luaL_optinteger(L, 8, 60);
+  luaL_argcheck(L, radius > 0 && isfinite(radius), 6, "radius must be positive and finite");
+  luaL_argcheck(L, scale > 0 && isfinite(scale), 7, "scale must be positive and finite");
+  luaL_argcheck(L, maxit > 0 && maxit <= 10000, 8, "iteration bound out of range");
+  cplx root = 0;
+  int mult = 0;
+  int st = root_newton(zero_jet, &z, seed, center, radius, scale, maxit, &root, &mult);
+  lua_pushstring(L, root_text[st]);
+  if (st != ROOT_OK) { lua_pushnil(L); lua_pushnil(L); }
+  else { bind_pushcomplex(L, root); lua_pushinteger(L, mult); }
+  lua_pushinteger(L, p->evals);
+  return 4;
+}
+
+/* core.count(tape, params, {out=, deriv=}, center, radius, maxpts)
+ *   -> status, zeros minus poles inside, distance of the raw winding from an integer */
+static int land_count(lua_State *L) {
+  problem *p = checkproblem(L);
+  zero_fn z;
+  checkzerofn(L, 3, p, &z);
+  cplx center = bind_checkcomplex(L, 4);
+  double radius = luaL_checknumber(L, 5);
+  int maxpts = (int)luaL_optinteger(L, 6, 20000);
+  luaL_argcheck(L, radius > 0 && isfinite(radius), 5, "radius must be positive and finite");
+  int count = 0;
+  double dist = 0;
+  int st = root_count(zero_jet, &z, center, radius, maxpts, &count, &dist);
+  lua_pushstring(L, root_text[st]);
+  lua_pushinteger(L, count);
+  lua_pushnumber(L, dist);
+  return 3;
+}
+
+/* ---- paths ---------------------------------------------------------------------- */
+
+static const char *end_text[] = {"low", "high", "edge", "stop", "singular", "flat", "bound"};
+
+/* core.trace(tape, params, start, level, opts) -> points, F values (cvecs), end, which
+ * opts: descent, coarse (booleans), cutoff, ref, center, radius, scale, maxsteps, maxpts,
+ *       stops (list of points), stop_r (list of radii) */
+static int land_trace(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx start = bind_checkcomplex(L, 3), level = bind_checkcomplex(L, 4);
+  luaL_checktype(L, 5, LUA_TTABLE);
+  path_opts o;
+  lua_getfield(L, 5, "descent");
+  o.descent = lua_toboolean(L, -1);
+  lua_getfield(L, 5, "coarse");
+  o.coarse = lua_toboolean(L, -1);
+  lua_pop(L, 2);
+  o.cutoff = optnum(L, 5, "cutoff", 50);
+  o.ref = optnum(L, 5, "ref", creal(level));
+  o.center = optcomplex(L, 5, "center", 0);
+  o.radius = optnum(L, 5, "radius", 10);
+  o.scale = optnum(L, 5, "scale", 1);
+  o.maxsteps = (int)optnum(L, 5, "maxsteps", 4000);
+  size_t maxpts = (size_t)optnum(L, 5, "maxpts", 4000);
+  if (!(o.radius > 0 && o.scale > 0 && isfinite(o.radius) && isfinite(o.scale)))
+    return luaL_error(L, "trace: radius and scale must be positive and finite");
+  if (o.maxsteps < 1 || o.maxsteps > 1000000 || maxpts < 2 || maxpts > 1000000)
+    return luaL_error(L, "trace: step or point bound out of range");
+  size_t ns = 0;
+  lua_getfield(L, 5, "stops");
+  int si = lua_gettop(L);
+  const cplx *stops = lua_isnil(L, si) ? NULL : checkpoints(L, si, &ns);
+  double *stop_r = bind_scratch(L, (ns + 1) * sizeof(double));
+  lua_getfield(L, 5, "stop_r");
+  for (size_t j = 0; j < ns; j++) {
+    lua_geti(L, -1, (lua_Integer)j + 1);
+    stop_r[j] = luaL_checknumber(L, -1);
+    lua_pop(L, 1);
+  }
+  o.stops = stops;
+  o.stop_r = stop_r;
+  o.nstops = ns;
+  cplx *pts = bind_scratch(L, maxpts * sizeof(cplx)), *Fs = bind_scratch(L, maxpts * sizeof(cplx));
+  size_t n = 0;
+  int which = -1;
+  int end = path_trace(p, start, level, &o, pts, Fs, maxpts, &n, &which);
+  memcpy(bind_newcvec(L, n), pts, n * sizeof(cplx));
+  memcpy(bind_newcvec(L, n), Fs, n * sizeof(cplx));
+  lua_pushstring(L, end_text[end]);
+  if (which >= 0) lua_pushinteger(L, which + 1);
+  else lua_pushnil(L);
+  lua_pushinteger(L, p->evals);
+  return 5;
+}
+
+/* core.saddle_starts(tape, params, t0, F0, order, c, descent, scale) -> list of points */
+static int land_saddle_starts(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx t0 = bind_checkcomplex(L, 3), F0 = bind_checkcomplex(L, 4);
+  int order = (int)luaL_checkinteger(L, 5);
+  cplx c = bind_checkcomplex(L, 6);
+  int descent = lua_toboolean(L, 7);
+  double scale = luaL_checknumber(L, 8);
+  luaL_argcheck(L, order >= 2 && order <= 9, 5, "saddle order must be 2..9");
+  luaL_argcheck(L, c != 0, 6, "leading coefficient must not be zero");
+  cplx starts[9];
+  if (path_saddle_starts(p, t0, F0, order, c, descent, scale, starts) != STEEP_OK)
+    return luaL_error(L, "saddle_starts: the exponent is singular next to the saddle");
+  lua_createtable(L, order, 0);
+  for (int k = 0; k < order; k++) {
+    bind_pushcomplex(L, starts[k]);
+    lua_rawseti(L, -2, k + 1);
+  }
+  return 1;
+}
+
+/* ---- quadrature ------------------------------------------------------------------ */
+
+static cplx integrand(void *ctx, cplx t) {
+  cplx F;
+  return problem_integrand(ctx, t, &F);
+}
+
+static const char *quad_text[] = {"ok", "limit", "nonfinite"};
+
+/* core.quad_polyline(tape, params, points, opts) -> value, error, evaluations, status
+ * opts: abstol, reltol, singular_start, singular_end (tanh-sinh on that segment), limit.
+ * Two passes: one Kronrod rule per segment gives the size of the integral; then every
+ * segment whose error exceeds its share of the tolerance is subdivided. */
+static int land_quad_polyline(lua_State *L) {
+  problem *p = checkproblem(L);
+  size_t n = 0;
+  cplx *pts = checkpoints(L, 3, &n);
+  luaL_checktype(L, 4, LUA_TTABLE);
+  double abstol = optnum(L, 4, "abstol", 0), reltol = optnum(L, 4, "reltol", 1e-13);
+  size_t limit = (size_t)optnum(L, 4, "limit", QUAD_MAX_SUB);
+  lua_getfield(L, 4, "singular_start");
+  int sing0 = lua_toboolean(L, -1);
+  lua_getfield(L, 4, "singular_end");
+  int sing1 = lua_toboolean(L, -1);
+  lua_pop(L, 2);
+  if (n < 2) return luaL_error(L, "quad_polyline: needs at least 2 points");
+  size_t nseg = n - 1;
+  cplx *res = bind_scratch(L, nseg * sizeof(cplx));
+  double *err = bind_scratch(L, nseg * sizeof(double));
+  long evals = 0;
+  int status = QUAD_OK;
+  double size = 0;
+  for (size_t k = 0; k < nseg; k++) {
+    int singular = (k == 0 && sing0) || (k == nseg - 1 && sing1);
+    if (singular) {
+      int st = quad_tanhsinh(integrand, p, pts[k], pts[k + 1], abstol, reltol, &res[k],
+                             &err[k], &evals);
+      if (st != QUAD_OK) status = st;
+    } else {
+      quad_gk15(integrand, p, pts[k], pts[k + 1], &res[k], &err[k]);
+      evals += 15;
+    }
+    size += cabs(res[k]);
+  }
+  double target = fmax(abstol, reltol * size);
+  cplx total = 0;
+  double etotal = 0;
+  for (size_t k = 0; k < nseg; k++) {
+    int singular = (k == 0 && sing0) || (k == nseg - 1 && sing1);
+    if (!singular && err[k] > target / (double)nseg) {
+      int st = quad_adaptive(integrand, p, pts[k], pts[k + 1], target / (double)nseg, 0, limit,
+                             &res[k], &err[k], &evals);
+      if (st != QUAD_OK) status = st;
+    }
+    total += res[k];
+    etotal += err[k];
+  }
+  if (!isfinite(creal(total)) || !isfinite(cimag(total))) status = QUAD_NONFINITE;
+  bind_pushcomplex(L, total);
+  lua_pushnumber(L, etotal);
+  lua_pushinteger(L, evals);
+  lua_pushstring(L, quad_text[status]);
+  return 4;
+}
+
+/* core.integrand_many(tape, params, points) -> cvec of g e^F (for maps and checks) */
+static int land_integrand_many(lua_State *L) {
+  problem *p = checkproblem(L);
+  size_t n = 0;
+  cplx *pts = checkpoints(L, 3, &n);
+  cplx *out = bind_newcvec(L, n);
+  for (size_t k = 0; k < n; k++) out[k] = integrand(p, pts[k]);
+  return 1;
+}
+
+/* ---- geometry ------------------------------------------------------------------- */
+
+/* core.turning(points, z) -> change of arg(t - z) / 2pi along the polyline, or nil if
+ * the polyline passes through z */
+static int geo_turning(lua_State *L) {
+  size_t n = 0;
+  cplx *pts = checkpoints(L, 1, &n);
+  double w = geom_turning(pts, n, bind_checkcomplex(L, 2));
+  if (isnan(w)) lua_pushnil(L);
+  else lua_pushnumber(L, w);
+  return 1;
+}
+
+/* core.crossings(a, b) -> signed count, list of crossing points */
+static int geo_crossings(lua_State *L) {
+  size_t na = 0, nb = 0, found = 0;
+  cplx *a = checkpoints(L, 1, &na), *b = checkpoints(L, 2, &nb);
+  enum { MAXP = 256 };
+  cplx pts[MAXP];
+  int total = geom_crossings(a, na, b, nb, pts, MAXP, &found);
+  lua_pushinteger(L, total);
+  size_t shown = found < MAXP ? found : MAXP;
+  lua_createtable(L, (int)shown, 0);
+  for (size_t k = 0; k < shown; k++) {
+    bind_pushcomplex(L, pts[k]);
+    lua_rawseti(L, -2, (lua_Integer)k + 1);
+  }
+  return 2;
+}
+
+/* core.distance(points, z) -> distance from z to the polyline */
+static int geo_distance(lua_State *L) {
+  size_t n = 0;
+  cplx *pts = checkpoints(L, 1, &n);
+  lua_pushnumber(L, geom_distance(pts, n, bind_checkcomplex(L, 2)));
+  return 1;
+}
+
+static const luaL_Reg land_funcs[] = {
+  {"zero", land_zero}, {"count", land_count}, {"trace", land_trace},
+  {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
+  {"integrand_many", land_integrand_many},
+  {"turning", geo_turning}, {"crossings", geo_crossings}, {"distance", geo_distance},
+  {NULL, NULL}
+};
+
+void bind_landscape_open(lua_State *L) { luaL_setfuncs(L, land_funcs, 0); }

@@ -1,0 +1,67 @@
+/*
+ * geom.c — polyline geometry; contracts in geom.h.
+ */
+#include <math.h>
+#include "geom.h"
+
+double geom_turning(const cplx *p, size_t n, cplx z) {
+  double total = 0;
+  for (size_t k = 0; k + 1 < n; k++) {
+    cplx u = p[k] - z, v = p[k + 1] - z;
+    if (u == 0 || v == 0) return NAN;
+    double d = carg(v / u);
+    /* a segment passing through z turns by exactly +-pi: z lies on the curve */
+    if (fabs(fabs(d) - 3.141592653589793) < 1e-12) return NAN;
+    total += d;
+  }
+  return total / 6.283185307179586;
+}
+
+static double cross(cplx u, cplx v) { return creal(u) * cimag(v) - cimag(u) * creal(v); }
+
+/* Which side of the line through p along r the point z lies on: 1 left, 0 right or on
+ * it. Deciding "on the line" as "right" once, for every use of the same vertex, makes
+ * crossings at shared vertices count exactly once (a discrete form of simulation of
+ * simplicity). */
+static int left_of(cplx p, cplx r, cplx z) { return cross(r, z - p) > 0; }
+
+int geom_crossings(const cplx *a, size_t na, const cplx *b, size_t nb, cplx *pts,
+                   size_t maxpts, size_t *npts) {
+  int total = 0;
+  size_t found = 0;
+  for (size_t i = 0; i + 1 < na; i++) {
+    cplx p = a[i], r = a[i + 1] - a[i];
+    double ax0 = fmin(creal(a[i]), creal(a[i + 1])), ax1 = fmax(creal(a[i]), creal(a[i + 1]));
+    double ay0 = fmin(cimag(a[i]), cimag(a[i + 1])), ay1 = fmax(cimag(a[i]), cimag(a[i + 1]));
+    for (size_t j = 0; j + 1 < nb; j++) {
+      /* bounding boxes first: most pairs are far apart */
+      if (fmax(creal(b[j]), creal(b[j + 1])) < ax0 || fmin(creal(b[j]), creal(b[j + 1])) > ax1 ||
+          fmax(cimag(b[j]), cimag(b[j + 1])) < ay0 || fmin(cimag(b[j]), cimag(b[j + 1])) > ay1)
+        continue;
+      cplx s = b[j + 1] - b[j];
+      int b0 = left_of(p, r, b[j]), b1 = left_of(p, r, b[j + 1]);
+      if (b0 == b1) continue;
+      if (left_of(b[j], s, a[i]) == left_of(b[j], s, a[i + 1])) continue;
+      total += b1 ? 1 : -1;   /* b went from the right of a to its left: +1 */
+      if (pts && found < maxpts) {
+        double den = cross(r, s);
+        pts[found] = den != 0 ? p + (cross(b[j] - p, s) / den) * r : p;
+      }
+      found++;
+    }
+  }
+  if (npts) *npts = found;
+  return total;
+}
+
+double geom_distance(const cplx *p, size_t n, cplx z) {
+  double best = n ? cabs(p[0] - z) : INFINITY;
+  for (size_t k = 0; k + 1 < n; k++) {
+    cplx d = p[k + 1] - p[k];
+    double len2 = creal(d) * creal(d) + cimag(d) * cimag(d);
+    double u = len2 > 0 ? creal(conj(d) * (z - p[k])) / len2 : 0;
+    u = fmin(1, fmax(0, u));
+    best = fmin(best, cabs(p[k] + u * d - z));
+  }
+  return best;
+}

@@ -1,0 +1,48 @@
+/*
+ * problem.c — evaluation of an integrand through its tape; see problem.h.
+ */
+#include <string.h>
+#include "problem.h"
+
+size_t problem_bytes(const tape *t) {
+  return (t->n * (PROBLEM_MAX_JET + 1) + 4 * (PROBLEM_MAX_JET + 1) + t->nout + t->n) *
+         sizeof(cplx);
+}
+
+void problem_init(problem *p, const tape *t, const cplx *params, void *mem) {
+  cplx *m = mem;
+  p->t = t;
+  p->params = params;
+  p->work = m;
+  p->scratch = m + t->n * (PROBLEM_MAX_JET + 1);
+  p->vals = p->scratch + 4 * (PROBLEM_MAX_JET + 1);
+  p->evals = 0;
+}
+
+int problem_jet(problem *p, cplx x, size_t order, int out, cplx *coef) {
+  long bad;
+  if (order > PROBLEM_MAX_JET) order = PROBLEM_MAX_JET;
+  p->evals++;
+  int st = tape_jet(p->t, x, p->params, order, p->work, p->scratch, &bad);
+  if (st != STEEP_OK) return st;
+  memcpy(coef, p->work + (size_t)p->t->out[out] * (order + 1), (order + 1) * sizeof(cplx));
+  return STEEP_OK;
+}
+
+cplx problem_integrand(problem *p, cplx x, cplx *F) {
+  /* the scalar slots live after vals: t->n entries (see problem_bytes) */
+  cplx *slots = p->vals + p->t->nout;
+  p->evals++;
+  tape_eval(p->t, x, p->params, p->vals, slots);
+  *F = p->vals[0];
+  cplx g = p->t->nout > 1 ? p->vals[1] : 1.0;
+  return g * cexp(p->vals[0]);
+}
+
+int problem_dF(problem *p, cplx x, cplx *F, cplx *dF) {
+  cplx c[2];
+  int st = problem_jet(p, x, 1, 0, c);
+  *F = c[0];
+  *dF = c[1];
+  return st;
+}

@@ -1,0 +1,256 @@
+-- steep.contour — oriented contours in the complex plane: straight lines, polylines
+-- whose first and last points may lie at infinity in a direction, and circles.
+--
+-- A contour is an immutable list of pieces:
+--   {kind = "segment", a = z1, b = z2}           from z1 to z2
+--   {kind = "ray_out", a = z, angle = th}         from z to infinity in direction th
+--   {kind = "ray_in", angle = th, b = z}          from infinity in direction th to z
+--   {kind = "arc", center = c, radius = r, from = th0, to = th1}   (a circle: 0 -> 2pi)
+-- Consecutive pieces join end to start; contours concatenate with `..`.
+
+local complex = require "steep.complex"
+
+local cnew, cparts, is_complex = complex.new, complex.parts, complex.is
+local format, pi, cos, sin, atan = string.format, math.pi, math.cos, math.sin, math.atan
+
+local M = {}
+
+local Inf = { __name = "steep.inf" }
+Inf.__index = Inf
+Inf.__tostring = function(p) return format("inf(%.6g)", p.angle) end
+
+local Contour = { __name = "steep.contour" }
+local methods = {}
+Contour.__index = methods
+
+local function is_inf(v) return getmetatable(v) == Inf end
+local function is_contour(v) return getmetatable(v) == Contour end
+M.is_inf, M.is = is_inf, is_contour
+
+-- Angles are kept in (-pi, pi].
+local function norm_angle(th)
+  th = th % (2 * pi)
+  if th > pi then th = th - 2 * pi end
+  return th
+end
+M.norm_angle = norm_angle
+
+--- steep.inf(angle): the point at infinity in direction `angle` (radians).
+function M.inf(angle)
+  if type(angle) ~= "number" or angle ~= angle or angle == math.huge or angle == -math.huge then
+    error(format("bad argument #1 to 'inf' (finite angle in radians expected, got %s)",
+      tostring(angle)), 2)
+  end
+  return setmetatable({ angle = norm_angle(angle) }, Inf)
+end
+
+local function to_point(v, fname, argn, allow_inf)
+  if is_inf(v) then
+    if allow_inf then return v end
+    error(format("bad argument #%d to '%s' (a point at infinity is allowed only at an end)",
+      argn, fname), 3)
+  end
+  local re, im = cparts(v)
+  if not re then
+    error(format("bad argument #%d to '%s' (point or steep.inf expected, got %s)", argn, fname,
+      type(v)), 3)
+  end
+  if re ~= re or im ~= im or math.abs(re) == math.huge or math.abs(im) == math.huge then
+    error(format("bad argument #%d to '%s' (point is not finite: use steep.inf(angle))",
+      argn, fname), 3)
+  end
+  return cnew(re, im)
+end
+
+local function new(pieces, closed)
+  return setmetatable({ pieces = pieces, closed = closed or false }, Contour)
+end
+
+local function piece_from(p1, p2, fname)
+  if is_inf(p1) and is_inf(p2) then
+    error(format("bad argument to '%s' (both ends at infinity: put a finite point between "
+      .. "them, e.g. steep.path{steep.inf(a), 0, steep.inf(b)})", fname), 3)
+  elseif is_inf(p1) then
+    return { kind = "ray_in", angle = p1.angle, b = p2 }
+  elseif is_inf(p2) then
+    return { kind = "ray_out", a = p1, angle = p2.angle }
+  end
+  if p1 == p2 then error(format("bad argument to '%s' (a segment of zero length at %s)",
+      fname, tostring(p1)), 3) end
+  return { kind = "segment", a = p1, b = p2 }
+end
+
+--- steep.line(a, b): from a to b; either may be steep.inf(angle). A line between two
+-- opposite infinities passes through 0.
+function M.line(a, b)
+  a, b = to_point(a, "line", 1, true), to_point(b, "line", 2, true)
+  if is_inf(a) and is_inf(b) then
+    local d = norm_angle(b.angle - a.angle)
+    if math.abs(math.abs(d) - pi) > 1e-12 then
+      error("bad argument #2 to 'line' (ends at infinity in directions that are not opposite:"
+        .. " give the points in between with steep.path)", 2)
+    end
+    return new({ { kind = "ray_in", angle = a.angle, b = cnew(0, 0) },
+      { kind = "ray_out", a = cnew(0, 0), angle = b.angle } })
+  end
+  return new({ piece_from(a, b, "line") })
+end
+
+--- steep.path{p1, ..., pk}: polyline; first and last may be steep.inf(angle).
+function M.path(points)
+  if type(points) ~= "table" or is_complex(points) or is_inf(points) then
+    error(format("bad argument #1 to 'path' (list of points expected, got %s)", type(points)), 2)
+  end
+  local n = #points
+  if n < 2 then error("bad argument #1 to 'path' (at least two points expected)", 2) end
+  local pts = {}
+  for k = 1, n do pts[k] = to_point(points[k], "path", 1, k == 1 or k == n) end
+  if is_inf(pts[1]) and is_inf(pts[n]) and n == 2 then return M.line(pts[1], pts[2]) end
+  local pieces = {}
+  for k = 1, n - 1 do pieces[k] = piece_from(pts[k], pts[k + 1], "path") end
+  return new(pieces)
+end
+
+--- steep.circle(center, radius): closed, counter-clockwise.
+function M.circle(center, radius)
+  center = to_point(center, "circle", 1, false)
+  if type(radius) ~= "number" or not (radius > 0) or radius == math.huge then
+    error(format("bad argument #2 to 'circle' (positive radius expected, got %s)",
+      tostring(radius)), 2)
+  end
+  return new({ { kind = "arc", center = center, radius = radius, from = 0, to = 2 * pi } }, true)
+end
+
+local function arc_point(p, th) return p.center + p.radius * cnew(cos(th), sin(th)) end
+
+-- The start and end of a piece: a complex point or a steep.inf.
+local function piece_start(p)
+  if p.kind == "segment" or p.kind == "ray_out" then return p.a end
+  if p.kind == "ray_in" then return M.inf(p.angle) end
+  return arc_point(p, p.from)
+end
+
+local function piece_end(p)
+  if p.kind == "segment" or p.kind == "ray_in" then return p.b end
+  if p.kind == "ray_out" then return M.inf(p.angle) end
+  return arc_point(p, p.to)
+end
+
+--- c:start(), c:finish(): the end points (complex or steep.inf); nil for closed contours.
+function methods.start(c) if not c.closed then return piece_start(c.pieces[1]) end end
+function methods.finish(c) if not c.closed then return piece_end(c.pieces[#c.pieces]) end end
+
+local function same_point(p, q)
+  if is_inf(p) or is_inf(q) then
+    return is_inf(p) and is_inf(q) and math.abs(norm_angle(p.angle - q.angle)) < 1e-12
+  end
+  local d = (p - q):abs()
+  return d <= 1e-12 * math.max(1, p:abs())
+end
+
+--- c1 .. c2: c1 followed by c2; the end of c1 must be the start of c2.
+Contour.__concat = function(c1, c2)
+  if not is_contour(c1) or not is_contour(c2) then
+    error("attempt to concatenate a contour with a " ..
+      (is_contour(c1) and type(c2) or type(c1)), 2)
+  end
+  if c1.closed or c2.closed then error("cannot concatenate a closed contour", 2) end
+  local e, s = c1:finish(), c2:start()
+  if not same_point(e, s) then
+    error(format("cannot concatenate contours: the first ends at %s, the second starts at %s",
+      tostring(e), tostring(s)), 2)
+  end
+  if is_inf(e) then
+    error("cannot concatenate contours that meet at infinity (the result would pass "
+      .. "through infinity)", 2)
+  end
+  local pieces = {}
+  for _, p in ipairs(c1.pieces) do pieces[#pieces + 1] = p end
+  for _, p in ipairs(c2.pieces) do pieces[#pieces + 1] = p end
+  return new(pieces)
+end
+
+local function reverse_piece(p)
+  if p.kind == "segment" then return { kind = "segment", a = p.b, b = p.a } end
+  if p.kind == "ray_out" then return { kind = "ray_in", angle = p.angle, b = p.a } end
+  if p.kind == "ray_in" then return { kind = "ray_out", a = p.b, angle = p.angle } end
+  return { kind = "arc", center = p.center, radius = p.radius, from = p.to, to = p.from }
+end
+
+--- c:reverse(): the same curve, traversed the other way.
+function methods.reverse(c)
+  local pieces = {}
+  for k = #c.pieces, 1, -1 do pieces[#pieces + 1] = reverse_piece(c.pieces[k]) end
+  return new(pieces, c.closed)
+end
+
+--- c:finite_points(): the finite vertices (for the problem's scale).
+function methods.finite_points(c)
+  local out = {}
+  for _, p in ipairs(c.pieces) do
+    if p.kind == "arc" then
+      out[#out + 1] = p.center + p.radius
+      out[#out + 1] = p.center - p.radius
+      out[#out + 1] = p.center + cnew(0, p.radius)
+      out[#out + 1] = p.center - cnew(0, p.radius)
+    else
+      if p.a then out[#out + 1] = p.a end
+      if p.b then out[#out + 1] = p.b end
+    end
+  end
+  return out
+end
+
+--- c:sample{radius = R, n = N}: a polyline through the contour: each segment in N
+-- pieces, each ray out to |t| = R (at least its start plus one unit of length), each arc
+-- in N pieces per quarter turn.
+function methods.sample(c, opts)
+  opts = opts or {}
+  local R, n = opts.radius or 10, opts.n or 16
+  local pts = {}
+  local function add(z)
+    local last = pts[#pts]
+    if not last or (z - last):abs() > 1e-14 * math.max(1, z:abs()) then pts[#pts + 1] = z end
+  end
+  local function ray_end(a, th)
+    local dir = cnew(cos(th), sin(th))
+    -- |a + s dir| = R  ->  s = -Re(conj(a) dir) + sqrt(...)
+    local ar, ai = cparts(a)
+    local proj = ar * cos(th) + ai * sin(th)
+    local a2 = ar * ar + ai * ai
+    local s = -proj + math.sqrt(math.max(0, proj * proj - a2 + R * R))
+    return a + math.max(s, 1) * dir
+  end
+  for _, p in ipairs(c.pieces) do
+    if p.kind == "segment" then
+      for k = 0, n do add(p.a + (p.b - p.a) * (k / n)) end
+    elseif p.kind == "ray_out" then
+      local e = ray_end(p.a, p.angle)
+      for k = 0, n do add(p.a + (e - p.a) * (k / n)) end
+    elseif p.kind == "ray_in" then
+      local e = ray_end(p.b, p.angle)
+      for k = 0, n do add(e + (p.b - e) * (k / n)) end
+    else
+      local m = math.max(4, math.ceil(math.abs(p.to - p.from) / (pi / 2) * n))
+      for k = 0, m do add(arc_point(p, p.from + (p.to - p.from) * k / m)) end
+    end
+  end
+  return pts
+end
+
+Contour.__tostring = function(c)
+  local parts = {}
+  for _, p in ipairs(c.pieces) do
+    if p.kind == "arc" then
+      parts[#parts + 1] = format("arc(center %s, radius %.6g, %.6g..%.6g)", tostring(p.center),
+        p.radius, p.from, p.to)
+    else
+      parts[#parts + 1] = tostring(piece_start(p)) .. " -> " .. tostring(piece_end(p))
+    end
+  end
+  return "contour[" .. table.concat(parts, ", ") .. "]"
+end
+
+M.arc_point = arc_point
+M.new = new
+return M

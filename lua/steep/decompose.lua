@@ -1,0 +1,288 @@
+-- steep.decompose — the given contour rewritten as an integer combination of steepest
+-- descent paths (through saddles and from finite endpoints) plus residues of the poles
+-- that the deformation sweeps over.
+--
+-- Weights come from intersection numbers: the weight of a simple saddle is the signed
+-- number of crossings of the contour with the saddle's steepest ascent path, oriented so
+-- that its own descent path meets it with +1 (Picard-Lefschetz theory; e.g. Witten,
+-- "Analytic continuation of Chern-Simons theory", 2010, sec. 3; Berry & Howls, Proc. R.
+-- Soc. A 434 (1991) 657-675). A descent path from an endpoint has constant Im F equal to
+-- Im F there, so it meets no ascent path of a saddle at another level: the weights are
+-- unchanged by adding the endpoint paths. What remains between the contour and the
+-- combination is a closed cycle; its winding number about each pole gives the residue
+-- term, and it must not wind about a branch point or an essential singularity.
+
+local core = require "steep.core"
+local complex = require "steep.complex"
+local landscape = require "steep.landscape"
+local contour_m = require "steep.contour"
+
+local cnew, cparts = complex.new, complex.parts
+local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
+local format, pi, abs, floor = string.format, math.pi, math.abs, math.floor
+
+local M = {}
+
+-- A path's full polyline: the part used for quadrature followed by the coarse tail.
+local function full(path)
+  local out = {}
+  for _, z in ipairs(path.points) do out[#out + 1] = z end
+  for k = 2, #path.tail do out[#out + 1] = path.tail[k] end
+  return out
+end
+
+local function reversed(list)
+  local out = {}
+  for k = #list, 1, -1 do out[#out + 1] = list[k] end
+  return out
+end
+
+local function join(a, b)   -- a then b, dropping b's first point (shared)
+  local out = {}
+  for _, z in ipairs(a) do out[#out + 1] = z end
+  for k = 2, #b do out[#out + 1] = b[k] end
+  return out
+end
+
+-- a then b without their shared first point (the saddle): the two paths are joined by a
+-- short chord past the saddle, so that a contour through the saddle itself meets the
+-- joined path inside a segment rather than at a vertex (where crossings are fragile).
+local function join_past(a, b)
+  local out = {}
+  for k = 1, #a - 1 do out[#out + 1] = a[k] end
+  for k = 2, #b do out[#out + 1] = b[k] end
+  return out
+end
+
+-- The label of a contour end: a finite point ("point <index>"), a sink, or a valley.
+local function contour_end_label(L, e, which)
+  if contour_m.is_inf(e) then
+    local k, boundary = landscape.valley_of(L.valleys, e.angle)
+    if not k then
+      local vs = {}
+      for _, v in ipairs(L.valleys) do vs[#vs + 1] = landscape.describe_valley(v) end
+      error(format("the contour's %s end at infinity in direction %.6g is outside every "
+        .. "valley: the integral diverges there (valleys: %s)", which, e.angle,
+        #vs > 0 and table.concat(vs, ", ") or "none"), 0)
+    end
+    return "valley " .. k, boundary
+  end
+  for j, s in ipairs(L.singularities) do
+    if s.kind == "sink" and cabs(s.at - e) <= 1e-9 * L.region.radius then return "sink " .. j end
+  end
+  return nil
+end
+
+--- Checks that no singularity lies on the contour (except integrable ones at its ends).
+function M.check_contour(L, contour, pts)
+  local R = L.region.radius
+  for _, s in ipairs(L.singularities) do
+    local d = core.distance(pts, s.at)
+    if d <= 1e-9 * R then
+      local at_end = false
+      if not contour.closed then
+        for _, e in ipairs({ contour:start(), contour:finish() }) do
+          if not contour_m.is_inf(e) and cabs(e - s.at) <= 1e-9 * R then at_end = true end
+        end
+      end
+      if not at_end or s.kind == "pole" or s.kind == "essential" or s.kind == "hill" then
+        error(format("a %s of the integrand lies on the contour at %s (%s)", s.kind,
+          tostring(s.at), s.source), 0)
+      end
+    end
+  end
+end
+
+-- Turning of the closure from a far end point z to valley k's reference point, as the
+-- polyline: radially out to radius Rref, then along the arc inside the valley.
+local function closure_to_valley(L, z, k, Rref)
+  local v = L.valleys[k]
+  local mid = v.type == "edge" and v.from or 0.5 * (v.from + v.to)
+  local c = L.region.center
+  local th = carg(z - c)
+  -- unwrap th next to the valley's interval
+  while th < v.from - pi do th = th + 2 * pi end
+  while th > v.to + pi do th = th - 2 * pi end
+  local pts = { z, c + Rref * expi(th) }
+  local n = 64
+  for j = 1, n do pts[#pts + 1] = c + Rref * expi(th + (mid - th) * j / n) end
+  return pts
+end
+
+--- decompose(J, params, L, contour) -> plan
+-- plan.pieces: list of {kind = "saddle" | "endpoint", index, weight, points (for
+-- quadrature), ends = {from label, to label}}; plan.residues: list of {index (into
+-- L.singularities), winding}; plan.status: "ok" or the reason it is incomplete;
+-- plan.notes: list of strings.
+function M.decompose(J, params, L, contour)
+  local R = L.region.radius
+  local plan = { pieces = {}, residues = {}, notes = {}, status = "ok", evals = 0 }
+  local Rfar = 8 * R
+  local cpts = contour:sample { radius = Rfar, n = 64 }
+  M.check_contour(L, contour, cpts)
+
+  -- boundary of the contour
+  -- label -> multiplicity in (boundary of the contour) - (boundary of the combination),
+  -- counting ends +1 and starts -1; it must vanish
+  local boundary = {}
+  local function bump(label, by) boundary[label] = (boundary[label] or 0) + by end
+  local start_label, finish_label
+  if not contour.closed then
+    local s, f = contour:start(), contour:finish()
+    local boundary_s, boundary_f
+    start_label, boundary_s = contour_end_label(L, s, "starting")
+    finish_label, boundary_f = contour_end_label(L, f, "finishing")
+    if boundary_s or boundary_f then
+      plan.notes[#plan.notes + 1] = "an end lies on the edge of its valley: the integrand "
+        .. "oscillates there without decaying (convergent only conditionally)"
+    end
+    -- finite ends that are not sinks get descent paths
+    for _, e in ipairs({ { s, start_label, 1 }, { f, finish_label, -1 } }) do
+      local point, label, sign = e[1], e[2], e[3]
+      if label then
+        bump(label, sign == 1 and -1 or 1)
+      else
+        local F = J.tape:eval(point, params)
+        local ref = cparts(F)
+        local _, g = J.tape:eval(point, params)
+        if g and cabs(g) > 0 then ref = ref + math.log(cabs(g)) end
+        local path = landscape.trace(J, params, L, point, F, true, { ref = ref })
+        plan.evals = plan.evals + path.evals
+        plan.pieces[#plan.pieces + 1] = { kind = "endpoint", at = point, weight = sign,
+          points = path.points, full = full(path), ends = { "point", path.ends },
+          reason = path.reason }
+        bump(path.ends, -sign)   -- its finite start cancels the contour's own end
+      end
+    end
+  end
+
+  -- saddles: weights from crossings with the ascent paths
+  L.paths = L.paths or {}
+  for j, s in ipairs(L.saddles) do
+    local paths = L.paths[j] or landscape.saddle_paths(J, params, L, j)
+    L.paths[j] = paths
+    for _, p in ipairs(paths.descent) do plan.evals = plan.evals + p.evals end
+    for _, p in ipairs(paths.ascent) do plan.evals = plan.evals + p.evals end
+    if s.order == 2 then
+      -- J: in along descent path 2, out along descent path 1; K: in along ascent 1,
+      -- out along ascent 2 (then J crosses K from right to left: <J, K> = +1)
+      local d1, d2 = paths.descent[1], paths.descent[2]
+      local a1, a2 = paths.ascent[1], paths.ascent[2]
+      local K = join_past(reversed(full(a1)), full(a2))
+      local weight = core.crossings(cpts, K)
+      local Jfull = join(reversed(full(d2)), full(d1))
+      -- check the orientation convention on the saddle's own paths
+      local self = core.crossings(join_past(reversed(full(d2)), full(d1)), K)
+      if self ~= 1 then
+        plan.status = "incomplete"
+        plan.notes[#plan.notes + 1] = format("saddle %d: its descent and ascent paths "
+          .. "cross %d times (expected once); its weight is uncertain", j, self)
+      end
+      for _, p in ipairs({ d1, d2, a1, a2 }) do
+        if p.ends:match("^saddle") then
+          plan.notes[#plan.notes + 1] = format("saddle %d: a steepest path runs into %s "
+            .. "(a saddle connection: the parameters are on a Stokes line)", j, p.ends)
+          plan.stokes = true
+        end
+      end
+      if weight ~= 0 then
+        plan.pieces[#plan.pieces + 1] = { kind = "saddle", index = j, weight = weight,
+          points = join(reversed(d2.points), d1.points), full = Jfull,
+          ends = { d2.ends, d1.ends } }
+        bump(d1.ends, -weight)
+        bump(d2.ends, weight)
+      end
+    else
+      -- a degenerate saddle: does the contour meet any of its ascent paths?
+      local touched = 0
+      for _, a in ipairs(paths.ascent) do
+        local n = core.crossings(cpts, full(a))
+        touched = touched + abs(n)
+      end
+      if touched > 0 then
+        plan.status = "unsupported"
+        plan.notes[#plan.notes + 1] = format("saddle %d has order %d: the deformation "
+          .. "through it is not built yet", j, s.order)
+      end
+    end
+  end
+
+  -- the combination must have the same ends as the contour
+  local missing = {}
+  for label, n in pairs(boundary) do
+    if n ~= 0 then missing[#missing + 1] = format("%s (%+d)", label, n) end
+  end
+  if #missing > 0 then
+    table.sort(missing)
+    plan.status = plan.status == "ok" and "incomplete" or plan.status
+    plan.notes[#plan.notes + 1] = "the steepest-descent combination does not end where the "
+      .. "contour does: " .. table.concat(missing, ", ")
+      .. " (a contributing saddle may lie outside the region, or paths end at its edge)"
+    return plan
+  end
+
+  -- residues: winding of (contour - combination), closed through the valleys
+  local Rref = 16 * R
+  local function closure(z, label)
+    local k = label:match("^valley (%d+)$")
+    if k then return closure_to_valley(L, z, tonumber(k), Rref) end
+    local sj = label:match("^sink (%d+)$")
+    if sj then return { z, L.singularities[tonumber(sj)].at } end
+    return nil
+  end
+  for idx, s in ipairs(L.singularities) do
+    local w = 0
+    local function add(poly, sign)
+      local t = core.turning(poly, s.at)
+      if t == nil then return false end
+      w = w + sign * t
+      return true
+    end
+    local ok = true
+    -- the contour, closed at its ends
+    if contour.closed then
+      ok = add(cpts, 1)
+    else
+      ok = add(cpts, 1)
+      if start_label then
+        local c = closure(cpts[1], start_label)
+        if c then ok = ok and add(reversed(c), 1) end
+      end
+      if finish_label then
+        local c = closure(cpts[#cpts], finish_label)
+        if c then ok = ok and add(c, 1) end
+      end
+    end
+    for _, piece in ipairs(plan.pieces) do
+      local poly = piece.full
+      ok = ok and add(poly, -piece.weight)
+      local c1 = closure(poly[#poly], piece.ends[2])
+      if c1 then ok = ok and add(c1, -piece.weight) end
+      if piece.kind == "saddle" then
+        local c0 = closure(poly[1], piece.ends[1])
+        if c0 then ok = ok and add(reversed(c0), -piece.weight) end
+      end
+    end
+    local n = floor(w + 0.5)
+    if not ok then
+      plan.status = "incomplete"
+      plan.notes[#plan.notes + 1] = format("a steepest path passes through the %s at %s",
+        s.kind, tostring(s.at))
+    elseif abs(w - n) > 1e-6 then
+      plan.status = "incomplete"
+      plan.notes[#plan.notes + 1] = format("the winding number about %s is not an integer "
+        .. "(%.6g): the closure is ambiguous", tostring(s.at), w)
+    elseif n ~= 0 then
+      if s.kind == "pole" then
+        plan.residues[#plan.residues + 1] = { index = idx, winding = n }
+      elseif s.kind ~= "sink" then
+        plan.status = "unsupported"
+        plan.notes[#plan.notes + 1] = format("the deformation sweeps over a %s at %s (%s); "
+          .. "only poles can be crossed", s.kind, tostring(s.at), s.source)
+      end
+    end
+  end
+  return plan
+end
+
+return M

@@ -1,0 +1,396 @@
+-- steep.integral — the integral object: J = integral over a contour C of
+-- g(t) exp(F(t)) dt, with a large parameter. Its methods map the landscape at given
+-- parameter values and compute the integral by quadrature.
+
+local core = require "steep.core"
+local complex = require "steep.complex"
+local expr = require "steep.expr"
+local contour_m = require "steep.contour"
+local landscape = require "steep.landscape"
+local decompose = require "steep.decompose"
+
+local cnew, cparts, is_complex = complex.new, complex.parts, complex.is
+local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
+local format, pi, abs, huge = string.format, math.pi, math.abs, math.huge
+
+local M = {}
+local Integral = { __name = "steep.integral" }
+local methods = {}
+Integral.__index = methods
+
+local function argerror(fname, msg) error(format("bad argument #1 to '%s' (%s)", fname, msg), 3) end
+
+--- steep.integral{var =, exponent =, amplitude =, contour =, large =}
+function M.new(spec)
+  if type(spec) ~= "table" then argerror("integral", "table expected, got " .. type(spec)) end
+  local known = { var = true, exponent = true, amplitude = true, contour = true, large = true }
+  for k in pairs(spec) do
+    if not known[k] then
+      argerror("integral", format("unknown field '%s' (fields: var, exponent, amplitude, "
+        .. "contour, large)", tostring(k)))
+    end
+  end
+  local t = spec.var
+  if not (expr.is(t) and t.op == "var") then
+    argerror("integral", "field 'var' must be a variable made by steep.var, got "
+      .. (expr.is(t) and t.op or type(t)))
+  end
+  local F = spec.exponent
+  if not expr.is(F) then
+    argerror("integral", "field 'exponent' must be an expression in " .. t.name .. ", got "
+      .. (is_complex(F) and "a complex value" or type(F)))
+  end
+  if not F:depends_on(t) then
+    argerror("integral", "the exponent " .. tostring(F) .. " does not depend on " .. t.name)
+  end
+  local g = spec.amplitude
+  if g == nil then g = 1 end
+  if not (expr.is(g) or cparts(g)) then
+    argerror("integral", "field 'amplitude' must be an expression, number or complex value, got "
+      .. type(g))
+  end
+  if not contour_m.is(spec.contour) then
+    argerror("integral", "field 'contour' must be a contour (steep.line, steep.path, "
+      .. "steep.circle), got " .. type(spec.contour))
+  end
+  local large = spec.large
+  if large ~= nil and not (expr.is(large) and large.op == "param") then
+    argerror("integral", "field 'large' must be a parameter made by steep.param")
+  end
+  local J = setmetatable({ var = t, exponent = F, amplitude = g, contour = spec.contour,
+    large = large }, Integral)
+  J.tape = expr.compile({ F, g }, t)
+  J.params = J.tape:params()
+  J.critical = landscape.critical(F, g, t)
+  return J
+end
+
+function methods.critical_tape(J)
+  if not J._htape then
+    local hs = {}
+    for k, c in ipairs(J.critical) do hs[k] = c.h end
+    J._htape = expr.compile(hs, J.var)
+  end
+  return J._htape
+end
+
+Integral.__tostring = function(J)
+  local g = J.amplitude
+  local gs = (g == 1) and "" or ("(" .. tostring(g) .. ")*")
+  return format("integral of %sexp(%s) d%s along %s", gs, tostring(J.exponent), J.var.name,
+    tostring(J.contour))
+end
+
+--- Splits an options table into parameter values (by the integral's parameter names)
+-- and options (names in `allowed`); anything else is an error naming it.
+function M.split_options(J, opts, allowed, fname)
+  if opts ~= nil and type(opts) ~= "table" then
+    error(format("bad argument #1 to '%s' (options table expected, got %s)", fname, type(opts)), 3)
+  end
+  opts = opts or {}
+  local params, o = {}, {}
+  local is_param = {}
+  for _, name in ipairs(J.params) do is_param[name] = true end
+  for k, v in pairs(opts) do
+    if is_param[k] then
+      local re, im = cparts(v)
+      if not re then
+        error(format("%s: parameter '%s' must be a number or complex value, got %s", fname, k,
+          type(v)), 3)
+      end
+      if re ~= re or im ~= im or abs(re) == huge or abs(im) == huge then
+        error(format("%s: parameter '%s' is not finite (%s)", fname, k, tostring(v)), 3)
+      end
+      params[k] = v
+    elseif allowed[k] then
+      o[k] = v
+    else
+      local names = {}
+      for n in pairs(allowed) do names[#names + 1] = n end
+      table.sort(names)
+      error(format("%s: unknown option '%s' (parameters: %s; options: %s)", fname,
+        tostring(k), #J.params > 0 and table.concat(J.params, ", ") or "none",
+        table.concat(names, ", ")), 3)
+    end
+  end
+  for _, name in ipairs(J.params) do
+    if params[name] == nil then
+      error(format("%s: unbound parameter '%s' (give %s = <value>)", fname, name, name), 3)
+    end
+  end
+  return params, o
+end
+
+-- The default region: a disc about 0 holding the contour's finite points and, found by
+-- the argument principle on doubling circles, every saddle: the count of zeros of F'
+-- (less its poles) must be non-zero and the same on three circles in a row. With no
+-- saddle at all the region stays at the contour's scale; exponents with infinitely many
+-- saddles stop at a bound (and the landscape says so).
+local function default_region(J, params)
+  local R0 = 1
+  for _, z in ipairs(J.contour:finite_points()) do R0 = math.max(R0, 1.5 * cabs(z)) end
+  local counts = {}
+  local any = false
+  for k = 0, 11 do
+    local st, n = core.count(J.tape, params, { out = 1, deriv = 1 }, cnew(0, 0), R0 * 2 ^ k, 20000)
+    counts[k] = st == "ok" and n or nil
+    if counts[k] and counts[k] ~= 0 then any = true end
+    if k >= 2 and counts[k] and counts[k] ~= 0 and counts[k] == counts[k - 1]
+        and counts[k] == counts[k - 2] then
+      return { center = cnew(0, 0), radius = R0 * 2 ^ (k - 1) }
+    end
+  end
+  if not any then return { center = cnew(0, 0), radius = 2 * R0 } end
+  return { center = cnew(0, 0), radius = R0 * 2 ^ 6, bounded = true }
+end
+
+local function check_region(region, fname)
+  if type(region) ~= "table" then
+    error(format("%s: option 'region' must be a table {center =, radius =}", fname), 3)
+  end
+  local c = region.center or 0
+  local re, im = cparts(c)
+  if not re or re ~= re or im ~= im then
+    error(format("%s: region center must be a finite number or complex value", fname), 3)
+  end
+  local r = region.radius
+  if type(r) ~= "number" or not (r > 0) or r == huge then
+    error(format("%s: region radius must be a positive finite number, got %s", fname,
+      tostring(r)), 3)
+  end
+  return { center = cnew(re, im), radius = r }
+end
+
+--- J:landscape{<params>, region = {center =, radius =}} -> landscape
+function methods.landscape(J, opts)
+  local params, o = M.split_options(J, opts, { region = true, paths = true }, "landscape")
+  return J:_landscape(params, o.region and check_region(o.region, "landscape"), o.paths ~= false)
+end
+
+function methods._landscape(J, params, region, with_paths)
+  region = region or default_region(J, params)
+  local L = { region = region, params = params, notes = {} }
+  if region.bounded then
+    L.notes[#L.notes + 1] = "the number of saddles kept growing with the region: it was "
+      .. "limited to radius " .. format("%.4g", region.radius)
+  end
+  local sing, sinfo = landscape.singularities(J, params, region)
+  L.singularities, L.singularity_info = sing, sinfo
+  local seeds = {}
+  for _, z in ipairs(J.contour:finite_points()) do seeds[#seeds + 1] = z end
+  local saddles, info = landscape.saddles(J, params, region, sing, seeds)
+  L.saddles, L.saddle_count = saddles, info
+  L.valleys, L.growth = landscape.valleys(J, params, region)
+  if with_paths then
+    L.paths = {}
+    for j = 1, #saddles do L.paths[j] = landscape.saddle_paths(J, params, L, j) end
+  end
+  return setmetatable(L, { __index = { report = M.landscape_report } })
+end
+
+function M.landscape_report(L)
+  local lines = {}
+  local function add(...) lines[#lines + 1] = format(...) end
+  add("region: center %s, radius %.4g", tostring(L.region.center), L.region.radius)
+  add("saddles (%s):", L.saddle_count.status)
+  for j, s in ipairs(L.saddles) do
+    add("  %d. t = %-28s order %d   F = %s   F'' = %s", j, tostring(s.at), s.order,
+      tostring(s.F), tostring(s.F2))
+  end
+  add("singularities:")
+  if #L.singularities == 0 then add("  none found") end
+  for j, s in ipairs(L.singularities) do
+    local extra = s.residue and ("   residue " .. tostring(s.residue)) or ""
+    if s.order then extra = format("   order %d", s.order) .. extra end
+    add("  %d. %-9s at %s%s   (%s)", j, s.kind, tostring(s.at), extra, s.source)
+  end
+  add("valleys at infinity:")
+  for k, v in ipairs(L.valleys) do add("  %d. %s", k, landscape.describe_valley(v)) end
+  if L.paths then
+    add("steepest paths:")
+    for j, p in pairs(L.paths) do
+      local d, a = {}, {}
+      for _, q in ipairs(p.descent) do d[#d + 1] = q.ends end
+      for _, q in ipairs(p.ascent) do a[#a + 1] = q.ends end
+      add("  saddle %d: descent to %s; ascent to %s", j, table.concat(d, ", "),
+        table.concat(a, ", "))
+    end
+  end
+  for _, n in ipairs(L.notes) do add("note: %s", n) end
+  return table.concat(lines, "\n")
+end
+
+---------------------------------------------------------------------------------------
+-- Quadrature.
+---------------------------------------------------------------------------------------
+
+local QUAD_REL = 1e-13
+
+-- Is z (nearly) at a singularity where the integrand may blow up integrably or vanish?
+local function singular_at(L, z)
+  for _, s in ipairs(L.singularities) do
+    if cabs(s.at - z) <= 1e-9 * L.region.radius then return s end
+  end
+end
+
+-- A ray from a in direction th, as pieces [0, L0], [L0, 2 L0], ... until the tail is
+-- negligible; a ray on the edge of a valley is turned by a small angle into the valley.
+local function quad_ray(J, params, L, a, th, sign, singular_start, notes)
+  local k, boundary = landscape.valley_of(L.valleys, th)
+  if boundary then
+    local v = L.valleys[k]
+    local inward = (abs(landscape.norm_angle(th - v.from)) < 1e-6) and 1 or -1
+    local width = v.to - v.from
+    local tilt = math.min(0.05, 0.25 * width) * inward
+    -- the wedge swept must hold no singularity
+    for _, s in ipairs(L.singularities) do
+      local d = landscape.norm_angle(carg(s.at - a) - th)
+      if d * inward > 0 and abs(d) < abs(tilt) then tilt = 0.5 * d end
+    end
+    th = th + tilt
+    notes[#notes + 1] = format("the end in direction %.4g lies on the edge of its valley "
+      .. "(the integrand oscillates without decaying); its ray was turned by %.3g rad into "
+      .. "the valley", th - tilt, tilt)
+  end
+  local dir = expi(th)
+  local scale = math.max(1, 0.1 * L.region.radius, 0.1 * cabs(a))
+  local total, err, evals = cnew(0, 0), 0, 0
+  local s0, len = 0, scale
+  local status = "ok"
+  local small = 0
+  for piece = 1, 200 do
+    local p0, p1 = a + s0 * dir, a + (s0 + len) * dir
+    local v, e, ev, st = core.quad_polyline(J.tape, params, { p0, p1 },
+      { reltol = QUAD_REL, abstol = 0, singular_start = singular_start and piece == 1 })
+    evals = evals + ev
+    if st ~= "ok" then status = st end
+    total, err = total + v, err + e
+    if cabs(v) <= 1e-16 * cabs(total) or cabs(v) == 0 then
+      small = small + 1
+      if small >= 2 then break end
+    else
+      small = 0
+    end
+    if piece == 200 then
+      status = "limit"
+      notes[#notes + 1] = format("the ray in direction %.4g did not converge", th)
+    end
+    s0 = s0 + len
+    len = len * 2
+  end
+  if sign < 0 then total = -total end
+  return total, err, evals, status
+end
+
+-- A full circle by the trapezoidal rule, doubling the number of points until two
+-- estimates agree (exponentially convergent for an integrand analytic near the circle).
+local function quad_circle(J, params, p)
+  local n, prev = 64, nil
+  local evals = 0
+  while n <= 2 ^ 17 do
+    local pts = {}
+    for k = 0, n - 1 do pts[k + 1] = p.center + p.radius * expi(2 * pi * k / n) end
+    local vals = core.integrand_many(J.tape, params, pts)
+    evals = evals + n
+    local s = cnew(0, 0)
+    for k = 0, n - 1 do s = s + vals:get(k + 1) * expi(2 * pi * k / n) end
+    local dir = p.to > p.from and 1 or -1
+    s = s * cnew(0, 2 * pi * p.radius / n) * dir
+    if prev then
+      local d = cabs(s - prev)
+      if d <= 1e-14 * math.max(cabs(s), 1e-300) + 1e-300 then return s, d, evals, "ok" end
+      if n >= 2 ^ 17 then return s, d, evals, "limit" end
+    end
+    prev = s
+    n = n * 2
+  end
+  return prev, cabs(prev), evals, "limit"
+end
+
+-- Along the user's contour, piece by piece.
+local function quad_given(J, params, L)
+  local total, err, evals, status = cnew(0, 0), 0, 0, "ok"
+  local notes = {}
+  local R = L.region.radius
+  decompose.check_contour(L, J.contour, J.contour:sample { radius = 8 * R, n = 64 })
+  for _, p in ipairs(J.contour.pieces) do
+    local v, e, ev, st
+    if p.kind == "segment" then
+      v, e, ev, st = core.quad_polyline(J.tape, params, { p.a, p.b }, { reltol = QUAD_REL,
+        singular_start = singular_at(L, p.a) ~= nil, singular_end = singular_at(L, p.b) ~= nil })
+    elseif p.kind == "ray_out" then
+      v, e, ev, st = quad_ray(J, params, L, p.a, p.angle, 1, singular_at(L, p.a) ~= nil, notes)
+    elseif p.kind == "ray_in" then
+      v, e, ev, st = quad_ray(J, params, L, p.b, p.angle, -1, singular_at(L, p.b) ~= nil, notes)
+    else
+      v, e, ev, st = quad_circle(J, params, p)
+    end
+    total, err, evals = total + v, err + e, evals + ev
+    if st ~= "ok" then status = st end
+  end
+  return total, err, { status = status, evals = evals, notes = notes, along = "given" }
+end
+
+-- Along the steepest descent decomposition, plus residues.
+local function quad_deformed(J, params, L)
+  local plan = decompose.decompose(J, params, L, J.contour)
+  local info = { along = "deformed", status = plan.status, notes = plan.notes,
+    evals = plan.evals, pieces = {}, residues = {} }
+  if plan.status ~= "ok" then return nil, nil, info end
+  local total, err = cnew(0, 0), 0
+  for _, piece in ipairs(plan.pieces) do
+    if #piece.points >= 2 then
+      local singular_end = piece.reason == "singular" or piece.reason == "stop"
+      local v, e, ev, st = core.quad_polyline(J.tape, params, piece.points,
+        { reltol = QUAD_REL, singular_start = piece.kind == "endpoint" and singular_at(L, piece.at) ~= nil,
+          singular_end = singular_end })
+      info.evals = info.evals + ev
+      if st ~= "ok" then info.status = "quadrature " .. st end
+      total = total + piece.weight * v
+      err = err + abs(piece.weight) * e
+      info.pieces[#info.pieces + 1] = { kind = piece.kind, index = piece.index, at = piece.at,
+        weight = piece.weight, value = v, error = e, ends = piece.ends }
+    end
+  end
+  for _, r in ipairs(plan.residues) do
+    local s = L.singularities[r.index]
+    local v = cnew(0, 2 * pi * r.winding) * s.residue
+    total = total + v
+    err = err + 2 * pi * abs(r.winding) * s.residue_error
+    info.residues[#info.residues + 1] = { at = s.at, winding = r.winding, residue = s.residue,
+      value = v }
+  end
+  return total, err, info
+end
+
+--- J:quad{<params>, along = "deformed" | "given", region = {...}}
+-- -> value, error estimate, info {status, evals, along, notes, pieces, residues}
+function methods.quad(J, opts)
+  local params, o = M.split_options(J, opts, { along = true, region = true }, "quad")
+  local along = o.along or "deformed"
+  if along ~= "deformed" and along ~= "given" then
+    error(format("quad: option 'along' must be \"deformed\" or \"given\", got %s",
+      tostring(along)), 2)
+  end
+  local L = J:_landscape(params, o.region and check_region(o.region, "quad"), false)
+  local v, e, info
+  if along == "given" then
+    v, e, info = quad_given(J, params, L)
+  else
+    v, e, info = quad_deformed(J, params, L)
+    if v == nil then
+      -- the decomposition could not be completed: say so, and integrate as given
+      local why = info.status .. ": " .. table.concat(info.notes, "; ")
+      v, e, info = quad_given(J, params, L)
+      table.insert(info.notes, 1, "the steepest-descent deformation was not used (" .. why .. ")")
+    end
+  end
+  -- rounding floor: the integrand's size along the way is not known here, so at least
+  -- a few units in the last place of the result
+  e = math.max(e, 4e-16 * cabs(v))
+  info.landscape = L
+  return v, e, info
+end
+
+M.Integral = Integral
+return M

@@ -1,0 +1,592 @@
+-- steep.landscape — where an exponent's saddles, singularities and valleys are, and
+-- where its steepest paths go. The numerical kernels are in C (ext/roots.c, path.c);
+-- this file decides where to look and what the findings mean.
+--
+-- Everything here works at fixed parameter values, on a compiled integrand tape whose
+-- output 1 is the exponent F and output 2 the amplitude g.
+
+local core = require "steep.core"
+local complex = require "steep.complex"
+local expr = require "steep.expr"
+
+local cnew, cparts = complex.new, complex.parts
+local format, pi, abs, log, huge = string.format, math.pi, math.abs, math.log, math.huge
+local cos, sin, atan, floor = math.cos, math.sin, math.atan, math.floor
+
+local M = {}
+
+local function cabs(z) local re, im = cparts(z); return math.sqrt(re * re + im * im) end
+local function carg(z) local re, im = cparts(z); return atan(im, re) end
+local function expi(th) return cnew(cos(th), sin(th)) end
+
+-- Angles in (-pi, pi].
+local function norm_angle(th)
+  th = th % (2 * pi)
+  if th > pi then th = th - 2 * pi end
+  return th
+end
+
+---------------------------------------------------------------------------------------
+-- Critical subexpressions: where the integrand can be singular.
+---------------------------------------------------------------------------------------
+
+-- Each entry: {h = expression whose zeros matter, what = "denominator" | "log" | "root"
+-- | "power" | "tan" | "atan", where = "exponent" | "amplitude", node = the operation}.
+-- Walking the DAG finds them by construction: denominators of divisions and negative
+-- powers, arguments of log, sqrt and non-integer powers, cos of tan's argument (its
+-- poles), cosh of tanh's, and 1 + a^2 for atan (its branch points at a = +-i).
+function M.critical(F, g, var)
+  local out, seen = {}, {}
+  local function add(h, what, where, n)
+    if not expr.is(h) or not h:depends_on(var) then return end
+    local key = where .. ":" .. what .. ":" .. tostring(h)
+    if seen[key] then return end
+    seen[key] = true
+    out[#out + 1] = { h = h, what = what, where = where, node = n }
+  end
+  local function walk(root, where)
+    local visited = {}
+    local function visit(n)
+      if visited[n] or not expr.is(n) then return end
+      visited[n] = true
+      if n.a then visit(n.a) end
+      if n.b then visit(n.b) end
+      local op = n.op
+      if op == "div" then add(n.b, "denominator", where, n)
+      elseif op == "powi" and n.k < 0 then add(n.a, "denominator", where, n)
+      elseif op == "log" then add(n.a, "log", where, n)
+      elseif op == "sqrt" then add(n.a, "root", where, n)
+      elseif op == "powc" then add(n.a, "power", where, n)
+      elseif op == "tan" then add(expr.fn("cos", n.a), "tan", where, n)
+      elseif op == "tanh" then add(expr.fn("cosh", n.a), "tan", where, n)
+      elseif op == "atan" then add(1 + n.a ^ 2, "atan", where, n)
+      end
+    end
+    visit(root)
+  end
+  walk(expr.lift(F), "exponent")
+  if g ~= nil then walk(expr.lift(g), "amplitude") end
+  return out
+end
+
+---------------------------------------------------------------------------------------
+-- Zeros in a disc.
+---------------------------------------------------------------------------------------
+
+-- A deterministic generator for extra seeds (the same region gives the same seeds).
+local function lcg(seed)
+  local s = seed
+  return function()
+    s = (s * 6364136223846793005 + 1442695040888963407) & 0x7fffffffffffffff
+    return (s >> 11) / (1 << 52)
+  end
+end
+
+--- zeros(tape, params, spec, region, opts) -> list of {at, mult}, info
+-- spec = {out =, deriv =}: the zeros of the deriv-th derivative of tape output `out`.
+-- region = {center =, radius =}. opts.seeds: extra seed points; opts.poles: the number
+-- of poles of h inside (for the argument-principle count), or false if h is not
+-- meromorphic there (then no count is made). info: {count =, found =, status =, evals =}.
+function M.zeros(tape, params, spec, region, opts)
+  opts = opts or {}
+  local c, R = region.center, region.radius
+  local scale = R / 10
+  local found = {}
+  local evals = 0
+  local function try(seed)
+    local st, root, mult, ev = core.zero(tape, params, spec, seed, c, R, scale, 60)
+    evals = evals + ev
+    if st ~= "ok" then return end
+    for _, z in ipairs(found) do
+      if cabs(z.at - root) <= 1e-8 * R then return end
+    end
+    found[#found + 1] = { at = root, mult = mult }
+  end
+  try(c)
+  for ring = 1, 6 do
+    local r, m = R * ring / 6.5, 8 * ring
+    for j = 0, m - 1 do try(c + r * expi(2 * pi * (j + 0.5 * (ring % 2)) / m)) end
+  end
+  for _, s in ipairs(opts.seeds or {}) do
+    if cabs(s - c) < R then try(s) end
+  end
+  local info = { found = 0, evals = evals }
+  local function total()
+    local n = 0
+    for _, z in ipairs(found) do if cabs(z.at - c) < R then n = n + z.mult end end
+    return n
+  end
+  if opts.poles ~= false then
+    local st, count = core.count(tape, params, spec, c, R, 40000)
+    info.count_status = st
+    if st == "ok" then info.count = count + (opts.poles or 0) end
+    local rnd = lcg(12345)
+    local round = 0
+    while info.count and total() < info.count and round < 4 do
+      round = round + 1
+      for _ = 1, 150 do
+        local r, th = R * math.sqrt(rnd()), 2 * pi * rnd()
+        try(c + r * expi(th))
+      end
+    end
+  end
+  -- keep the zeros inside the disc, nearest the center first
+  local inside = {}
+  for _, z in ipairs(found) do if cabs(z.at - c) < R then inside[#inside + 1] = z end end
+  table.sort(inside, function(a, b)
+    local da, db = cabs(a.at - c), cabs(b.at - c)
+    if abs(da - db) > 1e-9 * R then return da < db end
+    return carg(a.at - c) < carg(b.at - c)
+  end)
+  info.found = total()
+  info.evals = evals
+  if info.count == nil then
+    info.status = opts.poles == false and "not counted (not meromorphic in the region)"
+      or ("not counted (" .. tostring(info.count_status) .. " on the boundary)")
+  elseif info.count == info.found then
+    info.status = "complete"
+  else
+    info.status = format("mismatch: the argument principle counts %d, %d found",
+      info.count, info.found)
+  end
+  return inside, info
+end
+
+---------------------------------------------------------------------------------------
+-- Singularities.
+---------------------------------------------------------------------------------------
+
+-- Trapezoidal rule on a circle (exponentially accurate for analytic periodic integrands):
+-- the Laurent coefficients a_n rho^n, n = -8..1, of the integrand about p.
+local function laurent(tape, params, p, rho, n)
+  local pts = {}
+  for k = 0, n - 1 do pts[k + 1] = p + rho * expi(2 * pi * k / n) end
+  local vals = core.integrand_many(tape, params, pts)
+  local coef = {}
+  for m = -8, 1 do
+    local s = cnew(0, 0)
+    for k = 0, n - 1 do s = s + vals:get(k + 1) * expi(-2 * pi * k * m / n) end
+    coef[m] = s / n
+  end
+  return coef
+end
+
+-- The coefficient c of c*log(t - p) in F at a log point: (1/2 pi i) times the integral of
+-- F' around p, by the trapezoidal rule.
+local function log_coefficient(tape, params, p, rho)
+  local n, s = 64, cnew(0, 0)
+  for k = 0, n - 1 do
+    local u = expi(2 * pi * k / n)
+    local Fs = tape:jet(p + rho * u, 1, params)
+    s = s + Fs:coef(1) * u
+  end
+  return s * rho / n
+end
+
+local function near_integer(x, tol) return abs(x - floor(x + 0.5)) <= tol end
+
+--- singularities(J, params, region) -> list of {at, kind, order, residue, error, where,
+-- source, coefficient}, info. kind: "pole" (of the integrand, with its residue),
+-- "branch" (branch point), "sink" / "hill" (log point of the exponent where the
+-- integrand vanishes / blows up), "essential".
+function M.singularities(J, params, region)
+  local crit = J.critical
+  local list, info = {}, { evals = 0, counts = {} }
+  if #crit == 0 then return list, info end
+  local hs = {}
+  for k, c in ipairs(crit) do hs[k] = c.h end
+  local htape = J:critical_tape()
+  for k, c in ipairs(crit) do
+    local zs, zi = M.zeros(htape, params, { out = k, deriv = 0 }, region,
+      { poles = false })
+    info.evals = info.evals + zi.evals
+    for _, z in ipairs(zs) do
+      list[#list + 1] = { at = z.at, mult = z.mult, crit = c }
+    end
+  end
+  -- merge the same point found through several subexpressions
+  local merged = {}
+  for _, s in ipairs(list) do
+    local dup
+    for _, m in ipairs(merged) do
+      if cabs(m.at - s.at) <= 1e-8 * region.radius then dup = m end
+    end
+    if dup then dup.sources[#dup.sources + 1] = s.crit
+    else merged[#merged + 1] = { at = s.at, mult = s.mult, sources = { s.crit } } end
+  end
+  -- classify each point
+  local out = {}
+  for idx, m in ipairs(merged) do
+    local nearest = region.radius
+    for j, o in ipairs(merged) do
+      if j ~= idx then nearest = math.min(nearest, cabs(o.at - m.at)) end
+    end
+    local rho = 0.25 * nearest
+    local s = { at = m.at, sources = {} }
+    local in_exponent, kinds = false, {}
+    for _, c in ipairs(m.sources) do
+      s.sources[#s.sources + 1] = format("%s of %s in the %s", tostring(c.h), c.what, c.where)
+      if c.where == "exponent" then in_exponent = true end
+      kinds[c.what .. ":" .. c.where] = true
+    end
+    s.source = table.concat(s.sources, "; ")
+    if kinds["denominator:exponent"] or kinds["tan:exponent"] then
+      s.kind = "essential"
+    elseif kinds["log:exponent"] and not (kinds["root:exponent"] or kinds["power:exponent"]) then
+      local c = log_coefficient(J.tape, params, m.at, rho)
+      s.coefficient = c
+      local cr, ci = cparts(c)
+      if abs(ci) < 1e-8 * (1 + abs(cr)) and near_integer(cr, 1e-8) then
+        local n = floor(cr + 0.5)
+        if n >= 0 then s.kind = n == 0 and "regular" or "zero"
+        else s.kind = "pole"; s.order = -n end
+      else
+        s.kind = cr > 0 and "sink" or "hill"
+        s.branch = true
+      end
+    elseif kinds["root:exponent"] or kinds["power:exponent"] or kinds["root:amplitude"]
+        or kinds["power:amplitude"] or kinds["log:amplitude"] or kinds["atan:amplitude"]
+        or kinds["atan:exponent"] then
+      s.kind = "branch"
+    else
+      s.kind = "pole"
+    end
+    if s.kind == "pole" then
+      local a = laurent(J.tape, params, m.at, rho, 64)
+      local b = laurent(J.tape, params, m.at, rho, 128)
+      local big = 0
+      for k = -8, 1 do big = math.max(big, cabs(b[k])) end
+      local order = 0
+      for k = -8, -1 do if cabs(b[k]) > 1e-10 * big then order = math.max(order, -k) end end
+      if order == 0 then
+        s.kind = "removable"
+      else
+        s.order = order
+        -- a_{-1} = (a_{-1} rho^{-1}) * rho
+        s.residue = b[-1] * rho
+        s.residue_error = cabs(b[-1] - a[-1]) * rho + 1e-15 * cabs(s.residue)
+        if cabs(b[-8]) > 1e-6 * big then s.kind = "essential"; s.order = nil end
+      end
+    end
+    if s.kind ~= "regular" and s.kind ~= "zero" and s.kind ~= "removable" then
+      out[#out + 1] = s
+    end
+  end
+  return out, info
+end
+
+---------------------------------------------------------------------------------------
+-- Valleys at infinity.
+---------------------------------------------------------------------------------------
+
+local NANG = 720
+
+-- log |g e^F| (and F) on the circle of radius r about c at NANG angles.
+local function ring(tape, params, c, r)
+  local pts = {}
+  for k = 0, NANG - 1 do pts[k + 1] = c + r * expi(2 * pi * k / NANG) end
+  local F, g = tape:eval_many(core.cvec(pts), params)
+  local ell, Fv = {}, {}
+  for k = 1, NANG do
+    local f = F:get(k)
+    Fv[k] = f
+    local re = f[1]
+    local gm = g and cabs(g:get(k)) or 1
+    if re ~= re then re = huge end          -- NaN from overflow: treat as growth
+    ell[k] = re + (gm > 0 and log(gm) or -huge)
+  end
+  return ell, Fv
+end
+
+-- Groups a boolean per angle into intervals {from, to} (radians, from < to, may exceed pi).
+local function intervals(flags)
+  local n = #flags
+  local all = true
+  for k = 1, n do if not flags[k] then all = false end end
+  if all then return { { from = -pi, to = pi } } end
+  local out = {}
+  -- start scanning just after a false entry so wrapped intervals stay whole
+  local s0
+  for k = 1, n do if not flags[k] then s0 = k; break end end
+  if not s0 then return out end
+  local k, step = s0, 2 * pi / n
+  local start
+  for _ = 1, n do
+    k = k % n + 1
+    local th = (k - 1) * step
+    if k <= s0 then th = th + 2 * pi end
+    if flags[k] and not start then start = th end
+    if not flags[k] and start then
+      out[#out + 1] = { from = start - 0.5 * step, to = th - 0.5 * step }
+      start = nil
+    end
+  end
+  if start then out[#out + 1] = { from = start - 0.5 * step, to = s0 * step - 0.5 * step + 2 * pi } end
+  for _, v in ipairs(out) do
+    local shift = norm_angle(v.from) - v.from
+    v.from, v.to = v.from + shift, v.to + shift
+  end
+  return out
+end
+
+--- valleys(J, params, region) -> list of {from, to, type, note}: the directions in which
+-- the integrand decays at infinity, as angle intervals (from < to, radians; an interval
+-- may reach past pi). type: "polynomial" (exact sectors of c t^n), "edge" (a single
+-- direction where only a power of |t| makes it decay), "exponential" or "numerical"
+-- (found by sampling, indicative).
+function M.valleys(J, params, region)
+  local c, R = region.center, region.radius
+  local R1, R2, R3 = 4 * R, 8 * R, 16 * R
+  local l1, F1 = ring(J.tape, params, c, R1)
+  local l2, F2 = ring(J.tape, params, c, R2)
+  local l3, F3 = ring(J.tape, params, c, R3)
+  -- growth exponent: median of log2 |F(R3)| / |F(R2)|
+  local ratios = {}
+  for k = 1, NANG do
+    local a, b = cabs(F2[k]), cabs(F3[k])
+    if a > 0 and b > 0 and a < huge and b < huge then ratios[#ratios + 1] = log(b / a) / log(2) end
+  end
+  table.sort(ratios)
+  local nest = ratios[floor(#ratios / 2) + 1] or 0
+  local n = floor(nest + 0.5)
+  local valleys = {}
+  if n >= 1 and abs(nest - n) < 0.1 then
+    -- polynomial type: F ~ a t^n; check that the leading coefficient is stable
+    local s2, s3 = cnew(0, 0), cnew(0, 0)
+    for k = 1, NANG do
+      local u = expi(2 * pi * (k - 1) / NANG)
+      s2 = s2 + F2[k] / (c + R2 * u) ^ n
+      s3 = s3 + F3[k] / (c + R3 * u) ^ n
+    end
+    s2, s3 = s2 / NANG, s3 / NANG
+    if cabs(s3) > 0 and cabs(s2 - s3) < 0.05 * cabs(s3) then
+      local phi = carg(s3)
+      for k = 0, n - 1 do
+        local from = (pi / 2 - phi + 2 * pi * k) / n
+        local to = (3 * pi / 2 - phi + 2 * pi * k) / n
+        local shift = norm_angle(from) - from
+        valleys[#valleys + 1] = { from = from + shift, to = to + shift, type = "polynomial",
+          leading = s3, degree = n }
+      end
+      -- boundary directions where a power of |t| still makes the integrand integrable
+      for k = 0, 2 * n - 1 do
+        local th = norm_angle((pi / 2 - phi + pi * k) / n)
+        local pts = { c + R1 * expi(th), c + R2 * expi(th), c + R3 * expi(th) }
+        local Fv, gv = J.tape:eval_many(pts, params)
+        local ell = {}
+        for j = 1, 3 do
+          local gm = gv and cabs(gv[j]) or 1
+          ell[j] = Fv[j][1] + (gm > 0 and log(gm) or -huge)
+        end
+        local slope = (ell[3] - ell[2]) / log(2)
+        local slope1 = (ell[2] - ell[1]) / log(2)
+        if slope < -1.05 and slope1 < -1.05 then
+          valleys[#valleys + 1] = { from = th, to = th, type = "edge",
+            decay = -slope }
+        end
+      end
+      table.sort(valleys, function(a, b) return a.from < b.from end)
+      return valleys, { growth = n, leading = s3 }
+    end
+  end
+  -- otherwise by sampling: decaying from R1 to R3 and far below the level at R1
+  local flags = {}
+  local ref = -huge
+  for k = 1, NANG do ref = math.max(ref, math.min(l1[k], 1e300)) end
+  for k = 1, NANG do
+    local decays = l3[k] < l2[k] and l2[k] < l1[k]
+    local algebraic = (l3[k] - l2[k]) / log(2) < -1.05 and (l2[k] - l1[k]) / log(2) < -1.05
+    flags[k] = decays and (l3[k] < math.min(ref, l1[k]) - 30 or algebraic)
+  end
+  local kind = nest > 6 and "exponential" or "numerical"
+  for _, v in ipairs(intervals(flags)) do
+    v.type = kind
+    v.note = kind == "exponential"
+      and "exponential growth: valleys are strips; the directions are indicative"
+      or "found by sampling at radii " .. format("%.3g..%.3g", R1, R3)
+    valleys[#valleys + 1] = v
+  end
+  table.sort(valleys, function(a, b) return a.from < b.from end)
+  return valleys, { growth = nest }
+end
+
+--- The valley containing direction th (index), and whether th lies on its boundary.
+-- An end on a boundary between a valley and a hill belongs to that valley (oscillatory
+-- but convergent, as e^{i t^3} on the real line).
+function M.valley_of(valleys, th, tol)
+  tol = tol or 1e-9
+  local boundary
+  for k, v in ipairs(valleys) do
+    local d = norm_angle(th - v.from)
+    local width = v.to - v.from
+    if v.type == "edge" then
+      if abs(d) <= tol then return k, false end
+    elseif d > tol and d < width - tol then
+      return k, false
+    elseif abs(d) <= tol or abs(d - width) <= tol then
+      boundary = boundary or k
+    end
+  end
+  if boundary then return boundary, true end
+  return nil
+end
+
+function M.describe_valley(v)
+  if v.from == v.to then
+    return format("direction %.4g (%s)", v.from, v.type)
+  end
+  return format("(%.4g, %.4g) (%s)", v.from, v.to, v.type)
+end
+
+---------------------------------------------------------------------------------------
+-- Saddles.
+---------------------------------------------------------------------------------------
+
+--- saddles(J, params, region, singularities, seeds) -> list of {at, order, F, F2,
+-- coef (leading coefficient of F - F0), g}, info
+function M.saddles(J, params, region, singularities, seeds)
+  -- poles of F' inside: a log point is a simple pole of F'; an essential singularity
+  -- (a pole of F of order k) gives k + 1; a branch point of F makes F' non-meromorphic.
+  local poles = 0
+  for _, s in ipairs(singularities) do
+    if cabs(s.at - region.center) < region.radius then
+      if s.kind == "sink" or s.kind == "hill" or (s.coefficient and s.kind == "pole") then
+        poles = poles + 1
+      elseif s.kind == "branch" then
+        local of_exponent = false
+        for _, src in ipairs(s.sources) do if src:find("in the exponent") then of_exponent = true end end
+        if of_exponent then poles = false; break end
+      elseif s.kind == "essential" then
+        poles = false   -- the order of F's pole is not tracked: no count
+        break
+      end
+    end
+  end
+  local zs, info = M.zeros(J.tape, params, { out = 1, deriv = 1 }, region,
+    { poles = poles, seeds = seeds })
+  local out = {}
+  for _, z in ipairs(zs) do
+    local m = z.mult + 1
+    local Fs, gs = J.tape:jet(z.at, m + 1, params)
+    out[#out + 1] = { at = z.at, order = m, F = Fs:coef(0), F2 = 2 * Fs:coef(2),
+      coef = Fs:coef(m), g = gs and gs:coef(0) or cnew(1, 0) }
+  end
+  return out, info
+end
+
+---------------------------------------------------------------------------------------
+-- Steepest paths.
+---------------------------------------------------------------------------------------
+
+-- Stop points for tracing: singularities (paths end there) and saddles (a path that
+-- reaches another saddle is a saddle connection).
+local function stop_points(L, skip_saddle)
+  local stops, radii, what = {}, {}, {}
+  local R = L.region.radius
+  for j, s in ipairs(L.singularities) do
+    stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, 1e-7 * R, { "singularity", j }
+  end
+  for j, s in ipairs(L.saddles) do
+    if j ~= skip_saddle then
+      stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, 1e-4 * R, { "saddle", j }
+    end
+  end
+  return stops, radii, what
+end
+
+local function cvec_list(v)
+  local out = {}
+  for k = 1, #v do out[k] = v:get(k) end
+  return out
+end
+
+-- What a trace ended at, in words the decomposition compares: "valley k", "hill",
+-- "sink k" (a log point where the integrand vanishes), "singularity k", "saddle k",
+-- "edge", "bound", "flat".
+local function end_label(L, descent, reason, which, what, last)
+  if reason == "stop" then
+    local w = what[which]
+    if w[1] == "singularity" then
+      local s = L.singularities[w[2]]
+      if s.kind == "sink" then return "sink " .. w[2] end
+      return "singularity " .. w[2]
+    end
+    return "saddle " .. w[2]
+  end
+  if reason == "edge" then
+    if not descent then return "hill" end
+    local k = M.valley_of(L.valleys, carg(last - L.region.center), 0.02)
+    return k and ("valley " .. k) or "edge"
+  end
+  if reason == "singular" then
+    local best, bj = huge, nil
+    for j, s in ipairs(L.singularities) do
+      local d = cabs(s.at - last)
+      if d < best then best, bj = d, j end
+    end
+    if bj and best < 1e-3 * L.region.radius then
+      return L.singularities[bj].kind == "sink" and ("sink " .. bj) or ("singularity " .. bj)
+    end
+    return "singular"
+  end
+  return reason
+end
+
+--- trace(J, params, L, start, level, descent, opts) -> path
+-- path = {points = list (for quadrature: up to where the integrand is negligible),
+--         tail = list (followed on, coarsely, to classify the end), ends = label,
+--         reason = why phase one stopped, evals}
+function M.trace(J, params, L, start, level, descent, opts)
+  opts = opts or {}
+  local R = L.region.radius
+  local stops, radii, what = stop_points(L, opts.skip_saddle)
+  local ref = opts.ref or cparts(level)
+  local pts, Fs, reason, which, evals = core.trace(J.tape, params, start, level, {
+    descent = descent, cutoff = opts.cutoff or 50, ref = ref, center = L.region.center,
+    radius = 4 * R, scale = R / 10, maxsteps = 6000, maxpts = 6000,
+    stops = stops, stop_r = radii })
+  local path = { points = cvec_list(pts), reason = reason, evals = evals,
+    level = level, descent = descent }
+  local last = path.points[#path.points]
+  local tail_reason, tail_which = reason, which
+  path.tail = {}
+  if reason == "low" or reason == "high" or reason == "edge" then
+    -- follow on coarsely to 8R to see where it goes
+    local tp, _, r2, w2, ev2 = core.trace(J.tape, params, last, Fs:get(#Fs), {
+      descent = descent, coarse = true, cutoff = 1e300, ref = -1e300,
+      center = L.region.center, radius = 8 * R, scale = R / 10, maxsteps = 3000,
+      maxpts = 3000, stops = stops, stop_r = radii })
+    path.tail = cvec_list(tp)
+    path.evals = path.evals + ev2
+    tail_reason, tail_which = r2, w2
+    last = path.tail[#path.tail] or last
+  end
+  path.ends = end_label(L, descent, tail_reason, tail_which, what, last)
+  path.tail_reason = tail_reason
+  return path
+end
+
+--- saddle_paths(J, params, L, j) -> {descent = {p1, p2, ...}, ascent = {...}} for saddle j:
+-- the m descent and m ascent paths out of a saddle of order m, in the order of
+-- core.saddle_starts (angles increasing).
+function M.saddle_paths(J, params, L, j)
+  local s = L.saddles[j]
+  local R = L.region.radius
+  local gm = cabs(s.g)
+  local ref = cparts(s.F) + (gm > 0 and log(gm) or -30)
+  local out = { descent = {}, ascent = {} }
+  for _, descent in ipairs({ true, false }) do
+    local starts = core.saddle_starts(J.tape, params, s.at, s.F, s.order, s.coef, descent,
+      R / 10)
+    for k, st in ipairs(starts) do
+      local p = M.trace(J, params, L, st, s.F, descent, { skip_saddle = j, ref = ref })
+      table.insert(p.points, 1, s.at)
+      out[descent and "descent" or "ascent"][k] = p
+    end
+  end
+  return out
+end
+
+M.norm_angle = norm_angle
+M.cabs, M.carg, M.expi = cabs, carg, expi
+return M
