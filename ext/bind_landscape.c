@@ -221,7 +221,8 @@ static cplx integrand(void *ctx, cplx t) {
 static const char *quad_text[] = {"ok", "limit", "nonfinite"};
 
 /* core.quad_polyline(tape, params, points, opts) -> value, error, evaluations, status
- * opts: abstol, reltol, singular_start, singular_end (tanh-sinh on that segment), limit.
+ * opts: abstol, reltol, singular_start, singular_end (tanh-sinh on that segment), limit
+ * (subintervals per segment), budget (evaluations in all; past it: status "limit").
  * Two passes: one Kronrod rule per segment gives the size of the integral; then every
  * segment whose error exceeds its share of the tolerance is subdivided. */
 static int land_quad_polyline(lua_State *L) {
@@ -231,6 +232,7 @@ static int land_quad_polyline(lua_State *L) {
   luaL_checktype(L, 4, LUA_TTABLE);
   double abstol = optnum(L, 4, "abstol", 0), reltol = optnum(L, 4, "reltol", 1e-13);
   size_t limit = (size_t)optnum(L, 4, "limit", QUAD_MAX_SUB);
+  long budget = (long)optnum(L, 4, "budget", 2e6);   /* integrand evaluations in all */
   lua_getfield(L, 4, "singular_start");
   int sing0 = lua_toboolean(L, -1);
   lua_getfield(L, 4, "singular_end");
@@ -250,17 +252,22 @@ static int land_quad_polyline(lua_State *L) {
                              &err[k], &evals);
       if (st != QUAD_OK) status = st;
     } else {
-      quad_gk15(integrand, p, pts[k], pts[k + 1], &res[k], &err[k]);
+      double rabs;
+      quad_gk15(integrand, p, pts[k], pts[k + 1], &res[k], &err[k], &rabs);
       evals += 15;
+      size += rabs;
+      continue;
     }
     size += cabs(res[k]);
   }
+  /* the target is relative to the integral of |f| (cancellation is not chased) */
   double target = fmax(abstol, reltol * size);
   cplx total = 0;
   double etotal = 0;
   for (size_t k = 0; k < nseg; k++) {
     int singular = (k == 0 && sing0) || (k == nseg - 1 && sing1);
-    if (!singular && err[k] > target / (double)nseg) {
+    if (evals > budget) status = QUAD_LIMIT;   /* keep the one-rule estimates */
+    else if (!singular && err[k] > target / (double)nseg) {
       int st = quad_adaptive(integrand, p, pts[k], pts[k + 1], target / (double)nseg, 0, limit,
                              &res[k], &err[k], &evals);
       if (st != QUAD_OK) status = st;

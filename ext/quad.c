@@ -22,7 +22,7 @@ static const double wg[4] = {
   0.129484966168869693270611432679082, 0.279705391489276667901467771423780,
   0.381830050505118944950369775488975, 0.417959183673469387755102040816327};
 
-void quad_gk15(quad_fn f, void *ctx, cplx a, cplx b, cplx *res, double *err) {
+void quad_gk15(quad_fn f, void *ctx, cplx a, cplx b, cplx *res, double *err, double *resabs_out) {
   cplx mid = 0.5 * (a + b), half = 0.5 * (b - a);
   double scale = cabs(half);
   cplx fc = f(ctx, mid), fv[15];
@@ -47,39 +47,42 @@ void quad_gk15(quad_fn f, void *ctx, cplx a, cplx b, cplx *res, double *err) {
   if (resabs > DBL_MIN / (50 * DBL_EPSILON)) e = fmax(50 * DBL_EPSILON * resabs, e);
   *res = resk * half;
   *err = e;
+  *resabs_out = resabs;
 }
 
 static int finite_c(cplx z) { return isfinite(creal(z)) && isfinite(cimag(z)); }
 
 int quad_adaptive(quad_fn f, void *ctx, cplx a, cplx b, double abstol, double reltol,
                   size_t limit, cplx *res, double *err, long *nevals) {
-  struct { cplx a, b, r; double e; } iv[QUAD_MAX_SUB];
+  struct { cplx a, b, r; double e, abs; } iv[QUAD_MAX_SUB];
   if (limit < 1) limit = 1;
   if (limit > QUAD_MAX_SUB) limit = QUAD_MAX_SUB;
   size_t n = 1;
   iv[0].a = a;
   iv[0].b = b;
-  quad_gk15(f, ctx, a, b, &iv[0].r, &iv[0].e);
+  quad_gk15(f, ctx, a, b, &iv[0].r, &iv[0].e, &iv[0].abs);
   *nevals += 15;
   cplx total = iv[0].r;
-  double etotal = iv[0].e;
-  while (finite_c(total) && isfinite(etotal) && etotal > fmax(abstol, reltol * cabs(total))) {
+  double etotal = iv[0].e, atotal = iv[0].abs;
+  while (finite_c(total) && isfinite(etotal) &&
+         etotal > fmax(fmax(abstol, reltol * cabs(total)), 100 * DBL_EPSILON * atotal)) {
     if (n >= limit) { *res = total; *err = etotal; return QUAD_LIMIT; }
     size_t w = 0;
     for (size_t j = 1; j < n; j++) if (iv[j].e > iv[w].e) w = j;
     cplx m = 0.5 * (iv[w].a + iv[w].b);
     cplx r1, r2;
-    double e1, e2;
-    quad_gk15(f, ctx, iv[w].a, m, &r1, &e1);
-    quad_gk15(f, ctx, m, iv[w].b, &r2, &e2);
+    double e1, e2, s1, s2;
+    quad_gk15(f, ctx, iv[w].a, m, &r1, &e1, &s1);
+    quad_gk15(f, ctx, m, iv[w].b, &r2, &e2, &s2);
     *nevals += 30;
-    iv[n].a = m; iv[n].b = iv[w].b; iv[n].r = r2; iv[n].e = e2;
-    iv[w].b = m; iv[w].r = r1; iv[w].e = e1;
+    iv[n].a = m; iv[n].b = iv[w].b; iv[n].r = r2; iv[n].e = e2; iv[n].abs = s2;
+    iv[w].b = m; iv[w].r = r1; iv[w].e = e1; iv[w].abs = s1;
     n++;
     /* re-summing (rather than updating) keeps rounding from accumulating */
     total = 0;
     etotal = 0;
-    for (size_t j = 0; j < n; j++) { total += iv[j].r; etotal += iv[j].e; }
+    atotal = 0;
+    for (size_t j = 0; j < n; j++) { total += iv[j].r; etotal += iv[j].e; atotal += iv[j].abs; }
   }
   *res = total;
   *err = etotal;

@@ -23,13 +23,14 @@ enum quad_status {
 /* Largest number of subintervals of quad_adaptive. */
 #define QUAD_MAX_SUB 400
 
-/* One 15-point Kronrod rule on the segment a -> b: *res, and *err from the embedded
- * 7-point Gauss rule with QUADPACK's scaling. 15 evaluations. */
-void quad_gk15(quad_fn f, void *ctx, cplx a, cplx b, cplx *res, double *err);
+/* One 15-point Kronrod rule on the segment a -> b: *res, *err from the embedded
+ * 7-point Gauss rule with QUADPACK's scaling, and *resabs the rule applied to |f| times
+ * |b - a| (the size that rounding errors scale with). 15 evaluations. */
+void quad_gk15(quad_fn f, void *ctx, cplx a, cplx b, cplx *res, double *err, double *resabs);
 
 /* Adaptive bisection of a -> b (the interval with the largest error first) until
- * err <= max(abstol, reltol*|res|), at most `limit` (<= QUAD_MAX_SUB) subintervals.
- * *nevals counts the evaluations added. */
+ * err <= max(abstol, reltol*|res|, rounding floor 100 eps * integral of |f|), at most
+ * `limit` (<= QUAD_MAX_SUB) subintervals. *nevals counts the evaluations added. */
 int quad_adaptive(quad_fn f, void *ctx, cplx a, cplx b, double abstol, double reltol,
                   size_t limit, cplx *res, double *err, long *nevals);
 

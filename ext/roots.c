@@ -6,16 +6,18 @@
 
 #define MAX_MULT 8
 
-/* Multiplicity of a zero near t: the first Taylor coefficient that is not negligible
- * against the largest one, on the length scale at which zeros are told apart; 0 when
- * h(t) itself is not negligible (no zero here). */
+/* Multiplicity of a zero near t: the index of the dominant term of the Taylor
+ * polynomial on a circle of radius r much smaller than the distance at which zeros are
+ * told apart (by Rouche's theorem that is the number of zeros inside); 0 when the value
+ * itself dominates (no zero here). */
 static int multiplicity(const cplx *c, double scale) {
-  double big = 0, r = 1;
-  for (int k = 0; k <= MAX_MULT + 1; k++, r *= scale) big = fmax(big, cabs(c[k]) * r);
-  r = 1;
-  for (int k = 0; k <= MAX_MULT; k++, r *= scale)
-    if (cabs(c[k]) * r > 1e-6 * big) return k;
-  return MAX_MULT + 1;
+  double r = 1e-5 * scale, rk = 1, best = -1;
+  int m = 0;
+  for (int k = 0; k <= MAX_MULT + 1; k++, rk *= r) {
+    double v = cabs(c[k]) * rk;
+    if (v > best) { best = v; m = k; }
+  }
+  return m;
 }
 
 int root_newton(jet_fn jet, void *ctx, cplx t0, cplx center, double radius, double scale,

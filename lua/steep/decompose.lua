@@ -207,6 +207,19 @@ function M.decompose(J, params, L, contour)
     end
   end
 
+  -- every path must end somewhere definite
+  for _, piece in ipairs(plan.pieces) do
+    for _, label in ipairs(piece.ends) do
+      if label ~= "point" and not (label:match("^valley") or label:match("^sink")) then
+        plan.status = plan.status == "ok" and "incomplete" or plan.status
+        plan.notes[#plan.notes + 1] = format("a steepest descent path of the %s %s ends at "
+          .. "'%s', not in a valley or a sink: the deformation is not settled",
+          piece.kind, piece.index or tostring(piece.at), label)
+      end
+    end
+  end
+  if plan.status ~= "ok" then return plan end
+
   -- the combination must have the same ends as the contour
   local missing = {}
   for label, n in pairs(boundary) do
@@ -277,8 +290,8 @@ function M.decompose(J, params, L, contour)
         plan.residues[#plan.residues + 1] = { index = idx, winding = n }
       elseif s.kind ~= "sink" then
         plan.status = "unsupported"
-        plan.notes[#plan.notes + 1] = format("the deformation sweeps over a %s at %s (%s); "
-          .. "only poles can be crossed", s.kind, tostring(s.at), s.source)
+        plan.notes[#plan.notes + 1] = format("the deformation sweeps over the %s point at %s "
+          .. "(%s); only poles can be crossed", s.kind, tostring(s.at), s.source)
       end
     end
   end

@@ -141,7 +141,7 @@ local function default_region(J, params)
     end
   end
   if not any then return { center = cnew(0, 0), radius = 2 * R0 } end
-  return { center = cnew(0, 0), radius = R0 * 2 ^ 6, bounded = true }
+  return { center = cnew(0, 0), radius = 4 * R0, bounded = true }
 end
 
 local function check_region(region, fname)
@@ -171,8 +171,9 @@ function methods._landscape(J, params, region, with_paths)
   region = region or default_region(J, params)
   local L = { region = region, params = params, notes = {} }
   if region.bounded then
-    L.notes[#L.notes + 1] = "the number of saddles kept growing with the region: it was "
-      .. "limited to radius " .. format("%.4g", region.radius)
+    L.notes[#L.notes + 1] = "the number of saddles keeps growing with the region (infinitely "
+      .. "many?): the region was limited to radius " .. format("%.4g", region.radius)
+      .. " (four times the contour's scale); give region = {...} to choose"
   end
   local sing, sinfo = landscape.singularities(J, params, region)
   L.singularities, L.singularity_info = sing, sinfo

@@ -157,13 +157,13 @@ end
 ---------------------------------------------------------------------------------------
 
 -- Trapezoidal rule on a circle (exponentially accurate for analytic periodic integrands):
--- the Laurent coefficients a_n rho^n, n = -8..1, of the integrand about p.
-local function laurent(tape, params, p, rho, n)
+-- the Laurent coefficients a_n rho^n, n = -depth..1, of the integrand about p.
+local function laurent(tape, params, p, rho, n, depth)
   local pts = {}
   for k = 0, n - 1 do pts[k + 1] = p + rho * expi(2 * pi * k / n) end
   local vals = core.integrand_many(tape, params, pts)
   local coef = {}
-  for m = -8, 1 do
+  for m = -depth, 1 do
     local s = cnew(0, 0)
     for k = 0, n - 1 do s = s + vals:get(k + 1) * expi(-2 * pi * k * m / n) end
     coef[m] = s / n
@@ -252,12 +252,14 @@ function M.singularities(J, params, region)
       s.kind = "pole"
     end
     if s.kind == "pole" then
-      local a = laurent(J.tape, params, m.at, rho, 64)
-      local b = laurent(J.tape, params, m.at, rho, 128)
+      -- a log point with coefficient -n is a pole of order n: look that deep, and more
+      local depth = math.max(8, (s.order or 0) + 4)
+      local a = laurent(J.tape, params, m.at, rho, 4 * depth + 32, depth)
+      local b = laurent(J.tape, params, m.at, rho, 8 * depth + 64, depth)
       local big = 0
-      for k = -8, 1 do big = math.max(big, cabs(b[k])) end
+      for k = -depth, 1 do big = math.max(big, cabs(b[k])) end
       local order = 0
-      for k = -8, -1 do if cabs(b[k]) > 1e-10 * big then order = math.max(order, -k) end end
+      for k = -depth, -1 do if cabs(b[k]) > 1e-10 * big then order = math.max(order, -k) end end
       if order == 0 then
         s.kind = "removable"
       else
@@ -265,7 +267,7 @@ function M.singularities(J, params, region)
         -- a_{-1} = (a_{-1} rho^{-1}) * rho
         s.residue = b[-1] * rho
         s.residue_error = cabs(b[-1] - a[-1]) * rho + 1e-15 * cabs(s.residue)
-        if cabs(b[-8]) > 1e-6 * big then s.kind = "essential"; s.order = nil end
+        if cabs(b[-depth]) > 1e-6 * big then s.kind = "essential"; s.order = nil end
       end
     end
     if s.kind ~= "regular" and s.kind ~= "zero" and s.kind ~= "removable" then
@@ -389,14 +391,19 @@ function M.valleys(J, params, region)
       return valleys, { growth = n, leading = s3 }
     end
   end
-  -- otherwise by sampling: decaying from R1 to R3 and far below the level at R1
+  -- otherwise by sampling, just outside the region (far out, exponential growth
+  -- overflows): decaying from R1 to R3 and far below the level at R1
+  R1, R2, R3 = 1.25 * R, 1.6 * R, 2 * R
+  l1 = ring(J.tape, params, c, R1)
+  l2 = ring(J.tape, params, c, R2)
+  l3 = ring(J.tape, params, c, R3)
   local flags = {}
   local ref = -huge
   for k = 1, NANG do ref = math.max(ref, math.min(l1[k], 1e300)) end
   for k = 1, NANG do
     local decays = l3[k] < l2[k] and l2[k] < l1[k]
     local algebraic = (l3[k] - l2[k]) / log(2) < -1.05 and (l2[k] - l1[k]) / log(2) < -1.05
-    flags[k] = decays and (l3[k] < math.min(ref, l1[k]) - 30 or algebraic)
+    flags[k] = decays and (l3[k] < math.min(ref, l1[k]) - 10 or algebraic)
   end
   local kind = nest > 6 and "exponential" or "numerical"
   for _, v in ipairs(intervals(flags)) do
@@ -478,13 +485,18 @@ end
 -- Steepest paths.
 ---------------------------------------------------------------------------------------
 
--- Stop points for tracing: singularities (paths end there) and saddles (a path that
--- reaches another saddle is a saddle connection).
-local function stop_points(L, skip_saddle)
+-- Stop points for tracing: singularities of the exponent (paths end there), branch
+-- points of the amplitude on descent paths (quadrature must not cross their cuts), and
+-- saddles (a path that reaches another saddle is a saddle connection). Poles of the
+-- amplitude do not bend the paths of F: they are not stops.
+local function stop_points(L, skip_saddle, descent)
   local stops, radii, what = {}, {}, {}
   local R = L.region.radius
   for j, s in ipairs(L.singularities) do
-    stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, 1e-7 * R, { "singularity", j }
+    local of_exponent = s.source:find("in the exponent", 1, true) ~= nil
+    if of_exponent or (descent and s.kind == "branch") then
+      stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, 1e-7 * R, { "singularity", j }
+    end
   end
   for j, s in ipairs(L.saddles) do
     if j ~= skip_saddle then
@@ -539,11 +551,11 @@ end
 function M.trace(J, params, L, start, level, descent, opts)
   opts = opts or {}
   local R = L.region.radius
-  local stops, radii, what = stop_points(L, opts.skip_saddle)
+  local stops, radii, what = stop_points(L, opts.skip_saddle, descent)
   local ref = opts.ref or cparts(level)
   local pts, Fs, reason, which, evals = core.trace(J.tape, params, start, level, {
     descent = descent, cutoff = opts.cutoff or 50, ref = ref, center = L.region.center,
-    radius = 4 * R, scale = R / 10, maxsteps = 6000, maxpts = 6000,
+    radius = 1000 * R, scale = R / 10, maxsteps = 6000, maxpts = 6000,
     stops = stops, stop_r = radii })
   local path = { points = cvec_list(pts), reason = reason, evals = evals,
     level = level, descent = descent }
@@ -551,10 +563,11 @@ function M.trace(J, params, L, start, level, descent, opts)
   local tail_reason, tail_which = reason, which
   path.tail = {}
   if reason == "low" or reason == "high" or reason == "edge" then
-    -- follow on coarsely to 8R to see where it goes
+    -- follow on coarsely, well outside the region, to see where it goes
+    local far = math.max(8 * R, 2 * cabs(last - L.region.center))
     local tp, _, r2, w2, ev2 = core.trace(J.tape, params, last, Fs:get(#Fs), {
       descent = descent, coarse = true, cutoff = 1e300, ref = -1e300,
-      center = L.region.center, radius = 8 * R, scale = R / 10, maxsteps = 3000,
+      center = L.region.center, radius = far, scale = R / 10, maxsteps = 3000,
       maxpts = 3000, stops = stops, stop_r = radii })
     path.tail = cvec_list(tp)
     path.evals = path.evals + ev2
