@@ -21,7 +21,7 @@ HDR  = $(wildcard ext/*.h)
 MODULE      = lua/steep/core.so
 ASAN_MODULE = ext/asan/steep/core.so
 SAN_FLAGS   = -fsanitize=address,undefined -fno-sanitize-recover=all -fno-omit-frame-pointer
-KERNEL_SRC  = ext/series.c ext/tape.c
+KERNEL_SRC  = ext/series.c ext/tape.c ext/problem.c ext/quad.c ext/geom.c ext/roots.c ext/path.c
 
 .PHONY: all deps test asan bench demo install uninstall env clean help
 
@@ -41,6 +41,11 @@ tests/c/test_kernels: tests/c/test_kernels.c $(KERNEL_SRC) $(HDR)
 tests/c/test_kernels_asan: tests/c/test_kernels.c $(KERNEL_SRC) $(HDR)
 	$(CC) $(WARN) -O1 -g $(SAN_FLAGS) -Iext -o $@ tests/c/test_kernels.c $(KERNEL_SRC) -lm
 
+# GSL reference values for the Lua tests (test-only, never installed; the plain build
+# serves make asan too).
+tests/ref/gslref.so: tests/ref/gslref.c
+	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) $(CFLAGS) -o $@ tests/ref/gslref.c $(PKG_LIBS) $(LDFLAGS)
+
 deps:
 	@missing=$$(for p in $(DEB_PACKAGES); do \
 	    dpkg-query -W -f='$${Status}\n' $$p 2>/dev/null | grep -q '^install ok installed' || echo $$p; \
@@ -55,22 +60,26 @@ deps:
 	fi
 
 test: deps
-	@$(MAKE) --no-print-directory $(MODULE) tests/c/test_kernels
+	@$(MAKE) --no-print-directory $(MODULE) tests/c/test_kernels tests/ref/gslref.so
 	$(LUA) tests/run.lua
 
 # The whole suite with AddressSanitizer and UndefinedBehaviorSanitizer. lua5.4 itself is
 # not instrumented, so the ASan runtime is preloaded.
 asan: deps
-	@$(MAKE) --no-print-directory $(ASAN_MODULE) tests/c/test_kernels_asan
+	@$(MAKE) --no-print-directory $(ASAN_MODULE) tests/c/test_kernels_asan tests/ref/gslref.so
 	LD_PRELOAD=$$($(CC) -print-file-name=libasan.so) ASAN_OPTIONS=detect_leaks=1 \
 	  STEEP_CPATH='ext/asan/?.so' STEEP_KERNEL_TESTS=tests/c/test_kernels_asan \
 	  $(LUA) tests/run.lua
 
-bench: deps $(MODULE) tests/bench/native.so
+bench: deps $(MODULE) tests/bench/native.so tests/bench/qagi.so
 	$(LUA) tests/bench/run.lua
 
 tests/bench/native.so: tests/bench/native.c ext/bind.h ext/steep.h
 	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) -Iext -o $@ tests/bench/native.c -lm
+
+# GSL's QAGI/QAGIU on the Airy integral, for comparison with J:quad (bench only).
+tests/bench/qagi.so: tests/bench/qagi.c
+	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) -o $@ tests/bench/qagi.c $(PKG_LIBS) -lm
 
 demo: deps $(MODULE)
 	$(LUA) -e 'package.path="lua/?.lua;lua/?/init.lua;"..package.path; package.cpath="lua/?.so;"..package.cpath' recipes/demo.lua
@@ -89,7 +98,8 @@ env:
 	@echo "export LUA_CPATH='$(CURDIR)/lua/?.so;;'"
 
 clean:
-	rm -rf $(MODULE) ext/asan tests/c/test_kernels tests/c/test_kernels_asan tests/bench/native.so
+	rm -rf $(MODULE) ext/asan tests/c/test_kernels tests/c/test_kernels_asan tests/bench/native.so \
+	  tests/bench/qagi.so tests/ref/gslref.so
 
 help:
 	@echo "make deps     install missing Debian packages (as root)"

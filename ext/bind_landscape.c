@@ -11,6 +11,7 @@
 #include <string.h>
 #include "bind.h"
 #include "geom.h"
+#include "invmap.h"
 #include "path.h"
 #include "quad.h"
 #include "roots.h"
@@ -293,6 +294,29 @@ static int land_integrand_many(lua_State *L) {
   return 1;
 }
 
+/* ---- inverse map ---------------------------------------------------------------- */
+
+static const char *invmap_text[] = {"ok", "newton", "notclosed", "singular"};
+
+/* core.invmap_circle(tape, params, t0, F0, m, s, rho, N) -> status, cvec of G values */
+static int land_invmap(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx t0 = bind_checkcomplex(L, 3), F0 = bind_checkcomplex(L, 4);
+  int m = (int)luaL_checkinteger(L, 5);
+  cplx s = bind_checkcomplex(L, 6);
+  double rho = luaL_checknumber(L, 7);
+  lua_Integer N = luaL_checkinteger(L, 8);
+  luaL_argcheck(L, m >= 1 && m <= 9, 5, "map order must be 1..9");
+  luaL_argcheck(L, s != 0, 6, "leading coefficient must not be zero");
+  luaL_argcheck(L, rho > 0 && isfinite(rho), 7, "radius must be positive and finite");
+  luaL_argcheck(L, N >= 8 && N <= 65536, 8, "number of points must be 8..65536");
+  cplx *G = bind_newcvec(L, (size_t)N);
+  int st = invmap_circle(p, t0, F0, m, s, rho, (size_t)N, G);
+  lua_pushstring(L, invmap_text[st]);
+  lua_insert(L, -2);
+  return 2;
+}
+
 /* ---- geometry ------------------------------------------------------------------- */
 
 /* core.turning(points, z) -> change of arg(t - z) / 2pi along the polyline, or nil if
@@ -334,7 +358,7 @@ static int geo_distance(lua_State *L) {
 static const luaL_Reg land_funcs[] = {
   {"zero", land_zero}, {"count", land_count}, {"trace", land_trace},
   {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
-  {"integrand_many", land_integrand_many},
+  {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},
   {"turning", geo_turning}, {"crossings", geo_crossings}, {"distance", geo_distance},
   {NULL, NULL}
 };

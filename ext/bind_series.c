@@ -197,7 +197,7 @@ static int series_revert(lua_State *L) {
   if (a->c[0] != 0) return luaL_error(L, "series revert: the constant term must be zero");
   if (a->c[1] == 0)
     return luaL_error(L, "series revert: the linear coefficient is zero (not invertible)");
-  cplx *work = bind_scratch(L, 4 * a->n * sizeof(cplx));
+  cplx *work = bind_scratch(L, a->n * a->n * sizeof(cplx));
   series *out = newseries(L, a->n);
   ser_revert(out->c, a->c, a->n, work);
   return 1;

@@ -188,18 +188,26 @@ void ser_revert(cplx *out, const cplx *a, size_t n, cplx *work) {
   if (n == 0) return;
   out[0] = 0;
   if (n == 1) return;
-  size_t m1 = n - 1;                        /* length of h = w / a(w) */
-  cplx *f = work, *h = work + n, *p = work + 2 * n, *tmp = work + 3 * n;
-  for (size_t k = 0; k < m1; k++) f[k] = a[k + 1];
-  memset(h, 0, m1 * sizeof *h);
-  h[0] = 1;
-  ser_div(h, h, f, m1);                     /* f[0] = a[1] != 0 by contract */
-  memcpy(p, h, m1 * sizeof *h);             /* p = h^m, starting at m = 1 */
-  out[1] = h[0];
+  /* P[k][j] = [w^j] h^k for the partial inverse h; P[k][m] needs only c_1..c_{m-k+1},
+   * so c_m follows from a1 c_m + sum_{k>=2} a_k P[k][m] = 0 once P[2..m][m] are formed
+   * (P_k = h P_{k-1}). Unlike Lagrange's formula this extracts no small coefficient from
+   * large powers, so it keeps its accuracy when the inverse has a small radius. */
+  cplx *P = work;                           /* row k at P + k*n, k = 1..n-1 */
+  for (size_t k = 0; k < n * n; k++) P[k] = 0;
+  cplx inv1 = 1.0 / a[1];
+  out[1] = inv1;
+  P[1 * n + 1] = inv1;
   for (size_t m = 2; m < n; m++) {
-    ser_mul(tmp, p, h, m1);
-    memcpy(p, tmp, m1 * sizeof *tmp);
-    out[m] = p[m - 1] / (double)m;
+    cplx s = 0;
+    for (size_t k = 2; k <= m; k++) {
+      cplx q = 0;
+      const cplx *prev = P + (k - 1) * n;
+      for (size_t j = 1; j + (k - 1) <= m; j++) q += out[j] * prev[m - j];
+      P[k * n + m] = q;
+      s += a[k] * q;
+    }
+    out[m] = -s * inv1;
+    P[1 * n + m] = out[m];
   }
 }
 

@@ -64,9 +64,10 @@ int ser_atan(cplx *out, const cplx *a, size_t n, cplx *work);
 void ser_compose(cplx *out, const cplx *a, const cplx *r, size_t n, cplx *work);
 
 /* out = compositional inverse of a: a(out(z)) = z.  Needs a[0] == 0, a[1] != 0
- * (checked by the caller).  Lagrange inversion: [z^m] out = (1/m) [w^(m-1)] h(w)^m with
- * h = w / a(w) (e.g. Brent & Kung, J. ACM 25 (1978) 581-595, sec. 1).  work: 4n entries.
- * O(n^3). */
+ * (checked by the caller).  Term by term from a(h(w)) = w with the powers of the partial
+ * inverse kept in a table (Knuth, TAOCP vol. 2, 4.7; the stable alternative to Lagrange
+ * inversion, whose large powers lose digits when the inverse has a small radius).
+ * work: n*n entries.  O(n^3 / 3). */
 void ser_revert(cplx *out, const cplx *a, size_t n, cplx *work);
 
 /* out[0..n-2] = d/dz a (length n-1). */

@@ -3,12 +3,13 @@
 --
 -- Environment: STEEP_CPATH picks the C module build (make asan sets the sanitized one);
 -- STEEP_KERNEL_TESTS the C test binary. Arguments are passed to LuaUnit (e.g. -p pattern).
+-- Test-only C modules (tests/ref/gslref.so, GSL reference values) load from tests/ref/.
 
 local root = arg[0]:match("^(.*)/tests/run%.lua$") or "."
 package.path = table.concat({ root .. "/lua/?.lua", root .. "/lua/?/init.lua",
   root .. "/tests/?.lua", package.path }, ";")
 package.cpath = (os.getenv("STEEP_CPATH") or "lua/?.so"):gsub("^([^/])", root .. "/%1")
-  .. ";" .. package.cpath
+  .. ";" .. root .. "/tests/ref/?.so;" .. package.cpath
 
 local lu = require "luaunit"
 

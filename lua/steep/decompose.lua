@@ -19,7 +19,7 @@ local contour_m = require "steep.contour"
 
 local cnew, cparts = complex.new, complex.parts
 local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
-local format, pi, abs, floor = string.format, math.pi, math.abs, math.floor
+local format, pi, abs, floor, huge = string.format, math.pi, math.abs, math.floor, math.huge
 
 local M = {}
 
@@ -110,8 +110,9 @@ local function closure_to_valley(L, z, k, Rref)
 end
 
 --- decompose(J, params, L, contour) -> plan
--- plan.pieces: list of {kind = "saddle" | "endpoint", index, weight, points (for
--- quadrature), ends = {from label, to label}}; plan.residues: list of {index (into
+-- plan.pieces: list of {kind = "saddle" | "endpoint", index (saddle), ray (its descent
+-- ray), weight, points (for quadrature, outward), ends = {from label, to label}};
+-- plan.residues: list of {index (into
 -- L.singularities), winding}; plan.status: "ok" or the reason it is incomplete;
 -- plan.notes: list of strings.
 function M.decompose(J, params, L, contour)
@@ -127,6 +128,12 @@ function M.decompose(J, params, L, contour)
   local boundary = {}
   local function bump(label, by) boundary[label] = (boundary[label] or 0) + by end
   local start_label, finish_label
+  local endpoint_saddle = {}
+  local function saddle_at(z)
+    for j, sd in ipairs(L.saddles) do
+      if cabs(sd.at - z) <= 1e-8 * R then return j end
+    end
+  end
   if not contour.closed then
     local s, f = contour:start(), contour:finish()
     local boundary_s, boundary_f
@@ -136,11 +143,15 @@ function M.decompose(J, params, L, contour)
       plan.notes[#plan.notes + 1] = "an end lies on the edge of its valley: the integrand "
         .. "oscillates there without decaying (convergent only conditionally)"
     end
-    -- finite ends that are not sinks get descent paths
+    -- finite ends that are not sinks get descent paths (a saddle at an end: its ray)
     for _, e in ipairs({ { s, start_label, 1 }, { f, finish_label, -1 } }) do
       local point, label, sign = e[1], e[2], e[3]
+      local sj = not label and saddle_at(point)
       if label then
         bump(label, sign == 1 and -1 or 1)
+      elseif sj then
+        local near = sign == 1 and cpts[2] or cpts[#cpts - 1]
+        endpoint_saddle[sj] = { sign = sign, direction = carg(near - point) }
       else
         local F = J.tape:eval(point, params)
         local ref = cparts(F)
@@ -156,53 +167,50 @@ function M.decompose(J, params, L, contour)
     end
   end
 
-  -- saddles: weights from crossings with the ascent paths
+  -- saddles: the contour near a saddle of order m is an integer combination of its m
+  -- outward descent rays, sum c_k ray_k with sum c_k = 0. Descent ray k lies between
+  -- ascent rays k and k+1 (angles increase with k), and sweeping from ray j to ray l
+  -- crosses the ascent rays in between with sign -1 each; so with n_k the crossing number
+  -- of the contour with ascent ray k, c_k = n_(k+1) - n_k (indices cyclic). For a simple
+  -- saddle this is the classical intersection number with the whole ascent path.
   L.paths = L.paths or {}
   for j, s in ipairs(L.saddles) do
     local paths = L.paths[j] or landscape.saddle_paths(J, params, L, j)
     L.paths[j] = paths
     for _, p in ipairs(paths.descent) do plan.evals = plan.evals + p.evals end
     for _, p in ipairs(paths.ascent) do plan.evals = plan.evals + p.evals end
-    if s.order == 2 then
-      -- J: in along descent path 2, out along descent path 1; K: in along ascent 1,
-      -- out along ascent 2 (then J crosses K from right to left: <J, K> = +1)
-      local d1, d2 = paths.descent[1], paths.descent[2]
-      local a1, a2 = paths.ascent[1], paths.ascent[2]
-      local K = join_past(reversed(full(a1)), full(a2))
-      local weight = core.crossings(cpts, K)
-      local Jfull = join(reversed(full(d2)), full(d1))
-      -- check the orientation convention on the saddle's own paths
-      local self = core.crossings(join_past(reversed(full(d2)), full(d1)), K)
-      if self ~= 1 then
-        plan.status = "incomplete"
-        plan.notes[#plan.notes + 1] = format("saddle %d: its descent and ascent paths "
-          .. "cross %d times (expected once); its weight is uncertain", j, self)
+    for _, p in ipairs(paths.descent) do
+      if p.ends:match("^saddle") then
+        plan.notes[#plan.notes + 1] = format("saddle %d: its descent path runs into %s "
+          .. "(a saddle connection: the parameters are on a Stokes line)", j, p.ends)
+        plan.stokes = true
       end
-      for _, p in ipairs({ d1, d2, a1, a2 }) do
-        if p.ends:match("^saddle") then
-          plan.notes[#plan.notes + 1] = format("saddle %d: a steepest path runs into %s "
-            .. "(a saddle connection: the parameters are on a Stokes line)", j, p.ends)
-          plan.stokes = true
-        end
+    end
+    local m = s.order
+    local weights = {}
+    local at_end = endpoint_saddle[j]
+    if at_end then
+      -- the contour starts (or ends) at this saddle: it leaves along the descent ray
+      -- nearest its own direction there
+      local best, bk = huge, 1
+      for k, p in ipairs(paths.descent) do
+        local d = abs(landscape.norm_angle(carg(p.points[2] - s.at) - at_end.direction))
+        if d < best then best, bk = d, k end
       end
-      if weight ~= 0 then
-        plan.pieces[#plan.pieces + 1] = { kind = "saddle", index = j, weight = weight,
-          points = join(reversed(d2.points), d1.points), full = Jfull,
-          ends = { d2.ends, d1.ends } }
-        bump(d1.ends, -weight)
-        bump(d2.ends, weight)
-      end
+      for k = 1, m do weights[k] = 0 end
+      weights[bk] = at_end.sign
     else
-      -- a degenerate saddle: does the contour meet any of its ascent paths?
-      local touched = 0
-      for _, a in ipairs(paths.ascent) do
-        local n = core.crossings(cpts, full(a))
-        touched = touched + abs(n)
-      end
-      if touched > 0 then
-        plan.status = "unsupported"
-        plan.notes[#plan.notes + 1] = format("saddle %d has order %d: the deformation "
-          .. "through it is not built yet", j, s.order)
+      local n = {}
+      for k, a in ipairs(paths.ascent) do n[k] = core.crossings(cpts, full(a)) end
+      for k = 1, m do weights[k] = n[k % m + 1] - n[k] end
+    end
+    for k, c in ipairs(weights) do
+      if c ~= 0 then
+        local d = paths.descent[k]
+        plan.pieces[#plan.pieces + 1] = { kind = "saddle", index = j, ray = k, weight = c,
+          order = m, points = d.points, full = full(d), ends = { "saddle " .. j, d.ends },
+          at_endpoint = at_end ~= nil }
+        bump(d.ends, -c)
       end
     end
   end
@@ -210,7 +218,8 @@ function M.decompose(J, params, L, contour)
   -- every path must end somewhere definite
   for _, piece in ipairs(plan.pieces) do
     for _, label in ipairs(piece.ends) do
-      if label ~= "point" and not (label:match("^valley") or label:match("^sink")) then
+      if label ~= "point" and not (label:match("^valley") or label:match("^sink")
+          or label:match("^saddle")) then
         plan.status = plan.status == "ok" and "incomplete" or plan.status
         plan.notes[#plan.notes + 1] = format("a steepest descent path of the %s %s ends at "
           .. "'%s', not in a valley or a sink: the deformation is not settled",
@@ -244,6 +253,7 @@ function M.decompose(J, params, L, contour)
     return nil
   end
   for idx, s in ipairs(L.singularities) do
+    if s.kind == "sink" then goto next_singularity end   -- paths may end there; no residue
     local w = 0
     local function add(poly, sign)
       local t = core.turning(poly, s.at)
@@ -271,10 +281,6 @@ function M.decompose(J, params, L, contour)
       ok = ok and add(poly, -piece.weight)
       local c1 = closure(poly[#poly], piece.ends[2])
       if c1 then ok = ok and add(c1, -piece.weight) end
-      if piece.kind == "saddle" then
-        local c0 = closure(poly[1], piece.ends[1])
-        if c0 then ok = ok and add(reversed(c0), -piece.weight) end
-      end
     end
     local n = floor(w + 0.5)
     if not ok then
@@ -288,12 +294,15 @@ function M.decompose(J, params, L, contour)
     elseif n ~= 0 then
       if s.kind == "pole" then
         plan.residues[#plan.residues + 1] = { index = idx, winding = n }
-      elseif s.kind ~= "sink" then
+      else
+        -- a sink is a log point with a non-integer coefficient: a branch point, which the
+        -- deformation must not sweep over any more than the others
         plan.status = "unsupported"
         plan.notes[#plan.notes + 1] = format("the deformation sweeps over the %s point at %s "
           .. "(%s); only poles can be crossed", s.kind, tostring(s.at), s.source)
       end
     end
+    ::next_singularity::
   end
   return plan
 end

@@ -123,20 +123,23 @@ end
 
 -- The default region: a disc about 0 holding the contour's finite points and, found by
 -- the argument principle on doubling circles, every saddle: the count of zeros of F'
--- (less its poles) must be non-zero and the same on three circles in a row. With no
--- saddle at all the region stays at the contour's scale; exponents with infinitely many
--- saddles stop at a bound (and the landscape says so).
+-- (less its poles) must be the same on three circles in a row, and show a saddle: be
+-- positive, or differ from the count on the first circle (a log point makes it -1 until
+-- the saddle is enclosed, as for t - z log t). With no saddle at all the region stays at
+-- the contour's scale; exponents with infinitely many saddles stop at a bound (and the
+-- landscape says so).
 local function default_region(J, params)
   local R0 = 1
   for _, z in ipairs(J.contour:finite_points()) do R0 = math.max(R0, 1.5 * cabs(z)) end
   local counts = {}
-  local any = false
+  local any, first = false, nil
   for k = 0, 11 do
     local st, n = core.count(J.tape, params, { out = 1, deriv = 1 }, cnew(0, 0), R0 * 2 ^ k, 20000)
     counts[k] = st == "ok" and n or nil
-    if counts[k] and counts[k] ~= 0 then any = true end
-    if k >= 2 and counts[k] and counts[k] ~= 0 and counts[k] == counts[k - 1]
-        and counts[k] == counts[k - 2] then
+    first = first or counts[k]
+    local saddle = counts[k] and (counts[k] > 0 or counts[k] ~= first)
+    if saddle then any = true end
+    if k >= 2 and saddle and counts[k] == counts[k - 1] and counts[k] == counts[k - 2] then
       return { center = cnew(0, 0), radius = R0 * 2 ^ (k - 1) }
     end
   end
@@ -284,7 +287,10 @@ local function quad_ray(J, params, L, a, th, sign, singular_start, notes)
 end
 
 -- A full circle by the trapezoidal rule, doubling the number of points until two
--- estimates agree (exponentially convergent for an integrand analytic near the circle).
+-- estimates agree (exponentially convergent for an integrand analytic near the circle)
+-- to 1e-14 relative, or to the rounding floor: a few units in the last place of the
+-- integral of |integrand| (when the value is much smaller, as a Cauchy coefficient on a
+-- small circle, rounding leaves that much noise).
 local function quad_circle(J, params, p)
   local n, prev = 64, nil
   local evals = 0
@@ -293,14 +299,21 @@ local function quad_circle(J, params, p)
     for k = 0, n - 1 do pts[k + 1] = p.center + p.radius * expi(2 * pi * k / n) end
     local vals = core.integrand_many(J.tape, params, pts)
     evals = evals + n
-    local s = cnew(0, 0)
-    for k = 0, n - 1 do s = s + vals:get(k + 1) * expi(2 * pi * k / n) end
+    local s, l1 = cnew(0, 0), 0
+    for k = 0, n - 1 do
+      local v = vals:get(k + 1)
+      s = s + v * expi(2 * pi * k / n)
+      l1 = l1 + cabs(v)
+    end
     local dir = p.to > p.from and 1 or -1
     s = s * cnew(0, 2 * pi * p.radius / n) * dir
+    local floor = 8 * 2.2e-16 * l1 * 2 * pi * p.radius / n
     if prev then
       local d = cabs(s - prev)
-      if d <= 1e-14 * math.max(cabs(s), 1e-300) + 1e-300 then return s, d, evals, "ok" end
-      if n >= 2 ^ 17 then return s, d, evals, "limit" end
+      if d <= 1e-14 * math.max(cabs(s), 1e-300) + floor + 1e-300 then
+        return s, d + floor, evals, "ok"
+      end
+      if n >= 2 ^ 17 then return s, d + floor, evals, "limit" end
     end
     prev = s
     n = n * 2
@@ -391,6 +404,48 @@ function methods.quad(J, opts)
   e = math.max(e, 4e-16 * cabs(v))
   info.landscape = L
   return v, e, info
+end
+
+---------------------------------------------------------------------------------------
+-- Expansions (lua/steep/asymptotics.lua does the work).
+---------------------------------------------------------------------------------------
+
+--- J:expand{<params>, order = N | "optimal", region = {...}} -> result
+function methods.expand(J, opts)
+  local params, o = M.split_options(J, opts, { order = true, region = true }, "expand")
+  o.order = require("steep.asymptotics").check_order(o.order or 1, "expand")
+  if o.region then o.region = check_region(o.region, "expand") end
+  return require("steep.asymptotics").expand(J, params, o)
+end
+
+--- J:series{order = N, <params>} -> list of contributions in the standard form
+-- (the large parameter may be left out: the coefficients do not depend on it)
+function methods.series(J, opts)
+  opts = opts or {}
+  local full = {}
+  for k, v in pairs(opts) do full[k] = v end
+  if J.large and full[J.large.name] == nil then full[J.large.name] = 1 end
+  local params, o = M.split_options(J, full, { order = true, region = true }, "series")
+  if o.region then o.region = check_region(o.region, "series") end
+  return require("steep.asymptotics").series(J, params, o)
+end
+
+--- J:check{<large> = {values}, <other params>, order = N} -> verification table
+function methods.check(J, opts)
+  if type(opts) ~= "table" then error("bad argument #1 to 'check' (options table expected)", 2) end
+  if not J.large then error("check: the integral names no large parameter (large = ...)", 2) end
+  local values = opts[J.large.name]
+  if type(values) ~= "table" or #values == 0 then
+    error(format("check: give the values of the large parameter as a list, %s = {...}",
+      J.large.name), 2)
+  end
+  local rest = {}
+  for k, v in pairs(opts) do rest[k] = v end
+  rest[J.large.name] = values[1]
+  local params, o = M.split_options(J, rest, { order = true, region = true }, "check")
+  params[J.large.name] = nil
+  if o.region then o.region = check_region(o.region, "check") end
+  return require("steep.asymptotics").check(J, params, values, o)
 end
 
 M.Integral = Integral

@@ -168,7 +168,24 @@ local function laurent(tape, params, p, rho, n, depth)
     for k = 0, n - 1 do s = s + vals:get(k + 1) * expi(-2 * pi * k * m / n) end
     coef[m] = s / n
   end
-  return coef
+  local vmax = 0
+  for k = 1, n do vmax = math.max(vmax, cabs(vals:get(k))) end
+  return coef, vmax
+end
+
+-- The spread of log |integrand| on the circle of radius rho about p (32 points): small
+-- when the circle is close enough to a pole for the pole to dominate.
+local function log_spread(tape, params, p, rho)
+  local n, pts = 32, {}
+  for k = 0, n - 1 do pts[k + 1] = p + rho * expi(2 * pi * (k + 0.5) / n) end
+  local vals = core.integrand_many(tape, params, pts)
+  local lo, hi = huge, -huge
+  for k = 1, n do
+    local v = cabs(vals:get(k))
+    if v ~= v or v == huge or v == 0 then return huge end
+    lo, hi = math.min(lo, log(v)), math.max(hi, log(v))
+  end
+  return hi - lo
 end
 
 -- The coefficient c of c*log(t - p) in F at a log point: (1/2 pi i) times the integral of
@@ -236,12 +253,19 @@ function M.singularities(J, params, region)
       local c = log_coefficient(J.tape, params, m.at, rho)
       s.coefficient = c
       local cr, ci = cparts(c)
-      if abs(ci) < 1e-8 * (1 + abs(cr)) and near_integer(cr, 1e-8) then
+      -- F ~ c log(t - p): the integrand behaves like (t - p)^c. Re c > 0: it vanishes
+      -- there (a sink: descent paths end there, contours may start there); a negative
+      -- integer c: a pole of order -c; otherwise it blows up (a hill), and a
+      -- non-integer c makes p a branch point as well.
+      local integer = abs(ci) < 1e-8 * (1 + abs(cr)) and near_integer(cr, 1e-8)
+      if cr > 0 then
+        s.kind = "sink"
+        s.branch = not integer
+      elseif integer then
         local n = floor(cr + 0.5)
-        if n >= 0 then s.kind = n == 0 and "regular" or "zero"
-        else s.kind = "pole"; s.order = -n end
+        if n == 0 then s.kind = "regular" else s.kind = "pole"; s.order = -n end
       else
-        s.kind = cr > 0 and "sink" or "hill"
+        s.kind = "hill"
         s.branch = true
       end
     elseif kinds["root:exponent"] or kinds["power:exponent"] or kinds["root:amplitude"]
@@ -254,8 +278,18 @@ function M.singularities(J, params, region)
     if s.kind == "pole" then
       -- a log point with coefficient -n is a pole of order n: look that deep, and more
       local depth = math.max(8, (s.order or 0) + 4)
+      -- where the integrand changes by large factors around the circle (a fast exponent),
+      -- the sums alias its large Taylor coefficients into the Laurent ones (a simple pole
+      -- then looks like a high-order or essential one): halve rho while that helps
+      local spread = log_spread(J.tape, params, m.at, rho)
+      for _ = 1, 40 do
+        if spread <= 4 then break end
+        local half = log_spread(J.tape, params, m.at, 0.5 * rho)
+        if not (half < 0.75 * spread) then break end
+        rho, spread = 0.5 * rho, half
+      end
       local a = laurent(J.tape, params, m.at, rho, 4 * depth + 32, depth)
-      local b = laurent(J.tape, params, m.at, rho, 8 * depth + 64, depth)
+      local b, vmax = laurent(J.tape, params, m.at, rho, 8 * depth + 64, depth)
       local big = 0
       for k = -depth, 1 do big = math.max(big, cabs(b[k])) end
       local order = 0
@@ -266,7 +300,9 @@ function M.singularities(J, params, region)
         s.order = order
         -- a_{-1} = (a_{-1} rho^{-1}) * rho
         s.residue = b[-1] * rho
+        -- the difference of the two sums, and their rounding (terms up to vmax)
         s.residue_error = cabs(b[-1] - a[-1]) * rho + 1e-15 * cabs(s.residue)
+          + 8 * 2.2e-16 * vmax * rho
         if cabs(b[-depth]) > 1e-6 * big then s.kind = "essential"; s.order = nil end
       end
     end

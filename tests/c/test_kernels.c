@@ -1,13 +1,25 @@
 /*
- * test_kernels.c — C-level tests of the series kernels, without Lua: identities that
- * must hold to rounding, on seeded random coefficients. Prints one line
+ * test_kernels.c — C-level tests of the numerical kernels, without Lua: series
+ * identities that must hold to rounding on seeded random coefficients; quadrature
+ * (quad.c) on exact integrals; polyline geometry (geom.c) on figures whose winding and
+ * crossing numbers are known; zeros (roots.c) of a polynomial with known roots; steepest
+ * paths (path.c) over tapes built by hand. Prints one line
  * `kernels: N passed, M failed` and exits non-zero on failure.
  */
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <float.h>
 #include "series.h"
+#include "quad.h"
+#include "geom.h"
+#include "roots.h"
+#include "path.h"
+#include "problem.h"
+#include "tape.h"
+
+#define PI 3.14159265358979323846
 
 static int passed, failed;
 static unsigned long long rng_state = 0x9e3779b97f4a7c15ULL;
@@ -34,9 +46,9 @@ static void random_series(cplx *a, size_t n, double decay) {
   for (size_t k = 0; k < n; k++, s *= decay) a[k] = s * (rnd() + I * rnd());
 }
 
-int main(void) {
+static void test_series(void) {
   enum { N = 31 };
-  cplx a[N], b[N], c[N], d[N], e[N], work[4 * N];
+  cplx a[N], b[N], c[N], d[N], e[N], work[4 * N], rwork[N * N];   /* ser_revert: n*n */
   for (int trial = 0; trial < 20; trial++) {
     random_series(a, N, 0.5);
     random_series(b, N, 0.5);
@@ -67,7 +79,7 @@ int main(void) {
     random_series(c, N, 0.5);
     c[0] = 0;
     c[1] = 1 + 0.5 * rnd();
-    ser_revert(d, c, N, work);
+    ser_revert(d, c, N, rwork);
     ser_compose(e, c, d, N, work);   /* c(d(z)) = z */
     memset(b, 0, sizeof b);
     b[1] = 1;
@@ -91,6 +103,552 @@ int main(void) {
   check(ser_log(c, a, N) == STEEP_SINGULAR, "log of a series with a0 = 0 is singular");
   check(ser_pow(c, a, 0.5, N) == STEEP_BRANCH, "a^0.5 with a0 = 0 is a branch point");
   check(ser_div(c, b, a, N) == STEEP_SINGULAR, "division by a0 = 0 is singular");
+}
+
+/* Relative distance |got - want| / |want| (absolute when want = 0). */
+static double relerr(cplx got, cplx want) {
+  double s = cabs(want);
+  return cabs(got - want) / (s > 0 ? s : 1);
+}
+
+/* ---- quadrature (quad.c) -------------------------------------------------------- */
+
+/* Integrands: ctx is a counter of evaluations (a long), or the data named below. */
+typedef struct { long calls; int k; cplx poly[11]; } qctx;
+
+static cplx f_monomial(void *ctx, cplx t) {   /* t^k; real pow on the real axis */
+  qctx *q = ctx;
+  q->calls++;
+  if (cimag(t) == 0) return pow(creal(t), q->k);
+  cplx r = 1;
+  for (int j = 0; j < q->k; j++) r *= t;
+  return r;
+}
+
+static cplx f_poly(void *ctx, cplx t) {   /* sum poly[j] t^j, Horner */
+  qctx *q = ctx;
+  q->calls++;
+  cplx r = 0;
+  for (int j = 10; j >= 0; j--) r = r * t + q->poly[j];
+  return r;
+}
+
+static cplx f_gauss(void *ctx, cplx t) { ((qctx *)ctx)->calls++; return cexp(-t * t); }
+static cplx f_peak(void *ctx, cplx t) { ((qctx *)ctx)->calls++; return 1.0 / (1e-4 + t * t); }
+static cplx f_rsqrt(void *ctx, cplx t) { ((qctx *)ctx)->calls++; return 1.0 / csqrt(t); }
+static cplx f_log(void *ctx, cplx t) { ((qctx *)ctx)->calls++; return clog(t); }
+static cplx f_nan(void *ctx, cplx t) { ((qctx *)ctx)->calls++; return creal(t) > 0.3 ? NAN : 1.0; }
+
+/* Legendre P_7 by Bonnet's recurrence (n+1) P_{n+1} = (2n+1) x P_n - n P_{n-1}
+ * (Abramowitz & Stegun 22.7.10), stable on [-1, 1]. */
+static double legendre7(double x) {
+  double p0 = 1, p1 = x;
+  for (int n = 1; n < 7; n++) {
+    double p2 = ((2 * n + 1) * x * p1 - n * p0) / (n + 1);
+    p0 = p1;
+    p1 = p2;
+  }
+  return p1;
+}
+
+static double nodes[32];
+static int nodes_seen;
+
+static cplx f_record(void *ctx, cplx t) {   /* records the abscissae (real) */
+  (void)ctx;
+  if (nodes_seen < 32) nodes[nodes_seen] = creal(t);
+  nodes_seen++;
+  return 1;
+}
+
+static void test_quad(void) {
+  qctx q;
+  cplx r;
+  double e, rabs;
+  /* Degrees of exactness: the 15-point Kronrod rule integrates t^k exactly for
+   * k <= 3*7+1 = 22, its embedded 7-point Gauss rule for k <= 2*7-1 = 13 (Kronrod,
+   * Nodes and weights of quadrature formulas, 1965; Piessens et al., QUADPACK, 1983,
+   * sec. 2.2). This checks the node and weight table typed from QUADPACK's qk15: a
+   * wrong digit in any node or weight breaks exactness at some k <= 22.
+   * Exact: integral of t^k over [-1, 1] = 2/(k+1) for even k, 0 for odd k. */
+  int kron_ok = 1, floor_ok = 1;
+  for (int k = 0; k <= 22; k++) {
+    q.calls = 0;
+    q.k = k;
+    quad_gk15(f_monomial, &q, -1, 1, &r, &e, &rabs);
+    double want = k % 2 ? 0 : 2.0 / (k + 1);
+    double tol = k % 2 ? 1e-15 : 1e-15 * want;   /* odd: absolute (the value is 0) */
+    if (!(cabs(r - want) <= tol) || q.calls != 15) {
+      kron_ok = 0;
+      printf("  gk15: t^%d gives %.17g, want %.17g (%ld calls)\n", k, creal(r), want, q.calls);
+    }
+    /* resabs is the rule applied to |t^k|: for even k that is t^k again, 2/(k+1) */
+    if (k % 2 == 0 && !(fabs(rabs - want) <= 1e-15 * want)) {
+      kron_ok = 0;
+      printf("  gk15: resabs for t^%d is %.17g, want %.17g\n", k, rabs, want);
+    }
+    /* while the Gauss part is exact as well (k <= 13), the Gauss-Kronrod difference is
+     * rounding and the estimate sits at QUADPACK's rounding floor 50 eps resabs */
+    if (k <= 13 && !(e <= 50 * DBL_EPSILON * rabs * (1 + 1e-12))) {
+      floor_ok = 0;
+      printf("  gk15: error estimate %.3g for t^%d is not at the rounding floor\n", e, k);
+    }
+  }
+  check(kron_ok, "gk15 integrates t^k, k <= 22, on [-1,1] to 1e-15 (QUADPACK qk15 table)");
+  check(floor_ok, "gk15 error estimate at the rounding floor for k <= 13 (Gauss part exact)");
+  /* and the degrees are exactly 13 and 22: t^14 shows a Gauss-Kronrod difference (the
+   * 7-point Gauss error on t^14 is 2^15 (7!)^4 / (15 (14!)^2) ~ 1.8e-4), t^24 a Kronrod
+   * error well above rounding */
+  q.k = 14;
+  quad_gk15(f_monomial, &q, -1, 1, &r, &e, &rabs);
+  check(e > 1e-6, "gk15 error estimate for t^14 is not small (Gauss degree is 13)");
+  q.k = 24;
+  quad_gk15(f_monomial, &q, -1, 1, &r, &e, &rabs);
+  check(relerr(r, 2.0 / 25) > 1e-12, "gk15 is not exact for t^24 (Kronrod degree is 22)");
+
+  /* The 7 Gauss nodes among the 15 are the zeros of the Legendre polynomial P_7 (Gauss;
+   * Abramowitz & Stegun 25.4.29), the 8 Kronrod nodes are not: record the abscissae of
+   * one rule on [-1, 1] (where they are the tabulated nodes exactly). */
+  {
+    nodes_seen = 0;
+    quad_gk15(f_record, &q, -1, 1, &r, &e, &rabs);
+    int zeros = 0, others = 0;
+    for (int j = 0; j < nodes_seen; j++) {
+      double v = legendre7(nodes[j]);
+      if (fabs(v) <= 1e-15) zeros++;
+      else if (fabs(v) > 1e-2) others++;
+    }
+    check(nodes_seen == 15 && zeros == 7 && others == 8,
+          "gk15: 7 of the 15 nodes are zeros of P_7 to 1e-15 (Gauss nodes), 8 are not");
+  }
+
+  /* Complex segments: the integral of a polynomial p along a -> b is P(b) - P(a) with P
+   * an antiderivative (Cauchy: path independence), for degree <= 22 in one rule. */
+  {
+    cplx a = -1.0 + 0.5 * I, b = 2.0 - 1.0 * I, Pa = 0, Pb = 0;
+    for (int j = 0; j <= 10; j++) q.poly[j] = (j % 3 - 1.0) + (0.5 * j - 2.0) * I;
+    for (int j = 10; j >= 0; j--) {   /* P(t) = sum poly[j] t^(j+1)/(j+1) */
+      Pa = Pa * a + q.poly[j] / (j + 1);
+      Pb = Pb * b + q.poly[j] / (j + 1);
+    }
+    Pa *= a;
+    Pb *= b;
+    q.calls = 0;
+    quad_gk15(f_poly, &q, a, b, &r, &e, &rabs);
+    check(relerr(r, Pb - Pa) <= 1e-13, "gk15 on a complex segment: degree-10 polynomial exact");
+    /* t^22 from 0.3i to 1 + i: (b^23 - a^23)/23 */
+    cplx a2 = 0.3 * I, b2 = 1.0 + 1.0 * I, w = 1, v = 1;
+    for (int j = 0; j < 23; j++) { w *= b2; v *= a2; }
+    q.k = 22;
+    quad_gk15(f_monomial, &q, a2, b2, &r, &e, &rabs);
+    check(relerr(r, (w - v) / 23.0) <= 1e-13, "gk15 on a complex segment: t^22 exact");
+    /* reversing the segment negates the integral */
+    cplx r2;
+    quad_gk15(f_monomial, &q, b2, a2, &r2, &e, &rabs);
+    check(relerr(r2, -r) <= 1e-15, "gk15: integral from b to a is minus that from a to b");
+  }
+
+  /* quad_adaptive. e^{-t^2} over [-10, 10]: sqrt(pi) erf(10), and erfc(10) ~ 2e-45 is
+   * below double rounding, so the value is sqrt(pi) (Abramowitz & Stegun 7.1.1). */
+  {
+    long nev = 100;   /* the count is added to */
+    q.calls = 0;
+    int st = quad_adaptive(f_gauss, &q, -10, 10, 0, 1e-13, QUAD_MAX_SUB, &r, &e, &nev);
+    check(st == QUAD_OK, "adaptive e^{-t^2}: status ok");
+    check(relerr(r, sqrt(PI)) <= 1e-14, "adaptive e^{-t^2} over [-10,10] = sqrt(pi) to 1e-14");
+    check(e <= 1e-12 && e >= cabs(r - sqrt(PI)), "adaptive e^{-t^2}: error estimate bounds the error");
+    check(nev - 100 == q.calls && q.calls > 15 && q.calls % 30 == 15,
+          "adaptive: evaluation count added = the integrand's calls (15 + 30 per bisection)");
+  }
+  /* A peak of width 1e-2: the integral of 1/(eps^2 + t^2) over [a, b] is
+   * (atan(b/eps) - atan(a/eps))/eps (elementary antiderivative), eps = 1e-2. */
+  {
+    long nev = 0;
+    double want = (atan(1.0 / 1e-2) - atan(-0.3 / 1e-2)) / 1e-2;
+    q.calls = 0;
+    int st = quad_adaptive(f_peak, &q, -0.3, 1, 0, 1e-12, QUAD_MAX_SUB, &r, &e, &nev);
+    check(st == QUAD_OK && relerr(r, want) <= 1e-12,
+          "adaptive 1/(1e-4 + t^2) over [-0.3,1] = arctan formula to 1e-12");
+    check(nev == q.calls && nev > 15 * 9, "adaptive: the peak needs bisections (count reported)");
+    /* limit = 1: one rule, not enough, so QUAD_LIMIT with the one-rule estimate */
+    nev = 0;
+    q.calls = 0;
+    st = quad_adaptive(f_peak, &q, -0.3, 1, 0, 1e-12, 1, &r, &e, &nev);
+    cplx r1;
+    double e1;
+    quad_gk15(f_peak, &q, -0.3, 1, &r1, &e1, &rabs);
+    check(st == QUAD_LIMIT && nev == 15 && r == r1 && e == e1 && e > 1e-12 * cabs(r),
+          "adaptive with limit = 1 on the peak: QUAD_LIMIT after one rule");
+    /* a NaN in the integrand is reported */
+    nev = 0;
+    st = quad_adaptive(f_nan, &q, 0, 1, 0, 1e-12, QUAD_MAX_SUB, &r, &e, &nev);
+    check(st == QUAD_NONFINITE, "adaptive: a NaN integrand gives QUAD_NONFINITE");
+  }
+
+  /* Tanh-sinh on integrable endpoint singularities: the integral over [0, 1] of t^{-1/2}
+   * is 2 and of log t is -1 (elementary); along 0 -> i, t^{-1/2} (principal branch)
+   * integrates to 2 sqrt(i). */
+  {
+    long nev = 0;
+    q.calls = 0;
+    int st = quad_tanhsinh(f_rsqrt, &q, 0, 1, 0, 1e-13, &r, &e, &nev);
+    check(st == QUAD_OK && relerr(r, 2) <= 1e-12, "tanh-sinh t^{-1/2} over [0,1] = 2 to 1e-12");
+    check(nev == q.calls, "tanh-sinh: evaluation count = the integrand's calls");
+    nev = 0;
+    st = quad_tanhsinh(f_log, &q, 0, 1, 0, 1e-13, &r, &e, &nev);
+    check(st == QUAD_OK && relerr(r, -1) <= 1e-12, "tanh-sinh log t over [0,1] = -1 to 1e-12");
+    st = quad_tanhsinh(f_rsqrt, &q, 0, I, 0, 1e-13, &r, &e, &nev);
+    check(st == QUAD_OK && relerr(r, 2 * csqrt(I)) <= 1e-12,
+          "tanh-sinh t^{-1/2} along 0 -> i = 2 sqrt(i) to 1e-12");
+    /* the singular end may be b as well: reversed, t^{-1/2} from 1 to 0 = -2 */
+    st = quad_tanhsinh(f_rsqrt, &q, 1, 0, 0, 1e-13, &r, &e, &nev);
+    check(st == QUAD_OK && relerr(r, -2) <= 1e-12, "tanh-sinh t^{-1/2} from 1 to 0 = -2");
+  }
+}
+
+/* ---- geometry (geom.c) ------------------------------------------------------------ */
+
+static void test_geom(void) {
+  enum { NP = 64 };
+  cplx c[2 * NP + 1], cw[NP + 1];
+  /* a regular 64-gon inscribed in the unit circle, counter-clockwise, closed; traversed
+   * twice; and clockwise */
+  for (int k = 0; k <= 2 * NP; k++) c[k] = cexp(I * (2 * PI * (k % NP) / NP));
+  for (int k = 0; k <= NP; k++) cw[k] = conj(c[k]);
+  /* winding numbers of a circle: 1 inside, 0 outside, 2 for a double traversal, -1
+   * clockwise (definition of the winding number; rounding only: 1e-12) */
+  check(fabs(geom_turning(c, NP + 1, 0.3 + 0.2 * I) - 1) <= 1e-12, "turning: inside point winds once");
+  check(fabs(geom_turning(c, NP + 1, 0.99 * cexp(0.5 * I)) - 1) <= 1e-12,
+        "turning: inside point near the edge winds once");
+  check(fabs(geom_turning(c, NP + 1, 2.0 - 0.5 * I)) <= 1e-12, "turning: outside point winds 0");
+  check(fabs(geom_turning(c, NP + 1, 1.01 * cexp(0.5 * I))) <= 1e-12,
+        "turning: outside point near the edge winds 0");
+  check(fabs(geom_turning(c, 2 * NP + 1, -0.4 * I) - 2) <= 1e-12, "turning: twice traversed = 2");
+  check(fabs(geom_turning(cw, NP + 1, 0.1) + 1) <= 1e-12, "turning: clockwise = -1");
+  /* an open arc: a quarter of the circle seen from the centre turns by 1/4 */
+  check(fabs(geom_turning(c, NP / 4 + 1, 0) - 0.25) <= 1e-12, "turning: quarter arc = 1/4");
+  /* on the curve: at a vertex and in the middle of a segment */
+  check(isnan(geom_turning(c, NP + 1, c[5])), "turning: NAN at a vertex of the curve");
+  check(isnan(geom_turning(c, NP + 1, 0.5 * (c[5] + c[6]))), "turning: NAN on a segment");
+
+  /* Crossings, sign convention of geom.h: +1 when b crosses a from right to left. */
+  cplx ax[2] = {-1, 1}, up[2] = {-I, I}, down[2] = {I, -I};
+  cplx pts[8];
+  size_t np = 99;
+  check(geom_crossings(ax, 2, up, 2, pts, 8, &np) == 1 && np == 1 && cabs(pts[0]) <= 1e-15,
+        "crossings: b upwards across a eastwards = +1 at 0");
+  check(geom_crossings(ax, 2, down, 2, NULL, 0, &np) == -1 && np == 1,
+        "crossings: b downwards across a = -1");
+  check(geom_crossings(up, 2, ax, 2, NULL, 0, &np) == -1, "crossings: swapping a and b flips the sign");
+  /* a vertex of a exactly on b; a vertex of b exactly on a; a vertex of both: once each */
+  cplx a3[3] = {-1, 0, 1}, b3[3] = {-I, 0, I};
+  check(geom_crossings(a3, 3, up, 2, pts, 8, &np) == 1 && np == 1 && pts[0] == 0,
+        "crossings: at a vertex of a, counted once");
+  check(geom_crossings(ax, 2, b3, 3, pts, 8, &np) == 1 && np == 1 && pts[0] == 0,
+        "crossings: at a vertex of b, counted once");
+  check(geom_crossings(a3, 3, b3, 3, pts, 8, &np) == 1 && np == 1 && pts[0] == 0,
+        "crossings: at a vertex of both, counted once");
+  /* the same with a's vertex exactly on b but b's slanted, and at a vertex of both
+   * polylines with more segments: 0.5 + 0.5i is a vertex of both */
+  cplx a4[4] = {-1, 0.5 + 0.5 * I, 2 + I, 3}, b4[3] = {1 - 1 * I, 0.5 + 0.5 * I, 1 * I};
+  check(geom_crossings(a4, 4, b4, 3, NULL, 0, &np) == 1 && np == 1,
+        "crossings: slanted polylines through a common vertex, once");
+  /* touching without crossing: a V whose tip lies on b, from the left and from the right;
+   * b touching a at a vertex from above */
+  cplx vl[3] = {-1 - 1 * I, 0, -1 + 1 * I}, vr[3] = {1 - 1 * I, 0, 1 + 1 * I}, line[2] = {-2 * I, 2 * I};
+  cplx tb[3] = {I, 0, 1 + I};
+  check(geom_crossings(vl, 3, line, 2, NULL, 0, &np) == 0, "crossings: V touching from the left = 0");
+  check(geom_crossings(vr, 3, line, 2, NULL, 0, &np) == 0 && np == 0,
+        "crossings: V touching from the right = 0");
+  check(geom_crossings(ax, 2, tb, 3, NULL, 0, &np) == 0, "crossings: b touching a from above = 0");
+  /* parallel and collinear segments, and disjoint ones */
+  cplx par[2] = {-1 + I, 1 + I}, col[2] = {-0.5, 0.5}, far[2] = {5 + 5 * I, 6 + 7 * I};
+  check(geom_crossings(ax, 2, par, 2, NULL, 0, &np) == 0 && np == 0, "crossings: parallel = 0");
+  check(geom_crossings(ax, 2, col, 2, NULL, 0, &np) == 0 && np == 0, "crossings: collinear = 0");
+  check(geom_crossings(ax, 2, far, 2, NULL, 0, &np) == 0 && np == 0, "crossings: disjoint = 0");
+  /* a zigzag across the real axis three times: +1 -1 +1 = 1 at x = -1.5, 0, 1.5 */
+  cplx zz[5] = {-2 - I, -1 + I, 1 - I, 2 + I, 2.5 + I}, big[2] = {-3, 3};
+  int tot = geom_crossings(big, 2, zz, 5, pts, 8, &np);
+  check(tot == 1 && np == 3 && cabs(pts[0] + 1.5) <= 1e-15 && cabs(pts[1]) <= 1e-15 &&
+        cabs(pts[2] - 1.5) <= 1e-15, "crossings: zigzag = +1 -1 +1 at -1.5, 0, 1.5");
+  /* maxpts bounds the points written, not the count */
+  pts[1] = 42;
+  check(geom_crossings(big, 2, zz, 5, pts, 1, &np) == 1 && np == 3 && pts[1] == 42,
+        "crossings: at most maxpts points written, all counted");
+  /* closed curves: a closed polyline crossed by a line through its inside crosses it
+   * twice with opposite signs (Jordan) */
+  check(geom_crossings(c, NP + 1, big, 2, NULL, 0, &np) == 0 && np == 2,
+        "crossings: a line through a closed curve: two crossings, total 0");
+}
+
+/* ---- zeros (roots.c) ---------------------------------------------------------------- */
+
+/* h(t) = (t - 1)(t + 2)(t - i)^2 = sum hp[j] t^j; jets by Taylor shift (repeated
+ * synthetic division). */
+static cplx hp[5];
+
+static void poly_mul(cplx *out, const cplx *a, int na, const cplx *b, int nb) {
+  for (int k = 0; k < na + nb - 1; k++) out[k] = 0;
+  for (int i = 0; i < na; i++)
+    for (int j = 0; j < nb; j++) out[i + j] += a[i] * b[j];
+}
+
+static int poly_jet(void *ctx, cplx t, size_t order, cplx *c) {
+  long *calls = ctx;
+  (*calls)++;
+  cplx w[5];
+  memcpy(w, hp, sizeof w);
+  /* after step k, w[k] is the k-th Taylor coefficient at t */
+  for (int k = 0; k < 5; k++)
+    for (int j = 3; j >= k; j--) w[j] += t * w[j + 1];
+  for (size_t k = 0; k <= order; k++) c[k] = k < 5 ? w[k] : 0;
+  return STEEP_OK;
+}
+
+/* 1/(t - 0.5): a pole, c_k = (-1)^k (t - 0.5)^{-k-1} */
+static int pole_jet(void *ctx, cplx t, size_t order, cplx *c) {
+  (void)ctx;
+  cplx u = 1.0 / (t - 0.5), p = u;
+  for (size_t k = 0; k <= order; k++, p *= -u) c[k] = p;
+  return STEEP_OK;
+}
+
+static void test_roots(void) {
+  cplx f1[2] = {-1, 1}, f2[2] = {2, 1}, f3[2] = {-I, 1}, q12[3], q33[3];
+  poly_mul(q12, f1, 2, f2, 2);
+  poly_mul(q33, f3, 2, f3, 2);
+  poly_mul(hp, q12, 3, q33, 3);
+  long calls = 0;
+  /* the jet callback itself: h and h' at 0.3 + 0.7i against the factored form */
+  {
+    cplx t = 0.3 + 0.7 * I, c[3];
+    poly_jet(&calls, t, 2, c);
+    cplx h = (t - 1) * (t + 2) * (t - I) * (t - I);
+    cplx dh = (t + 2) * (t - I) * (t - I) + (t - 1) * (t - I) * (t - I) + 2 * (t - 1) * (t + 2) * (t - I);
+    check(relerr(c[0], h) <= 1e-14 && relerr(c[1], dh) <= 1e-14, "poly_jet: h and h' (test helper)");
+  }
+  /* Newton from seeds near each zero: simple zeros 1, -2 (multiplicity 1), the double
+   * zero i (multiplicity 2, polished as the simple zero of h'), all to 1e-12 */
+  struct { cplx seed, want; int mult; } z[3] = {
+    {1.2 + 0.1 * I, 1, 1}, {-2.3 - 0.2 * I, -2, 1}, {0.1 + 1.3 * I, I, 2}};
+  for (int j = 0; j < 3; j++) {
+    cplx root = 99;
+    int mult = 0;
+    int st = root_newton(poly_jet, &calls, z[j].seed, 0, 5, 1, 60, &root, &mult);
+    char msg[120];
+    snprintf(msg, sizeof msg, "root_newton: zero %g%+gi found to 1e-12 with multiplicity %d",
+             creal(z[j].want), cimag(z[j].want), z[j].mult);
+    check(st == ROOT_OK && cabs(root - z[j].want) <= 1e-12 * cabs(z[j].want) && mult == z[j].mult, msg);
+  }
+  /* from a seed far from every zero in a small disc, the iterate leaves the disc */
+  {
+    cplx root = 0;
+    int mult = 0;
+    int st = root_newton(poly_jet, &calls, 10, 10, 0.5, 1, 60, &root, &mult);
+    check(st == ROOT_LEFT, "root_newton: no zero in the disc -> ROOT_LEFT");
+  }
+  /* argument principle: zeros with multiplicity inside circles */
+  struct { cplx c; double r; int want; } circ[6] = {
+    {0, 0.5, 0},          /* none */
+    {1, 0.5, 1},          /* the simple zero 1 */
+    {I, 0.5, 2},          /* the double zero i */
+    {0.5 + 0.5 * I, 1, 3},/* 1 and i (twice) */
+    {0, 3, 4},            /* all */
+    {-2, 0.2, 1}};        /* -2 */
+  for (int j = 0; j < 6; j++) {
+    int count = -99;
+    double dist = 1;
+    int st = root_count(poly_jet, &calls, circ[j].c, circ[j].r, 20000, &count, &dist);
+    char msg[120];
+    snprintf(msg, sizeof msg, "root_count: %d zeros in |t - (%g%+gi)| < %g", circ[j].want,
+             creal(circ[j].c), cimag(circ[j].c), circ[j].r);
+    check(st == ROOT_OK && count == circ[j].want && dist <= 1e-6, msg);
+  }
+  {
+    int count = 0;
+    double dist = 0;
+    /* |t| = 1 passes through the zeros 1 and i */
+    check(root_count(poly_jet, &calls, 0, 1, 20000, &count, &dist) == ROOT_ONCIRCLE,
+          "root_count: a zero on the circle -> ROOT_ONCIRCLE");
+    /* zeros minus poles: 1/(t - 0.5) has one pole inside |t| = 1 */
+    check(root_count(pole_jet, NULL, 0, 1, 20000, &count, &dist) == ROOT_OK && count == -1,
+          "root_count: a pole counts -1");
+  }
+}
+
+/* ---- steepest paths (path.c) -------------------------------------------------------- */
+
+/* A hand-built tape: n instructions, one output (the last slot). */
+typedef struct { tape t; tape_ins ins[16]; int out[1]; unsigned char varying[16]; } htape;
+
+static void htape_init(htape *h, const tape_ins *ins, size_t n, size_t nparams) {
+  memcpy(h->ins, ins, n * sizeof *ins);
+  h->t.n = n;
+  h->t.nparams = nparams;
+  h->t.nout = 1;
+  h->t.ins = h->ins;
+  h->t.out = h->out;
+  h->t.varying = h->varying;
+  h->out[0] = (int)n - 1;
+}
+
+static void path_defaults(path_opts *o, int descent) {
+  memset(o, 0, sizeof *o);
+  o->descent = descent;
+  o->cutoff = 40;
+  o->ref = 0;
+  o->center = 0;
+  o->radius = 50;
+  o->scale = 1;
+  o->maxsteps = 4000;
+}
+
+/* max over the points of |Im F(pts[k]) - im| / max(1, |F|), F evaluated afresh */
+static double im_drift(problem *p, const cplx *pts, size_t n, double im) {
+  double worst = 0;
+  for (size_t k = 0; k < n; k++) {
+    cplx F;
+    (void)problem_integrand(p, pts[k], &F);
+    worst = fmax(worst, fabs(cimag(F) - im) / fmax(1, cabs(F)));
+  }
+  return worst;
+}
+
+/* Re F strictly falls (descent) or rises (ascent) from point to point */
+static int monotone(const cplx *Fs, size_t n, int descent) {
+  for (size_t k = 1; k < n; k++)
+    if (descent ? !(creal(Fs[k]) < creal(Fs[k - 1])) : !(creal(Fs[k]) > creal(Fs[k - 1]))) return 0;
+  return 1;
+}
+
+static void test_path(void) {
+  enum { MAXP = 4000 };
+  const char *why = "";
+  cplx *pts = malloc(MAXP * sizeof *pts), *Fs = malloc(MAXP * sizeof *Fs);
+  size_t n = 0;
+  int which = 0;
+  path_opts o;
+
+  /* F(t) = -t^2/2: saddle at 0, descent along the real axis, ascent along the imaginary
+   * axis (Im F = 0 on both; Re F = -t^2/2 resp. +s^2/2 at t = is). */
+  htape g;
+  const tape_ins gins[4] = {
+    {OP_VAR, -1, -1, 0, 0}, {OP_POWI, 0, -1, 2, 0}, {OP_CONST, -1, -1, 0, -0.5},
+    {OP_MUL, 1, 2, 0, 0}};
+  htape_init(&g, gins, 4, 0);
+  check(tape_check(&g.t, &why) == -1, "hand-built tape -t^2/2 is well formed");
+  void *mem = malloc(problem_bytes(&g.t));
+  problem p;
+  problem_init(&p, &g.t, NULL, mem);
+  {
+    cplx F, dF;
+    check(problem_dF(&p, 1.5 + 0.5 * I, &F, &dF) == STEEP_OK &&
+          relerr(F, -0.5 * (1.5 + 0.5 * I) * (1.5 + 0.5 * I)) <= 1e-15 &&
+          relerr(dF, -(1.5 + 0.5 * I)) <= 1e-15, "problem_dF on -t^2/2: F and F'");
+  }
+  path_defaults(&o, 1);
+  int end = path_trace(&p, 0.01, 0, &o, pts, Fs, MAXP, &n, &which);
+  double tend = creal(pts[n - 1]);
+  check(end == PATH_LOW && n > 2 && im_drift(&p, pts, n, 0) <= 1e-10 && monotone(Fs, n, 1),
+        "path -t^2/2: descent from the saddle keeps Im F = 0, Re F falls, ends PATH_LOW");
+  /* it ends just past the cut-off: -t^2/2 < -40 at t > sqrt(80) */
+  check(tend > sqrt(80) && -0.5 * tend * tend > -40 - 10 && fabs(cimag(pts[n - 1])) <= 1e-10,
+        "path -t^2/2: descent ends on the positive real axis just past the cut-off");
+  path_defaults(&o, 0);
+  end = path_trace(&p, 0.01 * I, 0, &o, pts, Fs, MAXP, &n, &which);
+  check(end == PATH_HIGH && im_drift(&p, pts, n, 0) <= 1e-10 && monotone(Fs, n, 0) &&
+        cimag(pts[n - 1]) > sqrt(80) && fabs(creal(pts[n - 1])) <= 1e-10,
+        "path -t^2/2: ascent up the imaginary axis ends PATH_HIGH");
+  /* bounds and stops */
+  path_defaults(&o, 1);
+  o.maxsteps = 3;
+  end = path_trace(&p, 0.01, 0, &o, pts, Fs, MAXP, &n, &which);
+  check(end == PATH_BOUND && n == 4, "path: maxsteps = 3 -> PATH_BOUND after 3 steps");
+  path_defaults(&o, 1);
+  end = path_trace(&p, 0.01, 0, &o, pts, Fs, 3, &n, &which);
+  check(end == PATH_BOUND && n == 3, "path: maxpts = 3 -> PATH_BOUND with 3 points");
+  end = path_trace(&p, 0.01, 0, &o, pts, Fs, 1, &n, &which);
+  check(end == PATH_BOUND && n == 0, "path: maxpts < 2 -> PATH_BOUND, nothing written");
+  o.radius = 2;
+  end = path_trace(&p, 0.01, 0, &o, pts, Fs, MAXP, &n, &which);
+  check(end == PATH_EDGE && cabs(pts[n - 1]) > 2, "path: leaving |t| < 2 -> PATH_EDGE");
+  path_defaults(&o, 1);
+  cplx stop[1] = {3};
+  double stop_r[1] = {0.1};
+  o.stops = stop;
+  o.stop_r = stop_r;
+  o.nstops = 1;
+  end = path_trace(&p, 0.01, 0, &o, pts, Fs, MAXP, &n, &which);
+  check(end == PATH_STOP && which == 0 && cabs(pts[n - 1] - 3) <= 0.1,
+        "path: reaching a stop point -> PATH_STOP with its index");
+  free(mem);
+
+  /* F(t) = i (t^3/3 + x t), x = 1 (the Airy exponent): saddles at +-i, F(i) = -2/3,
+   * F - F(i) ~ -(t - i)^2 (Olver, Asymptotics and Special Functions, ch. 4 sec. 7).
+   * Descent from i: horizontal start, into the valleys arg t in (0, pi/3) and
+   * (2pi/3, pi) where Re(i t^3) < 0; ascent: vertical, to the hill arg t in (pi/3,
+   * 2pi/3) above and towards the saddle -i's side below. */
+  htape ai;
+  const tape_ins ains[9] = {
+    {OP_VAR, -1, -1, 0, 0}, {OP_PARAM, -1, -1, 0, 0}, {OP_POWI, 0, -1, 3, 0},
+    {OP_CONST, -1, -1, 0, 1.0 / 3}, {OP_MUL, 2, 3, 0, 0}, {OP_MUL, 1, 0, 0, 0},
+    {OP_ADD, 4, 5, 0, 0}, {OP_CONST, -1, -1, 0, I}, {OP_MUL, 7, 6, 0, 0}};
+  htape_init(&ai, ains, 9, 1);
+  check(tape_check(&ai.t, &why) == -1, "hand-built tape i(t^3/3 + x t) is well formed");
+  cplx params[1] = {1};
+  mem = malloc(problem_bytes(&ai.t));
+  problem_init(&p, &ai.t, params, mem);
+  cplx t0 = I, F0 = -2.0 / 3, starts[2];
+  {
+    cplx F, dF;
+    check(problem_dF(&p, t0, &F, &dF) == STEEP_OK && relerr(F, F0) <= 1e-15 && cabs(dF) <= 1e-15,
+          "Airy exponent: F(i) = -2/3, F'(i) = 0");
+  }
+  check(path_saddle_starts(&p, t0, F0, 2, -1, 1, 1, starts) == STEEP_OK,
+        "path_saddle_starts (descent) succeeds");
+  int valleys_ok = 1, desc_ok = 1;
+  for (int k = 0; k < 2; k++) {
+    path_defaults(&o, 1);
+    o.ref = creal(F0);
+    end = path_trace(&p, starts[k], F0, &o, pts, Fs, MAXP, &n, &which);
+    double th = carg(pts[n - 1]);
+    if (!(end == PATH_LOW && im_drift(&p, pts, n, cimag(F0)) <= 1e-10 && monotone(Fs, n, 1)))
+      desc_ok = 0;
+    if (!((th > 0 && th < PI / 3) || (th > 2 * PI / 3 && th < PI))) valleys_ok = 0;
+    /* Re F at the end is below the cut-off */
+    if (!(creal(Fs[n - 1]) < creal(F0) - 40)) desc_ok = 0;
+  }
+  check(desc_ok, "Airy x=1: both descent paths from i keep Im F = 0 to 1e-10, end PATH_LOW");
+  check(valleys_ok, "Airy x=1: descent paths end in the valleys (0, pi/3) and (2pi/3, pi)");
+  check(path_saddle_starts(&p, t0, F0, 2, -1, 0, 1, starts) == STEEP_OK,
+        "path_saddle_starts (ascent) succeeds");
+  int asc_ok = 1;
+  for (int k = 0; k < 2; k++) {
+    path_defaults(&o, 0);
+    /* stop at the other saddle -i: the downward ascent path runs into it */
+    cplx other[1] = {-I};
+    double rr[1] = {0.05};
+    o.stops = other;
+    o.stop_r = rr;
+    o.nstops = 1;
+    end = path_trace(&p, starts[k], F0, &o, pts, Fs, MAXP, &n, &which);
+    int up = cimag(starts[k]) > 1;
+    if (im_drift(&p, pts, n, cimag(F0)) > 1e-10 || !monotone(Fs, n, 0)) asc_ok = 0;
+    if (up && !(end == PATH_HIGH && creal(Fs[n - 1]) - creal(F0) > 40)) asc_ok = 0;
+    if (!up && !(end == PATH_STOP && which == 0)) asc_ok = 0;
+  }
+  check(asc_ok, "Airy x=1: ascent from i goes up to PATH_HIGH and down into the saddle -i");
+  free(mem);
+  free(pts);
+  free(Fs);
+}
+
+int main(void) {
+  test_series();
+  test_quad();
+  test_geom();
+  test_roots();
+  test_path();
   printf("kernels: %d passed, %d failed\n", passed, failed);
   return failed ? 1 : 0;
 }

@@ -1,0 +1,109 @@
+/*
+ * invmap.c — inverse of the saddle (or endpoint) map on a circle; see invmap.h.
+ */
+#include <math.h>
+#include "invmap.h"
+
+/* Newton for F0 - F(t0 + h) = target, from *h. Returns 0 on convergence; F'(t0+h) in *dF. */
+static int solve(problem *p, cplx t0, cplx F0, cplx target, cplx *h, cplx *dF) {
+  for (int it = 0; it < 40; it++) {
+    cplx F;
+    if (problem_dF(p, t0 + *h, &F, dF) != STEEP_OK || *dF == 0) return -1;
+    cplx r = F0 - F - target;
+    cplx step = r / *dF;   /* d/dh (F0 - F) = -F' : h <- h + r / F' */
+    *h += step;
+    if (!(isfinite(creal(*h)) && isfinite(cimag(*h)))) return -1;
+    /* quadratic convergence: a step this small leaves an error near rounding */
+    if (cabs(step) <= 1e-10 * (cabs(*h) + 1e-300)) {
+      if (problem_dF(p, t0 + *h, &F, dF) != STEEP_OK || *dF == 0) return -1;
+      *h += (F0 - F - target) / *dF;
+      return 0;
+    }
+  }
+  return -1;
+}
+
+static cplx wpow(cplx w, int m) {
+  cplx r = 1;
+  for (int k = 0; k < m; k++) r *= w;
+  return r;
+}
+
+/* Continues h from w0 (solved: value *h, F'(t0 + h) in *dF) to w1 in `steps` equal
+ * steps along a segment (arc = 0) or an arc of |w| = rho (arc = 1). Each step starts
+ * from the Euler predictor h + h'(w) dw and is accepted only if Newton lands near it
+ * (so it cannot jump to another branch of the inverse); otherwise the stretch left is
+ * redone with four times as many steps, to a bound. F is followed by continuity: where
+ * the principal value jumps across a branch cut of a log inside F between two nearby
+ * points (its change differs from F' dh by much more than the step's second-order
+ * term), the jump is added to *off, and the equation solved is for F + off. */
+static int follow(problem *p, cplx t0, cplx F0, int m, cplx w0, cplx w1, cplx *h, cplx *dF,
+                  cplx *off, int steps, int arc, double rho) {
+  double th0 = carg(w0), th1 = th0 + carg(w1 / w0);
+  cplx wprev = w0;
+  for (int k = 1; k <= steps; k++) {
+    double u = (double)k / steps;
+    cplx w = arc ? rho * cexp(I * (th0 + u * (th1 - th0))) : w0 + u * (w1 - w0);
+    cplx dh = -(double)m * wpow(wprev, m - 1) / *dF * (w - wprev);   /* h'(w) dw */
+    cplx hn = *h + dh, dFn = *dF, Fa, Fb, d1;
+    if (problem_dF(p, t0 + *h, &Fa, &d1) != STEEP_OK ||
+        problem_dF(p, t0 + hn, &Fb, &dFn) != STEEP_OK)
+      return INVMAP_SINGULAR;
+    /* a large discrepancy is a branch jump only if it survives small steps (the
+     * trapezoidal error of a long step near a singular point can be large too) */
+    cplx jump = Fb - Fa - 0.5 * (d1 + dFn) * dh;
+    cplx offn = *off;
+    int big = cabs(jump) > 0.5;
+    if (big && steps <= 16384) {
+      return follow(p, t0, F0, m, wprev, w1, h, dF, off, 4 * (steps - k + 1), arc, rho);
+    }
+    if (big) offn -= jump;
+    int ok = solve(p, t0, F0 - offn, wpow(w, m), &hn, &dFn) == 0 &&
+             cabs(hn - (*h + dh)) <= 0.5 * cabs(dh) + 1e-14 * cabs(hn);
+    if (!ok) {
+      if (steps > 65536) return INVMAP_NEWTON;
+      return follow(p, t0, F0, m, wprev, w1, h, dF, off, 4 * (steps - k + 1), arc, rho);
+    }
+    *h = hn;
+    *dF = dFn;
+    *off = offn;
+    wprev = w;
+  }
+  return INVMAP_OK;
+}
+
+int invmap_circle(problem *p, cplx t0, cplx F0, int m, cplx s, double rho, size_t N,
+                  cplx *G) {
+  const double twopi = 6.283185307179586;
+  cplx dF = 0;
+  double w = 1e-3 * rho;
+  cplx h = w / s;
+  if (solve(p, t0, F0, wpow(w, m), &h, &dF) != 0) return INVMAP_NEWTON;
+  cplx off = 0;
+  int st = follow(p, t0, F0, m, w, rho, &h, &dF, &off, 60, 0, rho);
+  if (st != INVMAP_OK) return st;
+  cplx h0 = h;
+  for (size_t j = 0; j < N; j++) {
+    cplx wj = rho * cexp(I * (twopi * (double)j / (double)N));
+    if (j > 0) {
+      cplx wprev = rho * cexp(I * (twopi * (double)(j - 1) / (double)N));
+      st = follow(p, t0, F0, m, wprev, wj, &h, &dF, &off, 1, 1, rho);
+      if (st != INVMAP_OK) return st;
+    }
+    cplx F;
+    cplx g = 1;
+    if (p->t->nout > 1) {
+      (void)problem_integrand(p, t0 + h, &F);
+      g = p->vals[1];
+    }
+    /* F0 - F(t0 + h(w)) = w^m  =>  h'(w) = -m w^(m-1) / F'(t0 + h) */
+    G[j] = g * (-(double)m * wpow(wj, m - 1) / dF);
+    if (!(isfinite(creal(G[j])) && isfinite(cimag(G[j])))) return INVMAP_SINGULAR;
+  }
+  /* once round: back where we started? */
+  cplx wlast = rho * cexp(I * (twopi * (double)(N - 1) / (double)N));
+  st = follow(p, t0, F0, m, wlast, rho, &h, &dF, &off, 1, 1, rho);
+  if (st != INVMAP_OK) return st;
+  if (cabs(h - h0) > 1e-8 * (cabs(h0) + 1e-300)) return INVMAP_NOTCLOSED;
+  return INVMAP_OK;
+}

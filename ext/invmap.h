@@ -1,0 +1,34 @@
+/*
+ * invmap.h — the inverse of the local map F0 - F(t0 + h) = w^m on a circle |w| = rho,
+ * for the coefficients of G(w) = g(t0 + h(w)) h'(w) by Cauchy's formula.
+ *
+ * Reverting the Taylor series of the map loses digits geometrically when G has a larger
+ * radius of convergence than the map's own series (e.g. log's singularity limits the
+ * series in h, not G): its n-th coefficient comes out with an absolute error of about
+ * eps, against a true size of R^-n. On a circle of radius rho < R, G's values are
+ * accurate to eps |G|, so the trapezoidal rule gives a_n to eps max|G| rho^-n and the
+ * relative error grows only like (R/rho)^n (Trefethen & Weideman, SIAM Review 56 (2014)
+ * 385-458, on the trapezoidal rule for Taylor coefficients). h(w) is followed by
+ * continuation with Newton's method: out along the ray w > 0 from the series guess
+ * h = w/s, then around the circle.
+ */
+#ifndef STEEP_INVMAP_H
+#define STEEP_INVMAP_H
+
+#include "problem.h"
+
+enum invmap_status {
+  INVMAP_OK = 0,
+  INVMAP_NEWTON,     /* Newton's method failed even with small steps */
+  INVMAP_NOTCLOSED,  /* going round the circle did not return to the start: a branch
+                      * point of h(w) lies inside (rho too large) */
+  INVMAP_SINGULAR    /* F or g could not be evaluated on the way */
+};
+
+/* G[j] = g(t0 + h_j) h'(w_j) at w_j = rho exp(2 pi i j / N), j = 0..N-1, where
+ * F0 - F(t0 + h) = w^m and h ~ w / s for small w (s^m = -f_m: the branch that sends
+ * w > 0 along the chosen descent direction). Cost: about 4 jets of order 1 per point. */
+int invmap_circle(problem *p, cplx t0, cplx F0, int m, cplx s, double rho, size_t N,
+                  cplx *G);
+
+#endif

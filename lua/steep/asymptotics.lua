@@ -1,0 +1,352 @@
+-- steep.asymptotics — J:expand, J:series and J:check: the decomposition turned into
+-- asymptotic series, truncated where asked, and verified against quadrature.
+
+local complex = require "steep.complex"
+local landscape = require "steep.landscape"
+local decompose = require "steep.decompose"
+local expand = require "steep.expand"
+local expr = require "steep.expr"
+
+local cnew, cparts = complex.new, complex.parts
+local cabs = landscape.cabs
+local cexp = complex.apply
+local format, pi, abs, log, huge = string.format, math.pi, math.abs, math.log, math.huge
+
+local M = {}
+
+local function exp_c(z) return cexp("exp", complex.new(cparts(z))) end
+
+-- How many raw series coefficients a contribution needs for `order` terms (plus the
+-- first omitted one), or for optimal truncation.
+local function raw_count(order, m, symmetric)
+  local per = symmetric and m or 1
+  if order == "optimal" then return math.min(120, 250 - m) end
+  return math.min(per * (order + 2) + m, 250 - m)
+end
+
+local function check_order(order, fname)
+  if order == "optimal" then return order end
+  if type(order) ~= "number" or math.tointeger(order) == nil or order < 1 or order > 100 then
+    error(format("%s: option 'order' must be a whole number of terms from 1 to 100 or "
+      .. "\"optimal\", got %s", fname, tostring(order)), 3)
+  end
+  return math.tointeger(order)
+end
+M.check_order = check_order
+
+-- Saddle contribution from its ray pieces.
+local function saddle_contribution(J, params, L, j, rays, order)
+  local s = L.saddles[j]
+  local m = s.order
+  local c = {}
+  for k = 1, m do c[k] = 0 end
+  local at_endpoint = false
+  for _, piece in ipairs(rays) do
+    c[piece.ray] = c[piece.ray] + piece.weight
+    at_endpoint = at_endpoint or piece.at_endpoint
+  end
+  local symmetric = (m == 2 and c[1] == -c[2])
+  local nraw = raw_count(order, m, symmetric)
+  local a, F0 = expand.saddle_series(J, params, s.at, m, nraw)
+  local terms, powers = expand.saddle_terms(a, F0, m, c, nraw)
+  local scale = exp_c(F0)
+  local value, err, used = expand.truncate(terms, order, scale)
+  local kind = m == 2 and "saddle" or format("saddle of order %d", m)
+  if at_endpoint then kind = kind .. " at an endpoint" end
+  local tl = {}
+  for k = 1, used do tl[k] = terms[k] * scale end
+  return { kind = kind, at = s.at, order = m, weights = c, F = F0, value = value,
+    error = err, terms = tl, powers = powers, used = used,
+    dominance = cparts(F0) }
+end
+
+local function endpoint_contribution(J, params, piece, order)
+  local nraw = raw_count(order, 1, false)
+  local b, Fa, beta = expand.endpoint_series(J, params, piece.at, nraw)
+  if not b then
+    error(format("the endpoint %s is a saddle of the exponent: not handled as an endpoint",
+      tostring(piece.at)), 0)
+  end
+  local terms = expand.endpoint_terms(b, beta, nraw)
+  local scale = exp_c(Fa) * piece.weight
+  local value, err, used = expand.truncate(terms, order, scale)
+  local tl = {}
+  for k = 1, used do tl[k] = terms[k] * scale end
+  return { kind = beta and format("endpoint with factor (t-a)^%g", beta) or "endpoint",
+    at = piece.at, weight = piece.weight, F = Fa, value = value, error = err, terms = tl,
+    used = used, dominance = cparts(Fa), beta = beta }
+end
+
+local function residue_contribution(L, r)
+  local s = L.singularities[r.index]
+  local v = cnew(0, 2 * pi * r.winding) * s.residue
+  return { kind = "pole", at = s.at, weight = r.winding, order = s.order, value = v,
+    error = 2 * pi * abs(r.winding) * s.residue_error, terms = { v }, used = 1,
+    residue = s.residue, dominance = log(math.max(cabs(v), 1e-300)) }
+end
+
+--- expand(J, params, opts) -> result
+function M.expand(J, params, opts)
+  local order = check_order(opts.order or 1, "expand")
+  local L = J:_landscape(params, opts.region, false)
+  local plan = decompose.decompose(J, params, L, J.contour)
+  if plan.status ~= "ok" then
+    error("expand: the contour could not be decomposed into steepest descent paths ("
+      .. plan.status .. "): " .. table.concat(plan.notes, "; "), 0)
+  end
+  local contributions = {}
+  local by_saddle, order_seen = {}, {}
+  for _, piece in ipairs(plan.pieces) do
+    if piece.kind == "saddle" then
+      if not by_saddle[piece.index] then
+        by_saddle[piece.index] = {}
+        order_seen[#order_seen + 1] = piece.index
+      end
+      table.insert(by_saddle[piece.index], piece)
+    else
+      for _, s in ipairs(L.singularities) do
+        if cabs(s.at - piece.at) <= 1e-9 * L.region.radius and s.kind == "essential" then
+          error(format("expand: an essential singularity (%s) sits at the endpoint %s",
+            s.source, tostring(piece.at)), 0)
+        end
+      end
+      contributions[#contributions + 1] = endpoint_contribution(J, params, piece, order)
+    end
+  end
+  for _, j in ipairs(order_seen) do
+    local c = saddle_contribution(J, params, L, j, by_saddle[j], order)
+    local zero = true
+    for _, w in ipairs(c.weights) do if w ~= 0 then zero = false end end
+    if not zero then contributions[#contributions + 1] = c end
+  end
+  for _, r in ipairs(plan.residues) do
+    contributions[#contributions + 1] = residue_contribution(L, r)
+  end
+  table.sort(contributions, function(a, b) return a.dominance > b.dominance end)
+  local value, err = cnew(0, 0), 0
+  for _, c in ipairs(contributions) do
+    value = value + c.value
+    err = err + c.error
+  end
+  local result = { value = value, error = err, contributions = contributions,
+    order = order, params = params, landscape = L, notes = plan.notes,
+    stokes = plan.stokes or false, integral = J, status = "estimated" }
+  return setmetatable(result, { __index = { report = M.report } })
+end
+
+local function fmtc(z)
+  local re, im = cparts(z)
+  if im == 0 then return format("%.10g", re) end
+  return format("%.10g%+.10gi", re, im)
+end
+
+--- result:report() -> text
+function M.report(r)
+  local lines = {}
+  local function add(...) lines[#lines + 1] = format(...) end
+  local J = r.integral
+  add("integral: %s", tostring(J))
+  local ps = {}
+  for k, v in pairs(r.params) do ps[#ps + 1] = k .. " = " .. tostring(v) end
+  table.sort(ps)
+  add("parameters: %s%s", table.concat(ps, ", "),
+    J.large and ("   (large parameter: " .. J.large.name .. ")") or "")
+  add("terms per contribution: %s", tostring(r.order))
+  add("contributions (most dominant first):")
+  for i, c in ipairs(r.contributions) do
+    add("  %d. %-28s at %-24s value %-30s error %.3g (%d terms)", i, c.kind, fmtc(c.at),
+      fmtc(c.value), c.error, c.used)
+  end
+  add("total: %s   estimated error %.3g", fmtc(r.value), r.error)
+  if r.check then
+    add("quadrature: %s (error %.2g); difference %.3g -> %s", fmtc(r.check.quad),
+      r.check.quad_error, r.check.difference, r.check.verdict)
+  else
+    add("status: estimated only (not compared with quadrature; use J:check)")
+  end
+  if r.stokes then add("warning: a saddle connection was found (Stokes line): see notes") end
+  for _, n in ipairs(r.notes or {}) do add("note: %s", n) end
+  return table.concat(lines, "\n")
+end
+
+---------------------------------------------------------------------------------------
+-- Standard form: exponent = large * phi(t).
+---------------------------------------------------------------------------------------
+
+--- Is the exponent exactly large * phi(t) with phi free of the large parameter, and the
+-- amplitude free of it? Decided on the expression (large times something, in either
+-- order), and otherwise numerically: F/large at several points for two values of large.
+function M.homogeneous(J, params)
+  local x = J.large
+  if not x then return false, "the integral names no large parameter" end
+  local F = J.exponent
+  local g = J.amplitude
+  if expr.is(g) and g:depends_on(x) then
+    return false, "the amplitude depends on the large parameter " .. x.name
+  end
+  if F.op == "mul" and ((F.a == x and not F.b:depends_on(x)) or
+      (F.b == x and not F.a:depends_on(x))) then
+    return true
+  end
+  local pts = { cnew(0.3, 0.1), cnew(-0.7, 0.4), cnew(1.3, -0.2) }
+  for _, z in ipairs(J.contour:finite_points()) do pts[#pts + 1] = z + cnew(0.01, 0.02) end
+  for _, t in ipairs(pts) do
+    local p1 = setmetatable({ [x.name] = 1.7 }, { __index = params })
+    local p2 = setmetatable({ [x.name] = 3.1 }, { __index = params })
+    local ok1, F1 = pcall(J.tape.eval, J.tape, t, p1)
+    local ok2, F2 = pcall(J.tape.eval, J.tape, t, p2)
+    if ok1 and ok2 then
+      local d = cabs(F1 / 1.7 - F2 / 3.1)
+      if d > 1e-12 * (1 + cabs(F1 / 1.7)) then
+        return false, "the exponent is not " .. x.name .. " times a function of "
+          .. J.var.name
+      end
+    end
+  end
+  return true
+end
+
+--- series(J, params, opts) -> list of contributions with coefficients c_k and
+-- :value(lambda, nterms). Saddles: e^{lambda phi0} sum_k c_k lambda^(-(n_k+1)/m)
+-- (for a simple saddle passed through: e^{lambda phi0} lambda^(-1/2) sum c_k lambda^-k);
+-- endpoints: e^{lambda phi(a)} sum_k c_k lambda^(-k-1).
+function M.series(J, params, opts)
+  local ok, why = M.homogeneous(J, params)
+  if not ok then error("series: the standard form does not apply: " .. why, 0) end
+  local order = check_order(opts.order or 6, "series")
+  if order == "optimal" then order = 60 end
+  local x = J.large.name
+  local lam = params[x] or 1
+  local lr, li = cparts(lam)
+  if li ~= 0 or lr <= 0 then
+    error("series: the standard form is built for a positive large parameter (" .. x
+      .. " > 0); got " .. tostring(lam), 0)
+  end
+  -- at lambda = 1 the exponent is phi itself
+  local p1 = {}
+  for k, v in pairs(params) do p1[k] = v end
+  p1[x] = 1
+  local L = J:_landscape(p1, opts.region, false)
+  local plan = decompose.decompose(J, p1, L, J.contour)
+  if plan.status ~= "ok" then
+    error("series: the contour could not be decomposed (" .. plan.status .. "): "
+      .. table.concat(plan.notes, "; "), 0)
+  end
+  local out = {}
+  local rays = {}
+  for _, piece in ipairs(plan.pieces) do
+    if piece.kind == "saddle" then
+      rays[piece.index] = rays[piece.index] or {}
+      table.insert(rays[piece.index], piece)
+    else
+      local nraw = order + 1
+      local b, phia, beta = expand.endpoint_series(J, p1, piece.at, nraw)
+      local coefs, powers = {}, {}
+      for k = 0, order - 1 do
+        coefs[k + 1] = b[k] * expand.gamma(k + (beta or 0) + 1) * piece.weight
+        powers[k + 1] = k + 1 + (beta or 0)
+      end
+      out[#out + 1] = { kind = "endpoint", at = piece.at, phi = phia, coefficients = coefs,
+        powers = powers }
+    end
+  end
+  for j, list in pairs(rays) do
+    local s = L.saddles[j]
+    local m = s.order
+    local c = {}
+    for k = 1, m do c[k] = 0 end
+    for _, piece in ipairs(list) do c[piece.ray] = c[piece.ray] + piece.weight end
+    local symmetric = m == 2 and c[1] == -c[2]
+    local nraw = raw_count(order, m, symmetric)
+    local a, phi0 = expand.saddle_series(J, p1, s.at, m, nraw)
+    local terms, raw_powers = expand.saddle_terms(a, phi0, m, c, nraw)
+    local coefs, powers = {}, {}
+    for k = 1, math.min(order, #terms) do
+      coefs[k] = terms[k]
+      powers[k] = (raw_powers[k] + 1) / m
+    end
+    out[#out + 1] = { kind = "saddle", at = s.at, order = m, phi = phi0,
+      coefficients = coefs, powers = powers }
+  end
+  local mt = { __index = {
+    value = function(c, lambda, nterms)
+      nterms = nterms or #c.coefficients
+      local s = cnew(0, 0)
+      for k = 1, math.min(nterms, #c.coefficients) do
+        s = s + c.coefficients[k] * lambda ^ (-c.powers[k])
+      end
+      return exp_c(c.phi * lambda) * s
+    end } }
+  for _, c in ipairs(out) do setmetatable(c, mt) end
+  table.sort(out, function(a, b) return cparts(a.phi) > cparts(b.phi) end)
+  return out
+end
+
+---------------------------------------------------------------------------------------
+-- Verification against quadrature.
+---------------------------------------------------------------------------------------
+
+--- check(J, fixed params, list of values of the large parameter, opts) -> report table
+function M.check(J, params, values, opts)
+  local x = J.large and J.large.name
+  local rows = {}
+  local order = check_order(opts.order or 4, "check")
+  for _, v in ipairs(values) do
+    local p = {}
+    for k, val in pairs(params) do p[k] = val end
+    p[x] = v
+    local r = M.expand(J, p, { order = order, region = opts.region })
+    local qopts = { region = opts.region }
+    for k, val in pairs(p) do qopts[k] = val end
+    local q, qe, qinfo = J:quad(qopts)
+    local diff = cabs(r.value - q)
+    local scale = math.max(cabs(q), 1e-300)
+    local ok = diff <= 3 * r.error + 3 * qe
+    rows[#rows + 1] = { x = v, expansion = r.value, quad = q, quad_error = qe,
+      relative_error = diff / scale, estimated = r.error / scale, agrees = ok,
+      stokes = r.stokes, quad_status = qinfo.status }
+  end
+  -- observed order: slope of log(error) against log|x| (least squares)
+  local sx, sy, sxx, sxy, n = 0, 0, 0, 0, 0
+  for _, row in ipairs(rows) do
+    local ax = cabs(row.x)
+    if row.relative_error > 0 and ax > 0 then
+      local lx, ly = log(ax), log(row.relative_error)
+      sx, sy, sxx, sxy, n = sx + lx, sy + ly, sxx + lx * lx, sxy + lx * ly, n + 1
+    end
+  end
+  local slope
+  if n >= 2 and (n * sxx - sx * sx) > 0 then slope = (n * sxy - sx * sy) / (n * sxx - sx * sx) end
+  local all = true
+  for _, row in ipairs(rows) do all = all and row.agrees end
+  local result = { rows = rows, observed_order = slope, verified = all, order = order,
+    integral = J, large = x }
+  return setmetatable(result, { __index = { report = M.check_report } })
+end
+
+function M.check_report(c)
+  local lines = {}
+  local function add(...) lines[#lines + 1] = format(...) end
+  add("check of %s", tostring(c.integral))
+  add("%-12s %-26s %-26s %-11s %-11s %s", c.large or "x", "expansion", "quadrature",
+    "rel. error", "estimated", "")
+  for _, r in ipairs(c.rows) do
+    add("%-12s %-26s %-26s %-11.3g %-11.3g %s", tostring(r.x), fmtc(r.expansion),
+      fmtc(r.quad), r.relative_error, r.estimated,
+      (r.agrees and "" or "DISAGREES") .. (r.stokes and " stokes" or ""))
+  end
+  if c.observed_order then
+    add("observed order of the error: %.3g (relative error ~ %s^%.3g)", c.observed_order,
+      c.large or "x", c.observed_order)
+  end
+  if c.verified then
+    add("verified: the expansion with %s terms agrees with quadrature within its error "
+      .. "estimate at every point", tostring(c.order))
+  else
+    add("NOT verified: the expansion and quadrature disagree by more than the error "
+      .. "estimates where marked")
+  end
+  return table.concat(lines, "\n")
+end
+
+return M

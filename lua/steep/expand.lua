@@ -1,0 +1,304 @@
+-- steep.expand — asymptotic expansions of every contribution of the decomposition:
+-- saddles of any order (as sums over their descent rays), finite endpoints (Watson's
+-- lemma) and residues of the poles the deformation sweeps over.
+--
+-- Saddle of order m at t0 (F - F0 ~ f_m h^m): the map F0 - F(t0 + h) = w^m, i.e.
+-- w = s h (r(h))^(1/m) with r = (F0 - F)/(-f_m h^m) = 1 + O(h) and s^m = -f_m, is
+-- reverted to h(w) (series reversion, Lagrange inversion in C), and
+-- G(w) = g(t0 + h(w)) h'(w) = sum a_n w^n. Along descent ray k (w = omega_k u, u > 0,
+-- omega_k = exp(2 pi i k/m)) the integral is
+--   e^{F0} sum_n a_n omega_k^{n+1} Gamma((n+1)/m) / m
+-- (Olver, Asymptotics and Special Functions, 1974, ch. 3-4; Bleistein & Handelsman 1975,
+-- ch. 7; DLMF 2.4(iv); Wojdylo, SIAM Review 48 (2006) 76-96 for explicit coefficients).
+-- For a simple saddle passed through (rays weighted +1, -1) only even n survive:
+-- e^{F0} sum_k a_{2k} Gamma(k + 1/2), DLMF 2.4.14-15.
+--
+-- Endpoint a with F'(a) != 0: F(a) - F(a + h) = w, G(w) = g(a + h(w)) h'(w) = sum a_n w^n
+-- and the integral from a along the descent path is e^{F(a)} sum_n a_n n! (Watson's lemma,
+-- DLMF 2.3(ii)); an algebraic factor (t - a)^beta of the amplitude gives
+-- e^{F(a)} sum_n b_n Gamma(n + beta + 1), with the branch taken from the user's own
+-- principal value next to the endpoint.
+
+local core = require "steep.core"
+local complex = require "steep.complex"
+local landscape = require "steep.landscape"
+
+local cnew, cparts = complex.new, complex.parts
+local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
+local format, pi, abs, exp, log, huge = string.format, math.pi, math.abs, math.exp, math.log, math.huge
+local series = core.series
+
+local M = {}
+
+M.MAX_SADDLE_ORDER = 8
+
+-- Gamma of a positive real argument (GSL is the reference in the tests; here the
+-- Lanczos-free route through lgamma is enough: Lua has no gamma, so use the reflection-
+-- free product for small arguments and Stirling's series with many terms).
+local function gamma(x)
+  -- shift up to x >= 20, then Stirling with 8 terms (error < 1e-17 there)
+  local prod = 1
+  while x < 20 do prod = prod * x; x = x + 1 end
+  local z = x
+  local inv, inv2 = 1 / z, 1 / (z * z)
+  local s = 1 / 12 - inv2 * (1 / 360 - inv2 * (1 / 1260 - inv2 * (1 / 1680 - inv2 * (1 / 1188
+    - inv2 * (691 / 360360 - inv2 * (1 / 156 - inv2 * 3617 / 122400))))))
+  local lg = (z - 0.5) * log(z) - z + 0.5 * log(2 * pi) + s * inv
+  return exp(lg) / prod
+end
+M.gamma = gamma
+
+-- A series of length n from a list of coefficients (complex values).
+local function ser(list, n)
+  local t = {}
+  for k = 1, n do t[k] = list[k] or 0 end
+  return series(t)
+end
+
+-- The coefficients of G(w) by Cauchy's formula on a circle inside G's disc of
+-- convergence (ext/invmap.c explains why: series reversion loses digits geometrically
+-- when G converges further out than the map's own series). The radius is estimated from
+-- the series coefficients a (reliable at low order); the result replaces a where the
+-- circle could be used, with the trapezoidal rule's own error estimate. Returns the
+-- coefficients and how they were obtained.
+local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
+  local R = huge
+  for k = 3, math.min(n - 1, 16) do
+    local v = cabs(a[k])
+    if v > 0 then R = math.min(R, v ^ (-1 / k)) end
+  end
+  if R == huge or n <= 6 then return a, "series" end
+  local N = 256
+  while N < 4 * n do N = N * 2 end
+  local roots = {}
+  for j = 0, N - 1 do roots[j] = expi(-2 * pi * j / N) end
+  local function on_circle(rho)
+    local st, G = core.invmap_circle(J.tape, params, t0, F0, m, s, rho, N)
+    if st ~= "ok" then return nil end
+    local out = {}
+    for k = 0, n - 1 do
+      local sum = cnew(0, 0)
+      for j = 0, N - 1 do sum = sum + G:get(j + 1) * roots[(j * k) % N] end
+      out[k] = sum / (N * rho ^ k)
+    end
+    return out
+  end
+  -- The estimate R can be high: a circle past a pole of G would silently add its
+  -- residue. So two radii must agree at low order before the larger is trusted; the
+  -- relative error at order k then grows like (R/rho)^k times the rounding level.
+  local fracs = { 0.85, 0.6, 0.42, 0.3 }
+  for i = 1, #fracs - 1 do
+    local big, small = on_circle(fracs[i] * R), on_circle(fracs[i + 1] * R)
+    if big and small then
+      local agree = true
+      for k = 0, math.min(n - 1, 10) do
+        local scale = cabs(big[k]) + cabs(a[k]) + 1e-300
+        if cabs(big[k] - small[k]) > 1e-8 * scale + 1e-14 * cabs(big[0]) then agree = false end
+      end
+      if agree then
+        return big, format("Cauchy integral on |w| = %.4g (%d points)", fracs[i] * R, N)
+      end
+    end
+  end
+  return a, "series (no circle could be trusted)"
+end
+
+--- saddle_series(J, params, t0, m, n) -> a (list a[0..n-1] as complex, 0-based), F0, s
+-- The coefficients a_n of G(w) about the saddle t0 of order m, with the map oriented so
+-- that w > 0 is the direction of descent ray 1 (the one core.saddle_starts lists first).
+function M.saddle_series(J, params, t0, m, n)
+  if m > M.MAX_SADDLE_ORDER then
+    error(format("a saddle of order %d at %s: orders above %d are not supported", m,
+      tostring(t0), M.MAX_SADDLE_ORDER), 0)
+  end
+  local order = n + m            -- jets of F to order n + m - 1 suffice; one spare
+  if order > core.max_order then
+    error(format("expansion needs jets of order %d (at most %d): ask for fewer terms",
+      order, core.max_order), 0)
+  end
+  local Fj, gj = J.tape:jet(t0, order, params)
+  local F0 = Fj:coef(0)
+  local fm = Fj:coef(m)
+  -- r(h) = (F0 - F(t0 + h)) / (-f_m h^m) = sum_k (f_{m+k} / f_m) h^k
+  local r = {}
+  for k = 0, n - 1 do r[k + 1] = Fj:coef(m + k) / fm end
+  local rs = ser(r, n)
+  local root = rs ^ (1 / m)     -- principal branch near 1
+  -- s: |f_m|^(1/m) e^{-i alpha_1}, alpha_1 = (pi - arg f_m)/m the first descent angle
+  local alpha = (pi - carg(fm)) / m
+  local sm = cabs(fm) ^ (1 / m) * expi(-alpha)
+  local w = { 0 }
+  for k = 1, n do w[k + 1] = sm * root:coef(k - 1) end
+  local hw = ser(w, n + 1):revert()                  -- h(w), length n + 1
+  -- G(w) = g(t0 + h(w)) h'(w): compose g's jet (about t0) with h(w)
+  local gser = {}
+  for k = 0, n do gser[k + 1] = gj:coef(k) end
+  local gh = ser(gser, n + 1):compose(hw)
+  local G = gh * hw:deriv()                          -- length n
+  local a = {}
+  for k = 0, n - 1 do a[k] = G:coef(k) end
+  local how
+  a, how = cauchy_coefficients(J, params, t0, F0, m, sm, a, n)
+  return a, F0, sm, alpha, how
+end
+
+--- Terms of a saddle contribution with ray weights c[1..m] (c_k on descent ray k, whose
+-- angle is alpha_1 + 2 pi (k-1)/m): the n-th term e^{F0} a_n Gamma((n+1)/m)/m
+-- sum_k c_k omega_k^{n+1}. Terms that vanish by the symmetry of the rays are left out.
+function M.saddle_terms(a, F0, m, c, nraw)
+  local eF0 = complex.new(0, 0) + 1
+  local terms, powers = {}, {}
+  for n = 0, nraw - 1 do
+    local factor = cnew(0, 0)
+    for k = 1, m do
+      if c[k] ~= 0 then factor = factor + c[k] * expi(2 * pi * (k - 1) * (n + 1) / m) end
+    end
+    if cabs(factor) > 1e-12 then
+      local coef = a[n] * factor * (gamma((n + 1) / m) / m)
+      terms[#terms + 1] = coef
+      powers[#powers + 1] = n
+    end
+  end
+  return terms, powers, eF0
+end
+
+-- The amplitude's algebraic factor at an endpoint a: looks for a product factor
+-- base^beta (powc) or sqrt(base) whose base vanishes at a. Returns beta, base expression
+-- and the rest of the amplitude (an expression regular at a), or nil.
+local function algebraic_factor(J, params, a)
+  local expr = require "steep.expr"
+  local g = J.amplitude
+  if not expr.is(g) then return nil end
+  local factors = {}
+  local function collect(n)
+    if n.op == "mul" then collect(n.a); collect(n.b) else factors[#factors + 1] = n end
+  end
+  collect(g)
+  for i, f in ipairs(factors) do
+    local beta, base
+    if f.op == "powc" then
+      local br, bi = cparts(f.k)
+      if bi == 0 then beta, base = br, f.a end
+    elseif f.op == "sqrt" then
+      beta, base = 0.5, f.a
+    end
+    if base and base:depends_on(J.var) then
+      local v = base:value(setmetatable({ [J.var.name] = a }, { __index = params }))
+      if cabs(v) <= 1e-12 * math.max(1, cabs(a)) then
+        local rest = 1
+        for j, h in ipairs(factors) do if j ~= i then rest = rest * h end end
+        return beta, base, rest
+      end
+    end
+  end
+  return nil
+end
+
+--- endpoint_series(J, params, a, n, dir) -> b (0-based list), F(a), beta, map info
+-- Watson's lemma at a finite endpoint with F'(a) != 0: the coefficients of
+-- G(w) = g(a + h(w)) h'(w) (times w^-beta for an algebraic factor (t-a)^beta).
+-- dir: a point on the descent path just after a, to fix the branch of the factor.
+function M.endpoint_series(J, params, a, n, near)
+  local order = n + 1
+  if order > core.max_order then
+    error(format("expansion needs jets of order %d (at most %d)", order, core.max_order), 0)
+  end
+  local beta, base, rest = algebraic_factor(J, params, a)
+  local Fj = J.tape:jet(a, order, params)
+  local gj
+  if beta then
+    -- the regular part: rest * (base/(t-a))^beta; its jet from a tape of its own
+    local expr = require "steep.expr"
+    local t = J.var
+    local quotient_tape = J._endpoint_tapes and J._endpoint_tapes[base] or nil
+    if not quotient_tape then
+      quotient_tape = expr.compile({ rest, base }, t)
+      J._endpoint_tapes = J._endpoint_tapes or setmetatable({}, { __mode = "k" })
+      J._endpoint_tapes[base] = quotient_tape
+    end
+    local rj, bj = quotient_tape:jet(a, order + 1, params)
+    -- base = (t - a) * q(t): q's coefficients are base's shifted down by one
+    local q = {}
+    for k = 0, order - 1 do q[k + 1] = bj:coef(k + 1) end
+    local qs = ser(q, order)
+    if cabs(qs:coef(0)) == 0 then
+      error(format("the amplitude's factor %s vanishes to higher order at the endpoint %s",
+        tostring(base), tostring(a)), 0)
+    end
+    local rr = {}
+    for k = 0, order - 1 do rr[k + 1] = rj:coef(k) end
+    gj = ser(rr, order) * qs ^ beta
+  else
+    local _, g = J.tape:jet(a, order, params)
+    gj = g
+  end
+  local Fa, f1 = Fj:coef(0), Fj:coef(1)
+  if cabs(f1) == 0 then return nil end
+  -- w = F(a) - F(a + h) = -f1 h - f2 h^2 - ...
+  local w = { 0 }
+  for k = 1, n do w[k + 1] = -Fj:coef(k) end
+  local hw = ser(w, n + 1):revert()
+  local glist = {}
+  for k = 0, n do glist[k + 1] = gj:coef(k) end
+  local gh = ser(glist, n + 1):compose(hw)
+  local G = gh * hw:deriv()
+  local b = {}
+  if beta then
+    -- (t - a)^beta = h(w)^beta = w^beta (h(w)/w)^beta: fold (h/w)^beta into G; the factor
+    -- w^beta goes into Gamma(n + beta + 1)
+    local hq = {}
+    for k = 0, n - 1 do hq[k + 1] = hw:coef(k + 1) end
+    G = G * ser(hq, n) ^ beta
+    -- our principal values may differ from the user's base^beta by exp(2 pi i k beta):
+    -- compare the two a small step down the descent direction from a
+    local t1 = a + 1e-6 * math.max(1, cabs(a)) * (-1 / f1) / cabs(1 / f1)
+    local F1 = J.tape:eval(t1, params)
+    local w1 = Fa - F1
+    local bind = setmetatable({ [J.var.name] = t1 }, { __index = params })
+    local user = (base ^ beta):value(bind)
+    local q1 = base:value(bind) / (t1 - a)
+    local ours = ((t1 - a) / w1) ^ beta * w1 ^ beta * q1 ^ beta
+    local phase = user / ours
+    phase = phase / cabs(phase)
+    for k = 0, n - 1 do b[k] = G:coef(k) * phase end
+  else
+    for k = 0, n - 1 do b[k] = G:coef(k) end
+    b = cauchy_coefficients(J, params, a, Fa, 1, -f1, b, n)
+  end
+  return b, Fa, beta
+end
+
+--- Terms of an endpoint contribution: e^{F(a)} b_n Gamma(n + beta + 1).
+function M.endpoint_terms(b, beta, nraw)
+  local terms, powers = {}, {}
+  for n = 0, nraw - 1 do
+    terms[#terms + 1] = b[n] * gamma(n + (beta or 0) + 1)
+    powers[#powers + 1] = n
+  end
+  return terms, powers
+end
+
+--- Sums terms to `order` terms (a number) or to the smallest term ("optimal"); returns
+-- the sum, the error estimate (size of the first omitted term, or of the smallest one
+-- for optimal truncation) and the number of terms used.
+function M.truncate(terms, order, scale)
+  scale = scale or 1
+  local n = #terms
+  if order == "optimal" then
+    local best, bi = huge, n
+    for k = 2, n do
+      local v = cabs(terms[k])
+      if v < best then best, bi = v, k end
+    end
+    local s = cnew(0, 0)
+    for k = 1, bi - 1 do s = s + terms[k] end
+    return s * scale, best * cabs(scale), bi - 1
+  end
+  local s = cnew(0, 0)
+  for k = 1, math.min(order, n) do s = s + terms[k] end
+  local nexterm = terms[order + 1]
+  local err = nexterm and cabs(nexterm) or huge
+  return s * scale, err * cabs(scale), math.min(order, n)
+end
+
+return M
