@@ -88,7 +88,7 @@ end
 --- expand(J, params, opts) -> result
 function M.expand(J, params, opts)
   local order = check_order(opts.order or 1, "expand")
-  local L = J:_landscape(params, opts.region, false)
+  local L = opts.landscape or J:_landscape(params, opts.region, false)
   local plan = decompose.decompose(J, params, L, J.contour)
   if plan.status ~= "ok" then
     error("expand: the contour could not be decomposed into steepest descent paths ("

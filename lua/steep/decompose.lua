@@ -209,8 +209,30 @@ function M.decompose(J, params, L, contour)
         local d = paths.descent[k]
         plan.pieces[#plan.pieces + 1] = { kind = "saddle", index = j, ray = k, weight = c,
           order = m, points = d.points, full = full(d), ends = { "saddle " .. j, d.ends },
-          at_endpoint = at_end ~= nil }
+          at_endpoint = at_end ~= nil, reason = d.reason }
         bump(d.ends, -c)
+      end
+    end
+  end
+
+  -- the integrand is evaluated on the principal branch, while the paths are traced by F'
+  -- (single-valued across a cut of log or of a power): a path that crosses a branch cut
+  -- of the exponent (as one spiralling into t^c at 0 with complex c) would be integrated
+  -- on the wrong sheet there. Along the path Im F keeps its level unless it does.
+  for _, piece in ipairs(plan.pieces) do
+    local level = piece.kind == "saddle" and L.saddles[piece.index].F
+      or J.tape:eval(piece.at, params)
+    local _, li = cparts(level)
+    local tol = 1e-6 * math.max(1, cabs(level))
+    local Fv = J.tape:eval_many(piece.points, params)
+    for k = 1, #piece.points do
+      local _, fi = cparts(Fv[k])
+      if fi == fi and abs(fi) < huge and abs(fi - li) > tol then
+        plan.status = "incomplete"
+        plan.notes[#plan.notes + 1] = format("a steepest descent path of the %s %s crosses "
+          .. "a branch cut of the exponent near %s (Im F jumps by %.6g)", piece.kind,
+          piece.index or tostring(piece.at), tostring(piece.points[k]), fi - li)
+        break
       end
     end
   end
@@ -253,7 +275,6 @@ function M.decompose(J, params, L, contour)
     return nil
   end
   for idx, s in ipairs(L.singularities) do
-    if s.kind == "sink" then goto next_singularity end   -- paths may end there; no residue
     local w = 0
     local function add(poly, sign)
       local t = core.turning(poly, s.at)
@@ -283,7 +304,9 @@ function M.decompose(J, params, L, contour)
       if c1 then ok = ok and add(c1, -piece.weight) end
     end
     local n = floor(w + 0.5)
-    if not ok then
+    if not ok and s.kind == "sink" then
+      -- a path ends at the sink (the integrand vanishes there): no residue
+    elseif not ok then
       plan.status = "incomplete"
       plan.notes[#plan.notes + 1] = format("a steepest path passes through the %s at %s",
         s.kind, tostring(s.at))
@@ -294,15 +317,14 @@ function M.decompose(J, params, L, contour)
     elseif n ~= 0 then
       if s.kind == "pole" then
         plan.residues[#plan.residues + 1] = { index = idx, winding = n }
-      else
-        -- a sink is a log point with a non-integer coefficient: a branch point, which the
-        -- deformation must not sweep over any more than the others
+      elseif s.kind ~= "sink" or s.branch then
+        -- a sink with a non-integer coefficient is a branch point: the deformation must
+        -- not sweep over it (Hankel's loop for 1/Gamma(z) with Re z < 0)
         plan.status = "unsupported"
         plan.notes[#plan.notes + 1] = format("the deformation sweeps over the %s point at %s "
           .. "(%s); only poles can be crossed", s.kind, tostring(s.at), s.source)
       end
     end
-    ::next_singularity::
   end
   return plan
 end

@@ -162,23 +162,31 @@ function M.saddle_terms(a, F0, m, c, nraw)
   return terms, powers, eF0
 end
 
--- The amplitude's algebraic factor at an endpoint a: looks for a product factor
--- base^beta (powc) or sqrt(base) whose base vanishes at a. Returns beta, base expression
--- and the rest of the amplitude (an expression regular at a), or nil.
+-- The amplitude's algebraic factor at an endpoint a: looks through the products and
+-- quotients of the amplitude for a factor base^beta (powc with a real exponent),
+-- sqrt(base), or sqrt(base)^k (= base^(k/2) for principal branches), whose base vanishes
+-- at a; a factor of a denominator counts with -beta. Returns beta, base expression and
+-- the rest of the amplitude (an expression regular at a, or a number), or nil.
 local function algebraic_factor(J, params, a)
   local expr = require "steep.expr"
   local g = J.amplitude
   if not expr.is(g) then return nil end
-  local factors = {}
-  local function collect(n)
-    if n.op == "mul" then collect(n.a); collect(n.b) else factors[#factors + 1] = n end
+  local factors, signs = {}, {}
+  local function collect(n, sign)
+    if n.op == "mul" then collect(n.a, sign); collect(n.b, sign)
+    elseif n.op == "div" then collect(n.a, sign); collect(n.b, -sign)
+    else factors[#factors + 1], signs[#factors + 1] = n, sign end
   end
-  collect(g)
+  collect(g, 1)
   for i, f in ipairs(factors) do
     local beta, base
-    if f.op == "powc" then
+    if f.op == "powc" or f.op == "powi" then
       local br, bi = cparts(f.k)
-      if bi == 0 then beta, base = br, f.a end
+      if bi == 0 and f.a.op == "sqrt" then
+        beta, base = br / 2, f.a.a
+      elseif bi == 0 and f.op == "powc" then
+        beta, base = br, f.a
+      end
     elseif f.op == "sqrt" then
       beta, base = 0.5, f.a
     end
@@ -186,8 +194,12 @@ local function algebraic_factor(J, params, a)
       local v = base:value(setmetatable({ [J.var.name] = a }, { __index = params }))
       if cabs(v) <= 1e-12 * math.max(1, cabs(a)) then
         local rest = 1
-        for j, h in ipairs(factors) do if j ~= i then rest = rest * h end end
-        return beta, base, rest
+        for j, h in ipairs(factors) do
+          if j ~= i then
+            if signs[j] > 0 then rest = rest * h else rest = rest / h end
+          end
+        end
+        return signs[i] * beta, base, rest
       end
     end
   end
@@ -204,7 +216,17 @@ function M.endpoint_series(J, params, a, n, near)
     error(format("expansion needs jets of order %d (at most %d)", order, core.max_order), 0)
   end
   local beta, base, rest = algebraic_factor(J, params, a)
-  local Fj = J.tape:jet(a, order, params)
+  local Fj
+  if beta then
+    -- J.tape also computes the amplitude, whose algebraic factor has a branch point at a
+    -- (its jet fails there): the exponent's jet from a tape of its own
+    if not J._exponent_tape then
+      J._exponent_tape = require("steep.expr").compile({ J.exponent }, J.var)
+    end
+    Fj = J._exponent_tape:jet(a, order, params)
+  else
+    Fj = J.tape:jet(a, order, params)
+  end
   local gj
   if beta then
     -- the regular part: rest * (base/(t-a))^beta; its jet from a tape of its own
@@ -255,7 +277,10 @@ function M.endpoint_series(J, params, a, n, near)
     local F1 = J.tape:eval(t1, params)
     local w1 = Fa - F1
     local bind = setmetatable({ [J.var.name] = t1 }, { __index = params })
-    local user = (base ^ beta):value(bind)
+    -- the user's own factor: the amplitude over the regular rest
+    local expr = require "steep.expr"
+    local rv = expr.is(rest) and rest:value(bind) or rest
+    local user = J.amplitude:value(bind) / rv
     local q1 = base:value(bind) / (t1 - a)
     local ours = ((t1 - a) / w1) ^ beta * w1 ^ beta * q1 ^ beta
     local phase = user / ours

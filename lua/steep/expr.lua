@@ -300,6 +300,78 @@ function methods.value(e, bindings)
   return (tape:eval(0, bindings or {}))
 end
 
+---------------------------------------------------------------------------------------
+-- Derivatives and substitution (both rebuild through the constructors above, so the
+-- results are simplified and merged like any other expression).
+---------------------------------------------------------------------------------------
+
+local rebuild2 = { add = add, sub = sub, mul = mul, div = div }
+
+--- substitute(e, map): e with every symbol node that is a key of map replaced by the
+-- (expression, number or complex) value.
+function M.substitute(e, map)
+  local memo = {}
+  local function go(n)
+    if memo[n] then return memo[n] end
+    local r
+    if map[n] ~= nil then
+      r = lift(map[n], 4)
+    elseif n.op == "const" or n.op == "var" or n.op == "param" then
+      r = n
+    elseif rebuild2[n.op] then
+      r = rebuild2[n.op](go(n.a), go(n.b))
+    elseif n.op == "neg" then
+      r = neg(go(n.a))
+    elseif n.op == "powi" or n.op == "powc" then
+      r = pow(go(n.a), n.k)
+    else
+      r = apply(n.op, go(n.a))
+    end
+    memo[n] = r
+    return r
+  end
+  return go(lift(e, 3))
+end
+
+--- diff(e, sym): the derivative of e with respect to the symbol sym (chain rule on the
+-- DAG; shared subexpressions are differentiated once).
+function M.diff(e, sym)
+  local memo = {}
+  local zero, one = const(0), const(1)
+  local function d(n)
+    if memo[n] then return memo[n] end
+    local op, r = n.op, nil
+    if op == "const" or op == "param" or op == "var" then
+      r = (n == sym) and one or zero
+    elseif op == "add" then r = add(d(n.a), d(n.b))
+    elseif op == "sub" then r = sub(d(n.a), d(n.b))
+    elseif op == "mul" then r = add(mul(d(n.a), n.b), mul(n.a, d(n.b)))
+    elseif op == "div" then r = div(sub(mul(d(n.a), n.b), mul(n.a, d(n.b))), pow(n.b, 2))
+    elseif op == "neg" then r = neg(d(n.a))
+    elseif op == "powi" or op == "powc" then
+      r = mul(mul(n.k, pow(n.a, n.k - 1)), d(n.a))
+    else
+      local a, da = n.a, d(n.a)
+      local f = {
+        exp = function() return n end,
+        log = function() return div(1, a) end,
+        sqrt = function() return div(1, mul(2, n)) end,
+        sin = function() return apply("cos", a) end,
+        cos = function() return neg(apply("sin", a)) end,
+        tan = function() return add(1, pow(n, 2)) end,
+        sinh = function() return apply("cosh", a) end,
+        cosh = function() return apply("sinh", a) end,
+        tanh = function() return sub(1, pow(n, 2)) end,
+        atan = function() return div(1, add(1, pow(a, 2))) end,
+      }
+      r = mul(f[op](), da)
+    end
+    memo[n] = r
+    return r
+  end
+  return d(lift(e, 3))
+end
+
 M.const = const
 M.lift = lift
 M.metatable = Expr

@@ -41,6 +41,18 @@ for _, name in ipairs(complex.function_names) do
   end
 end
 
+--- steep.diff(e, sym): derivative; steep.substitute(e, {[sym] = value, ...})
+function steep.diff(e, sym)
+  if not (expr.is(sym) and (sym.op == "var" or sym.op == "param")) then
+    error("bad argument #2 to 'diff' (symbol expected)", 2)
+  end
+  return expr.diff(e, sym)
+end
+function steep.substitute(e, map)
+  if type(map) ~= "table" then error("bad argument #2 to 'substitute' (table expected)", 2) end
+  return expr.substitute(e, map)
+end
+
 -- tapes and series
 --- steep.compile(exprs, var) -> tape (see lua/steep/expr.lua).
 function steep.compile(exprs, var) return expr.compile(exprs, var) end

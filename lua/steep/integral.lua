@@ -170,9 +170,17 @@ function methods.landscape(J, opts)
   return J:_landscape(params, o.region and check_region(o.region, "landscape"), o.paths ~= false)
 end
 
-function methods._landscape(J, params, region, with_paths)
+function methods._landscape(J, params, region, with_paths, cont)
   region = region or default_region(J, params)
   local L = { region = region, params = params, notes = {} }
+  if cont and cont.fast then
+    -- continuation: the previous step's saddles seed Newton; no search of the region
+    local sing = landscape.singularities(J, params, region, { fast = true })
+    L.singularities = sing
+    L.saddles, L.saddle_count = landscape.saddles(J, params, region, sing, cont.seeds, true)
+    L.valleys, L.growth = landscape.valleys(J, params, region)
+    return setmetatable(L, { __index = { report = M.landscape_report } })
+  end
   if region.bounded then
     L.notes[#L.notes + 1] = "the number of saddles keeps growing with the region (infinitely "
       .. "many?): the region was limited to radius " .. format("%.4g", region.radius)
@@ -447,6 +455,16 @@ function methods.check(J, opts)
   if o.region then o.region = check_region(o.region, "check") end
   return require("steep.asymptotics").check(J, params, values, o)
 end
+
+---------------------------------------------------------------------------------------
+-- Routes (lua/steep/routes.lua).
+---------------------------------------------------------------------------------------
+
+function methods.rescale(J, opts) return require("steep.routes").rescale(J, opts) end
+function methods.crossings(J, opts) return require("steep.routes").crossings(J, opts) end
+function methods.compare(J, opts) return require("steep.routes").compare(J, opts) end
+function methods.sweep(J, opts) return require("steep.routes").sweep(J, opts) end
+function methods.suggest_rescaling(J, opts) return require("steep.routes").suggest(J, opts) end
 
 M.Integral = Integral
 return M

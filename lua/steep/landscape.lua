@@ -102,10 +102,12 @@ function M.zeros(tape, params, spec, region, opts)
     end
     found[#found + 1] = { at = root, mult = mult }
   end
-  try(c)
-  for ring = 1, 6 do
-    local r, m = R * ring / 6.5, 8 * ring
-    for j = 0, m - 1 do try(c + r * expi(2 * pi * (j + 0.5 * (ring % 2)) / m)) end
+  if not opts.seeds_only then
+    try(c)
+    for ring = 1, 6 do
+      local r, m = R * ring / 6.5, 8 * ring
+      for j = 0, m - 1 do try(c + r * expi(2 * pi * (j + 0.5 * (ring % 2)) / m)) end
+    end
   end
   for _, s in ipairs(opts.seeds or {}) do
     if cabs(s - c) < R then try(s) end
@@ -206,7 +208,7 @@ local function near_integer(x, tol) return abs(x - floor(x + 0.5)) <= tol end
 -- source, coefficient}, info. kind: "pole" (of the integrand, with its residue),
 -- "branch" (branch point), "sink" / "hill" (log point of the exponent where the
 -- integrand vanishes / blows up), "essential".
-function M.singularities(J, params, region)
+function M.singularities(J, params, region, opts)
   local crit = J.critical
   local list, info = {}, { evals = 0, counts = {} }
   if #crit == 0 then return list, info end
@@ -487,7 +489,7 @@ end
 
 --- saddles(J, params, region, singularities, seeds) -> list of {at, order, F, F2,
 -- coef (leading coefficient of F - F0), g}, info
-function M.saddles(J, params, region, singularities, seeds)
+function M.saddles(J, params, region, singularities, seeds, seeds_only)
   -- poles of F' inside: a log point is a simple pole of F'; an essential singularity
   -- (a pole of F of order k) gives k + 1; a branch point of F makes F' non-meromorphic.
   local poles = 0
@@ -506,7 +508,7 @@ function M.saddles(J, params, region, singularities, seeds)
     end
   end
   local zs, info = M.zeros(J.tape, params, { out = 1, deriv = 1 }, region,
-    { poles = poles, seeds = seeds })
+    { poles = seeds_only and false or poles, seeds = seeds, seeds_only = seeds_only })
   local out = {}
   for _, z in ipairs(zs) do
     local m = z.mult + 1
@@ -612,6 +614,10 @@ function M.trace(J, params, L, start, level, descent, opts)
   end
   path.ends = end_label(L, descent, tail_reason, tail_which, what, last)
   path.tail_reason = tail_reason
+  -- a descent path stopped next to a sink: run it into the sink itself, so that quadrature
+  -- covers the last stretch (as t^c there; it matters when Re c is small)
+  local sj = reason == "stop" and path.ends:match("^sink (%d+)$")
+  if sj then path.points[#path.points + 1] = L.singularities[tonumber(sj)].at end
   return path
 end
 

@@ -200,19 +200,25 @@ print(format("%-30s %10.2f", "p (N=64..128 only)", last))
 
 -- (e) the landscape quadrature: the Airy integral ------------------------------------
 --
--- Ai(x) = (1/2pi) int exp(i(t^3/3 + x t)) dt along the real line (Olver, Asymptotics and
--- Special Functions, ch. 2 sec. 8; DLMF 9.5.4), at x = 10, 100, 1000, three ways:
+-- Ai(x) = (1/2pi) int exp(i(t^3/3 + x t)) dt along the real line (DLMF 9.5.4), at
+-- x = 10, 100, 1000, three ways:
 --   steep   J:quad{x = x}: the real line deformed onto steepest descent paths;
 --   QAGIU   GSL's gsl_integration_qagiu on Ai(x) = (1/pi) int_0^inf cos(t^3/3 + x t) dt;
 --   QAGI    GSL's gsl_integration_qagi on (1/2pi) int_-inf^inf cos(t^3/3 + x t) dt
 --           (epsabs 0, epsrel 1e-12, a workspace of 1000 subintervals; tests/bench/qagi.c).
--- Reference: gsl_sf_airy_Ai. Ai(1000) ~ exp(-21082) underflows, so the integral is also
--- taken with the exponent shifted by s = (2/3) x^(3/2), which gives Ai(x) exp(2/3 x^(3/2)),
--- compared with gsl_sf_airy_Ai_scaled. Times are wall times (CLOCK_MONOTONIC), best of 3;
--- evaluations are info.evals (J:quad's third result) and the counter in GSL's integrand.
+-- Reference: gsl_sf_airy_Ai. Ai(1000) ~ 10^-9157 underflows (0 is its correctly rounded
+-- value), so the integral is also taken with the exponent shifted by s = (2/3) x^(3/2),
+-- which gives Ai(x) exp(2/3 x^(3/2)): compared with gsl_sf_airy_Ai_scaled, itself checked
+-- against the asymptotic series DLMF 9.7.5 (u_k of DLMF 9.7.2), summed to its smallest
+-- term. A value of exp(F) with |F| ~ (2/3) x^(3/2) carries a rounding error of about
+-- |F| u (u = 2^-53) however it is computed, so that is printed beside the errors.
+-- Times are wall times (CLOCK_MONOTONIC), best of 3; evaluations are info.evals (J:quad's
+-- third result) and the counter in GSL's integrand.
 
 local qagi = require "qagi"
 local now = qagi.now
+local landscape_m = require "steep.landscape"
+local decompose_m = require "steep.decompose"
 
 local function best_wall(runs, f)
   local best, res = math.huge, nil
@@ -235,6 +241,21 @@ local function relerr(got, want)
   return d / math.abs(want)
 end
 
+-- Ai(x) exp(2/3 x^(3/2)) by DLMF 9.7.5, u_k = Gamma(3k+1/2) / (54^k k! Gamma(k+1/2)).
+local function ai_scaled_series(X)
+  local z = 2 / 3 * X ^ 1.5
+  local s, u, last, k = 1, 1, 1, 0
+  while true do
+    k = k + 1
+    u = u * (3 * k - 0.5) * (3 * k - 1.5) * (3 * k - 2.5) / (54 * k * (k - 0.5))
+    local term = u / z ^ k
+    if term > last or term < 1e-20 then break end
+    last = term
+    s = s + (k % 2 == 1 and -term or term)
+  end
+  return s / (2 * math.sqrt(math.pi) * X ^ 0.25)
+end
+
 local tt, xx, ss = steep.var "t", steep.param "x", steep.param "s"
 local line = steep.path { steep.inf(math.pi), 0, steep.inf(0) }
 local Jai = steep.integral { var = tt, exponent = steep.I * (tt ^ 3 / 3 + xx * tt),
@@ -243,79 +264,98 @@ local Jsc = steep.integral { var = tt, exponent = steep.I * (tt ^ 3 / 3 + xx * t
   contour = line }
 local twopi = 2 * math.pi
 local XS = { 10, 100, 1000 }
+local U = 2 ^ -53
 
 print()
 print("Airy integral Ai(x) = (1/2pi) int exp(i(t^3/3 + x t)) dt along the real line")
-print(format("%-6s %-22s %-24s %9s %8s %9s  %s", "x", "method", "value", "rel.err",
-  "evals", "ms", "status"))
+print(format("%-6s %-22s %-24s %9s %9s %8s %9s  %s", "x", "method", "value", "rel.err",
+  "est.err", "evals", "ms", "status"))
 local rows, land_ms = {}, {}
 for _, X in ipairs(XS) do
   local ref, ref_st = qagi.airy_ai(X)
   local refs = qagi.airy_ai_scaled(X)
   local s = 2 / 3 * X ^ 1.5
   Jai:quad { x = X }   -- first call: compiles the tape of the critical points
-  local t_q, v, _, info = best_wall(3, function() return Jai:quad { x = X } end)
-  v = v / twopi
-  local t_s, vs, _, infos = best_wall(3, function() return Jsc:quad { x = X, s = s } end)
-  vs = vs / twopi
+  local t_q, v, e, info = best_wall(3, function() return Jai:quad { x = X } end)
+  v, e = v / twopi, e / twopi
+  local t_s, vs, es, infos = best_wall(3, function() return Jsc:quad { x = X, s = s } end)
+  vs, es = vs / twopi, es / twopi
   local t_l = best_wall(3, function() return Jai:landscape { x = X } end)
   land_ms[X] = t_l * 1e3
-  local t_u, qu, _, qu_st, qu_n = best_wall(3, function() return qagi.qagiu(X, 1e-12, 1000) end)
-  local t_i, qi, _, qi_st, qi_n = best_wall(3, function() return qagi.qagi(X, 1e-12, 1000) end)
+  local t_u, qu, qu_e, qu_st, qu_n = best_wall(3, function() return qagi.qagiu(X, 1e-12, 1000) end)
+  local t_i, qi, qi_e, qi_st, qi_n = best_wall(3, function() return qagi.qagi(X, 1e-12, 1000) end)
+  -- the error estimates relative to the value each method returned
+  local function est(err, val)
+    local a = core.cmath.abs(val)
+    if err == 0 then return 0 end
+    return a > 0 and err / a or math.huge
+  end
   local r = { x = X, ref = ref, steep_err = relerr(v, ref), steep_evals = info.evals,
-    scaled_err = relerr(vs, refs), scaled_evals = infos.evals, qagiu_err = relerr(qu, ref),
-    qagiu_evals = qu_n, qagiu_status = qu_st, qagi_err = relerr(qi, ref), qagi_evals = qi_n,
-    qagi_status = qi_st, steep_status = info.status, scaled_status = infos.status }
+    scaled_err = relerr(vs, refs), floor = s * U, steep_zero = core.cmath.abs(v) == 0,
+    qagiu_err = relerr(qu, ref), qagiu_evals = qu_n, qagiu_status = qu_st,
+    qagi_err = relerr(qi, ref), qagi_evals = qi_n, qagi_status = qi_st }
   rows[#rows + 1] = r
   local refnote = ref_st == "success" and "" or (" (gsl_sf_airy_Ai: " .. ref_st .. ")")
-  print(format("%-6g %-22s %-24s %9.2e %8d %9.2f  %s, along %s%s", X, "steep J:quad",
-    tostring(v), r.steep_err, info.evals, t_q * 1e3, info.status, info.along, refnote))
-  print(format("%-6s %-22s %-24s %9.2e %8d %9.2f  %s (vs Ai_scaled %.16g)", "", "steep, scaled (+s)",
-    tostring(vs), r.scaled_err, infos.evals, t_s * 1e3, infos.status, refs))
-  print(format("%-6s %-22s %-24.16g %9.2e %8d %9.2f  %s", "", "GSL qagiu [0,inf)", qu,
-    r.qagiu_err, qu_n, t_u * 1e3, qu_st))
-  print(format("%-6s %-22s %-24.16g %9.2e %8d %9.2f  %s", "", "GSL qagi (-inf,inf)", qi,
-    r.qagi_err, qi_n, t_i * 1e3, qi_st))
+  print(format("%-6g %-22s %-24s %9.2e %9.2e %8d %9.2f  %s, along %s%s", X, "steep J:quad",
+    tostring(v), r.steep_err, est(e, v), info.evals, t_q * 1e3, info.status, info.along,
+    refnote))
+  print(format("%-6s %-22s %-24s %9.2e %9.2e %8d %9.2f  %s", "", "steep, shifted by s",
+    tostring(vs), r.scaled_err, est(es, vs), infos.evals, t_s * 1e3, infos.status))
+  print(format("%-6s %-22s %-24.16g %9.2e %9.2e %8d %9.2f  %s", "", "GSL qagiu [0,inf)", qu,
+    r.qagiu_err, est(qu_e, qu), qu_n, t_u * 1e3, qu_st))
+  print(format("%-6s %-22s %-24.16g %9.2e %9.2e %8d %9.2f  %s", "", "GSL qagi (-inf,inf)", qi,
+    r.qagi_err, est(qi_e, qi), qi_n, t_i * 1e3, qi_st))
   print(format("%-6s %-22s %-24.16g", "", "gsl_sf_airy_Ai", ref))
+  print(format("%-6s %-22s %-24.16g %9.2e  (vs DLMF 9.7.5 series %.16g)", "",
+    "gsl_sf_airy_Ai_scaled", refs, relerr(refs, ai_scaled_series(X)), ai_scaled_series(X)))
+  print(format("%-6s %-22s %-24s %9.2e", "", "rounding: |F(saddle)| u", "", r.floor))
 end
 print()
 print(format("%-6s %14s", "x", "J:landscape ms"))
 for _, X in ipairs(XS) do print(format("%-6g %14.2f", X, land_ms[X])) end
 
--- Targets: 1e-12 relative at x = 100 with >= 10x fewer evaluations than QAGI(U), and a
--- correct answer (1e-12 relative; the scaled integral at x = 1000, where Ai underflows)
--- wherever QAGI(U) fails.
+-- Targets: 1e-12 relative at x = 100 with >= 10x fewer evaluations than QAGI(U); a
+-- correct answer (1e-12 relative) wherever QAGI(U) fails.
 print()
-print(format("%-52s %10s %12s   %s", "Airy target", "measured", "target", ""))
+print(format("%-54s %10s %12s   %s", "Airy target", "measured", "target", ""))
 local r100
 for _, r in ipairs(rows) do if r.x == 100 then r100 = r end end
-print(format("%-52s %10.2e %12s   %s", "steep relative error, x = 100", r100.steep_err,
+print(format("%-54s %10.2e %12s   %s", "steep relative error, x = 100", r100.steep_err,
   "<= 1e-12", verdict(r100.steep_err <= 1e-12)))
 local fewer_u = r100.qagiu_evals / r100.steep_evals
 local fewer_i = r100.qagi_evals / r100.steep_evals
-print(format("%-52s %10.1f %12s   %s", "QAGIU evaluations / steep evaluations, x = 100", fewer_u,
+print(format("%-54s %10.1f %12s   %s", "QAGIU evaluations / steep evaluations, x = 100", fewer_u,
   ">= 10", verdict(fewer_u >= 10)))
-print(format("%-52s %10.1f %12s   %s", "QAGI evaluations / steep evaluations, x = 100", fewer_i,
+print(format("%-54s %10.1f %12s   %s", "QAGI evaluations / steep evaluations, x = 100", fewer_i,
   ">= 10", verdict(fewer_i >= 10)))
 for _, r in ipairs(rows) do
-  local gsl_failed = r.qagiu_status ~= "success" or r.qagiu_err > 1e-12
+  local failed = r.qagiu_status ~= "success" or r.qagiu_err > 1e-12
       or r.qagi_status ~= "success" or r.qagi_err > 1e-12
-  local e = r.x == 1000 and r.scaled_err or r.steep_err
-  local what = r.x == 1000 and "scaled" or "plain"
-  print(format("%-52s %10.2e %12s   %s", format("x = %g: QAGI(U) %s; steep (%s) rel. error", r.x,
-    gsl_failed and "failed" or "succeeded", what), e, "<= 1e-12",
-    gsl_failed and verdict(e <= 1e-12) or "n/a"))
+  local tag = format("x = %g: QAGI(U) %s;", r.x, failed and "failed" or "succeeded")
+  if r.ref == 0 then
+    print(format("%-54s %10s %12s   %s", tag .. " steep Ai (underflows)",
+      r.steep_zero and "0" or "not 0", "0", failed and verdict(r.steep_zero) or "n/a"))
+  else
+    print(format("%-54s %10.2e %12s   %s", tag .. " steep rel. error", r.steep_err,
+      "<= 1e-12", failed and verdict(r.steep_err <= 1e-12) or "n/a"))
+  end
+  print(format("%-54s %10.2e %12s   %s", tag .. " steep shifted, rel. error", r.scaled_err,
+    "<= 1e-12", failed and verdict(r.scaled_err <= 1e-12) or "n/a"))
 end
+print("note: rel.err is against gsl_sf_airy_Ai(_scaled); est.err is the method's own error")
+print("estimate over |value|. |F(saddle)| u bounds from below the relative error of any")
+print("double evaluation of exp(F) there: above 1e-12 at x = 1000 (|F| = 2.1e4).")
 
--- Where J:quad's time and evaluations go: one more run of each with steep.core's kernel
--- entry points and the tape methods wrapped by counters and timers (bench side only).
+-- Where J:quad's time and evaluations go: one more run at each x with the kernel entry
+-- points of steep.core, the tape methods and the stages of steep.landscape/decompose
+-- wrapped by counters and timers (bench side only; the library is not changed).
 -- info.evals counts the evaluations of path tracing and quadrature; core.zero reports its
--- jets; core.count (argument principle) does not report its count.
+-- jets; core.count (argument principle) does not report its count. Stages nest (trace
+-- runs inside saddle_paths and decompose), kernels run inside stages.
 print()
-print("J:quad broken down by C kernel (calls, integrand/jet evaluations, wall ms)")
+print("J:quad broken down (calls, integrand/jet evaluations, wall ms)")
 do
-  local wrapped = {}
-  local stats = {}
+  local wrapped, stats, counted = {}, {}, {}
   local function wrap(tbl, name, label, evals_of)
     local f = tbl[name]
     wrapped[#wrapped + 1] = { tbl, name, f }
@@ -330,44 +370,68 @@ do
       return table.unpack(res, 1, res.n)
     end
   end
+  local kernels = {
+    { core, "zero", "core.zero (Newton)", function(r) return r[4] end },
+    { core, "count", "core.count (argument principle)" },
+    { core, "trace", "core.trace (steepest paths)", function(r) return r[5] end },
+    { core, "saddle_starts", "core.saddle_starts" },
+    { core, "quad_polyline", "core.quad_polyline", function(r) return r[3] end },
+    { core, "integrand_many", "core.integrand_many", function(r) return #r[1] end },
+    { core, "crossings", "core.crossings" }, { core, "turning", "core.turning" },
+    { core, "distance", "core.distance" } }
   local tape_methods = getmetatable(Jai.tape).__index
-  wrap(core, "zero", "core.zero (Newton)", function(r) return r[4] end)
-  wrap(core, "count", "core.count (argument principle)", nil)
-  wrap(core, "trace", "core.trace (steepest paths)", function(r) return r[5] end)
-  wrap(core, "saddle_starts", "core.saddle_starts", nil)
-  wrap(core, "quad_polyline", "core.quad_polyline", function(r) return r[3] end)
-  wrap(core, "integrand_many", "core.integrand_many", function(r) return #r[1] end)
-  wrap(core, "crossings", "core.crossings", nil)
-  wrap(core, "turning", "core.turning", nil)
-  wrap(core, "distance", "core.distance", nil)
   if type(tape_methods) == "table" then
-    wrap(tape_methods, "jet", "tape:jet", function() return 1 end)
-    wrap(tape_methods, "eval", "tape:eval", function() return 1 end)
-    wrap(tape_methods, "eval_many", "tape:eval_many", function(_, _, pts) return #pts end)
+    kernels[#kernels + 1] = { tape_methods, "jet", "tape:jet", function() return 1 end }
+    kernels[#kernels + 1] = { tape_methods, "eval", "tape:eval", function() return 1 end }
+    kernels[#kernels + 1] = { tape_methods, "eval_many", "tape:eval_many",
+      function(_, _, pts) return #pts end }
   end
+  local stages = {
+    { getmetatable(Jai).__index, "_landscape", "J:_landscape (in all)" },
+    { landscape_m, "singularities", "landscape.singularities" },
+    { landscape_m, "saddles", "landscape.saddles" },
+    { landscape_m, "valleys", "landscape.valleys" },
+    { landscape_m, "saddle_paths", "landscape.saddle_paths" },
+    { decompose_m, "decompose", "decompose.decompose" } }
+  local is_kernel = {}
+  for _, k in ipairs(kernels) do wrap(k[1], k[2], k[3], k[4]); is_kernel[k[3]] = true end
+  for _, k in ipairs(stages) do wrap(k[1], k[2], k[3]) end
   for _, X in ipairs(XS) do
     stats = {}
     local t0 = now()
     local _, _, info = Jai:quad { x = X }
     local total = now() - t0
-    local labels, kern, ev = {}, 0, 0
-    for k, st in pairs(stats) do
-      labels[#labels + 1] = k
-      kern = kern + st.time
-      ev = ev + st.evals
-    end
-    table.sort(labels)
     print(format("x = %g: J:quad %.2f ms in all (instrumented), info.evals %d", X, total * 1e3,
       info.evals))
-    for _, k in ipairs(labels) do
-      local st = stats[k]
-      print(format("  %-34s %6d calls %9s evals %9.2f ms", k, st.calls,
-        st.known and tostring(st.evals) or "n/a", st.time * 1e3))
+    for _, group in ipairs { stages, kernels } do
+      local kern, ev = 0, 0
+      for _, k in ipairs(group) do
+        local st = stats[k[3]]
+        if st and group == stages then
+          print(format("  %-34s %6d calls %15s %9.2f ms", k[3], st.calls, "", st.time * 1e3))
+        elseif st then
+          print(format("  %-34s %6d calls %9s evals %9.2f ms", k[3], st.calls,
+            st.known and tostring(st.evals) or "n/a", st.time * 1e3))
+          kern, ev = kern + st.time, ev + st.evals
+        end
+      end
+      if group == kernels then
+        counted[X] = ev
+        print(format("  %-34s %12s %9d evals %9.2f ms", "C kernels in all", "", ev, kern * 1e3))
+        print(format("  %-34s %12s %9s       %9.2f ms", "Lua outside the C kernels", "", "",
+          (total - kern) * 1e3))
+      end
     end
-    print(format("  %-34s %6s       %9d evals %9.2f ms", "kernels in all (counted)", "", ev,
-      kern * 1e3))
-    print(format("  %-34s %6s       %9s       %9.2f ms", "Lua outside the kernels", "", "",
-      (total - kern) * 1e3))
   end
-  for _, w in ipairs(wrapped) do w[1][w[2]] = w[3] end
+  for j = #wrapped, 1, -1 do local w = wrapped[j]; w[1][w[2]] = w[3] end
+  -- the evaluation target again, counting every evaluation J:quad reports anywhere (a
+  -- lower bound: core.count's are not reported)
+  print()
+  print(format("%-54s %10s %12s   %s", "Airy target, all counted evaluations", "measured",
+    "target", ""))
+  local fu, fi = r100.qagiu_evals / counted[100], r100.qagi_evals / counted[100]
+  print(format("%-54s %10.1f %12s   %s", "QAGIU evaluations / all steep evaluations, x = 100",
+    fu, ">= 10", verdict(fu >= 10)))
+  print(format("%-54s %10.1f %12s   %s", "QAGI evaluations / all steep evaluations, x = 100",
+    fi, ">= 10", verdict(fi >= 10)))
 end

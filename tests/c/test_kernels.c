@@ -140,7 +140,7 @@ static cplx f_log(void *ctx, cplx t) { ((qctx *)ctx)->calls++; return clog(t); }
 static cplx f_nan(void *ctx, cplx t) { ((qctx *)ctx)->calls++; return creal(t) > 0.3 ? NAN : 1.0; }
 
 /* Legendre P_7 by Bonnet's recurrence (n+1) P_{n+1} = (2n+1) x P_n - n P_{n-1}
- * (Abramowitz & Stegun 22.7.10), stable on [-1, 1]. */
+ * (Abramowitz & Stegun 22.7.10, from memory; P_7(1) = 1 follows), stable on [-1, 1]. */
 static double legendre7(double x) {
   double p0 = 1, p1 = x;
   for (int n = 1; n < 7; n++) {
@@ -168,7 +168,7 @@ static void test_quad(void) {
   /* Degrees of exactness: the 15-point Kronrod rule integrates t^k exactly for
    * k <= 3*7+1 = 22, its embedded 7-point Gauss rule for k <= 2*7-1 = 13 (Kronrod,
    * Nodes and weights of quadrature formulas, 1965; Piessens et al., QUADPACK, 1983,
-   * sec. 2.2). This checks the node and weight table typed from QUADPACK's qk15: a
+   * ch. 2; section from memory). This checks the node and weight table typed from QUADPACK's qk15: a
    * wrong digit in any node or weight breaks exactness at some k <= 22.
    * Exact: integral of t^k over [-1, 1] = 2/(k+1) for even k, 0 for odd k. */
   int kron_ok = 1, floor_ok = 1;
@@ -197,8 +197,9 @@ static void test_quad(void) {
   check(kron_ok, "gk15 integrates t^k, k <= 22, on [-1,1] to 1e-15 (QUADPACK qk15 table)");
   check(floor_ok, "gk15 error estimate at the rounding floor for k <= 13 (Gauss part exact)");
   /* and the degrees are exactly 13 and 22: t^14 shows a Gauss-Kronrod difference (the
-   * 7-point Gauss error on t^14 is 2^15 (7!)^4 / (15 (14!)^2) ~ 1.8e-4), t^24 a Kronrod
-   * error well above rounding */
+   * 7-point Gauss error on t^14 is 2^15 (7!)^4 / (15 (14!)^2) ~ 1.8e-4 by the remainder
+   * of Abramowitz & Stegun 25.4.29, equation number from memory), t^24 a Kronrod error
+   * well above rounding */
   q.k = 14;
   quad_gk15(f_monomial, &q, -1, 1, &r, &e, &rabs);
   check(e > 1e-6, "gk15 error estimate for t^14 is not small (Gauss degree is 13)");
@@ -207,7 +208,7 @@ static void test_quad(void) {
   check(relerr(r, 2.0 / 25) > 1e-12, "gk15 is not exact for t^24 (Kronrod degree is 22)");
 
   /* The 7 Gauss nodes among the 15 are the zeros of the Legendre polynomial P_7 (Gauss;
-   * Abramowitz & Stegun 25.4.29), the 8 Kronrod nodes are not: record the abscissae of
+   * Abramowitz & Stegun 25.4.29, from memory), the 8 Kronrod nodes are not: record the abscissae of
    * one rule on [-1, 1] (where they are the tabulated nodes exactly). */
   {
     nodes_seen = 0;
@@ -218,6 +219,8 @@ static void test_quad(void) {
       if (fabs(v) <= 1e-15) zeros++;
       else if (fabs(v) > 1e-2) others++;
     }
+    check(fabs(legendre7(1) - 1) <= 1e-15 && fabs(legendre7(-1) + 1) <= 1e-15 &&
+          fabs(legendre7(0)) <= 1e-15, "test helper: P_7(1) = 1, P_7(-1) = -1, P_7(0) = 0");
     check(nodes_seen == 15 && zeros == 7 && others == 8,
           "gk15: 7 of the 15 nodes are zeros of P_7 to 1e-15 (Gauss nodes), 8 are not");
   }
@@ -248,8 +251,9 @@ static void test_quad(void) {
     check(relerr(r2, -r) <= 1e-15, "gk15: integral from b to a is minus that from a to b");
   }
 
-  /* quad_adaptive. e^{-t^2} over [-10, 10]: sqrt(pi) erf(10), and erfc(10) ~ 2e-45 is
-   * below double rounding, so the value is sqrt(pi) (Abramowitz & Stegun 7.1.1). */
+  /* quad_adaptive. e^{-t^2} over [-10, 10]: sqrt(pi) erf(10) (Abramowitz & Stegun
+   * 7.1.1), and erfc(10) < e^{-100}/(10 sqrt(pi)) ~ 2e-45 (7.1.13; both from memory) is
+   * below double rounding, so the value is sqrt(pi). */
   {
     long nev = 100;   /* the count is added to */
     q.calls = 0;
@@ -583,11 +587,12 @@ static void test_path(void) {
         "path: reaching a stop point -> PATH_STOP with its index");
   free(mem);
 
-  /* F(t) = i (t^3/3 + x t), x = 1 (the Airy exponent): saddles at +-i, F(i) = -2/3,
-   * F - F(i) ~ -(t - i)^2 (Olver, Asymptotics and Special Functions, ch. 4 sec. 7).
-   * Descent from i: horizontal start, into the valleys arg t in (0, pi/3) and
-   * (2pi/3, pi) where Re(i t^3) < 0; ascent: vertical, to the hill arg t in (pi/3,
-   * 2pi/3) above and towards the saddle -i's side below. */
+  /* F(t) = i (t^3/3 + x t), x = 1 (the Airy exponent). By hand: F' = i (t^2 + 1)
+   * vanishes at +-i, F(i) = -2/3, F''(i) = 2i * i = -2, so F - F(i) ~ -(t - i)^2:
+   * descent starts horizontally and ends in the valleys arg t in (0, pi/3) and
+   * (2pi/3, pi), where Re(i t^3) = -|t|^3 sin(3 arg t) < 0; ascent starts vertically,
+   * up to where Re F grows without bound, and down along the imaginary axis (where F is
+   * real and increasing downwards between i and -i) into the saddle -i. */
   htape ai;
   const tape_ins ains[9] = {
     {OP_VAR, -1, -1, 0, 0}, {OP_PARAM, -1, -1, 0, 0}, {OP_POWI, 0, -1, 3, 0},

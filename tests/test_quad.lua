@@ -1,0 +1,272 @@
+-- Tests of J:quad against GSL (tests/ref/gslref.so) on integral representations of
+-- special functions: Airy's integral, Bessel's integral, Hankel's loop for 1/Gamma, the
+-- Laplace-transform form of E1, a Gaussian with a pole that the deformation crosses, and
+-- Cauchy's coefficient formula on circles. Every value is also checked to lie within ten
+-- times the returned error estimate (plus 1e-15 relative): the estimate must be honest.
+local lu = require "luaunit"
+local H = require "helpers"
+local gsl = require "gslref"
+local steep = H.steep
+
+local C, I = steep.complex, steep.I
+local t, x = steep.var("t"), steep.param("x")
+local pi = math.pi
+
+local function cabs(z) return type(z) == "number" and math.abs(z) or z:abs() end
+
+-- |value - ref| <= 10 error + 1e-15 |ref|: the error estimate is honest
+local function honest(v, e, ref, msg)
+  local d = cabs(v - ref)
+  if not (d <= 10 * e + 1e-15 * cabs(ref)) then
+    lu.fail(string.format("%s: |value - reference| = %.3g exceeds 10 x the error estimate "
+      .. "%.3g (value %s, reference %s)", msg, d, e, tostring(v), tostring(ref)))
+  end
+end
+
+-- 1/Gamma(z) from GSL's log Gamma: exp(-(log|Gamma(z)| + i arg Gamma(z)))
+local function rgamma(z)
+  local lnr, arg = gsl.lngamma_complex(z:re(), z:im())
+  return steep.exp(C(-lnr, -arg))
+end
+
+---------------------------------------------------------------------------------------
+
+TestQuadAiry = {}
+
+-- Ai(x) = (1/2 pi) int_{-inf}^{inf} exp(i (t^3/3 + x t)) dt: the cosine form
+-- Ai(x) = (1/pi) int_0^inf cos(t^3/3 + x t) dt of DLMF 9.5 (eq. 9.5.1, number from memory)
+-- with the odd sine part added. The ends lie on the edges of the valleys of i t^3/3
+-- (conditionally convergent); the deformation moves them into the valleys.
+function TestQuadAiry:test_airy_integral()
+  local J = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t),
+    contour = steep.line(steep.inf(pi), steep.inf(0)) }
+  for _, xv in ipairs({ 1, -1, 5, -5, 20, -20 }) do
+    local msg = "Ai(" .. xv .. ")"
+    local v, e, info = J:quad { x = xv }
+    local ref = gsl.airy_Ai(xv)          -- gsl_sf_airy_Ai_e
+    lu.assertEquals(info.along, "deformed", msg .. ": route")
+    lu.assertEquals(info.status, "ok", msg .. ": status")
+    H.close(v / (2 * pi), ref, 1e-10, msg)
+    honest(v / (2 * pi), e / (2 * pi), ref, msg)
+  end
+end
+
+---------------------------------------------------------------------------------------
+
+TestQuadBessel = {}
+
+-- J_n(x) = (1/2 pi) int_{-pi}^{pi} exp(i (x sin t - n t)) dt: Bessel's integral
+-- J_n(x) = (1/pi) int_0^pi cos(x sin t - n t) dt (DLMF 10.9.2, number from memory) with
+-- the odd sine part added.
+function TestQuadBessel:test_bessel_integral()
+  local n = steep.param("n")
+  local J = steep.integral { var = t, exponent = I * (x * steep.sin(t) - n * t),
+    contour = steep.line(-pi, pi) }
+  for _, c in ipairs({ { 0, 1 }, { 1, 1 }, { 2, 5 }, { 5, 1 }, { 3, 10 }, { 10, 10 },
+      { 0, 30 }, { 7, 30 }, { 4, -3 }, { -3, 2.5 } }) do
+    local nv, xv = c[1], c[2]
+    local msg = string.format("J_%d(%g)", nv, xv)
+    for _, along in ipairs({ "deformed", "given" }) do
+      local v, e, info = J:quad { x = xv, n = nv, along = along }
+      local ref = gsl.bessel_Jn(nv, xv)  -- gsl_sf_bessel_Jn_e
+      lu.assertEquals(info.status, "ok", msg .. ": status")
+      H.close(v / (2 * pi), ref, 1e-10, msg .. " (" .. along .. ")")
+      honest(v / (2 * pi), e / (2 * pi), ref, msg .. " (" .. along .. ")")
+    end
+  end
+end
+
+function TestQuadBessel:test_bessel_integral_small_value()
+  -- J_20(5) = 2.77e-11 while |integrand| = 1 on the real segment: along it the value is
+  -- a cancellation of terms of size 1, so the tolerance is relative to the integral of
+  -- |integrand|/(2 pi) = 1, not to the value (1e-14 of that).
+  local n = steep.param("n")
+  local J = steep.integral { var = t, exponent = I * (x * steep.sin(t) - n * t),
+    contour = steep.line(-pi, pi) }
+  local v, e = J:quad { x = 5, n = 20 }
+  local ref = gsl.bessel_Jn(20, 5)       -- gsl_sf_bessel_Jn_e
+  H.close(v / (2 * pi), ref, 1e-14 / math.abs(ref), "J_20(5), absolute 1e-14")
+  honest(v / (2 * pi), e / (2 * pi), ref, "J_20(5)")
+end
+
+---------------------------------------------------------------------------------------
+
+TestQuadHankel = {}
+
+-- 1/Gamma(z) = (1/2 pi i) int_{-inf}^{(0+)} e^t t^(-z) dt: Hankel's loop (DLMF 5.9.2,
+-- number from memory), from -inf below the negative axis, around 0, back to -inf above.
+function TestQuadHankel:test_reciprocal_gamma()
+  local z = steep.param("z")
+  local J = steep.integral { var = t, exponent = t - z * steep.log(t),
+    contour = steep.path { steep.inf(pi), C(-1, -1), C(1, -1), C(1, 1), C(-1, 1), steep.inf(pi) } }
+  for _, zv in ipairs({ C(0.5), C(3), C(2.5, 1), C(10), C(10.5), C(-1.5, 0.5), C(-0.5, -2) }) do
+    local ref = rgamma(zv)                -- gsl_sf_lngamma_complex_e
+    for _, along in ipairs({ "deformed", "given" }) do
+      local msg = "1/Gamma(" .. tostring(zv) .. ") (" .. along .. ")"
+      local v, e, info = J:quad { z = zv, along = along }
+      lu.assertEquals(info.status, "ok", msg .. ": status")
+      local w = v / (2 * pi * I)
+      H.close(w, ref, 1e-10, msg)
+      honest(w, e / (2 * pi), ref, msg)
+    end
+  end
+end
+
+-- Gamma(z) = int_0^inf t^(z-1) e^(-t) dt, Re z > 0 (Euler's integral, DLMF 5.2.1, number
+-- from memory). The contour starts at the sink t = 0; for Re z near 1 the last stretch of
+-- the descent path into it matters (z = 1.5), and for complex z that path spirals into 0
+-- across the cut of log t (z = 2+i, 4-2i).
+function TestQuadHankel:test_euler_gamma_integral()
+  local z = steep.param("z")
+  local J = steep.integral { var = t, exponent = -t + (z - 1) * steep.log(t),
+    contour = steep.line(0, steep.inf(0)) }
+  for _, zv in ipairs({ C(1.5), C(2.5), C(3.5), C(10.5), C(2, 1), C(4, -2) }) do
+    local lnr, arg = gsl.lngamma_complex(zv:re(), zv:im())   -- gsl_sf_lngamma_complex_e
+    local ref = steep.exp(C(lnr, arg))
+    if zv:im() == 0 then H.close(ref, gsl.gamma(zv:re()), 1e-13, "GSL Gamma vs lnGamma") end
+    for _, along in ipairs({ "deformed", "given" }) do
+      local msg = "Gamma(" .. tostring(zv) .. ") (" .. along .. ")"
+      local v, e, info = J:quad { z = zv, along = along }
+      lu.assertEquals(info.status, "ok", msg .. ": status")
+      H.close(v, ref, 1e-10, msg)
+      honest(v, e, ref, msg)
+    end
+  end
+end
+
+---------------------------------------------------------------------------------------
+
+TestQuadExpint = {}
+
+-- e^x E1(x) = int_0^inf e^(-x t)/(1 + t) dt (DLMF 6.2.2, number from memory; it follows
+-- from E1(x) = int_x^inf e^(-u)/u du, DLMF 6.2.1, by u = x (1 + t)).
+function TestQuadExpint:test_exponential_integral()
+  local J = steep.integral { var = t, exponent = -x * t, amplitude = 1 / (1 + t),
+    contour = steep.line(0, steep.inf(0)) }
+  for _, xv in ipairs({ 0.5, 1, 5, 20 }) do
+    local ref = math.exp(xv) * gsl.expint_E1(xv)   -- gsl_sf_expint_E1_e
+    for _, along in ipairs({ "deformed", "given" }) do
+      local msg = string.format("e^x E1(x) at x = %g (%s)", xv, along)
+      local v, e, info = J:quad { x = xv, along = along }
+      lu.assertEquals(info.status, "ok", msg .. ": status")
+      lu.assertEquals(info.along, along, msg .. ": route")
+      H.close(v, ref, 1e-10, msg)
+      honest(v, e, ref, msg)
+    end
+  end
+end
+
+---------------------------------------------------------------------------------------
+
+TestQuadDeformation = {}
+
+-- int_{-inf}^{inf} exp(-x (t - i)^2)/(t - i/2) dt. Shifting t = s + i puts the line at
+-- Im s = -1, below the pole s = -i/2; moving it up to the real s axis crosses the pole:
+-- the value is int_R e^(-x s^2)/(s + i/2) ds + 2 pi i e^(x/4). The real-axis integral is
+-- -(i/2) int_R e^(-x s^2)/(s^2 + 1/4) ds = -i pi e^(x/4) erfc(sqrt(x)/2), by
+-- erfc(w) = (2/pi) e^(-w^2) int_0^inf e^(-w^2 u^2)/(u^2 + 1) du (DLMF 7.7.1, number from
+-- memory). So the integral is i pi e^(x/4) (2 - erfc(sqrt(x)/2)), with
+-- erfc(w) = 2 Q(w sqrt 2), Q the upper tail of the unit Gaussian (gsl_cdf_ugaussian_Q).
+local function gauss_pole_ref(xv)
+  return I * pi * math.exp(xv / 4) * 2 * (1 - gsl.cdf_ugaussian_Q(math.sqrt(xv / 2)))
+end
+
+local function gauss_pole_integral(contour)
+  return steep.integral { var = t, exponent = -x * (t - I) ^ 2, amplitude = 1 / (t - I / 2),
+    contour = contour or steep.line(steep.inf(pi), steep.inf(0)) }
+end
+
+function TestQuadDeformation:test_deformed_and_given_agree_across_a_pole()
+  local J = gauss_pole_integral()
+  for _, xv in ipairs({ 0.5, 1, 4, 10 }) do
+    local msg = "x = " .. xv
+    local vd, ed, infod = J:quad { x = xv }
+    local vg, eg, infog = J:quad { x = xv, along = "given" }
+    lu.assertEquals(infod.along, "deformed", msg .. ": route")
+    lu.assertEquals(infod.status, "ok", msg .. ": status (deformed)")
+    lu.assertEquals(infog.status, "ok", msg .. ": status (given)")
+    -- the deformation through the saddle t = i sweeps over the pole i/2 once,
+    -- counter-clockwise; its residue is e^(x/4) (exact)
+    lu.assertEquals(#infod.residues, 1, msg .. ": residues")
+    lu.assertEquals(infod.residues[1].winding, 1, msg .. ": winding")
+    H.close(infod.residues[1].residue, math.exp(xv / 4), 1e-12, msg .. ": residue")
+    H.close(vd, vg, 1e-10, msg .. ": deformed vs given")
+    local ref = gauss_pole_ref(xv)
+    H.close(vd, ref, 1e-10, msg .. ": deformed vs exact")
+    H.close(vg, ref, 1e-10, msg .. ": given vs exact")
+    honest(vd, ed, ref, msg .. " (deformed)")
+    honest(vg, eg, ref, msg .. " (given)")
+  end
+end
+
+function TestQuadDeformation:test_strong_exponent_across_a_pole()
+  -- x = 30: along the real line the integrand reaches e^30 against a value of 1e4, so the
+  -- given route is only as good as its (honest) error estimate; the deformed one is exact
+  -- to 1e-10
+  local J = gauss_pole_integral()
+  local ref = gauss_pole_ref(30)
+  local vd, ed, infod = J:quad { x = 30 }
+  lu.assertEquals(infod.along, "deformed")
+  H.close(vd, ref, 1e-10, "x = 30, deformed")
+  honest(vd, ed, ref, "x = 30, deformed")
+  local vg, eg = J:quad { x = 30, along = "given" }
+  honest(vg, eg, ref, "x = 30, given")
+end
+
+function TestQuadDeformation:test_reversed_contour_negates()
+  local J = gauss_pole_integral()
+  local Jr = gauss_pole_integral(J.contour:reverse())
+  for _, xv in ipairs({ 1, 10 }) do
+    for _, along in ipairs({ "deformed", "given" }) do
+      local msg = string.format("x = %g (%s)", xv, along)
+      local v = J:quad { x = xv, along = along }
+      local vr, er, info = Jr:quad { x = xv, along = along }
+      lu.assertEquals(info.along, along, msg .. ": route")
+      H.close(vr, -v, 1e-12, msg .. ": reversed contour")
+      honest(vr, er, -gauss_pole_ref(xv), msg .. ": reversed")
+    end
+  end
+  -- the Airy integral reversed
+  local A = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t),
+    contour = steep.line(steep.inf(0), steep.inf(pi)) }
+  local v, e = A:quad { x = 1 }
+  local ref = -2 * pi * gsl.airy_Ai(1)   -- gsl_sf_airy_Ai_e
+  H.close(v, ref, 1e-10, "Airy integral reversed")
+  honest(v, e, ref, "Airy integral reversed")
+end
+
+---------------------------------------------------------------------------------------
+
+TestQuadCircle = {}
+
+-- (1/2 pi i) closed integral of e^z z^-(n+1) dz = 1/n! (Cauchy's formula for the
+-- Taylor coefficients of e^z = sum z^k/k!, DLMF 4.2.19; exact).
+function TestQuadCircle:test_cauchy_coefficient()
+  local z = steep.var("z")
+  for _, n in ipairs({ 5, 10 }) do
+    local inv = 1
+    for k = 1, n do inv = inv / k end
+    -- radius 1 puts the pole of order n+1 well inside; radius n is near the saddle n+1,
+    -- where the integrand is as small as the result allows
+    for _, r in ipairs({ 1, n / 2, n }) do
+      local J = steep.integral { var = z, exponent = z - (n + 1) * steep.log(z),
+        contour = steep.circle(0, r) }
+      for _, along in ipairs({ "deformed", "given" }) do
+        local msg = string.format("1/%d! on |z| = %g (%s)", n, r, along)
+        local v, e, info = J:quad { along = along }
+        lu.assertEquals(info.status, "ok", msg .. ": status")
+        lu.assertEquals(info.along, along, msg .. ": route")
+        local w = v / (2 * pi * I)
+        honest(w, e / (2 * pi), inv, msg)
+        if along == "deformed" or r > 1 then
+          H.close(w, inv, 1e-10, msg)
+        else
+          -- on |z| = 1 the integrand is of size up to e against 1/n!: the trapezoidal
+          -- sum loses log10(e n!) digits to rounding, so the tolerance is relative to
+          -- (1/2 pi) times the integral of |integrand|, at most e (1e-14 of that)
+          H.close(w, inv, 1e-14 * math.exp(1) / inv, msg .. ", absolute")
+        end
+      end
+    end
+  end
+end
