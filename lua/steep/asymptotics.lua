@@ -50,7 +50,7 @@ local function saddle_contribution(J, params, L, j, rays, order)
   local a, F0 = expand.saddle_series(J, params, s.at, m, nraw)
   local terms, powers = expand.saddle_terms(a, F0, m, c, nraw)
   local scale = exp_c(F0)
-  local value, err, used = expand.truncate(terms, order, scale)
+  local value, err, used = expand.truncate(terms, order, scale, cabs(F0))
   local kind = m == 2 and "saddle" or format("saddle of order %d", m)
   if at_endpoint then kind = kind .. " at an endpoint" end
   local tl = {}
@@ -69,7 +69,7 @@ local function endpoint_contribution(J, params, piece, order)
   end
   local terms = expand.endpoint_terms(b, beta, nraw)
   local scale = exp_c(Fa) * piece.weight
-  local value, err, used = expand.truncate(terms, order, scale)
+  local value, err, used = expand.truncate(terms, order, scale, cabs(Fa))
   local tl = {}
   for k = 1, used do tl[k] = terms[k] * scale end
   return { kind = beta and format("endpoint with factor (t-a)^%g", beta) or "endpoint",
@@ -85,14 +85,91 @@ local function residue_contribution(L, r)
     residue = s.residue, dominance = log(math.max(cabs(v), 1e-300)) }
 end
 
+-- Why a decomposition failed, where the landscape can say more: a saddle of an order the
+-- expansions do not support (its paths are not traced reliably either), or zeros of F'
+-- that the argument principle counts but Newton's method did not find (a zero of high
+-- multiplicity is the usual reason: a saddle of order 10 at a 9-fold zero of F').
+local function failure_detail(L)
+  local max = expand.MAX_SADDLE_ORDER
+  for _, s in ipairs(L.saddles) do
+    if s.order > max then
+      return format("; a saddle of order %d at %s: orders above %d are not supported", s.order,
+        tostring(s.at), max)
+    end
+  end
+  local c = L.saddle_count
+  if c and c.count and c.found and c.count > c.found then
+    local m = c.count - c.found + 1
+    return format("; the landscape is incomplete: the argument principle counts %d zeros of F' "
+      .. "(with multiplicity), %d found; if the missing ones coincide they make a saddle of "
+      .. "order %d%s", c.count, c.found, m,
+      m > max and format(" (orders above %d are not supported)", max) or "")
+  end
+  return ""
+end
+
+-- When the global decomposition cannot be settled (exponential-type valleys, say) but
+-- the contour itself passes through saddles along their steepest directions, the
+-- classical local method applies: the contour's contribution is that of those saddles,
+-- the rest of it being assumed exponentially smaller (Flajolet & Sedgewick 2009,
+-- ch. VIII, for coefficient integrals on a circle through the saddle). The plan says so;
+-- J:check verifies it against quadrature.
+function M.local_plan(J, L, plan)
+  local R = L.region.radius
+  local pieces = {}
+  for j, s in ipairs(L.saddles) do
+    -- the contour's direction where it passes through the saddle, if it does
+    local dir
+    for _, p in ipairs(J.contour.pieces) do
+      if p.kind == "arc" then
+        local d = cabs(s.at - p.center)
+        if abs(d - p.radius) <= 1e-9 * math.max(R, p.radius) then
+          local sign = p.to > p.from and 1 or -1
+          dir = landscape.carg(s.at - p.center) + sign * pi / 2
+        end
+      elseif p.kind == "segment" then
+        local u = p.b - p.a
+        local w = (s.at - p.a) / u
+        local wr, wi = cparts(w)
+        if abs(wi) * cabs(u) <= 1e-9 * R and wr > 1e-9 and wr < 1 - 1e-9 then
+          dir = landscape.carg(u)
+        end
+      end
+    end
+    if dir and s.order == 2 then
+      local paths = (L.paths and L.paths[j]) or landscape.saddle_paths(J, L.params, L, j)
+      local best, bk = huge, nil
+      for k, d in ipairs(paths.descent) do
+        local a = abs(landscape.norm_angle(landscape.carg(d.points[2] - s.at) - dir))
+        if a < best then best, bk = a, k end
+      end
+      if best > pi / 4 then return nil end   -- not along a descent direction: no local form
+      for k, d in ipairs(paths.descent) do
+        pieces[#pieces + 1] = { kind = "saddle", index = j, ray = k, order = 2,
+          weight = (k == bk) and 1 or -1, points = d.points, ends = { "saddle " .. j, d.ends } }
+      end
+    end
+  end
+  if #pieces == 0 then return nil end
+  local notes = { "local method: the contour passes through the saddle(s) used; the rest of "
+    .. "it is assumed exponentially smaller (the global decomposition was not settled: "
+    .. plan.status .. ")" }
+  return { pieces = pieces, residues = {}, notes = notes, status = "ok", evals = plan.evals,
+    stokes = plan.stokes, is_local = true }
+end
+
 --- expand(J, params, opts) -> result
 function M.expand(J, params, opts)
   local order = check_order(opts.order or 1, "expand")
   local L = opts.landscape or J:_landscape(params, opts.region, false)
   local plan = decompose.decompose(J, params, L, J.contour)
   if plan.status ~= "ok" then
+    local lp = M.local_plan(J, L, plan)
+    if lp then plan = lp end
+  end
+  if plan.status ~= "ok" then
     error("expand: the contour could not be decomposed into steepest descent paths ("
-      .. plan.status .. "): " .. table.concat(plan.notes, "; "), 0)
+      .. plan.status .. "): " .. table.concat(plan.notes, "; ") .. failure_detail(L), 0)
   end
   local contributions = {}
   local by_saddle, order_seen = {}, {}
@@ -130,7 +207,8 @@ function M.expand(J, params, opts)
   end
   local result = { value = value, error = err, contributions = contributions,
     order = order, params = params, landscape = L, notes = plan.notes,
-    stokes = plan.stokes or false, integral = J, status = "estimated" }
+    stokes = plan.stokes or false, integral = J,
+    status = plan.is_local and "estimated (local method)" or "estimated" }
   return setmetatable(result, { __index = { report = M.report } })
 end
 
@@ -230,7 +308,7 @@ function M.series(J, params, opts)
   local plan = decompose.decompose(J, p1, L, J.contour)
   if plan.status ~= "ok" then
     error("series: the contour could not be decomposed (" .. plan.status .. "): "
-      .. table.concat(plan.notes, "; "), 0)
+      .. table.concat(plan.notes, "; ") .. failure_detail(L), 0)
   end
   local out = {}
   local rays = {}

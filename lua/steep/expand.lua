@@ -305,10 +305,18 @@ end
 
 --- Sums terms to `order` terms (a number) or to the smallest term ("optimal"); returns
 -- the sum, the error estimate (size of the first omitted term, or of the smallest one
--- for optimal truncation) and the number of terms used.
-function M.truncate(terms, order, scale)
+-- for optimal truncation) and the number of terms used. The estimate is never below the
+-- rounding floor (128 + logsize) u sum |terms used| |scale| (u = 2^-52): Gamma here is good
+-- to about 2e-14 relative, and e^F with |F| = logsize carries |F| u of its own; without
+-- the floor a series that terminates (all further terms zero) would claim no error.
+function M.truncate(terms, order, scale, logsize)
   scale = scale or 1
   local n = #terms
+  local function floor(used)
+    local s = 0
+    for k = 1, used do s = s + cabs(terms[k]) end
+    return (128 + (logsize or 0)) * 2.220446049250313e-16 * s * cabs(scale)
+  end
   if order == "optimal" then
     local best, bi = huge, n
     for k = 2, n do
@@ -317,13 +325,14 @@ function M.truncate(terms, order, scale)
     end
     local s = cnew(0, 0)
     for k = 1, bi - 1 do s = s + terms[k] end
-    return s * scale, best * cabs(scale), bi - 1
+    return s * scale, math.max(best * cabs(scale), floor(bi - 1)), bi - 1
   end
+  local used = math.min(order, n)
   local s = cnew(0, 0)
-  for k = 1, math.min(order, n) do s = s + terms[k] end
+  for k = 1, used do s = s + terms[k] end
   local nexterm = terms[order + 1]
   local err = nexterm and cabs(nexterm) or huge
-  return s * scale, err * cabs(scale), math.min(order, n)
+  return s * scale, math.max(err * cabs(scale), floor(used)), used
 end
 
 return M
