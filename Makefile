@@ -7,7 +7,7 @@ LUA_LIBDIR  = $(PREFIX)/lib/lua/5.4
 LUA_SHARE   = $(PREFIX)/share/lua/5.4
 
 # Debian packages the build and the tests need (make deps installs the missing ones).
-DEB_PACKAGES = gcc make pkg-config lua5.4 liblua5.4-dev libgsl-dev lua-unit
+DEB_PACKAGES = gcc make pkg-config lua5.4 liblua5.4-dev libgsl-dev libcerf-dev lua-unit
 
 CC         ?= cc
 WARN        = -std=c99 -Wall -Wextra -Werror
@@ -41,10 +41,10 @@ tests/c/test_kernels: tests/c/test_kernels.c $(KERNEL_SRC) $(HDR)
 tests/c/test_kernels_asan: tests/c/test_kernels.c $(KERNEL_SRC) $(HDR)
 	$(CC) $(WARN) -O1 -g $(SAN_FLAGS) -Iext -o $@ tests/c/test_kernels.c $(KERNEL_SRC) -lm
 
-# GSL reference values for the Lua tests (test-only, never installed; the plain build
-# serves make asan too).
+# GSL and libcerf reference values for the Lua tests (test-only, never installed; the
+# plain build serves make asan too).
 tests/ref/gslref.so: tests/ref/gslref.c
-	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) $(CFLAGS) -o $@ tests/ref/gslref.c $(PKG_LIBS) $(LDFLAGS)
+	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) $(CFLAGS) -o $@ tests/ref/gslref.c $(PKG_LIBS) -lcerf -lm $(LDFLAGS)
 
 deps:
 	@missing=$$(for p in $(DEB_PACKAGES); do \

@@ -36,6 +36,11 @@ long tape_check(tape *t, const char **why) {
       *why = "operand is not an earlier slot";
       return (long)j;
     }
+    /* the evaluators read any operand >= 0, so unused ones must be -1 */
+    if ((ar < 1 && in->a != -1) || (ar < 2 && in->b != -1)) {
+      *why = "unused operand is not -1";
+      return (long)j;
+    }
     if (in->op == OP_PARAM && (in->k < 0 || (size_t)in->k >= t->nparams)) {
       *why = "parameter index out of range";
       return (long)j;

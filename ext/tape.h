@@ -45,9 +45,9 @@ int tape_arity(int op);
 const char *tape_op_name(int op);
 int tape_op_lookup(const char *name);   /* -1 if unknown */
 
-/* Checks operands, parameter indices and outputs; fills t->varying. Returns -1 when the
- * tape is well formed, else the index of the first bad instruction (n for bad outputs),
- * with a reason in *why. */
+/* Checks operands (unused ones must be -1), parameter indices and outputs; fills
+ * t->varying. Returns -1 when the tape is well formed, else the index of the first bad
+ * instruction (n for bad outputs), with a reason in *why. */
 long tape_check(tape *t, const char **why);
 
 /* Values of the outputs at x: out[nout]. work: n entries. */

@@ -1,7 +1,52 @@
--- Placeholder demo until the full analysis lands: Taylor jets of an invented exponent.
+-- demo.lua — the whole job on an invented scenario (run it with `make demo`).
+--
+-- Scenario (invented): a wave-packet model with one resonance. The response at distance x
+-- is R(x) = integral over the real line of exp(-0.35 t^2 + i x t) / (t - p) dt with the
+-- resonance at p = 1.2 + 0.5i. We want R for large |x| of both signs: by the direct
+-- (unrescaled) route, by the rescaled route t = x s that makes the exponent homogeneous,
+-- and we want to know whether the rescaling drags the pole across the contour.
+--
+-- This is an approximation tool: the figures below are checked against quadrature, but
+-- anything that feeds an engineering decision must be validated independently.
+
 local steep = require "steep"
-local t, x = steep.var "t", steep.param "x"
-local F = steep.I * (t ^ 3 / 3 + x * t) - steep.log(1 + t ^ 2)
-print("exponent F(t) = " .. tostring(F))
-print("Taylor jet of F about t = 0.5 at x = 2:")
-print(steep.taylor(F, t, 0.5, 6, { x = 2 }))
+
+local t, s, x = steep.var "t", steep.var "s", steep.param "x"
+local I = steep.I
+local p = 1.2 + 0.5 * I
+
+local R = steep.integral {
+  var = t, exponent = -0.35 * t ^ 2 + I * x * t, amplitude = 1 / (t - p),
+  contour = steep.line(steep.inf(math.pi), steep.inf(0)), large = x,
+}
+
+print("== the integral")
+print(R)
+
+print("\n== landscape at x = 6")
+print(R:landscape { x = 6 }:report())
+
+print("\n== expansion at x = 6, four terms, against quadrature")
+local r = R:expand { x = 6, order = 4 }
+print(r:report())
+local q, qe = R:quad { x = 6 }
+print(string.format("quadrature: %s (error %.2g)", tostring(q), qe))
+
+print("\n== the rescaled route t = x*s, held at x = 8, followed to x = -8")
+local K = R:rescale { var = s, t = x * s, at = { x = 8 } }
+print(K.homogeneity.text)
+print(K:crossings { x = { from = 8, to = -8, steps = 32 } }:report())
+
+print("\n== both routes against quadrature")
+print(R:compare { x = { 8, 6, 4, -4, -6, -8 }, order = 4, rescale = { var = s, t = x * s } }:report())
+
+print("\n== sweep: error table")
+print(R:sweep { x = { 3, 4, 6, 8, 12, 16, -4, -8, -16 }, order = 4, progress = false }:report())
+
+if R.map then
+  local file = (os.getenv("TMPDIR") or "/tmp") .. "/steep-demo-map.svg"
+  R:map { x = 6, file = file }
+  print("\n== map of the complex plane written to " .. file)
+end
+
+print("\nCaution: asymptotic approximations; validate before they inform any decision.")

@@ -407,9 +407,16 @@ function methods.quad(J, opts)
       table.insert(info.notes, 1, "the steepest-descent deformation was not used (" .. why .. ")")
     end
   end
-  -- rounding floor: the integrand's size along the way is not known here, so at least
-  -- a few units in the last place of the result
-  e = math.max(e, 4e-16 * cabs(v))
+  -- rounding floor: exp(F) inherits the absolute rounding error of F itself, about
+  -- eps |F| relative, where |F| is largest among the points that dominate (saddles,
+  -- finite contour points); plus a few units in the last place of the result
+  local Fmax = 0
+  for _, s in ipairs(L.saddles) do Fmax = math.max(Fmax, cabs(s.F)) end
+  for _, z in ipairs(J.contour:finite_points()) do
+    local ok, F = pcall(J.tape.eval, J.tape, z, params)
+    if ok and cabs(F) == cabs(F) and cabs(F) < huge then Fmax = math.max(Fmax, cabs(F)) end
+  end
+  e = math.max(e, (4 + Fmax) * 2.2e-16 * cabs(v))
   info.landscape = L
   return v, e, info
 end
@@ -465,6 +472,10 @@ function methods.crossings(J, opts) return require("steep.routes").crossings(J, 
 function methods.compare(J, opts) return require("steep.routes").compare(J, opts) end
 function methods.sweep(J, opts) return require("steep.routes").sweep(J, opts) end
 function methods.suggest_rescaling(J, opts) return require("steep.routes").suggest(J, opts) end
+
+--- J:map{<params>, file = "x.svg", ...} -> file, summary: a picture of the landscape
+-- (lua/steep/map.lua).
+function methods.map(J, opts) return require("steep.map").map(J, opts) end
 
 M.Integral = Integral
 return M

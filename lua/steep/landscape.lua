@@ -319,7 +319,7 @@ end
 -- Valleys at infinity.
 ---------------------------------------------------------------------------------------
 
-local NANG = 720
+local NANG = 360
 
 -- log |g e^F| (and F) on the circle of radius r about c at NANG angles.
 local function ring(tape, params, c, r)

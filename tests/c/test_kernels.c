@@ -648,12 +648,31 @@ static void test_path(void) {
   free(Fs);
 }
 
+/* ---- tape checking (tape.c) ------------------------------------------------------ */
+
+/* Regression (found by tests/fuzz/fuzz_tape.c): tape_check accepted an instruction whose
+ * unused operand was not -1, and tape_eval then read that slot, past the work array. */
+static void test_tape_check(void) {
+  const char *why = "";
+  htape h;
+  const tape_ins bad_const[2] = {{OP_CONST, -1, 7, 0, 1}, {OP_NEG, 0, -1, 0, 0}};
+  htape_init(&h, bad_const, 2, 0);
+  check(tape_check(&h.t, &why) == 0, "tape_check: const with an unused operand 7 is rejected");
+  const tape_ins bad_unary[2] = {{OP_VAR, -1, -1, 0, 0}, {OP_EXP, 0, 0, 0, 0}};
+  htape_init(&h, bad_unary, 2, 0);
+  check(tape_check(&h.t, &why) == 1, "tape_check: exp with a second operand is rejected");
+  const tape_ins good[3] = {{OP_VAR, -1, -1, 0, 0}, {OP_EXP, 0, -1, 0, 0}, {OP_ADD, 0, 1, 0, 0}};
+  htape_init(&h, good, 3, 0);
+  check(tape_check(&h.t, &why) == -1, "tape_check: unused operands -1 are accepted");
+}
+
 int main(void) {
   test_series();
   test_quad();
   test_geom();
   test_roots();
   test_path();
+  test_tape_check();
   printf("kernels: %d passed, %d failed\n", passed, failed);
   return failed ? 1 : 0;
 }

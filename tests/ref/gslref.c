@@ -3,19 +3,25 @@
  * Each function calls the gsl_sf_*_e (or gsl_cdf_*) routine, checks its status and
  * raises a Lua error carrying gsl_strerror on failure. The special functions return
  * (value, error estimate) as GSL reports them; the cdf_* functions return the value.
+ * faddeeva_w comes from libcerf (w_of_z), not GSL: it returns the real and imaginary
+ * parts of w(z) = exp(-z^2) erfc(-iz) (DLMF 7.2.3) and has no error estimate.
  */
 #include <lua.h>
 #include <lauxlib.h>
+#include <complex.h>
 #include <math.h>
 
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_mode.h>
 #include <gsl/gsl_sf_airy.h>
 #include <gsl/gsl_sf_bessel.h>
+#include <gsl/gsl_sf_erf.h>
 #include <gsl/gsl_sf_expint.h>
 #include <gsl/gsl_sf_gamma.h>
 #include <gsl/gsl_sf_result.h>
 #include <gsl/gsl_cdf.h>
+
+#include <cerf.h>
 
 static int fail(lua_State *L, const char *fname, int status)
 {
@@ -65,6 +71,26 @@ static int l_expint_E1(lua_State *L)
   gsl_sf_result r;
   int st = gsl_sf_expint_E1_e(luaL_checknumber(L, 1), &r);
   return push_result(L, "expint_E1", st, &r);
+}
+
+static int l_erfc(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_erfc_e(luaL_checknumber(L, 1), &r);
+  return push_result(L, "erfc", st, &r);
+}
+
+/* faddeeva_w(re, im) -> Re w(z), Im w(z) for z = re + i im (libcerf's w_of_z). A
+ * non-finite result (w overflows for Im z very negative) is reported as an error. */
+static int l_faddeeva_w(lua_State *L)
+{
+  double x = luaL_checknumber(L, 1), y = luaL_checknumber(L, 2);
+  double _Complex w = w_of_z(x + y * I);
+  if (!isfinite(creal(w)) || !isfinite(cimag(w)))
+    return luaL_error(L, "gslref.faddeeva_w: w(%f + %f i) is not finite", x, y);
+  lua_pushnumber(L, creal(w));
+  lua_pushnumber(L, cimag(w));
+  return 2;
 }
 
 static int l_gamma(lua_State *L)
@@ -122,7 +148,9 @@ static const luaL_Reg funcs[] = {
   { "airy_Ai_deriv", l_airy_Ai_deriv },
   { "airy_Bi", l_airy_Bi },
   { "bessel_Jn", l_bessel_Jn },
+  { "erfc", l_erfc },
   { "expint_E1", l_expint_E1 },
+  { "faddeeva_w", l_faddeeva_w },
   { "gamma", l_gamma },
   { "lngamma_complex", l_lngamma_complex },
   { "cdf_gamma_Q", l_cdf_gamma_Q },
