@@ -7,14 +7,15 @@ LUA_LIBDIR  = $(PREFIX)/lib/lua/5.4
 LUA_SHARE   = $(PREFIX)/share/lua/5.4
 
 # Debian packages the build and the tests need (make deps installs the missing ones).
-DEB_PACKAGES = gcc make pkg-config lua5.4 liblua5.4-dev libgsl-dev libcerf-dev lua-unit
+DEB_PACKAGES = gcc make pkg-config lua5.4 liblua5.4-dev libgsl-dev libcerf-dev lua-unit \
+               valgrind clang libclang-rt-14-dev
 
 CC         ?= cc
 WARN        = -std=c99 -Wall -Wextra -Werror
-PKG_CFLAGS  = $(shell pkg-config --cflags lua5.4 gsl)
+PKG_CFLAGS  = $(shell pkg-config --cflags lua5.4 gsl libcerf)
 # The module does not link liblua: the host program (lua5.4 or an embedding
 # application) provides the Lua API, as Lua's own C modules expect.
-PKG_LIBS    = $(shell pkg-config --libs gsl)
+PKG_LIBS    = $(shell pkg-config --libs gsl libcerf)
 
 SRC  = $(wildcard ext/*.c)
 HDR  = $(wildcard ext/*.h)
@@ -23,7 +24,7 @@ ASAN_MODULE = ext/asan/steep/core.so
 SAN_FLAGS   = -fsanitize=address,undefined -fno-sanitize-recover=all -fno-omit-frame-pointer
 KERNEL_SRC  = ext/series.c ext/tape.c ext/problem.c ext/quad.c ext/geom.c ext/roots.c ext/path.c
 
-.PHONY: all deps test asan bench demo install uninstall env clean help
+.PHONY: all deps test asan memcheck fuzz bench demo install uninstall env clean help
 
 all: $(MODULE)
 
@@ -71,6 +72,44 @@ asan: deps
 	  STEEP_CPATH='ext/asan/?.so' STEEP_KERNEL_TESTS=tests/c/test_kernels_asan \
 	  $(LUA) tests/run.lua
 
+# The whole suite (and the C kernel tests) under valgrind's memcheck, plain build. A
+# definite or indirect leak or any memory error fails it.
+VALGRIND = valgrind -q --leak-check=full --show-leak-kinds=definite,indirect \
+           --errors-for-leak-kinds=definite,indirect --error-exitcode=1
+memcheck: deps
+	@$(MAKE) --no-print-directory $(MODULE) tests/c/test_kernels tests/ref/gslref.so
+	STEEP_KERNEL_TESTS='$(VALGRIND) tests/c/test_kernels' $(VALGRIND) $(LUA) tests/run.lua
+
+# libFuzzer harnesses of the C kernels (tests/fuzz/, no Lua), with ASan and UBSan.
+# `make fuzz SECONDS=N` runs each for N seconds from the seeds in tests/fuzz/corpus/<h>/;
+# new inputs go to tests/fuzz/bin/corpus/<h>/ (not versioned). A crash, a sanitizer report
+# or an input slower than FUZZ_TIMEOUT seconds fails it; the input is kept in
+# tests/fuzz/bin/<h>-crash-* (or -timeout-*), the log in tests/fuzz/bin/<h>.log.
+FUZZ_CC      = clang
+FUZZ_FLAGS   = -std=c99 -Wall -Wextra -Werror -g -O1 -fsanitize=fuzzer,address,undefined \
+               -fno-sanitize-recover=all -fno-omit-frame-pointer
+FUZZ_SRC     = $(sort $(KERNEL_SRC) ext/invmap.c)
+FUZZERS      = tape series paths
+SECONDS     ?= 60
+FUZZ_TIMEOUT = 10
+
+tests/fuzz/bin/fuzz_%: tests/fuzz/fuzz_%.c tests/fuzz/fuzz.h $(FUZZ_SRC) $(HDR)
+	@mkdir -p $(dir $@)
+	$(FUZZ_CC) $(FUZZ_FLAGS) -Iext -o $@ $< $(FUZZ_SRC) -lm
+
+fuzz: deps
+	@$(MAKE) --no-print-directory $(FUZZERS:%=tests/fuzz/bin/fuzz_%)
+	@for h in $(FUZZERS); do \
+	  mkdir -p tests/fuzz/bin/corpus/$$h; \
+	  echo "fuzz_$$h: $(SECONDS) s"; \
+	  tests/fuzz/bin/fuzz_$$h -max_total_time=$(SECONDS) -timeout=$(FUZZ_TIMEOUT) \
+	    -max_len=4096 -print_final_stats=1 -artifact_prefix=tests/fuzz/bin/$$h- \
+	    tests/fuzz/bin/corpus/$$h tests/fuzz/corpus/$$h >tests/fuzz/bin/$$h.log 2>&1 \
+	    || { tail -n 60 tests/fuzz/bin/$$h.log; echo "fuzz_$$h FAILED"; exit 1; }; \
+	  grep -E '^(#[0-9]+[[:space:]]+DONE|stat::number_of_executed_units|stat::slowest_unit)' \
+	    tests/fuzz/bin/$$h.log; \
+	done
+
 bench: deps $(MODULE) tests/bench/native.so tests/bench/qagi.so
 	$(LUA) tests/bench/run.lua
 
@@ -99,13 +138,15 @@ env:
 
 clean:
 	rm -rf $(MODULE) ext/asan tests/c/test_kernels tests/c/test_kernels_asan tests/bench/native.so \
-	  tests/bench/qagi.so tests/ref/gslref.so
+	  tests/bench/qagi.so tests/ref/gslref.so tests/fuzz/bin
 
 help:
 	@echo "make deps     install missing Debian packages (as root)"
 	@echo "make          build the C module $(MODULE)"
 	@echo "make test     run every test (Lua and C)"
 	@echo "make asan     the test suite under ASan + UBSan"
+	@echo "make memcheck the test suite under valgrind memcheck"
+	@echo "make fuzz     libFuzzer on the C kernels, SECONDS=N per harness (default 60)"
 	@echo "make bench    benchmarks (figures printed, nothing asserted)"
 	@echo "make demo     the demo analysis"
 	@echo "make install  PREFIX=$(PREFIX) [DESTDIR=...]"

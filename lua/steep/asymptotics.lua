@@ -1,6 +1,7 @@
 -- steep.asymptotics — J:expand, J:series and J:check: the decomposition turned into
 -- asymptotic series, truncated where asked, and verified against quadrature.
 
+local core = require "steep.core"
 local complex = require "steep.complex"
 local landscape = require "steep.landscape"
 local decompose = require "steep.decompose"
@@ -35,7 +36,83 @@ end
 M.check_order = check_order
 
 -- Saddle contribution from its ray pieces.
-local function saddle_contribution(J, params, L, j, rays, order)
+-- The part of a pole's residue term that belongs to the saddle: with the steepest path
+-- oriented as w increases, a pole whose image b lies above the real w axis is on its left.
+-- The decomposition decided sides with the traced polyline; within rounding of the path a
+-- pole can be put on the wrong side, so the side is re-decided exactly from b here.
+
+-- Uniform expansion of a simple saddle with a simple pole of the amplitude nearby (Van der
+-- Waerden, Appl. Sci. Res. B2 (1951) 33-45; Bleistein, Comm. Pure Appl. Math. 19 (1966)):
+-- G(w) = r/(w - b) + H(w) with b the pole's image under F0 - F = w^2 and r the residue of
+-- g there; the pole part is exact through the Faddeeva function,
+--   integral of e^{-w^2}/(w - b) dw over the real line = i pi w(b) (Im b > 0),
+--                                                       -i pi w(-b) (Im b < 0)
+-- (DLMF 7.7.2 with w(-z) = 2 e^{-z^2} - w(z), DLMF 7.4.3), and H by its series to any order.
+-- The jump of that integral as b crosses the real axis, 2 pi i e^{-b^2} r, is exactly the
+-- residue term the decomposition gains or loses there, so the total is continuous.
+local UNIFORM_RADIUS = 3   -- |b| below which the pole is treated uniformly (saddle widths)
+
+local function pole_near(J, params, L, s, sm, plan_residues)
+  local best
+  for idx, p in ipairs(L.singularities) do
+    if p.kind == "pole" and p.order == 1 and p.residue then
+      local Fp = J.tape:eval(p.at, params)
+      local b2 = s.F - Fp
+      local b = complex.apply("sqrt", b2)
+      local guess = sm * (p.at - s.at)
+      if cabs(-b - guess) < cabs(b - guess) then b = -b end
+      if cabs(b) < UNIFORM_RADIUS and (not best or cabs(b) < cabs(best.b)) then
+        best = { index = idx, pole = p, b = b, r = p.residue * exp_c(-Fp), Fp = Fp }
+      end
+    end
+  end
+  return best
+end
+
+local function pole_integral(b)
+  local _, bi = cparts(b)
+  local w = core.cmath.faddeeva
+  if bi >= 0 then return cnew(0, pi) * w(b) end
+  return cnew(0, -pi) * w(-b)
+end
+
+local function uniform_pole_contribution(J, params, L, j, c, near, order)
+  local s = L.saddles[j]
+  local nraw = 2 * ((order == "optimal" and 40 or order) + 2)
+  local a, F0, sm = expand.saddle_series(J, params, s.at, 2, 4)
+  -- H's coefficients: a circle in the w plane enclosing b, inside G's other singularities
+  local bmag = cabs(near.b)
+  local h, used_rho
+  for _, rho in ipairs({ bmag + 1.2, bmag + 0.8, bmag + 0.5, 1.5 * bmag + 0.2 }) do
+    local h1 = expand.circle_coefficients(J, params, s.at, F0, 2, sm, nraw, rho)
+    local h2 = expand.circle_coefficients(J, params, s.at, F0, 2, sm, nraw, 0.5 * (rho + bmag) + 0.05)
+    if h1 and h2 then
+      -- (the scale includes the pole part's size on the circle: H may vanish outright)
+      local agree = true
+      local size = cabs(h1[0]) + cabs(near.r) / math.max(bmag, 0.1)
+      for k = 0, math.min(nraw - 1, 8) do
+        if cabs(h1[k] - h2[k]) > 1e-8 * (cabs(h1[k]) + size) then agree = false end
+      end
+      if agree then h, used_rho = h1, rho; break end
+    end
+  end
+  if not h then return nil end
+  local sign = c[1]          -- +1: in along ray 2, out along ray 1 (w increasing)
+  local terms = {}
+  for k = 0, nraw / 2 - 1 do terms[#terms + 1] = h[2 * k] * expand.gamma(k + 0.5) end
+  terms[1] = terms[1] + near.r * pole_integral(near.b)
+  local scale = exp_c(F0) * sign
+  local value, err, used = expand.truncate(terms, order, scale, cabs(F0))
+  local tl = {}
+  for k = 1, used do tl[k] = terms[k] * scale end
+  return { kind = "saddle with a nearby pole (uniform, Faddeeva)", at = s.at, order = 2,
+    weights = c, F = F0, value = value, error = err, terms = tl, used = used,
+    dominance = cparts(F0), pole = near.pole.at, pole_image = near.b,
+    note = format("pole at %s lies %.3g saddle widths from the saddle (|b| = %.3g; "
+      .. "circle |w| = %.3g)", tostring(near.pole.at), bmag, bmag, used_rho) }
+end
+
+local function saddle_contribution(J, params, L, j, rays, order, plan)
   local s = L.saddles[j]
   local m = s.order
   local c = {}
@@ -46,6 +123,18 @@ local function saddle_contribution(J, params, L, j, rays, order)
     at_endpoint = at_endpoint or piece.at_endpoint
   end
   local symmetric = (m == 2 and c[1] == -c[2])
+  if symmetric and c[1] ~= 0 and L.singularities then
+    local _, _, sm = expand.saddle_series(J, params, s.at, 2, 3)
+    local near = pole_near(J, params, L, s, sm)
+    if near then
+      local u = uniform_pole_contribution(J, params, L, j, c, near, order)
+      if u then
+        -- re-decide the pole's side of this saddle's path exactly (from Im b)
+        if plan then M.fix_pole_side(plan, near, c, rays) end
+        return u
+      end
+    end
+  end
   local nraw = raw_count(order, m, symmetric)
   local a, F0 = expand.saddle_series(J, params, s.at, m, nraw)
   local terms, powers = expand.saddle_terms(a, F0, m, c, nraw)
@@ -158,6 +247,44 @@ function M.local_plan(J, L, plan)
     stokes = plan.stokes, is_local = true }
 end
 
+-- The traced path is a polyline; a pole within its chord error of the exact path may
+-- have been put on the wrong side. The exact side: left of the path (w increasing) iff
+-- Im b > 0. If the polyline says otherwise, the winding about the pole changes by the
+-- saddle's weight c1 (the pole crossing the path from right to left adds c1).
+function M.fix_pole_side(plan, near, c, rays)
+  local ray1, ray2
+  for _, piece in ipairs(rays) do
+    if piece.ray == 1 then ray1 = piece.points elseif piece.ray == 2 then ray2 = piece.points end
+  end
+  if not (ray1 and ray2) then return end
+  local poly = {}
+  for k = #ray2, 2, -1 do poly[#poly + 1] = ray2[k] end
+  for k = 1, #ray1 do poly[#poly + 1] = ray1[k] end
+  -- side relative to the polyline: nearest segment's orientation
+  local best, side_poly = huge, 0
+  for k = 1, #poly - 1 do
+    local a, b2 = poly[k], poly[k + 1]
+    local d = b2 - a
+    local u = (near.pole.at - a) / d
+    local ur = math.max(0, math.min(1, (cparts(u))))
+    local q = a + d * ur
+    local dist = cabs(near.pole.at - q)
+    if dist < best then
+      best = dist
+      local _, im = cparts((near.pole.at - a) / d)
+      side_poly = im > 0 and 1 or -1
+    end
+  end
+  local _, bi = cparts(near.b)
+  local side_exact = bi > 0 and 1 or -1
+  if side_poly == side_exact then return end
+  local delta = side_exact > 0 and c[1] or -c[1]
+  for _, r in ipairs(plan.residues) do
+    if r.index == near.index then r.winding = r.winding + delta; return end
+  end
+  plan.residues[#plan.residues + 1] = { index = near.index, winding = delta }
+end
+
 --- expand(J, params, opts) -> result
 function M.expand(J, params, opts)
   local order = check_order(opts.order or 1, "expand")
@@ -191,13 +318,13 @@ function M.expand(J, params, opts)
     end
   end
   for _, j in ipairs(order_seen) do
-    local c = saddle_contribution(J, params, L, j, by_saddle[j], order)
+    local c = saddle_contribution(J, params, L, j, by_saddle[j], order, plan)
     local zero = true
     for _, w in ipairs(c.weights) do if w ~= 0 then zero = false end end
     if not zero then contributions[#contributions + 1] = c end
   end
   for _, r in ipairs(plan.residues) do
-    contributions[#contributions + 1] = residue_contribution(L, r)
+    if r.winding ~= 0 then contributions[#contributions + 1] = residue_contribution(L, r) end
   end
   table.sort(contributions, function(a, b) return a.dominance > b.dominance end)
   local value, err = cnew(0, 0), 0

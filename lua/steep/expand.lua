@@ -59,45 +59,106 @@ end
 -- convergence (ext/invmap.c explains why: series reversion loses digits geometrically
 -- when G converges further out than the map's own series). The radius is estimated from
 -- the series coefficients a (reliable at low order); the result replaces a where the
--- circle could be used, with the trapezoidal rule's own error estimate. Returns the
--- coefficients and how they were obtained.
+-- circle could be used. Returns the coefficients and how they were obtained.
+local EPS = 2.220446049250313e-16
+--- circle_coefficients(J, params, t0, F0, m, s, n, rho) -> c[0..n-1] or nil: the
+-- coefficients (1/2 pi i) of the integral of G(w) w^(-k-1) over |w| = rho. Inside the
+-- disc of convergence they are G's Taylor coefficients; a circle that also encloses a
+-- simple pole r/(w - b) of G gives those of G - r/(w - b) instead (the pole's own part
+-- has no net residue: r/(w - b) w^(-k-1) decays like w^(-k-2)).
+function M.circle_coefficients(J, params, t0, F0, m, s, n, rho)
+  local N = 256
+  while N < 4 * n do N = N * 2 end
+  local st, G = core.invmap_circle(J.tape, params, t0, F0, m, s, rho, N)
+  if st ~= "ok" then return nil end
+  local out = {}
+  for k = 0, n - 1 do
+    local sum = cnew(0, 0)
+    for j = 0, N - 1 do sum = sum + G:get(j + 1) * expi(-2 * pi * ((j * k) % N) / N) end
+    out[k] = sum / (N * rho ^ k)
+  end
+  return out
+end
+
 local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
+  if n <= 6 then return a, "series" end
+  -- root test on the coefficients relative to the largest of a_0..a_2 (so that an overall
+  -- scale, as the 1/x of 1/(x + w), does not inflate the estimate)
+  local S = math.max(cabs(a[0]), cabs(a[1]), cabs(a[2]))
   local R = huge
   for k = 3, math.min(n - 1, 16) do
     local v = cabs(a[k])
-    if v > 0 then R = math.min(R, v ^ (-1 / k)) end
+    if v > 0 and S > 0 then R = math.min(R, (v / S) ^ (-1 / k)) end
   end
-  if R == huge or n <= 6 then return a, "series" end
+  if R == huge then return a, "series" end
   local N = 256
   while N < 4 * n do N = N * 2 end
-  local roots = {}
-  for j = 0, N - 1 do roots[j] = expi(-2 * pi * j / N) end
+  local cs, sn = {}, {}
+  for j = 0, N - 1 do cs[j], sn[j] = math.cos(2 * pi * j / N), -math.sin(2 * pi * j / N) end
+  -- coefficients 0..n-1 on |w| = rho by the trapezoidal rule, and the rounding level of
+  -- coefficient k: a few units of max |G| on the circle, over rho^k
   local function on_circle(rho)
     local st, G = core.invmap_circle(J.tape, params, t0, F0, m, s, rho, N)
     if st ~= "ok" then return nil end
-    local out = {}
-    for k = 0, n - 1 do
-      local sum = cnew(0, 0)
-      for j = 0, N - 1 do sum = sum + G:get(j + 1) * roots[(j * k) % N] end
-      out[k] = sum / (N * rho ^ k)
+    local gr, gi, gmax = {}, {}, 0
+    for j, z in ipairs(G:totable()) do
+      gr[j - 1], gi[j - 1] = z[1], z[2]
+      gmax = math.max(gmax, math.sqrt(z[1] * z[1] + z[2] * z[2]))
     end
-    return out
+    local out, lvl = {}, {}
+    for k = 0, n - 1 do
+      local sr, si, idx = 0, 0, 0
+      for j = 0, N - 1 do
+        local c, d = cs[idx], sn[idx]
+        sr = sr + gr[j] * c - gi[j] * d
+        si = si + gr[j] * d + gi[j] * c
+        idx = idx + k
+        if idx >= N then idx = idx - N end
+      end
+      local f = 1 / (N * rho ^ k)
+      out[k] = cnew(sr * f, si * f)
+      lvl[k] = 64 * EPS * gmax / rho ^ k
+    end
+    return out, lvl
   end
-  -- The estimate R can be high: a circle past a pole of G would silently add its
-  -- residue. So two radii must agree at low order before the larger is trusted; the
-  -- relative error at order k then grows like (R/rho)^k times the rounding level.
-  local fracs = { 0.85, 0.6, 0.42, 0.3 }
+  -- A circle past a pole of G would silently add its residue (two such circles in the
+  -- same annulus agree with each other), and one close to a pole carries an aliasing error
+  -- ~ (rho/R)^N. So a circle is trusted only if its low-order coefficients agree with the
+  -- series (reliable there) and all of the first ones with those of a smaller circle, to
+  -- the smaller circle's rounding level.
+  local fracs = { 0.85, 0.6, 0.42, 0.3, 0.21 }
+  local circles = {}
+  local function circle(i)
+    if circles[i] == nil then
+      local out, lvl = on_circle(fracs[i] * R)
+      circles[i] = out and { out, lvl } or false
+    end
+    return circles[i]
+  end
   for i = 1, #fracs - 1 do
-    local big, small = on_circle(fracs[i] * R), on_circle(fracs[i + 1] * R)
-    if big and small then
-      local agree = true
+    local big = circle(i)
+    local ok = big and true or false
+    if ok then
+      for k = 0, math.min(n - 1, 4) do
+        if cabs(big[1][k] - a[k]) > 1e-9 * (cabs(a[k]) + cabs(big[1][k])) + big[2][k] then
+          ok = false
+          break
+        end
+      end
+    end
+    local small = ok and circle(i + 1)
+    if small then
       for k = 0, math.min(n - 1, 10) do
-        local scale = cabs(big[k]) + cabs(a[k]) + 1e-300
-        if cabs(big[k] - small[k]) > 1e-8 * scale + 1e-14 * cabs(big[0]) then agree = false end
+        if cabs(big[1][k] - small[1][k]) > 1e-13 * cabs(small[1][k]) + small[2][k] + big[2][k] then
+          ok = false
+          break
+        end
       end
-      if agree then
-        return big, format("Cauchy integral on |w| = %.4g (%d points)", fracs[i] * R, N)
-      end
+    else
+      ok = false
+    end
+    if ok then
+      return big[1], format("Cauchy integral on |w| = %.4g (%d points)", fracs[i] * R, N)
     end
   end
   return a, "series (no circle could be trusted)"
