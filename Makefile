@@ -8,7 +8,7 @@ LUA_SHARE   = $(PREFIX)/share/lua/5.4
 
 # Debian packages the build and the tests need (make deps installs the missing ones).
 DEB_PACKAGES = gcc make pkg-config lua5.4 liblua5.4-dev libgsl-dev libcerf-dev lua-unit \
-               valgrind clang libclang-rt-14-dev
+               valgrind clang libclang-rt-14-dev librsvg2-bin
 
 CC         ?= cc
 WARN        = -std=c99 -Wall -Wextra -Werror
@@ -47,6 +47,15 @@ tests/c/test_kernels_asan: tests/c/test_kernels.c $(KERNEL_SRC) $(HDR)
 tests/ref/gslref.so: tests/ref/gslref.c
 	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) $(CFLAGS) -o $@ tests/ref/gslref.c $(PKG_LIBS) -lcerf -lm $(LDFLAGS)
 
+# A C program embedding Lua with the extension linked in, two threads with a lua_State
+# each (tests/embed/host.c; tests/test_embed.lua runs it).
+EMBED_LIBS = $(shell pkg-config --libs lua5.4) $(PKG_LIBS) -lm
+tests/embed/host: tests/embed/host.c $(SRC) $(HDR)
+	$(CC) $(WARN) -O2 -pthread $(PKG_CFLAGS) -Iext -o $@ tests/embed/host.c $(SRC) $(EMBED_LIBS)
+
+tests/embed/host_asan: tests/embed/host.c $(SRC) $(HDR)
+	$(CC) $(WARN) -O1 -g -pthread $(SAN_FLAGS) $(PKG_CFLAGS) -Iext -o $@ tests/embed/host.c $(SRC) $(EMBED_LIBS)
+
 deps:
 	@missing=$$(for p in $(DEB_PACKAGES); do \
 	    dpkg-query -W -f='$${Status}\n' $$p 2>/dev/null | grep -q '^install ok installed' || echo $$p; \
@@ -61,15 +70,17 @@ deps:
 	fi
 
 test: deps
-	@$(MAKE) --no-print-directory $(MODULE) tests/c/test_kernels tests/ref/gslref.so
+	@$(MAKE) --no-print-directory $(MODULE) tests/c/test_kernels tests/ref/gslref.so tests/embed/host
 	$(LUA) tests/run.lua
 
 # The whole suite with AddressSanitizer and UndefinedBehaviorSanitizer. lua5.4 itself is
 # not instrumented, so the ASan runtime is preloaded.
 asan: deps
-	@$(MAKE) --no-print-directory $(ASAN_MODULE) tests/c/test_kernels_asan tests/ref/gslref.so
+	@$(MAKE) --no-print-directory $(ASAN_MODULE) tests/c/test_kernels_asan tests/ref/gslref.so \
+	  tests/embed/host_asan
 	LD_PRELOAD=$$($(CC) -print-file-name=libasan.so) ASAN_OPTIONS=detect_leaks=1 \
 	  STEEP_CPATH='ext/asan/?.so' STEEP_KERNEL_TESTS=tests/c/test_kernels_asan \
+	  STEEP_EMBED_HOST=tests/embed/host_asan \
 	  $(LUA) tests/run.lua
 
 # The whole suite (and the C kernel tests) under valgrind's memcheck, plain build. A
@@ -77,7 +88,7 @@ asan: deps
 VALGRIND = valgrind -q --leak-check=full --show-leak-kinds=definite,indirect \
            --errors-for-leak-kinds=definite,indirect --error-exitcode=1
 memcheck: deps
-	@$(MAKE) --no-print-directory $(MODULE) tests/c/test_kernels tests/ref/gslref.so
+	@$(MAKE) --no-print-directory $(MODULE) tests/c/test_kernels tests/ref/gslref.so tests/embed/host
 	STEEP_KERNEL_TESTS='$(VALGRIND) tests/c/test_kernels' $(VALGRIND) $(LUA) tests/run.lua
 
 # libFuzzer harnesses of the C kernels (tests/fuzz/, no Lua), with ASan and UBSan.
@@ -138,7 +149,8 @@ env:
 
 clean:
 	rm -rf $(MODULE) ext/asan tests/c/test_kernels tests/c/test_kernels_asan tests/bench/native.so \
-	  tests/bench/qagi.so tests/ref/gslref.so tests/fuzz/bin
+	  tests/bench/qagi.so tests/ref/gslref.so tests/fuzz/bin \
+	  tests/embed/host tests/embed/host_asan
 
 help:
 	@echo "make deps     install missing Debian packages (as root)"

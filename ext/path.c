@@ -101,7 +101,7 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
       return PATH_HIGH;
     }
     if (cabs(t - o->center) > o->radius) return PATH_EDGE;
-    if (!accepted || cabs(dF) * o->scale <= 1e-12 * (1 + cabs(F))) return PATH_FLAT;
+    if (!accepted || cabs(dF) * o->scale <= 1e-14 * (1 + cabs(F))) return PATH_FLAT;
     if (*n >= maxpts) return PATH_BOUND;
   }
   return PATH_BOUND;
@@ -110,7 +110,7 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
 int path_saddle_starts(problem *p, cplx t0, cplx F0, int order, cplx c, int descent,
                        double scale, cplx *starts) {
   const double pi = 3.141592653589793;
-  double delta = fmin(pow(1e-2 / cabs(c), 1.0 / order), 0.05 * scale);
+  double delta = fmin(pow(1e-2 / cabs(c), 1.0 / order), 2 * scale);
   for (int k = 0; k < order; k++) {
     /* descent: c u^m real negative; ascent: real positive */
     double alpha = ((descent ? pi : 0) - carg(c) + 2 * pi * k) / order;

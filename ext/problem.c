@@ -23,7 +23,8 @@ int problem_jet(problem *p, cplx x, size_t order, int out, cplx *coef) {
   long bad;
   if (order > PROBLEM_MAX_JET) order = PROBLEM_MAX_JET;
   p->evals++;
-  int st = tape_jet(p->t, x, p->params, order, p->work, p->scratch, &bad);
+  int st = tape_jet_upto(p->t, x, p->params, order, p->work, p->scratch, &bad,
+                         (size_t)p->t->out[out]);
   if (st != STEEP_OK) return st;
   memcpy(coef, p->work + (size_t)p->t->out[out] * (order + 1), (order + 1) * sizeof(cplx));
   return STEEP_OK;

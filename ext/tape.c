@@ -213,8 +213,13 @@ static int jet1(const tape *t, size_t j, cplx *w, const cplx *a, const cplx *b, 
 
 int tape_jet(const tape *t, cplx x, const cplx *params, size_t order, cplx *work,
              cplx *scratch, long *bad) {
+  return tape_jet_upto(t, x, params, order, work, scratch, bad, t->n - 1);
+}
+
+int tape_jet_upto(const tape *t, cplx x, const cplx *params, size_t order, cplx *work,
+                  cplx *scratch, long *bad, size_t upto) {
   size_t n = order + 1;
-  for (size_t j = 0; j < t->n; j++) {
+  for (size_t j = 0; j <= upto && j < t->n; j++) {
     const tape_ins *in = &t->ins[j];
     cplx *w = work + j * n;
     const cplx *a = in->a >= 0 ? work + (size_t)in->a * n : NULL;

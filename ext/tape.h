@@ -66,4 +66,10 @@ void tape_eval_batch(const tape *t, const cplx *xs, size_t m, const cplx *params
 int tape_jet(const tape *t, cplx x, const cplx *params, size_t order, cplx *work,
              cplx *scratch, long *bad);
 
+/* As tape_jet, but only instructions 0..upto (those an output at slot upto can depend
+ * on: operands always precede their users), so that a singular amplitude does not stop
+ * the jet of the exponent compiled before it. */
+int tape_jet_upto(const tape *t, cplx x, const cplx *params, size_t order, cplx *work,
+                  cplx *scratch, long *bad, size_t upto);
+
 #endif

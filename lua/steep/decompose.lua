@@ -114,6 +114,46 @@ local function closure_to_valley(L, z, k, Rref)
   return pts
 end
 
+--- If the contour passes through z (not at an end): its incoming and outgoing directions
+-- there, {din =, dout =}; else nil.
+function M.passes_through(contour, z, R)
+  local tol = 1e-9 * R
+  local pieces = contour.pieces
+  local function dir_of(p)
+    if p.kind == "segment" then return carg(p.b - p.a) end
+    if p.kind == "ray_out" then return p.angle end
+    if p.kind == "ray_in" then return p.angle + pi end
+  end
+  for i, p in ipairs(pieces) do
+    if p.kind == "arc" then
+      local d = cabs(z - p.center)
+      if abs(d - p.radius) <= tol then
+        local sign = p.to > p.from and 1 or -1
+        local th = carg(z - p.center) + sign * pi / 2
+        return { din = th, dout = th }
+      end
+    else
+      -- interior of the piece
+      local a = p.a or p.b
+      local dir = expi(dir_of(p))
+      local rel = (z - a) / dir
+      local along, off = cparts(rel)
+      local len = p.kind == "segment" and cabs(p.b - p.a) or huge
+      if p.kind == "ray_in" then along = -along end
+      if abs(off) <= tol and along > tol and along < len - tol then
+        return { din = dir_of(p), dout = dir_of(p) }
+      end
+      -- a vertex between this piece and the next
+      local nextp = pieces[i + 1]
+      local finish = p.kind == "segment" and p.b or (p.kind == "ray_in" and p.b) or nil
+      if nextp and finish and cabs(finish - z) <= tol then
+        return { din = dir_of(p), dout = dir_of(nextp) }
+      end
+    end
+  end
+  return nil
+end
+
 --- decompose(J, params, L, contour) -> plan
 -- plan.pieces: list of {kind = "saddle" | "endpoint", index (saddle), ray (its descent
 -- ray), weight, points (for quadrature, outward), ends = {from label, to label}};
@@ -194,7 +234,24 @@ function M.decompose(J, params, L, contour)
     local m = s.order
     local weights = {}
     local at_end = endpoint_saddle[j]
-    if at_end then
+    local through = not at_end and M.passes_through(contour, s.at, R)
+    local function nearest_ray(direction)
+      local best, bk = huge, 1
+      for k, p in ipairs(paths.descent) do
+        local d = abs(landscape.norm_angle(carg(p.points[2] - s.at) - direction))
+        if d < best then best, bk = d, k end
+      end
+      return bk
+    end
+    if through then
+      -- the contour runs through the saddle itself: in along the ray opposite to its
+      -- incoming direction, out along the ray nearest its outgoing one (crossings with
+      -- ascent paths that start on the contour would be fragile)
+      for k = 1, m do weights[k] = 0 end
+      local kin, kout = nearest_ray(through.din + pi), nearest_ray(through.dout)
+      weights[kout] = weights[kout] + 1
+      weights[kin] = weights[kin] - 1
+    elseif at_end then
       -- the contour starts (or ends) at this saddle: it leaves along the descent ray
       -- nearest its own direction there
       local best, bk = huge, 1
@@ -280,6 +337,15 @@ function M.decompose(J, params, L, contour)
     return nil
   end
   for idx, s in ipairs(L.singularities) do
+    -- a singular point at a finite end of the contour is an integrable endpoint
+    -- singularity (checked by check_contour); the endpoint's path starts there
+    local at_contour_end = false
+    if not contour.closed then
+      for _, e in ipairs({ contour:start(), contour:finish() }) do
+        if not contour_m.is_inf(e) and cabs(e - s.at) <= 1e-9 * R then at_contour_end = true end
+      end
+    end
+    if at_contour_end then goto next_singularity end
     local w = 0
     local function add(poly, sign)
       local t = core.turning(poly, s.at)
@@ -330,6 +396,7 @@ function M.decompose(J, params, L, contour)
           .. "(%s); only poles can be crossed", s.kind, tostring(s.at), s.source)
       end
     end
+    ::next_singularity::
   end
   return plan
 end

@@ -55,12 +55,32 @@ local function ser(list, n)
   return series(t)
 end
 
--- The coefficients of G(w) by Cauchy's formula on a circle inside G's disc of
--- convergence (ext/invmap.c explains why: series reversion loses digits geometrically
--- when G converges further out than the map's own series). The radius is estimated from
--- the series coefficients a (reliable at low order); the result replaces a where the
--- circle could be used. Returns the coefficients and how they were obtained.
-local EPS = 2.220446049250313e-16
+-- In-place radix-2 FFT of (re, im)[0..N-1], N a power of two: X_k = sum_j x_j e^{-2 pi i jk/N}.
+-- cs[j], sn[j] = cos, sin of 2 pi j/Nt for a table of Nt >= N points (Nt/N an integer).
+local function fft(re, im, N, cs, sn, Nt)
+  local j = 0
+  for i = 0, N - 2 do
+    if i < j then re[i], re[j], im[i], im[j] = re[j], re[i], im[j], im[i] end
+    local bit = N >> 1
+    while j & bit ~= 0 do j = j ~ bit; bit = bit >> 1 end
+    j = j | bit
+  end
+  local len = 2
+  while len <= N do
+    local half, step = len >> 1, Nt // len
+    for start = 0, N - 1, len do
+      for q = 0, half - 1 do
+        local c, d = cs[q * step], -sn[q * step]
+        local a, b = start + q, start + q + half
+        local xr, xi = re[b] * c - im[b] * d, re[b] * d + im[b] * c
+        re[b], im[b] = re[a] - xr, im[a] - xi
+        re[a], im[a] = re[a] + xr, im[a] + xi
+      end
+    end
+    len = len << 1
+  end
+end
+
 --- circle_coefficients(J, params, t0, F0, m, s, n, rho) -> c[0..n-1] or nil: the
 -- coefficients (1/2 pi i) of the integral of G(w) w^(-k-1) over |w| = rho. Inside the
 -- disc of convergence they are G's Taylor coefficients; a circle that also encloses a
@@ -80,10 +100,24 @@ function M.circle_coefficients(J, params, t0, F0, m, s, n, rho)
   return out
 end
 
+-- The coefficients of G(w) by Cauchy's formula on a circle inside G's disc of
+-- convergence (ext/invmap.c explains why: series reversion loses digits geometrically
+-- when G converges further out than the map's own series). The trapezoidal rule on
+-- |w| = rho gives coefficient k with a rounding error ~ u max|G| / rho^k and an aliasing
+-- error ~ (rho/R)^N (R the radius of convergence): the circle should be as large as
+-- aliasing allows. A circle is trusted only if
+--   * its low-order coefficients agree with the series a (reliable there): a circle past
+--     a pole of G would silently add the pole's residue to every coefficient;
+--   * the rule on every other point (N/2) agrees to 1e-7 relative, so that the error of
+--     the N-point rule, about the square of that, is near rounding.
+-- The radius starts at 0.8 times an estimate of R from the coefficients a and shrinks
+-- until both hold (N is doubled once first when only the second fails). Returns the
+-- coefficients and how they were obtained.
+local EPS = 2.220446049250313e-16
 local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
   if n <= 6 then return a, "series" end
   -- root test on the coefficients relative to the largest of a_0..a_2 (so that an overall
-  -- scale, as the 1/x of 1/(x + w), does not inflate the estimate)
+  -- scale, as the 1/x of 1/(x + w), does not bias the estimate)
   local S = math.max(cabs(a[0]), cabs(a[1]), cabs(a[2]))
   local R = huge
   for k = 3, math.min(n - 1, 16) do
@@ -91,74 +125,69 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
     if v > 0 and S > 0 then R = math.min(R, (v / S) ^ (-1 / k)) end
   end
   if R == huge then return a, "series" end
-  local N = 256
-  while N < 4 * n do N = N * 2 end
-  local cs, sn = {}, {}
-  for j = 0, N - 1 do cs[j], sn[j] = math.cos(2 * pi * j / N), -math.sin(2 * pi * j / N) end
-  -- coefficients 0..n-1 on |w| = rho by the trapezoidal rule, and the rounding level of
-  -- coefficient k: a few units of max |G| on the circle, over rho^k
-  local function on_circle(rho)
+  local N0 = 512
+  while N0 < 4 * n do N0 = N0 * 2 end
+  local tables = {}
+  local function table_for(N)
+    if not tables[N] then
+      local cs, sn = {}, {}
+      for j = 0, N - 1 do cs[j], sn[j] = math.cos(2 * pi * j / N), math.sin(2 * pi * j / N) end
+      tables[N] = { cs, sn }
+    end
+    return tables[N][1], tables[N][2]
+  end
+  -- coefficients 0..n-1 on |w| = rho with N and with N/2 points, and rounding levels
+  local function on_circle(rho, N)
     local st, G = core.invmap_circle(J.tape, params, t0, F0, m, s, rho, N)
     if st ~= "ok" then return nil end
-    local gr, gi, gmax = {}, {}, 0
+    local re, im, re2, im2, gmax = {}, {}, {}, {}, 0
     for j, z in ipairs(G:totable()) do
-      gr[j - 1], gi[j - 1] = z[1], z[2]
+      re[j - 1], im[j - 1] = z[1], z[2]
+      if (j - 1) % 2 == 0 then re2[(j - 1) // 2], im2[(j - 1) // 2] = z[1], z[2] end
       gmax = math.max(gmax, math.sqrt(z[1] * z[1] + z[2] * z[2]))
     end
-    local out, lvl = {}, {}
+    local cs, sn = table_for(N)
+    fft(re, im, N, cs, sn, N)
+    fft(re2, im2, N // 2, cs, sn, N)
+    local c, c2, lvl = {}, {}, {}
     for k = 0, n - 1 do
-      local sr, si, idx = 0, 0, 0
-      for j = 0, N - 1 do
-        local c, d = cs[idx], sn[idx]
-        sr = sr + gr[j] * c - gi[j] * d
-        si = si + gr[j] * d + gi[j] * c
-        idx = idx + k
-        if idx >= N then idx = idx - N end
+      local rk = rho ^ k
+      c[k] = cnew(re[k] / (N * rk), im[k] / (N * rk))
+      if k < N // 2 then c2[k] = cnew(re2[k] / (N / 2 * rk), im2[k] / (N / 2 * rk)) end
+      lvl[k] = 64 * EPS * gmax / rk
+    end
+    return c, c2, lvl
+  end
+  local rho, N, doubled = 0.8 * R, N0, false
+  for _ = 1, 12 do
+    local c, c2, lvl = on_circle(rho, N)
+    local ok_series, ok_alias = c ~= nil, c ~= nil
+    if c then
+      -- a coefficient that vanishes is compared with the natural size at its order: the
+      -- largest lower one carried to the circle, max_{j<=k} |a_j| rho^j / rho^k
+      local size = 0
+      for k = 0, math.min(n - 1, 8) do
+        size = math.max(size, cabs(a[k]) * rho ^ k)
+        if cabs(c[k] - a[k]) > 1e-7 * math.max(cabs(a[k]), cabs(c[k])) + 1e-9 * size / rho ^ k
+            + 2 * lvl[k] then
+          ok_series = false
+          break
+        end
       end
-      local f = 1 / (N * rho ^ k)
-      out[k] = cnew(sr * f, si * f)
-      lvl[k] = 64 * EPS * gmax / rho ^ k
-    end
-    return out, lvl
-  end
-  -- A circle past a pole of G would silently add its residue (two such circles in the
-  -- same annulus agree with each other), and one close to a pole carries an aliasing error
-  -- ~ (rho/R)^N. So a circle is trusted only if its low-order coefficients agree with the
-  -- series (reliable there) and all of the first ones with those of a smaller circle, to
-  -- the smaller circle's rounding level.
-  local fracs = { 0.85, 0.6, 0.42, 0.3, 0.21 }
-  local circles = {}
-  local function circle(i)
-    if circles[i] == nil then
-      local out, lvl = on_circle(fracs[i] * R)
-      circles[i] = out and { out, lvl } or false
-    end
-    return circles[i]
-  end
-  for i = 1, #fracs - 1 do
-    local big = circle(i)
-    local ok = big and true or false
-    if ok then
-      for k = 0, math.min(n - 1, 4) do
-        if cabs(big[1][k] - a[k]) > 1e-9 * (cabs(a[k]) + cabs(big[1][k])) + big[2][k] then
-          ok = false
+      for k = 0, math.min(n - 1, N // 8) do
+        if cabs(c[k] - c2[k]) > 1e-7 * cabs(c[k]) + 4 * lvl[k] then
+          ok_alias = false
           break
         end
       end
     end
-    local small = ok and circle(i + 1)
-    if small then
-      for k = 0, math.min(n - 1, 10) do
-        if cabs(big[1][k] - small[1][k]) > 1e-13 * cabs(small[1][k]) + small[2][k] + big[2][k] then
-          ok = false
-          break
-        end
-      end
+    if ok_series and ok_alias then
+      return c, format("Cauchy integral on |w| = %.4g (%d points)", rho, N)
+    end
+    if ok_series and not doubled and N < 8192 then
+      N, doubled = 2 * N, true
     else
-      ok = false
-    end
-    if ok then
-      return big[1], format("Cauchy integral on |w| = %.4g (%d points)", fracs[i] * R, N)
+      rho, N, doubled = 0.85 * rho, N0, false
     end
   end
   return a, "series (no circle could be trusted)"

@@ -374,12 +374,12 @@ end
 -- may reach past pi). type: "polynomial" (exact sectors of c t^n), "edge" (a single
 -- direction where only a power of |t| makes it decay), "exponential" or "numerical"
 -- (found by sampling, indicative).
-function M.valleys(J, params, region)
-  local c, R = region.center, region.radius
-  local R1, R2, R3 = 4 * R, 8 * R, 16 * R
-  local l1, F1 = ring(J.tape, params, c, R1)
-  local l2, F2 = ring(J.tape, params, c, R2)
-  local l3, F3 = ring(J.tape, params, c, R3)
+-- Polynomial-type growth seen on rings of radius f*4R, f*8R, f*16R: the sectors of the
+-- leading term a t^n, or nil when the growth is not (yet) that of a power.
+local function polynomial_valleys(J, params, c, R, f)
+  local R1, R2, R3 = f * 4 * R, f * 8 * R, f * 16 * R
+  local _, F2 = ring(J.tape, params, c, R2)
+  local _, F3 = ring(J.tape, params, c, R3)
   -- growth exponent: median of log2 |F(R3)| / |F(R2)|
   local ratios = {}
   for k = 1, NANG do
@@ -400,7 +400,12 @@ function M.valleys(J, params, region)
     end
     s2, s3 = s2 / NANG, s3 / NANG
     if cabs(s3) > 0 and cabs(s2 - s3) < 0.05 * cabs(s3) then
+      -- the fitted phase carries the lower-order terms' share (log R / R, say); a
+      -- phase within 5e-3 of a multiple of pi/12 is taken to be it exactly (real and
+      -- imaginary leading coefficients are the rule)
       local phi = carg(s3)
+      local k12 = math.floor(phi / (pi / 12) + 0.5)
+      if abs(phi - k12 * pi / 12) < 5e-3 then phi = k12 * pi / 12 end
       for k = 0, n - 1 do
         local from = (pi / 2 - phi + 2 * pi * k) / n
         local to = (3 * pi / 2 - phi + 2 * pi * k) / n
@@ -429,8 +434,33 @@ function M.valleys(J, params, region)
       return valleys, { growth = n, leading = s3 }
     end
   end
+  return nil
+end
+
+function M.valleys(J, params, region)
+  local c, R = region.center, region.radius
+  -- lower-order terms (a log, say) can hide the power at first: look further out too
+  for _, f in ipairs({ 1, 16, 256 }) do
+    local v, info = polynomial_valleys(J, params, c, R, f)
+    if v then return v, info end
+  end
+  local R1, R2, R3
+  local l1, l2, l3
+  local valleys = {}
   -- otherwise by sampling, just outside the region (far out, exponential growth
   -- overflows): decaying from R1 to R3 and far below the level at R1
+  local nest = 0
+  do
+    local _, Fa = ring(J.tape, params, c, 8 * R)
+    local _, Fb = ring(J.tape, params, c, 16 * R)
+    local ratios = {}
+    for k = 1, NANG do
+      local a, b = cabs(Fa[k]), cabs(Fb[k])
+      if a > 0 and b > 0 and a < huge and b < huge then ratios[#ratios + 1] = log(b / a) / log(2) end
+    end
+    table.sort(ratios)
+    nest = ratios[floor(#ratios / 2) + 1] or huge
+  end
   R1, R2, R3 = 1.25 * R, 1.6 * R, 2 * R
   l1 = ring(J.tape, params, c, R1)
   l2 = ring(J.tape, params, c, R2)
@@ -460,19 +490,23 @@ end
 -- but convergent, as e^{i t^3} on the real line).
 function M.valley_of(valleys, th, tol)
   tol = tol or 1e-9
-  local boundary
+  local boundary, edge
   for k, v in ipairs(valleys) do
     local d = norm_angle(th - v.from)
     local width = v.to - v.from
     if v.type == "edge" then
-      if abs(d) <= tol then return k, false end
+      if abs(d) <= math.max(tol, 1e-6) then edge = edge or k end
     elseif d > tol and d < width - tol then
       return k, false
-    elseif abs(d) <= tol or abs(d - width) <= tol then
+    elseif abs(d) <= math.max(tol, 1e-6) or abs(d - width) <= math.max(tol, 1e-6) then
       boundary = boundary or k
     end
   end
-  if boundary then return boundary, true end
+  -- an end on the edge of a sector belongs to that sector: where the integrand still
+  -- decays along the edge (an "edge" valley) the end swings into the sector across an
+  -- arc on which it decays, so both name the same end (Jordan's lemma)
+  if boundary then return boundary, edge == nil end
+  if edge then return edge, false end
   return nil
 end
 
@@ -590,6 +624,12 @@ function M.trace(J, params, L, start, level, descent, opts)
   opts = opts or {}
   local R = L.region.radius
   local stops, radii, what = stop_points(L, opts.skip_saddle, descent)
+  -- a path that starts at a stop point (an endpoint on a branch point) must leave it
+  for k = #stops, 1, -1 do
+    if cabs(stops[k] - start) <= 2 * radii[k] then
+      table.remove(stops, k); table.remove(radii, k); table.remove(what, k)
+    end
+  end
   local ref = opts.ref or cparts(level)
   local pts, Fs, reason, which, evals = core.trace(J.tape, params, start, level, {
     descent = descent, cutoff = opts.cutoff or 50, ref = ref, center = L.region.center,
@@ -597,6 +637,11 @@ function M.trace(J, params, L, start, level, descent, opts)
     stops = stops, stop_r = radii })
   local path = { points = cvec_list(pts), reason = reason, evals = evals,
     level = level, descent = descent }
+  if #path.points == 0 then
+    -- F or F' is not finite at the start itself (a log point of the exponent, say)
+    path.points, path.tail, path.ends, path.tail_reason = { start }, {}, "singular", reason
+    return path
+  end
   local last = path.points[#path.points]
   local tail_reason, tail_which = reason, which
   path.tail = {}

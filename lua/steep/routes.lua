@@ -90,16 +90,12 @@ function M.rescale(J, opts)
     error("rescale: option 't' must be an expression in " .. s.name .. " (t = x^a * s, ...)", 3)
   end
   -- every symbol of t must be s or a parameter: a variable other than s is unknown here
-  local known = { [s.name] = true }
-  for _, name in ipairs(J.params) do known[name] = true end
+  -- (a parameter not yet in J is fine: it is bound at evaluation), even one that shares
+  -- its name with a parameter
   for _, name in ipairs(T:symbols()) do
-    if not known[name] then
-      local isvar = expr.symbol("var", name)
-      -- a parameter not yet in J is fine (it is bound at evaluation); a variable is not
-      if T:depends_on(isvar) then
-        error(format("rescale: the substitution names the variable '%s', which is neither "
-          .. "the new variable %s nor a parameter", name, s.name), 3)
-      end
+    if name ~= s.name and T:depends_on(expr.symbol("var", name)) then
+      error(format("rescale: the substitution names the variable '%s', which is neither "
+        .. "the new variable %s nor a parameter", name, s.name), 3)
     end
   end
   local at = opts.at or {}
@@ -778,11 +774,22 @@ function M.sweep(J, opts)
   return out
 end
 
-local function csv_num(v)
-  if v == nil then return "" end
+-- A complex column is two fields (re, im), a real column one; a missing value (a failed
+-- row) leaves its fields empty, so every line has as many fields as the header.
+local function csv_complex(v)
+  if v == nil then return "," end
   local re, im = cparts(v)
-  if re then return format("%.17g,%.17g", re, im) end
-  return tostring(v)
+  return format("%.17g,%.17g", re, im)
+end
+
+local function csv_real(v)
+  if v == nil then return "" end
+  return format("%.17g", (cparts(v)))
+end
+
+-- A quoted text field: inner quotes and line breaks would split the field or the line.
+local function csv_text(s)
+  return '"' .. (s or ""):gsub('"', "'"):gsub("[\r\n]+", " ") .. '"'
 end
 
 function M.sweep_csv(sw, header)
@@ -792,10 +799,10 @@ function M.sweep_csv(sw, header)
       .. "quad_re,quad_im,quad_error,relative_error,estimated,agrees,stokes,valleys,failure"
   end
   for _, r in ipairs(sw.rows) do
-    lines[#lines + 1] = table.concat({ csv_num(r.x), csv_num(r.expansion), csv_num(r.error),
-      csv_num(r.quad), csv_num(r.quad_error), csv_num(r.relative_error), csv_num(r.estimated),
-      tostring(r.agrees), tostring(r.stokes or false), '"' .. (r.valleys or "") .. '"',
-      '"' .. (r.failure or ""):gsub('"', "'") .. '"' }, ",")
+    lines[#lines + 1] = table.concat({ csv_complex(r.x), csv_complex(r.expansion),
+      csv_real(r.error), csv_complex(r.quad), csv_real(r.quad_error), csv_real(r.relative_error),
+      csv_real(r.estimated), tostring(r.agrees), tostring(r.stokes or false),
+      csv_text(r.valleys), csv_text(r.failure) }, ",")
   end
   return table.concat(lines, "\n") .. "\n"
 end

@@ -435,3 +435,252 @@ do
   print(format("%-54s %10.1f %12s   %s", "QAGI evaluations / all steep evaluations, x = 100",
     fi, ">= 10", verdict(fi >= 10)))
 end
+
+-- (f) expansions: J:series and J:expand ----------------------------------------------
+--
+-- Stirling's integral int_0^inf exp(lam (log s - s)) ds = Gamma(lam+1)/lam^(lam+1): the
+-- saddle at s = 1 gives c_k = sqrt(2 pi) gamma_(k-1) on lam^-(k - 1/2) (Stirling's
+-- coefficients, DLMF 5.11.3-5.11.4; tests/test_expand.lua checks them to order 20 against
+-- exact rationals). J:series{order = N} for N = 10, 20, 50, 100, then a full J:expand of
+-- the Airy integral at x = 8 with 10 terms plus the J:quad that checks it. Wall times
+-- (CLOCK_MONOTONIC), median of 9 runs after one warm-up run; the first coefficients and
+-- the value are checked first. Then one instrumented run of each, broken down by stage.
+
+local function median_wall(runs, f)
+  local times, res = {}, nil
+  for i = 1, runs do
+    collectgarbage()
+    collectgarbage()
+    local t0 = now()
+    res = table.pack(f())
+    times[i] = now() - t0
+  end
+  table.sort(times)
+  return times[(runs + 1) // 2], table.unpack(res, 1, res.n)
+end
+
+print()
+print("expansions: J:series of Stirling's integral, J:expand + J:quad of Airy's")
+local sv, slam = steep.var "s", steep.param "lam"
+local Jst = steep.integral { var = sv, exponent = slam * (steep.log(sv) - sv),
+  contour = steep.line(0, steep.inf(0)), large = slam }
+do   -- correctness first: gamma_1..gamma_5 (DLMF 5.11.4, from memory)
+  local c = Jst:series { order = 6 }[1].coefficients
+  local want = { 1 / 12, 1 / 288, -139 / 51840, -571 / 2488320, 163879 / 209018880 }
+  local e = core.cmath.abs(c[1] - math.sqrt(2 * math.pi)) / math.sqrt(2 * math.pi)
+  for k, w in ipairs(want) do e = math.max(e, core.cmath.abs(c[k + 1] / c[1] - w) / math.abs(w)) end
+  print(format("Stirling check: max relative error of c_1 and c_(k+1)/c_1 = gamma_k, k <= 5: %.2e", e))
+end
+local series_ms = {}
+print(format("%-34s %12s", "J:series{order = N}", "median ms"))
+for _, N in ipairs({ 10, 20, 50, 100 }) do
+  Jst:series { order = N }
+  local dt = median_wall(9, function() return Jst:series { order = N } end)
+  series_ms[N] = dt * 1e3
+  print(format("%-34s %12.2f", "N = " .. N, dt * 1e3))
+end
+
+local XE = 8
+local ref8 = qagi.airy_ai(XE)
+local Jx = steep.integral { var = tt, exponent = steep.I * (tt ^ 3 / 3 + xx * tt),
+  contour = line, large = xx }
+local function expand_and_quad()
+  local r = Jx:expand { x = XE, order = 10 }
+  local q, qe = Jx:quad { x = XE }
+  return r, q, qe
+end
+expand_and_quad()
+local t_eq, r8, q8, qe8 = median_wall(9, expand_and_quad)
+local t_e = median_wall(9, function() return Jx:expand { x = XE, order = 10 } end)
+local t_qq = median_wall(9, function() return Jx:quad { x = XE } end)
+local t_chk = median_wall(9, function() return Jx:check { x = { XE }, order = 10 } end)
+print(format("Airy x = %g, 10 terms: expansion/2pi %s (rel. error %.2e vs gsl_sf_airy_Ai, "
+  .. "reported %.2e); quadrature rel. error %.2e", XE, tostring(r8.value / twopi),
+  relerr(r8.value / twopi, ref8), r8.error / twopi / ref8, relerr(q8 / twopi, ref8)))
+print(format("%-34s %12.2f", "J:expand{order = 10}", t_e * 1e3))
+print(format("%-34s %12.2f", "J:quad", t_qq * 1e3))
+print(format("%-34s %12.2f", "J:expand + J:quad", t_eq * 1e3))
+print(format("%-34s %12.2f", "J:check{x = {8}, order = 10}", t_chk * 1e3))
+print()
+print(format("%-54s %10s %12s   %s", "expansion targets", "measured", "target", ""))
+print(format("%-54s %10.2f %12s   %s", "J:series, 20 coefficients (ms)", series_ms[20], "< 1",
+  verdict(series_ms[20] < 1)))
+print(format("%-54s %10.2f %12s   %s", "J:series, 100 coefficients (ms)", series_ms[100], "< 50",
+  verdict(series_ms[100] < 50)))
+print(format("%-54s %10.2f %12s   %s", "J:expand (10 terms) + J:quad, one saddle (ms)",
+  t_eq * 1e3, "< 5", verdict(t_eq * 1e3 < 5)))
+
+-- Where the time goes: stages and kernels wrapped by timers for one run each.
+print()
+print("expansions broken down (calls, wall ms; stages nest, kernels run inside stages)")
+do
+  local expand_m = require "steep.expand"
+  local wrapped, stats = {}, {}
+  local function wrap(tbl, name, label)
+    local f = tbl[name]
+    wrapped[#wrapped + 1] = { tbl, name, f }
+    tbl[name] = function(...)
+      local t0 = now()
+      local res = table.pack(f(...))
+      local st = stats[label] or { calls = 0, time = 0 }
+      stats[label] = st
+      st.calls, st.time = st.calls + 1, st.time + (now() - t0)
+      return table.unpack(res, 1, res.n)
+    end
+  end
+  local tape_methods = getmetatable(Jst.tape).__index
+  local list = {
+    { getmetatable(Jst).__index, "_landscape", "J:_landscape" },
+    { decompose_m, "decompose", "decompose.decompose" },
+    { landscape_m, "saddle_paths", "landscape.saddle_paths" },
+    { expand_m, "saddle_series", "expand.saddle_series (all)" },
+    { expand_m, "endpoint_series", "expand.endpoint_series (all)" },
+    { core, "invmap_circle", "core.invmap_circle (Cauchy circles)" },
+    { core, "quad_polyline", "core.quad_polyline" },
+    { core, "count", "core.count (argument principle)" },
+    { core, "zero", "core.zero (Newton)" },
+    { core, "trace", "core.trace (steepest paths)" } }
+  if type(tape_methods) == "table" then list[#list + 1] = { tape_methods, "jet", "tape:jet" } end
+  for _, w in ipairs(list) do wrap(w[1], w[2], w[3]) end
+  local function show(label, f)
+    stats = {}
+    local t0 = now()
+    f()
+    local total = now() - t0
+    print(format("%s: %.2f ms in all (instrumented)", label, total * 1e3))
+    for _, w in ipairs(list) do
+      local st = stats[w[3]]
+      if st then print(format("  %-40s %6d calls %9.2f ms", w[3], st.calls, st.time * 1e3)) end
+    end
+  end
+  for _, N in ipairs({ 20, 100 }) do
+    show("J:series{order = " .. N .. "} (Stirling)", function() Jst:series { order = N } end)
+  end
+  show("J:expand{x = 8, order = 10} + J:quad (Airy)", expand_and_quad)
+  for j = #wrapped, 1, -1 do local w = wrapped[j]; w[1][w[2]] = w[3] end
+end
+
+-- (g) a sweep with continuation -------------------------------------------------------
+--
+-- J(x) = int exp(-1.6 t^2/2 + 1.25 i x t) / (t - P) dt along the real line, P = -0.45 +
+-- 0.8i (the family of tests/test_routes.lua; its saddle 1.25 i x / 1.6 moves linearly and
+-- passes the pole's level at x ~ 1): J:sweep over 1000 values of x evenly from 3 to 8,
+-- expansion of order 6 and J:quad at each, with continuation (each step's saddles seed
+-- Newton at the next) and without (continuation = false: a full search at each step),
+-- in the same run. CPU times (os.clock), one run each after a full collection. The two
+-- sweeps are checked against each other and against quadrature first.
+-- Targets: with continuation < 2 s; without / with >= 3.
+
+do
+  local t_, x_ = steep.var "t", steep.param "x"
+  local P = steep.complex(-0.45, 0.8)
+  local Jsw = steep.integral { var = t_, exponent = -1.6 * t_ ^ 2 / 2 + steep.I * 1.25 * x_ * t_,
+    amplitude = 1 / (t_ - P), contour = steep.line(steep.inf(math.pi), steep.inf(0)), large = x_ }
+  local NSW = 1000
+  local range = { from = 3, to = 8, steps = NSW - 1 }
+  Jsw:sweep { x = { 3, 3.1 }, order = 6, progress = false }   -- warm-up: tapes compiled
+  local function timed_sweep(cont)
+    collectgarbage()
+    collectgarbage()
+    local kb0 = collectgarbage("count")
+    local t0 = clock()
+    local sw = Jsw:sweep { x = range, order = 6, continuation = cont, progress = false }
+    return clock() - t0, sw, collectgarbage("count") - kb0
+  end
+  local t_on, sw_on = timed_sweep(true)
+  local t_off, sw_off = timed_sweep(false)
+  local failed, disagree, maxdiff, maxrel = 0, 0, 0, 0
+  for i, r in ipairs(sw_on.rows) do
+    local o = sw_off.rows[i]
+    if r.failure or o.failure then
+      failed = failed + 1
+    else
+      if not (r.agrees and o.agrees) then disagree = disagree + 1 end
+      maxdiff = math.max(maxdiff, core.cmath.abs(r.expansion - o.expansion)
+        / core.cmath.abs(r.quad))
+      maxrel = math.max(maxrel, r.relative_error)
+    end
+  end
+  print()
+  print(format("sweep of %d values of x in [3, 8], order 6, expansion + J:quad at each", NSW))
+  print(format("  rows failed %d; rows where expansion and quadrature disagree beyond the "
+    .. "estimates %d", failed, disagree))
+  print(format("  max |expansion(continuation) - expansion(full search)| / |J| = %.2e; "
+    .. "max relative error of the expansion %.2e", maxdiff, maxrel))
+  print(format("%-44s %10s %12s   %s", "sweep", "measured", "target", ""))
+  print(format("%-44s %10.2f %12s   %s", "with continuation, s", t_on, "< 2", verdict(t_on < 2)))
+  print(format("%-44s %10.2f", "without continuation, s", t_off))
+  print(format("%-44s %10.2f %12s   %s", "ratio without / with", t_off / t_on, ">= 3",
+    verdict(t_off / t_on >= 3)))
+
+  -- Where the time goes: one more sweep of 200 values each way with the stages wrapped
+  -- by CPU-time counters (bench side only; the library is not changed). Stages are
+  -- counted apart by caller: the sweep's own landscape and expansion, and J:quad (which
+  -- maps the landscape again for itself, by a full search). Stages nest: the landscape's
+  -- parts run inside J:_landscape, decompose and the coefficients inside expand or quad.
+  local methods = getmetatable(Jsw).__index
+  local asym = require "steep.asymptotics"
+  local expand_m = require "steep.expand"
+  local wrapped, stats, in_quad = {}, {}, false
+  local function wrap(tbl, name, label_of)
+    local f = tbl[name]
+    wrapped[#wrapped + 1] = { tbl, name, f }
+    tbl[name] = function(...)
+      local label = label_of(...)
+      local t0 = clock()
+      local res = table.pack(f(...))
+      local st = stats[label] or { calls = 0, time = 0 }
+      stats[label] = st
+      st.calls, st.time = st.calls + 1, st.time + (clock() - t0)
+      return table.unpack(res, 1, res.n)
+    end
+  end
+  local function where() return in_quad and "quad: " or "sweep: " end
+  wrap(methods, "_landscape", function(_, _, _, _, cont)
+    return where() .. "J:_landscape" .. ((cont and cont.fast) and " (continued)" or " (full search)")
+  end)
+  wrap(landscape_m, "singularities", function() return where() .. "  landscape.singularities" end)
+  wrap(landscape_m, "saddles", function() return where() .. "  landscape.saddles" end)
+  wrap(landscape_m, "valleys", function() return where() .. "  landscape.valleys" end)
+  wrap(decompose_m, "decompose", function() return where() .. "decompose.decompose" end)
+  wrap(expand_m, "circle_coefficients", function() return where() .. "expand.circle_coefficients" end)
+  wrap(asym, "expand", function() return "sweep: asymptotics.expand (all of it)" end)
+  wrap(methods, "quad", function() return "quad: J:quad (all of it)" end)
+  local quad = methods.quad
+  methods.quad = function(...)
+    in_quad = true
+    local res = table.pack(quad(...))
+    in_quad = false
+    return table.unpack(res, 1, res.n)
+  end
+  local labels = { "sweep: J:_landscape (continued)", "sweep: J:_landscape (full search)",
+    "sweep:   landscape.singularities", "sweep:   landscape.saddles",
+    "sweep:   landscape.valleys", "sweep: asymptotics.expand (all of it)",
+    "sweep: decompose.decompose", "sweep: expand.circle_coefficients",
+    "quad: J:quad (all of it)", "quad: J:_landscape (full search)",
+    "quad:   landscape.singularities", "quad:   landscape.saddles", "quad:   landscape.valleys",
+    "quad: decompose.decompose", "quad: expand.circle_coefficients" }
+  print()
+  print("sweep broken down (200 values of x in [3, 8]; CPU s, share of the instrumented total)")
+  for _, cont in ipairs({ true, false }) do
+    stats = {}
+    collectgarbage()
+    collectgarbage()
+    local kb0 = collectgarbage("count")
+    local t0 = clock()
+    Jsw:sweep { x = { from = 3, to = 8, steps = 199 }, order = 6, continuation = cont,
+      progress = false }
+    local total = clock() - t0
+    print(format("continuation %s: %.2f s in all, %.0f kB of Lua heap left allocated",
+      tostring(cont), total, collectgarbage("count") - kb0))
+    for _, label in ipairs(labels) do
+      local st = stats[label]
+      if st then
+        print(format("  %-52s %5d calls %8.3f s %6.1f%%", label, st.calls, st.time,
+          100 * st.time / total))
+      end
+    end
+  end
+  methods.quad = quad
+  for j = #wrapped, 1, -1 do local w = wrapped[j]; w[1][w[2]] = w[3] end
+end
