@@ -1,6 +1,7 @@
 /*
  * invmap.c — inverse of the saddle (or endpoint) map on a circle; see invmap.h.
  */
+#include <float.h>
 #include <math.h>
 #include "invmap.h"
 
@@ -13,8 +14,10 @@ static int solve(problem *p, cplx t0, cplx F0, cplx target, cplx *h, cplx *dF) {
     cplx step = r / *dF;   /* d/dh (F0 - F) = -F' : h <- h + r / F' */
     *h += step;
     if (!(isfinite(creal(*h)) && isfinite(cimag(*h)))) return -1;
-    /* quadratic convergence: a step this small leaves an error near rounding */
-    if (cabs(step) <= 1e-10 * (cabs(*h) + 1e-300)) {
+    /* quadratic convergence: a step this small leaves an error near rounding; or the
+     * residual is at the rounding level of F0 - F itself (small h: cancellation) */
+    if (cabs(step) <= 1e-10 * (cabs(*h) + 1e-300) ||
+        cabs(r) <= 8 * DBL_EPSILON * (cabs(F0) + cabs(F) + cabs(target))) {
       if (problem_dF(p, t0 + *h, &F, dF) != STEEP_OK || *dF == 0) return -1;
       *h += (F0 - F - target) / *dF;
       return 0;
@@ -53,7 +56,7 @@ static int follow(problem *p, cplx t0, cplx F0, int m, cplx w0, cplx w1, cplx *h
      * trapezoidal error of a long step near a singular point can be large too) */
     cplx jump = Fb - Fa - 0.5 * (d1 + dFn) * dh;
     cplx offn = *off;
-    int big = cabs(jump) > 0.5;
+    int big = cabs(jump) > fmax(0.5, 0.25 * cabs(0.5 * (d1 + dFn) * dh));
     if (big && steps <= 16384) {
       return follow(p, t0, F0, m, wprev, w1, h, dF, off, 4 * (steps - k + 1), arc, rho);
     }
@@ -76,7 +79,7 @@ int invmap_circle(problem *p, cplx t0, cplx F0, int m, cplx s, double rho, size_
                   cplx *G) {
   const double twopi = 6.283185307179586;
   cplx dF = 0;
-  double w = 1e-3 * rho;
+  double w = 0.05 * rho;   /* not smaller: F0 - F cancels to rounding near the saddle */
   cplx h = w / s;
   if (solve(p, t0, F0, wpow(w, m), &h, &dF) != 0) return INVMAP_NEWTON;
   cplx off = 0;

@@ -12,6 +12,23 @@ local integral = require "steep.integral"
 local steep = {}
 
 steep.version = "0.1.0"
+
+--- steep.require_version("0.1"): a recipe states the API version it was written for
+-- (semantic versioning: same major version, at least that minor version); a mismatch is
+-- a loud error rather than a silently wrong analysis.
+function steep.require_version(wanted)
+  if type(wanted) ~= "string" or not wanted:match("^%d+%.%d+") then
+    error("bad argument #1 to 'require_version' (version string like \"0.1\" expected)", 2)
+  end
+  local wmaj, wmin = wanted:match("^(%d+)%.(%d+)")
+  local hmaj, hmin = steep.version:match("^(%d+)%.(%d+)")
+  wmaj, wmin, hmaj, hmin = tonumber(wmaj), tonumber(wmin), tonumber(hmaj), tonumber(hmin)
+  if wmaj ~= hmaj or hmin < wmin then
+    error(string.format("this script needs steep %s (API %d.%d or a later %d.x); the "
+      .. "installed steep is %s", wanted, wmaj, wmin, wmaj, steep.version), 2)
+  end
+  return true
+end
 steep.max_order = core.max_order
 
 -- symbols and values
