@@ -217,26 +217,31 @@ static const char *status_text(int st) {
   }
 }
 
-/* tape:jet(x, order [, params]) -> one steep.series of that order per output. */
+/* tape:jet(x, order [, params [, k]]) -> one steep.series of that order per output (or for
+ * the first k outputs only). */
 static int tape_jet_l(lua_State *L) {
   tape *t = checktape(L, 1);
   cplx x = bind_checkcomplex(L, 2);
   size_t order = bind_checkorder(L, 3);
+  /* optional 5th argument: only the first k outputs (and the instructions they need) */
+  lua_Integer k = luaL_optinteger(L, 5, (lua_Integer)t->nout);
+  luaL_argcheck(L, k >= 1 && (size_t)k <= t->nout, 5, "number of outputs out of range");
   cplx *p = read_params(L, t, 4);
-  size_t n = order + 1;
+  size_t n = order + 1, upto = 0;
+  for (lua_Integer o = 0; o < k; o++) if ((size_t)t->out[o] > upto) upto = (size_t)t->out[o];
   cplx *work = bind_scratch(L, t->n * n * sizeof(cplx));
   cplx *scratch = bind_scratch(L, 4 * n * sizeof(cplx));
   long bad = -1;
-  int st = tape_jet(t, x, p, order, work, scratch, &bad);
+  int st = tape_jet_upto(t, x, p, order, work, scratch, &bad, upto);
   if (st != STEEP_OK) {
     char at[64];   /* lua_pushfstring has no %g nor flags such as %+ */
     snprintf(at, sizeof at, "%.15g%+.15gi", creal(x), cimag(x));
     return luaL_error(L, "jet at %s: %s (instruction %d) %s", at,
                       tape_op_name(t->ins[bad].op), (int)bad + 1, status_text(st));
   }
-  luaL_checkstack(L, (int)t->nout, "too many outputs");
-  for (size_t o = 0; o < t->nout; o++) bind_pushseries(L, work + (size_t)t->out[o] * n, n);
-  return (int)t->nout;
+  luaL_checkstack(L, (int)k, "too many outputs");
+  for (lua_Integer o = 0; o < k; o++) bind_pushseries(L, work + (size_t)t->out[o] * n, n);
+  return (int)k;
 }
 
 /* tape:dump() -> a listing, one instruction a line, like a disassembler. */

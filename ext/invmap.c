@@ -26,6 +26,21 @@ static int solve(problem *p, cplx t0, cplx F0, cplx target, cplx *h, cplx *dF) {
   return -1;
 }
 
+/* The change of the continuous F from t0 + a to t0 + b: the integral of F' by 8-point
+ * Gauss-Legendre (F' is single-valued across cuts of log). */
+static cplx continuous_change(problem *p, cplx t0, cplx a, cplx b) {
+  static const double x8[4] = {0.183434642495649805, 0.525532409916328986,
+                               0.796666477413626740, 0.960289856497536232};
+  static const double w8[4] = {0.362683783378361983, 0.313706645877887287,
+                               0.222381034453374471, 0.101228536290376259};
+  cplx mid = t0 + 0.5 * (a + b), half = 0.5 * (b - a), sum = 0, F, dF;
+  for (int k = 0; k < 4; k++) {
+    if (problem_dF(p, mid - half * x8[k], &F, &dF) == STEEP_OK) sum += w8[k] * dF;
+    if (problem_dF(p, mid + half * x8[k], &F, &dF) == STEEP_OK) sum += w8[k] * dF;
+  }
+  return half * sum;
+}
+
 static cplx wpow(cplx w, int m) {
   cplx r = 1;
   for (int k = 0; k < m; k++) r *= w;
@@ -57,7 +72,15 @@ static int follow(problem *p, cplx t0, cplx F0, int m, cplx w0, cplx w1, cplx *h
     cplx jump = Fb - Fa - 0.5 * (d1 + dFn) * dh;
     cplx offn = *off;
     int big = cabs(jump) > fmax(0.5, 0.25 * cabs(0.5 * (d1 + dFn) * dh));
-    if (big && steps <= 16384) {
+    /* a cut of log makes F jump by a purely imaginary amount (Re F is continuous): take
+     * such a jump at once; anything else large is a step too long for the trapezoid */
+    int pure = 0;
+    if (big) {   /* measure the jump accurately: Gauss-Legendre instead of the trapezoid */
+      jump = Fb - Fa - continuous_change(p, t0, *h, hn);
+      big = cabs(jump) > 0.5;
+      pure = fabs(creal(jump)) < 1e-8 * cabs(jump);
+    }
+    if (big && !pure && steps <= 16384) {
       return follow(p, t0, F0, m, wprev, w1, h, dF, off, 4 * (steps - k + 1), arc, rho);
     }
     if (big) offn -= jump;

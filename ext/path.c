@@ -45,6 +45,10 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
   *n = 0;
   *which = -1;
   if (maxpts < 2) return PATH_BOUND;
+  /* The start lies on the level curve of the continuous F; where the principal value
+   * there differs from it by a branch jump (a saddle on a cut of log), carry the jump. */
+  if (eval(p, t, &F, &dF) == STEEP_OK && fabs(cimag(level - F)) > 0.5)
+    off = I * cimag(level - F);
   if (correct(p, &t, target, off, &F, &dF) != STEEP_OK) return PATH_SINGULAR;
   pts[0] = t;
   Fs[0] = F;
@@ -107,6 +111,21 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
   return PATH_BOUND;
 }
 
+/* F(t) continued from F(t0) = F0 along the segment: F0 + integral of F' by 8-point
+ * Gauss-Legendre (F' is single-valued across cuts of log; the segment is short). */
+static cplx continuous_F(problem *p, cplx t0, cplx F0, cplx t) {
+  static const double x8[4] = {0.183434642495649805, 0.525532409916328986,
+                               0.796666477413626740, 0.960289856497536232};
+  static const double w8[4] = {0.362683783378361983, 0.313706645877887287,
+                               0.222381034453374471, 0.101228536290376259};
+  cplx mid = 0.5 * (t0 + t), half = 0.5 * (t - t0), sum = 0, F, dF;
+  for (int k = 0; k < 4; k++) {
+    if (eval(p, mid - half * x8[k], &F, &dF) == STEEP_OK) sum += w8[k] * dF;
+    if (eval(p, mid + half * x8[k], &F, &dF) == STEEP_OK) sum += w8[k] * dF;
+  }
+  return F0 + half * sum;
+}
+
 int path_saddle_starts(problem *p, cplx t0, cplx F0, int order, cplx c, int descent,
                        double scale, cplx *starts) {
   const double pi = 3.141592653589793;
@@ -114,8 +133,15 @@ int path_saddle_starts(problem *p, cplx t0, cplx F0, int order, cplx c, int desc
   for (int k = 0; k < order; k++) {
     /* descent: c u^m real negative; ascent: real positive */
     double alpha = ((descent ? pi : 0) - carg(c) + 2 * pi * k) / order;
-    cplx t = t0 + delta * cexp(I * alpha), F, dF;
-    if (correct(p, &t, cimag(F0), 0, &F, &dF) != STEEP_OK) return STEEP_SINGULAR;
+    cplx h = delta * cexp(I * alpha), t = t0 + h, F, dF;
+    /* continuity across a branch cut through the saddle: a principal value far from the
+     * continued one carries a jump */
+    cplx off = 0;
+    if (eval(p, t, &F, &dF) == STEEP_OK) {
+      cplx cont = continuous_F(p, t0, F0, t);
+      if (fabs(cimag(cont - F)) > 0.5) off = I * cimag(cont - F);
+    }
+    if (correct(p, &t, cimag(F0), off, &F, &dF) != STEEP_OK) return STEEP_SINGULAR;
     starts[k] = t;
   }
   return STEEP_OK;

@@ -204,7 +204,7 @@ function M.decompose(J, params, L, contour)
         if g and cabs(g) > 0 then ref = ref + math.log(cabs(g)) end
         local path = landscape.trace(J, params, L, point, F, true, { ref = ref })
         plan.evals = plan.evals + path.evals
-        plan.pieces[#plan.pieces + 1] = { kind = "endpoint", at = point, weight = sign,
+        plan.pieces[#plan.pieces + 1] = { kind = "endpoint", at = point, weight = sign, F = path.F,
           points = path.points, full = full(path), ends = { "point", path.ends },
           reason = path.reason }
         bump(path.ends, -sign)   -- its finite start cancels the contour's own end
@@ -270,7 +270,7 @@ function M.decompose(J, params, L, contour)
       if c ~= 0 then
         local d = paths.descent[k]
         plan.pieces[#plan.pieces + 1] = { kind = "saddle", index = j, ray = k, weight = c,
-          order = m, points = d.points, full = full(d), ends = { "saddle " .. j, d.ends },
+          order = m, points = d.points, F = d.F, full = full(d), ends = { "saddle " .. j, d.ends },
           at_endpoint = at_end ~= nil, reason = d.reason }
         bump(d.ends, -c)
       end
@@ -284,16 +284,23 @@ function M.decompose(J, params, L, contour)
   for _, piece in ipairs(plan.pieces) do
     local level = piece.kind == "saddle" and L.saddles[piece.index].F
       or J.tape:eval(piece.at, params)
-    local _, li = cparts(level)
+    local lr = cparts(level)
     local tol = 1e-6 * math.max(1, cabs(level))
     local Fv = J.tape:eval_many(piece.points, params)
-    for k = 1, #piece.points do
-      local _, fi = cparts(Fv[k])
-      if fi == fi and abs(fi) < huge and abs(fi - li) > tol then
+    local Fc = piece.F or {}
+    for k = 1, math.min(#piece.points, #Fc) do
+      -- principal value against the value followed by continuity along the path
+      local d = Fv[k] - Fc[k]
+      local dr, di = cparts(d)
+      local fr = cparts(Fv[k])
+      -- harmless: a jump of 2 pi i k leaves exp(F) unchanged (an integer power), and where
+      -- the integrand is negligible (into a sink) nothing depends on it
+      local harmless = (abs(dr) <= tol and abs(math.sin(di / 2)) <= tol) or not (fr > lr - 30)
+      if dr == dr and abs(dr) < huge and not harmless then
         plan.status = "incomplete"
         plan.notes[#plan.notes + 1] = format("a steepest descent path of the %s %s crosses "
-          .. "a branch cut of the exponent near %s (Im F jumps by %.6g)", piece.kind,
-          piece.index or tostring(piece.at), tostring(piece.points[k]), fi - li)
+          .. "a branch cut of the exponent near %s (F jumps by %s)", piece.kind,
+          piece.index or tostring(piece.at), tostring(piece.points[k]), tostring(d))
         break
       end
     end

@@ -101,4 +101,7 @@ steep.circle = contour.circle
 steep.is_contour = contour.is
 steep.integral = integral.new
 
+--- steep.airy(z) -> Ai(z), Ai'(z), and their error estimates (complex z)
+function steep.airy(z) return require("steep.special").airy(z) end
+
 return steep

@@ -170,7 +170,39 @@ function methods.landscape(J, opts)
   return J:_landscape(params, o.region and check_region(o.region, "landscape"), o.paths ~= false)
 end
 
+-- A key for the landscape cache: parameter values and region, exactly.
+local function landscape_key(params, region, with_paths)
+  local parts = {}
+  for k, v in pairs(params) do
+    local re, im = cparts(v)
+    parts[#parts + 1] = format("%s=%a,%a", k, re, im)
+  end
+  table.sort(parts)
+  if region then
+    local re, im = cparts(region.center)
+    parts[#parts + 1] = format("region=%a,%a,%a", re, im, region.radius)
+  end
+  parts[#parts + 1] = with_paths and "paths" or ""
+  return table.concat(parts, ";")
+end
+
 function methods._landscape(J, params, region, with_paths, cont)
+  -- the same parameters give the same landscape: keep the last few (expand and quad at
+  -- one point, as J:check does, map it once)
+  local key = not cont and landscape_key(params, region, with_paths)
+  J._lcache = J._lcache or {}
+  if key then
+    for _, e in ipairs(J._lcache) do if e.key == key then return e.L end end
+  end
+  local L = J:_landscape_uncached(params, region, with_paths, cont)
+  if key then
+    table.insert(J._lcache, 1, { key = key, L = L })
+    J._lcache[5] = nil
+  end
+  return L
+end
+
+function methods._landscape_uncached(J, params, region, with_paths, cont)
   region = region or default_region(J, params)
   local L = { region = region, params = params, notes = {} }
   if cont and cont.fast then

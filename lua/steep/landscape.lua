@@ -546,9 +546,11 @@ function M.saddles(J, params, region, singularities, seeds, seeds_only)
   local out = {}
   for _, z in ipairs(zs) do
     local m = z.mult + 1
-    local Fs, gs = J.tape:jet(z.at, m + 1, params)
+    -- the exponent's jet alone: the amplitude may be singular at a saddle
+    local Fs = J.tape:jet(z.at, m + 1, params, 1)
+    local _, gv = J.tape:eval(z.at, params)
     out[#out + 1] = { at = z.at, order = m, F = Fs:coef(0), F2 = 2 * Fs:coef(2),
-      coef = Fs:coef(m), g = gs and gs:coef(0) or cnew(1, 0) }
+      coef = Fs:coef(m), g = gv or cnew(1, 0) }
   end
   return out, info
 end
@@ -635,7 +637,7 @@ function M.trace(J, params, L, start, level, descent, opts)
     descent = descent, cutoff = opts.cutoff or 50, ref = ref, center = L.region.center,
     radius = 1000 * R, scale = R / 10, maxsteps = 6000, maxpts = 6000,
     stops = stops, stop_r = radii })
-  local path = { points = cvec_list(pts), reason = reason, evals = evals,
+  local path = { points = cvec_list(pts), F = cvec_list(Fs), reason = reason, evals = evals,
     level = level, descent = descent }
   if #path.points == 0 then
     -- F or F' is not finite at the start itself (a log point of the exponent, say)
@@ -681,6 +683,7 @@ function M.saddle_paths(J, params, L, j)
     for k, st in ipairs(starts) do
       local p = M.trace(J, params, L, st, s.F, descent, { skip_saddle = j, ref = ref })
       table.insert(p.points, 1, s.at)
+      table.insert(p.F, 1, s.F)
       out[descent and "descent" or "ascent"][k] = p
     end
   end
