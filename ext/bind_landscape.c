@@ -317,6 +317,24 @@ static int land_invmap(lua_State *L) {
   return 2;
 }
 
+/* core.invmap_cubic(tape, params, t1, A, zeta, ua, tprime, rho, N) -> status, cvec of G */
+static int land_invmap_cubic(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx t1 = bind_checkcomplex(L, 3), A = bind_checkcomplex(L, 4);
+  cplx zeta = bind_checkcomplex(L, 5), ua = bind_checkcomplex(L, 6);
+  cplx tprime = bind_checkcomplex(L, 7);
+  double rho = luaL_checknumber(L, 8);
+  lua_Integer N = luaL_checkinteger(L, 9);
+  luaL_argcheck(L, tprime != 0, 7, "t'(u_a) must not be zero");
+  luaL_argcheck(L, rho > 0 && isfinite(rho), 8, "radius must be positive and finite");
+  luaL_argcheck(L, N >= 8 && N <= 65536, 9, "number of points must be 8..65536");
+  cplx *G = bind_newcvec(L, (size_t)N);
+  int st = invmap_cubic(p, t1, A, zeta, ua, tprime, rho, (size_t)N, G);
+  lua_pushstring(L, invmap_text[st]);
+  lua_insert(L, -2);
+  return 2;
+}
+
 /* ---- geometry ------------------------------------------------------------------- */
 
 /* core.turning(points, z) -> change of arg(t - z) / 2pi along the polyline, or nil if
@@ -359,6 +377,7 @@ static const luaL_Reg land_funcs[] = {
   {"zero", land_zero}, {"count", land_count}, {"trace", land_trace},
   {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
   {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},
+  {"invmap_cubic", land_invmap_cubic},
   {"turning", geo_turning}, {"crossings", geo_crossings}, {"distance", geo_distance},
   {NULL, NULL}
 };

@@ -47,6 +47,19 @@ static cplx wpow(cplx w, int m) {
   return r;
 }
 
+/* The local map F0 - F(t0 + h) = P(w): P(w) = w^m at a saddle of order m (or m = 1 at an
+ * endpoint), or P(u) = u^3/3 - zeta u for two saddles together (Chester, Friedman &
+ * Ursell's cubic). */
+typedef struct { int m; int cubic; cplx zeta; } mapspec;
+
+static cplx mapP(const mapspec *ms, cplx w) {
+  return ms->cubic ? w * w * w / 3.0 - ms->zeta * w : wpow(w, ms->m);
+}
+
+static cplx mapdP(const mapspec *ms, cplx w) {
+  return ms->cubic ? w * w - ms->zeta : (double)ms->m * wpow(w, ms->m - 1);
+}
+
 /* Continues h from w0 (solved: value *h, F'(t0 + h) in *dF) to w1 in `steps` equal
  * steps along a segment (arc = 0) or an arc of |w| = rho (arc = 1). Each step starts
  * from the Euler predictor h + h'(w) dw and is accepted only if Newton lands near it
@@ -55,14 +68,14 @@ static cplx wpow(cplx w, int m) {
  * the principal value jumps across a branch cut of a log inside F between two nearby
  * points (its change differs from F' dh by much more than the step's second-order
  * term), the jump is added to *off, and the equation solved is for F + off. */
-static int follow(problem *p, cplx t0, cplx F0, int m, cplx w0, cplx w1, cplx *h, cplx *dF,
-                  cplx *off, int steps, int arc, double rho) {
+static int follow(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx w1, cplx *h,
+                  cplx *dF, cplx *off, int steps, int arc, double rho) {
   double th0 = carg(w0), th1 = th0 + carg(w1 / w0);
   cplx wprev = w0;
   for (int k = 1; k <= steps; k++) {
     double u = (double)k / steps;
     cplx w = arc ? rho * cexp(I * (th0 + u * (th1 - th0))) : w0 + u * (w1 - w0);
-    cplx dh = -(double)m * wpow(wprev, m - 1) / *dF * (w - wprev);   /* h'(w) dw */
+    cplx dh = -mapdP(ms, wprev) / *dF * (w - wprev);   /* h'(w) dw */
     cplx hn = *h + dh, dFn = *dF, Fa, Fb, d1;
     if (problem_dF(p, t0 + *h, &Fa, &d1) != STEEP_OK ||
         problem_dF(p, t0 + hn, &Fb, &dFn) != STEEP_OK)
@@ -81,14 +94,14 @@ static int follow(problem *p, cplx t0, cplx F0, int m, cplx w0, cplx w1, cplx *h
       pure = fabs(creal(jump)) < 1e-8 * cabs(jump);
     }
     if (big && !pure && steps <= 16384) {
-      return follow(p, t0, F0, m, wprev, w1, h, dF, off, 4 * (steps - k + 1), arc, rho);
+      return follow(p, t0, F0, ms, wprev, w1, h, dF, off, 4 * (steps - k + 1), arc, rho);
     }
     if (big) offn -= jump;
-    int ok = solve(p, t0, F0 - offn, wpow(w, m), &hn, &dFn) == 0 &&
+    int ok = solve(p, t0, F0 - offn, mapP(ms, w), &hn, &dFn) == 0 &&
              cabs(hn - (*h + dh)) <= 0.5 * cabs(dh) + 1e-14 * cabs(hn);
     if (!ok) {
       if (steps > 65536) return INVMAP_NEWTON;
-      return follow(p, t0, F0, m, wprev, w1, h, dF, off, 4 * (steps - k + 1), arc, rho);
+      return follow(p, t0, F0, ms, wprev, w1, h, dF, off, 4 * (steps - k + 1), arc, rho);
     }
     *h = hn;
     *dF = dFn;
@@ -98,22 +111,25 @@ static int follow(problem *p, cplx t0, cplx F0, int m, cplx w0, cplx w1, cplx *h
   return INVMAP_OK;
 }
 
-int invmap_circle(problem *p, cplx t0, cplx F0, int m, cplx s, double rho, size_t N,
-                  cplx *G) {
+/* Round the circle |w| = rho from a solved start (w0, h), writing G at the N points
+ * rho e^{2 pi i j/N}: out along the ray through w0, round to angle 0, then the circle. */
+static int circle(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx h, cplx dF,
+                  double rho, size_t N, cplx *G) {
   const double twopi = 6.283185307179586;
-  cplx dF = 0;
-  double w = 0.05 * rho;   /* not smaller: F0 - F cancels to rounding near the saddle */
-  cplx h = w / s;
-  if (solve(p, t0, F0, wpow(w, m), &h, &dF) != 0) return INVMAP_NEWTON;
   cplx off = 0;
-  int st = follow(p, t0, F0, m, w, rho, &h, &dF, &off, 60, 0, rho);
+  cplx dir = cabs(w0) > 0 ? w0 / cabs(w0) : 1;
+  int st = follow(p, t0, F0, ms, w0, rho * dir, &h, &dF, &off, 60, 0, rho);
   if (st != INVMAP_OK) return st;
+  if (cabs(dir - 1) > 1e-15) {
+    st = follow(p, t0, F0, ms, rho * dir, rho, &h, &dF, &off, 16, 1, rho);
+    if (st != INVMAP_OK) return st;
+  }
   cplx h0 = h;
   for (size_t j = 0; j < N; j++) {
     cplx wj = rho * cexp(I * (twopi * (double)j / (double)N));
     if (j > 0) {
       cplx wprev = rho * cexp(I * (twopi * (double)(j - 1) / (double)N));
-      st = follow(p, t0, F0, m, wprev, wj, &h, &dF, &off, 1, 1, rho);
+      st = follow(p, t0, F0, ms, wprev, wj, &h, &dF, &off, 1, 1, rho);
       if (st != INVMAP_OK) return st;
     }
     cplx F;
@@ -122,14 +138,38 @@ int invmap_circle(problem *p, cplx t0, cplx F0, int m, cplx s, double rho, size_
       (void)problem_integrand(p, t0 + h, &F);
       g = p->vals[1];
     }
-    /* F0 - F(t0 + h(w)) = w^m  =>  h'(w) = -m w^(m-1) / F'(t0 + h) */
-    G[j] = g * (-(double)m * wpow(wj, m - 1) / dF);
+    /* F0 - F(t0 + h(w)) = P(w)  =>  h'(w) = -P'(w) / F'(t0 + h) */
+    G[j] = g * (-mapdP(ms, wj) / dF);
     if (!(isfinite(creal(G[j])) && isfinite(cimag(G[j])))) return INVMAP_SINGULAR;
   }
   /* once round: back where we started? */
   cplx wlast = rho * cexp(I * (twopi * (double)(N - 1) / (double)N));
-  st = follow(p, t0, F0, m, wlast, rho, &h, &dF, &off, 1, 1, rho);
+  st = follow(p, t0, F0, ms, wlast, rho, &h, &dF, &off, 1, 1, rho);
   if (st != INVMAP_OK) return st;
   if (cabs(h - h0) > 1e-8 * (cabs(h0) + 1e-300)) return INVMAP_NOTCLOSED;
   return INVMAP_OK;
+}
+
+int invmap_circle(problem *p, cplx t0, cplx F0, int m, cplx s, double rho, size_t N,
+                  cplx *G) {
+  mapspec ms = {m, 0, 0};
+  cplx dF = 0;
+  double w = 0.05 * rho;   /* not smaller: F0 - F cancels to rounding near the saddle */
+  cplx h = w / s;
+  if (solve(p, t0, F0, mapP(&ms, w), &h, &dF) != 0) return INVMAP_NEWTON;
+  return circle(p, t0, F0, &ms, w, h, dF, rho, N, G);
+}
+
+int invmap_cubic(problem *p, cplx t1, cplx A, cplx zeta, cplx ua, cplx tprime, double rho,
+                 size_t N, cplx *G) {
+  mapspec ms = {3, 1, zeta};
+  cplx dF = 0;
+  /* start a little way from u_a, outwards from 0 (or along +1 when u_a = 0), with the
+   * linear guess t - t1 = t'(u_a) (u - u_a) */
+  cplx dir = cabs(ua) > 0 ? ua / cabs(ua) : 1;
+  double eps = 0.05 * rho;
+  cplx w = ua + eps * dir;
+  cplx h = tprime * (w - ua);
+  if (solve(p, t1, A, mapP(&ms, w), &h, &dF) != 0) return INVMAP_NEWTON;
+  return circle(p, t1, A, &ms, w, h, dF, rho, N, G);
 }

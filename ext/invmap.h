@@ -31,4 +31,12 @@ enum invmap_status {
 int invmap_circle(problem *p, cplx t0, cplx F0, int m, cplx s, double rho, size_t N,
                   cplx *G);
 
+/* The same for two saddles near each other, by the cubic map of Chester, Friedman &
+ * Ursell (Proc. Camb. Phil. Soc. 53 (1957) 599-611):
+ *   F(t) = A + zeta u - u^3/3,  saddle t1 <-> u_a (u_a^2 = zeta),
+ * with t'(u_a) = tprime fixing the branch. G[j] = g(t(u_j)) t'(u_j) on |u| = rho (which
+ * must enclose both saddles' images), for the Taylor coefficients of G about u = 0. */
+int invmap_cubic(problem *p, cplx t1, cplx A, cplx zeta, cplx ua, cplx tprime, double rho,
+                 size_t N, cplx *G);
+
 #endif

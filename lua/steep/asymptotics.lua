@@ -7,6 +7,7 @@ local landscape = require "steep.landscape"
 local decompose = require "steep.decompose"
 local expand = require "steep.expand"
 local expr = require "steep.expr"
+local coalesce = require "steep.coalesce"
 
 local cnew, cparts = complex.new, complex.parts
 local cabs = landscape.cabs
@@ -317,11 +318,40 @@ function M.expand(J, params, opts)
       contributions[#contributions + 1] = endpoint_contribution(J, params, piece, order)
     end
   end
+  -- two simple saddles close together: the Airy-type uniform form for the pair
+  local handled = {}
   for _, j in ipairs(order_seen) do
+    local s = L.saddles[j]
+    if s.order == 2 and not handled[j] then
+      local best, j2 = huge, nil
+      for k, o in ipairs(L.saddles) do
+        if k ~= j and o.order == 2 and not handled[k] then
+          local map = coalesce.cubic_map(s, o)
+          if map and cabs(map.zeta) < coalesce.ZETA_RADIUS and cabs(map.zeta) < best then
+            best, j2 = cabs(map.zeta), k
+          end
+        end
+      end
+      if j2 then
+        local pair = { { saddle = s, rays = by_saddle[j] },
+          { saddle = L.saddles[j2], rays = by_saddle[j2] or {} } }
+        local ok, c = pcall(coalesce.contribution, J, params, L, pair, order)
+        if ok and c then
+          contributions[#contributions + 1] = c
+          handled[j], handled[j2] = true, true
+        end
+      end
+    end
+  end
+  for _, j in ipairs(order_seen) do
+    if handled[j] then goto next_saddle end
+    do
     local c = saddle_contribution(J, params, L, j, by_saddle[j], order, plan)
     local zero = true
     for _, w in ipairs(c.weights) do if w ~= 0 then zero = false end end
     if not zero then contributions[#contributions + 1] = c end
+    end
+    ::next_saddle::
   end
   for _, r in ipairs(plan.residues) do
     if r.winding ~= 0 then contributions[#contributions + 1] = residue_contribution(L, r) end
