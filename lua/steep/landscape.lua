@@ -287,7 +287,7 @@ function M.singularities(J, params, region, opts)
       for _ = 1, 40 do
         if spread <= 4 then break end
         local half = log_spread(J.tape, params, m.at, 0.5 * rho)
-        if not (half < 0.75 * spread) then break end
+        if spread < huge and not (half < 0.75 * spread) then break end
         rho, spread = 0.5 * rho, half
       end
       local a = laurent(J.tape, params, m.at, rho, 4 * depth + 32, depth)
