@@ -7,7 +7,7 @@ LUA_LIBDIR  = $(PREFIX)/lib/lua/5.4
 LUA_SHARE   = $(PREFIX)/share/lua/5.4
 
 # Debian packages the build and the tests need (make deps installs the missing ones).
-DEB_PACKAGES = gcc make pkg-config lua5.4 liblua5.4-dev libgsl-dev libcerf-dev lua-unit \
+DEB_PACKAGES = gcc make pkg-config lua5.4 liblua5.4-dev libgsl-dev libcerf-dev lua-unit lua-cjson \
                valgrind clang libclang-rt-14-dev librsvg2-bin
 
 CC         ?= cc

@@ -375,8 +375,11 @@ local function fmtc(z)
   return format("%.10g%+.10gi", re, im)
 end
 
---- result:report() -> text
-function M.report(r)
+--- result:report{format = "text" | "json" | "csv"} -> text
+function M.report(r, opts)
+  local other = require("steep.report").format(opts, r, r.contributions,
+    { "kind", "at", "value", "error", "used", "weight" })
+  if other then return other end
   local lines = {}
   local function add(...) lines[#lines + 1] = format(...) end
   local J = r.integral
@@ -559,7 +562,10 @@ function M.check(J, params, values, opts)
   return setmetatable(result, { __index = { report = M.check_report } })
 end
 
-function M.check_report(c)
+function M.check_report(c, opts)
+  local other = require("steep.report").format(opts, c, c.rows,
+    { "x", "expansion", "quad", "quad_error", "relative_error", "estimated", "agrees", "stokes" })
+  if other then return other end
   local lines = {}
   local function add(...) lines[#lines + 1] = format(...) end
   add("check of %s", tostring(c.integral))

@@ -232,7 +232,11 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
   return setmetatable(L, { __index = { report = M.landscape_report } })
 end
 
-function M.landscape_report(L)
+function M.landscape_report(L, opts)
+  local other = require("steep.report").format(opts, { region = L.region, saddles = L.saddles,
+    singularities = L.singularities, valleys = L.valleys, notes = L.notes,
+    saddle_count = L.saddle_count })
+  if other then return other end
   local lines = {}
   local function add(...) lines[#lines + 1] = format(...) end
   add("region: center %s, radius %.4g", tostring(L.region.center), L.region.radius)

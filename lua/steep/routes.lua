@@ -442,7 +442,10 @@ function M.crossings(J, opts)
   return setmetatable(out, { __index = { report = M.crossings_report } })
 end
 
-function M.crossings_report(c)
+function M.crossings_report(c, opts)
+  local other = require("steep.report").format(opts, { events = c.events, large = c.large,
+    values = c.values }, c.events, { "kind", "at", "position", "term", "before", "after", "text" })
+  if other then return other end
   local lines = { format("crossing check of %s along %s = %s .. %s (%d values)",
     tostring(c.integral), c.large, fmtv(c.values[1]), fmtv(c.values[#c.values]), #c.values) }
   if #c.events == 0 then
@@ -807,7 +810,11 @@ function M.sweep_csv(sw, header)
   return table.concat(lines, "\n") .. "\n"
 end
 
-function M.sweep_report(sw)
+function M.sweep_report(sw, opts)
+  local other = require("steep.report").format(opts, sw, sw.rows,
+    { "x", "expansion", "error", "quad", "quad_error", "relative_error", "estimated",
+      "agrees", "stokes", "valleys", "failure" })
+  if other then return other end
   local lines = { format("sweep of %s, %d terms", tostring(sw.integral), sw.order),
     format("%-12s %-26s %-26s %-11s %-11s %s", sw.large, "expansion", "quadrature",
       "rel. error", "estimated", "") }
@@ -823,7 +830,11 @@ function M.sweep_report(sw)
   return table.concat(lines, "\n")
 end
 
-function M.compare_report(c)
+function M.compare_report(c, opts)
+  local other = require("steep.report").format(opts, c, c.rows,
+    { "x", "unrescaled", "unrescaled_error", "rescaled", "formula", "correction", "corrected",
+      "quad", "quad_error", "unrescaled_ok", "corrected_ok", "formula_ok" })
+  if other then return other end
   local lines = {}
   local function add(...) lines[#lines + 1] = format(...) end
   add("routes for %s", tostring(c.integral))
