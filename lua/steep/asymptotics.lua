@@ -362,11 +362,46 @@ function M.expand(J, params, opts)
     value = value + c.value
     err = err + c.error
   end
+  -- the status says how far to trust the number before any comparison with quadrature
+  local status = plan.is_local and "estimated (local method)" or "estimated"
+  local reasons = {}
+  if plan.stokes then
+    reasons[#reasons + 1] = "a saddle connection (Stokes line): the weight of a subdominant "
+      .. "saddle is ambiguous there"
+  end
+  if not (err < cabs(value)) then
+    reasons[#reasons + 1] = "the error estimate is not smaller than the value"
+  end
+  for _, c in ipairs(contributions) do
+    if c.kind == "saddle" and c.error > 0.1 * cabs(c.value) then
+      reasons[#reasons + 1] = "a saddle's series converges poorly here (a pole or another "
+        .. "saddle nearby?)"
+      break
+    end
+  end
+  if #reasons > 0 then status = "suspect: " .. table.concat(reasons, "; ") end
   local result = { value = value, error = err, contributions = contributions,
     order = order, params = params, landscape = L, notes = plan.notes,
-    stokes = plan.stokes or false, integral = J,
-    status = plan.is_local and "estimated (local method)" or "estimated" }
-  return setmetatable(result, { __index = { report = M.report } })
+    stokes = plan.stokes or false, integral = J, status = status }
+  setmetatable(result, { __index = { report = M.report } })
+  if opts.verify then M.verify(J, params, result, opts) end
+  return result
+end
+
+--- Compares an expansion with quadrature: result.check, and the status "verified" only
+-- when they agree within three times the two error estimates together.
+function M.verify(J, params, result, opts)
+  local qopts = { region = opts.region }
+  for k, v in pairs(params) do qopts[k] = v end
+  local q, qe, info = J:quad(qopts)
+  local diff = cabs(result.value - q)
+  local ok = diff <= 3 * (result.error + qe) and info.status == "ok"
+  result.check = { quad = q, quad_error = qe, difference = diff, quad_status = info.status,
+    verdict = ok and "verified: agrees within the error estimates"
+      or "NOT verified: expansion and quadrature disagree beyond their estimates" }
+  result.status = ok and "verified against quadrature" or
+    ("suspect: disagrees with quadrature by " .. format("%.3g", diff))
+  return result
 end
 
 local function fmtc(z)
@@ -399,9 +434,9 @@ function M.report(r, opts)
   if r.check then
     add("quadrature: %s (error %.2g); difference %.3g -> %s", fmtc(r.check.quad),
       r.check.quad_error, r.check.difference, r.check.verdict)
-  else
-    add("status: estimated only (not compared with quadrature; use J:check)")
   end
+  add("status: %s%s", r.status, r.check and "" or
+    " (not compared with quadrature: verify = true or J:check does that)")
   if r.stokes then add("warning: a saddle connection was found (Stokes line): see notes") end
   for _, n in ipairs(r.notes or {}) do add("note: %s", n) end
   return table.concat(lines, "\n")

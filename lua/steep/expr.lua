@@ -63,6 +63,7 @@ local function value_of(n) -- constant node -> number or complex, else nil
 end
 
 local function is_value(n, x) return n.op == "const" and n.re == x and n.im == 0 end
+local function finite(v) return v == v and v ~= math.huge and v ~= -math.huge end
 
 local function binary(op, a, b)
   return node(format("%s:%d:%d", op, a.id, b.id), { op = op, a = a, b = b })
@@ -258,21 +259,50 @@ end
 --- compile(exprs, var) -> tape. exprs: an expression/number or a list of them (the
 -- tape's outputs in that order). var: the variable symbol fed by the evaluation point
 -- (nil: none); every other symbol becomes a parameter bound by name at evaluation.
-function M.compile(exprs, var)
+-- level: the error level to blame (default 2, the caller; steep.integral passes 3, its
+-- own caller).
+function M.compile(exprs, var, level)
+  local lvl = level or 2
   if is_expr(exprs) or cparts(exprs) then exprs = { exprs } end
+  if type(exprs) ~= "table" or getmetatable(exprs) ~= nil then
+    error(format("bad argument #1 to 'compile' (expression, number, complex value or list "
+      .. "of them expected, got %s)", type(exprs)), lvl)
+  end
+  if #exprs == 0 then
+    error("bad argument #1 to 'compile' (the list of expressions is empty)", lvl)
+  end
   local roots = {}
-  for i, e in ipairs(exprs) do roots[i] = lift(e, 3) end
+  for i, e in ipairs(exprs) do
+    if not (is_expr(e) or cparts(e)) then
+      error(format("bad argument #1 to 'compile' (element %d: attempt to use a %s value in "
+        .. "an expression)", i, type(e)), lvl)
+    end
+    roots[i] = lift(e)
+  end
   if var ~= nil and not (is_expr(var) and (var.op == "var" or var.op == "param")) then
-    error("bad argument #2 to 'compile' (symbol expected)", 2)
+    error("bad argument #2 to 'compile' (symbol expected)", lvl)
+  end
+  local order = walk(roots)
+  local max = core.max_tape or 100000
+  if #order > max then
+    error(format("compile: the expression is too large for a tape (%d distinct operations, "
+      .. "at most %d): simplify it or split it", #order, max), lvl)
   end
   local code, slot, params, pindex, kinds = {}, {}, {}, {}, {}
-  for _, n in ipairs(walk(roots)) do
+  for _, n in ipairs(order) do
+    if (n.op == "const" and not (finite(n.re) and finite(n.im)))
+        or (n.op == "powc" and not (finite(cparts(n.k)) and finite(select(2, cparts(n.k))))) then
+      local v = n.op == "const" and value_of(n) or n.k
+      error(format("compile: a constant is not finite (%s%s): a NaN or an infinity cannot "
+        .. "be evaluated on a tape", tostring(v),
+        n.op == "powc" and (" as the power in " .. (text(n))) or ""), lvl)
+    end
     local ins
     if n == var then
       ins = { "var" }
     elseif n.op == "var" or n.op == "param" then
       if kinds[n.name] and kinds[n.name] ~= n.op then
-        error(format("compile: '%s' is used both as a variable and as a parameter", n.name), 2)
+        error(format("compile: '%s' is used both as a variable and as a parameter", n.name), lvl)
       end
       kinds[n.name] = n.op
       if not pindex[n.name] then

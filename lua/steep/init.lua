@@ -89,8 +89,22 @@ function steep.taylor(e, var, at, order, params)
     error(string.format("bad argument #4 to 'taylor' (order in 0..%d expected, got %s)",
       core.max_order, tostring(order)), 2)
   end
-  local tape = expr.compile(e, var)
-  return (tape:jet(at, math.tointeger(order), params or {}))
+  local re, im = complex.parts(at)
+  if not re or re ~= re or im ~= im or math.abs(re) == math.huge or math.abs(im) == math.huge then
+    error("bad argument #3 to 'taylor' (finite number or complex point expected, got "
+      .. (re and tostring(at) or type(at)) .. ")", 2)
+  end
+  if params ~= nil and type(params) ~= "table" then
+    error("bad argument #5 to 'taylor' (table of parameter values expected, got "
+      .. type(params) .. ")", 2)
+  end
+  local tape = expr.compile(e, var, 3)
+  local ok, s = pcall(tape.jet, tape, at, math.tointeger(order), params or {})
+  if not ok then
+    -- the jet's own message (unbound parameter, singular point), blamed on the caller
+    error("taylor: " .. tostring(s):gsub("^[^\n]-:%d+: ", ""), 2)
+  end
+  return s
 end
 
 -- contours and integrals

@@ -59,7 +59,7 @@ function M.new(spec)
   end
   local J = setmetatable({ var = t, exponent = F, amplitude = g, contour = spec.contour,
     large = large }, Integral)
-  J.tape = expr.compile({ F, g }, t)
+  J.tape = expr.compile({ F, g }, t, 3)
   J.params = J.tape:params()
   J.critical = landscape.critical(F, g, t)
   return J
@@ -147,27 +147,61 @@ local function default_region(J, params)
   return { center = cnew(0, 0), radius = 4 * R0, bounded = true }
 end
 
-local function check_region(region, fname)
+-- The largest region radius, relative to the problem's scale (1, |center| and the
+-- contour's finite points): beyond it the contour's points cannot be told apart from the
+-- center in double precision, and the rings sampled for the valleys overflow.
+local MAX_REGION_RATIO = 1e15
+
+-- Checks a user's region (level: the error level to blame). With J, also that it is
+-- usable for J: not absurdly large, and, when the contour has an end at infinity, near
+-- enough the contour for the valleys (sampled on rings of 4 to 16 radii about the
+-- center) to describe the directions in which its ends leave.
+local function check_region(region, fname, J, level)
+  level = level or 3
   if type(region) ~= "table" then
-    error(format("%s: option 'region' must be a table {center =, radius =}", fname), 3)
+    error(format("%s: option 'region' must be a table {center =, radius =}", fname), level)
   end
   local c = region.center or 0
   local re, im = cparts(c)
-  if not re or re ~= re or im ~= im then
-    error(format("%s: region center must be a finite number or complex value", fname), 3)
+  if not re or re ~= re or im ~= im or abs(re) == huge or abs(im) == huge then
+    error(format("%s: region center must be a finite number or complex value", fname), level)
   end
   local r = region.radius
   if type(r) ~= "number" or not (r > 0) or r == huge then
     error(format("%s: region radius must be a positive finite number, got %s", fname,
-      tostring(r)), 3)
+      tostring(r)), level)
   end
-  return { center = cnew(re, im), radius = r }
+  local center = cnew(re, im)
+  if J then
+    local scale = math.max(1, cabs(center))
+    for _, z in ipairs(J.contour:finite_points()) do scale = math.max(scale, cabs(z)) end
+    if r > MAX_REGION_RATIO * scale then
+      error(format("%s: region radius %.4g is too large for this problem (at most %.0e "
+        .. "times its scale %.4g, from the center and the contour's finite points): "
+        .. "give the radius at the scale of the saddles and the contour", fname, r,
+        MAX_REGION_RATIO, scale), level)
+    end
+    if not J.contour.closed then
+      for _, p in ipairs(J.contour.pieces) do
+        local a = (p.kind == "ray_out" and p.a) or (p.kind == "ray_in" and p.b) or nil
+        if a and cabs(a - center) > 4 * r then
+          error(format("%s: the region (center %s, radius %.4g) is too far from the "
+            .. "contour: its end at infinity in direction %.6g leaves from %s, %.3g radii "
+            .. "from the center, and the valleys at infinity are seen from 4 to 16 radii "
+            .. "about the center; center the region nearer (or enlarge it)", fname,
+            tostring(center), r, p.angle, tostring(a), cabs(a - center) / r), level)
+        end
+      end
+    end
+  end
+  return { center = center, radius = r }
 end
+M.check_region = check_region
 
 --- J:landscape{<params>, region = {center =, radius =}} -> landscape
 function methods.landscape(J, opts)
   local params, o = M.split_options(J, opts, { region = true, paths = true }, "landscape")
-  return J:_landscape(params, o.region and check_region(o.region, "landscape"), o.paths ~= false)
+  return J:_landscape(params, o.region and check_region(o.region, "landscape", J), o.paths ~= false)
 end
 
 -- A key for the landscape cache: parameter values and region, exactly.
@@ -371,6 +405,27 @@ local function quad_given(J, params, L)
   local notes = {}
   local R = L.region.radius
   decompose.check_contour(L, J.contour, J.contour:sample { radius = 8 * R, n = 64 })
+  -- an end at infinity outside every valley: the integral diverges there. Said before
+  -- integrating where the valleys are exact (polynomial growth); said after, from the
+  -- value, where they are indicative (found by sampling).
+  local function diverges(p)
+    local vs = {}
+    for _, v in ipairs(L.valleys) do vs[#vs + 1] = landscape.describe_valley(v) end
+    error(format("quad: the contour's %s end at infinity in direction %.6g is outside every "
+      .. "valley: the integral diverges there (valleys: %s)",
+      p.kind == "ray_in" and "starting" or "finishing", p.angle,
+      #vs > 0 and table.concat(vs, ", ") or "none"), 0)
+  end
+  local exact = #L.valleys > 0
+  for _, v in ipairs(L.valleys) do
+    if v.type ~= "polynomial" and v.type ~= "edge" then exact = false end
+  end
+  for _, p in ipairs(J.contour.pieces) do
+    if (p.kind == "ray_in" or p.kind == "ray_out") and exact
+        and not landscape.valley_of(L.valleys, p.angle) then
+      diverges(p)
+    end
+  end
   for _, p in ipairs(J.contour.pieces) do
     local v, e, ev, st
     if p.kind == "segment" then
@@ -382,6 +437,10 @@ local function quad_given(J, params, L)
       v, e, ev, st = quad_ray(J, params, L, p.b, p.angle, -1, singular_at(L, p.b) ~= nil, notes)
     else
       v, e, ev, st = quad_circle(J, params, p)
+    end
+    if (p.kind == "ray_in" or p.kind == "ray_out") and not landscape.valley_of(L.valleys, p.angle)
+        and not (cabs(v) < huge) then
+      diverges(p)
     end
     total, err, evals = total + v, err + e, evals + ev
     if st ~= "ok" then status = st end
@@ -443,7 +502,7 @@ function methods.quad(J, opts)
     error(format("quad: option 'along' must be \"deformed\" or \"given\", got %s",
       tostring(along)), 2)
   end
-  local L = J:_landscape(params, o.region and check_region(o.region, "quad"), false)
+  local L = J:_landscape(params, o.region and check_region(o.region, "quad", J), false)
   local v, e, info
   if along == "given" then
     v, e, info = quad_given(J, params, L)
@@ -491,9 +550,10 @@ end
 
 --- J:expand{<params>, order = N | "optimal", region = {...}} -> result
 function methods.expand(J, opts)
-  local params, o = M.split_options(J, opts, { order = true, region = true }, "expand")
+  local params, o = M.split_options(J, opts, { order = true, region = true, verify = true },
+    "expand")
   o.order = require("steep.asymptotics").check_order(o.order or 1, "expand")
-  if o.region then o.region = check_region(o.region, "expand") end
+  if o.region then o.region = check_region(o.region, "expand", J) end
   return require("steep.asymptotics").expand(J, params, o)
 end
 
@@ -505,7 +565,7 @@ function methods.series(J, opts)
   for k, v in pairs(opts) do full[k] = v end
   if J.large and full[J.large.name] == nil then full[J.large.name] = 1 end
   local params, o = M.split_options(J, full, { order = true, region = true }, "series")
-  if o.region then o.region = check_region(o.region, "series") end
+  if o.region then o.region = check_region(o.region, "series", J) end
   return require("steep.asymptotics").series(J, params, o)
 end
 
@@ -523,7 +583,7 @@ function methods.check(J, opts)
   rest[J.large.name] = values[1]
   local params, o = M.split_options(J, rest, { order = true, region = true }, "check")
   params[J.large.name] = nil
-  if o.region then o.region = check_region(o.region, "check") end
+  if o.region then o.region = check_region(o.region, "check", J) end
   return require("steep.asymptotics").check(J, params, values, o)
 end
 

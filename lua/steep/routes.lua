@@ -34,6 +34,16 @@ local function fmtv(v)
   return format("%.6g%+.6gi", re, im)
 end
 
+--- An optional time budget in seconds (CPU time, os.clock) for long analyses.
+function M.check_budget(b, fname)
+  if b == nil then return nil end
+  if type(b) ~= "number" or not (b > 0) or b ~= b then
+    error(format("%s: option 'budget' must be a positive number of seconds, got %s", fname,
+      tostring(b)), 4)
+  end
+  return b
+end
+
 ---------------------------------------------------------------------------------------
 -- Rescaling.
 ---------------------------------------------------------------------------------------
@@ -110,8 +120,8 @@ function M.rescale(J, opts)
     b[s.name] = sv
     local ok, v = pcall(e.value, expr.lift(e), b)
     if not ok then
-      error("rescale: cannot evaluate the substitution at the holding values (" .. tostring(v)
-        .. "); give them with at = {...}", 4)
+      error("rescale: cannot evaluate the substitution at the holding values ("
+        .. tostring(v):gsub("^[^\n]-:%d+: ", "") .. "); give them with at = {...}", 4)
     end
     return v
   end
@@ -258,13 +268,22 @@ end
 --- J:crossings{x = {from =, to =, steps =} | list | steep.path{...}, <other params>}
 -- -> {events = {...}, track = {...}, report = function}. Follows the singularities and
 -- saddles of J (with its contour held fixed) along the parameter path.
+local function need_table(opts, fname)
+  if type(opts) ~= "table" then
+    error(format("bad argument #1 to '%s' (options table expected, got %s)", fname,
+      type(opts)), 4)
+  end
+end
+
 function M.crossings(J, opts)
+  need_table(opts, "crossings")
   if not J.large then error("crossings: the integral names no large parameter", 3) end
   local x = J.large.name
   local values = M.parameter_values(opts[x], "crossings")
   local rest = copy(opts)
   rest[x] = values[1]
   local params, o = require("steep.integral").split_options(J, rest, { region = true }, "crossings")
+  if o.region then o.region = require("steep.integral").check_region(o.region, "crossings", J) end
   local poly0 = J.contour:sample { radius = 50, n = 32 }
   local scale = 1
   for _, z in ipairs(J.contour:finite_points()) do scale = math.max(scale, cabs(z)) end
@@ -461,6 +480,7 @@ end
 -- from and to (same sign), fits |t0(x)| ~ x^a by least squares, and proposes t = x^a s
 -- (a rounded to a simple fraction when it is within 0.02 of one).
 function M.suggest(J, opts)
+  need_table(opts, "suggest_rescaling")
   if not J.large then error("suggest_rescaling: the integral names no large parameter", 3) end
   local x = J.large.name
   local range = opts[x]
@@ -548,6 +568,7 @@ end
 -- corrections, and quadrature; flags every disagreement beyond the error estimates with
 -- the reason found.
 function M.compare(J, opts)
+  need_table(opts, "compare")
   if not J.large then error("compare: the integral names no large parameter", 3) end
   local x = J.large.name
   local values = M.parameter_values(opts[x], "compare")
@@ -698,9 +719,20 @@ end
 -- k-th contiguous block of the values, so the CSV pieces concatenate into the whole
 -- table (only shard 1 writes the header).
 function M.sweep(J, opts)
+  need_table(opts, "sweep")
   if not J.large then error("sweep: the integral names no large parameter", 3) end
   local x = J.large.name
   local values = M.parameter_values(opts[x], "sweep")
+  -- options and the other parameters are checked once here (an unknown name or an
+  -- unbound parameter would otherwise fail every row alike)
+  do
+    local probe = copy(opts)
+    probe[x] = values[1]
+    local integral_m = require("steep.integral")
+    local _, o = integral_m.split_options(J, probe, { order = true, csv = true, shard = true,
+      progress = true, continuation = true, region = true }, "sweep")
+    if o.region then opts = copy(opts); opts.region = integral_m.check_region(o.region, "sweep", J) end
+  end
   local order = require("steep.asymptotics").check_order(opts.order or 4, "sweep")
   local shard = opts.shard
   local first, last = 1, #values
@@ -717,18 +749,28 @@ function M.sweep(J, opts)
   local fixed = {}
   for k, v in pairs(opts) do
     if k ~= x and k ~= "order" and k ~= "csv" and k ~= "shard" and k ~= "progress"
-        and k ~= "continuation" and k ~= "region" then fixed[k] = v end
+        and k ~= "continuation" and k ~= "region" and k ~= "budget" then fixed[k] = v end
   end
   local progress = opts.progress
   if progress == nil then progress = core.isatty and core.isatty(2) and (last - first) > 20 end
   local continuation = opts.continuation ~= false
   local rows = {}
   local prev
+  local budget = M.check_budget(opts.budget, "sweep")
+  local clock0 = os.clock()
+  local out_status = "complete"
   for i = first, last do
     local v = values[i]
     local p = copy(fixed)
     p[x] = v
     local row = { x = v }
+    if budget and os.clock() - clock0 > budget then
+      row.failure = format("not computed: the time budget of %g s was used up", budget)
+      out_status = "incomplete: time budget reached"
+      rows[#rows + 1] = row
+      goto next_value
+    end
+    do
     local ok, err = pcall(function()
       local L
       if continuation and prev then
@@ -765,8 +807,11 @@ function M.sweep(J, opts)
       io.stderr:write(format("\rsweep: %d/%d", i - first + 1, last - first + 1))
       if i == last then io.stderr:write("\n") end
     end
+    end
+    ::next_value::
   end
-  local out = { rows = rows, large = x, order = order, integral = J, shard = shard }
+  local out = { rows = rows, large = x, order = order, integral = J, shard = shard,
+    status = out_status }
   setmetatable(out, { __index = { report = M.sweep_report, csv = M.sweep_csv } })
   if opts.csv then
     local f, e = io.open(opts.csv, "w")
