@@ -114,7 +114,7 @@ end
 -- rsvg-convert renders the file to a PNG; the exit status is 0 and the PNG is not empty
 -- (it starts with the PNG signature).
 local function assert_renders(names)
-  local ok, how, code = os.execute(string.format("rsvg-convert -o %q %q 2>/dev/null",
+  local ok, how, code = os.execute(string.format("env -u LD_PRELOAD -u ASAN_OPTIONS rsvg-convert -o %q %q 2>/dev/null",
     names.png, names.svg))
   if how == "exit" and code == 127 then
     lu.fail("rsvg-convert not found: install the Debian package librsvg2-bin (make deps)")
