@@ -298,7 +298,35 @@ static int land_integrand_many(lua_State *L) {
 
 static const char *invmap_text[] = {"ok", "newton", "notclosed", "singular"};
 
-/* core.invmap_circle(tape, params, t0, F0, m, s, rho, N) -> status, cvec of G values */
+/* Taylor coefficients from the values G[0..N-1] on |w| = rho (trapezoidal rule):
+ * c_k = (1/(N rho^k)) sum_j G_j e^{-2 pi i jk/N}, k < n, with `stride` 1 (all points) or 2
+ * (every other point, an N/2 rule for an aliasing check). Direct sums, O(N n). */
+static void circle_coefs(const cplx *G, size_t N, size_t stride, double rho, size_t n,
+                         cplx *c) {
+  size_t M = N / stride;
+  for (size_t k = 0; k < n; k++) {
+    cplx sum = 0;
+    for (size_t j = 0; j < M; j++) {
+      size_t idx = (j * k) % M;
+      sum += G[j * stride] * cexp(-I * (6.283185307179586 * (double)idx / (double)M));
+    }
+    c[k] = sum / ((double)M * pow(rho, (double)k));
+  }
+}
+
+/* Pushes the coefficient cvecs for N and N/2 points and max|G| (for rounding levels). */
+static int push_coefs(lua_State *L, const cplx *G, size_t N, double rho, lua_Integer n) {
+  if (n < 1 || (size_t)n > N / 2) return luaL_error(L, "number of coefficients out of range");
+  double gmax = 0;
+  for (size_t j = 0; j < N; j++) gmax = fmax(gmax, cabs(G[j]));
+  circle_coefs(G, N, 1, rho, (size_t)n, bind_newcvec(L, (size_t)n));
+  circle_coefs(G, N, 2, rho, (size_t)n, bind_newcvec(L, (size_t)n));
+  lua_pushnumber(L, gmax);
+  return 3;
+}
+
+/* core.invmap_circle(tape, params, t0, F0, m, s, rho, N [, ncoef]) -> status, cvec of G
+ * values; with ncoef: status, coefficients (N points), coefficients (N/2 points), max|G| */
 static int land_invmap(lua_State *L) {
   problem *p = checkproblem(L);
   cplx t0 = bind_checkcomplex(L, 3), F0 = bind_checkcomplex(L, 4);
@@ -310,14 +338,21 @@ static int land_invmap(lua_State *L) {
   luaL_argcheck(L, s != 0, 6, "leading coefficient must not be zero");
   luaL_argcheck(L, rho > 0 && isfinite(rho), 7, "radius must be positive and finite");
   luaL_argcheck(L, N >= 8 && N <= 65536, 8, "number of points must be 8..65536");
+  lua_Integer ncoef = luaL_optinteger(L, 9, 0);
   cplx *G = bind_newcvec(L, (size_t)N);
   int st = invmap_circle(p, t0, F0, m, s, rho, (size_t)N, G);
+  if (ncoef > 0) {
+    lua_pushstring(L, invmap_text[st]);
+    if (st != INVMAP_OK) return 1;
+    return 1 + push_coefs(L, G, (size_t)N, rho, ncoef);
+  }
   lua_pushstring(L, invmap_text[st]);
   lua_insert(L, -2);
   return 2;
 }
 
-/* core.invmap_cubic(tape, params, t1, A, zeta, ua, tprime, rho, N) -> status, cvec of G */
+/* core.invmap_cubic(tape, params, t1, A, zeta, ua, tprime, rho, N [, ncoef]) -> as
+ * core.invmap_circle */
 static int land_invmap_cubic(lua_State *L) {
   problem *p = checkproblem(L);
   cplx t1 = bind_checkcomplex(L, 3), A = bind_checkcomplex(L, 4);
@@ -328,8 +363,14 @@ static int land_invmap_cubic(lua_State *L) {
   luaL_argcheck(L, tprime != 0, 7, "t'(u_a) must not be zero");
   luaL_argcheck(L, rho > 0 && isfinite(rho), 8, "radius must be positive and finite");
   luaL_argcheck(L, N >= 8 && N <= 65536, 9, "number of points must be 8..65536");
+  lua_Integer ncoef = luaL_optinteger(L, 10, 0);
   cplx *G = bind_newcvec(L, (size_t)N);
   int st = invmap_cubic(p, t1, A, zeta, ua, tprime, rho, (size_t)N, G);
+  if (ncoef > 0) {
+    lua_pushstring(L, invmap_text[st]);
+    if (st != INVMAP_OK) return 1;
+    return 1 + push_coefs(L, G, (size_t)N, rho, ncoef);
+  }
   lua_pushstring(L, invmap_text[st]);
   lua_insert(L, -2);
   return 2;

@@ -329,4 +329,6 @@ void bind_tape_open(lua_State *L) {
   lua_pop(L, 1);
   lua_pushcfunction(L, tape_new);
   lua_setfield(L, -2, "tape");
+  lua_pushinteger(L, STEEP_MAX_TAPE);   /* so the Lua side can name the limit */
+  lua_setfield(L, -2, "max_tape");
 }

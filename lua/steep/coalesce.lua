@@ -67,14 +67,11 @@ M.cubic_map = cubic_map
 local function coefficients(J, params, s1, map, rho, n)
   local N = 256
   while N < 4 * n do N = N * 2 end
-  local st, G = core.invmap_cubic(J.tape, params, s1.at, map.A, map.zeta, map.v, map.ta, rho, N)
+  local st, C = core.invmap_cubic(J.tape, params, s1.at, map.A, map.zeta, map.v, map.ta, rho,
+    N, n)
   if st ~= "ok" then return nil end
   local c = {}
-  for k = 0, n - 1 do
-    local sum = cnew(0, 0)
-    for j = 0, N - 1 do sum = sum + G:get(j + 1) * expi(-2 * pi * ((j * k) % N) / N) end
-    c[k] = sum / (N * rho ^ k)
-  end
+  for k = 0, n - 1 do c[k] = C:get(k + 1) end
   return c
 end
 

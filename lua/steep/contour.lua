@@ -205,8 +205,20 @@ end
 -- pieces, each ray out to |t| = R (at least its start plus one unit of length), each arc
 -- in N pieces per quarter turn.
 function methods.sample(c, opts)
+  if opts ~= nil and type(opts) ~= "table" then
+    error(format("bad argument #1 to 'sample' (options table expected, got %s)", type(opts)), 2)
+  end
   opts = opts or {}
   local R, n = opts.radius or 10, opts.n or 16
+  if type(R) ~= "number" or not (R > 0) or R == math.huge then
+    error(format("sample: option 'radius' must be a positive finite number, got %s",
+      tostring(R)), 2)
+  end
+  if math.type(n) == "float" and n == math.floor(n) then n = math.tointeger(n) or n end
+  if math.type(n) ~= "integer" or n < 1 or n > 1e6 then
+    error(format("sample: option 'n' must be a whole number from 1 to 10^6, got %s",
+      tostring(n)), 2)
+  end
   local pts = {}
   local function add(z)
     local last = pts[#pts]

@@ -55,32 +55,6 @@ local function ser(list, n)
   return series(t)
 end
 
--- In-place radix-2 FFT of (re, im)[0..N-1], N a power of two: X_k = sum_j x_j e^{-2 pi i jk/N}.
--- cs[j], sn[j] = cos, sin of 2 pi j/Nt for a table of Nt >= N points (Nt/N an integer).
-local function fft(re, im, N, cs, sn, Nt)
-  local j = 0
-  for i = 0, N - 2 do
-    if i < j then re[i], re[j], im[i], im[j] = re[j], re[i], im[j], im[i] end
-    local bit = N >> 1
-    while j & bit ~= 0 do j = j ~ bit; bit = bit >> 1 end
-    j = j | bit
-  end
-  local len = 2
-  while len <= N do
-    local half, step = len >> 1, Nt // len
-    for start = 0, N - 1, len do
-      for q = 0, half - 1 do
-        local c, d = cs[q * step], -sn[q * step]
-        local a, b = start + q, start + q + half
-        local xr, xi = re[b] * c - im[b] * d, re[b] * d + im[b] * c
-        re[b], im[b] = re[a] - xr, im[a] - xi
-        re[a], im[a] = re[a] + xr, im[a] + xi
-      end
-    end
-    len = len << 1
-  end
-end
-
 --- circle_coefficients(J, params, t0, F0, m, s, n, rho) -> c[0..n-1] or nil: the
 -- coefficients (1/2 pi i) of the integral of G(w) w^(-k-1) over |w| = rho. Inside the
 -- disc of convergence they are G's Taylor coefficients; a circle that also encloses a
@@ -89,14 +63,10 @@ end
 function M.circle_coefficients(J, params, t0, F0, m, s, n, rho)
   local N = 256
   while N < 4 * n do N = N * 2 end
-  local st, G = core.invmap_circle(J.tape, params, t0, F0, m, s, rho, N)
+  local st, C = core.invmap_circle(J.tape, params, t0, F0, m, s, rho, N, n)
   if st ~= "ok" then return nil end
   local out = {}
-  for k = 0, n - 1 do
-    local sum = cnew(0, 0)
-    for j = 0, N - 1 do sum = sum + G:get(j + 1) * expi(-2 * pi * ((j * k) % N) / N) end
-    out[k] = sum / (N * rho ^ k)
-  end
+  for k = 0, n - 1 do out[k] = C:get(k + 1) end
   return out
 end
 
@@ -127,34 +97,17 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
   if R == huge then return a, "series" end
   local N0 = 512
   while N0 < 4 * n do N0 = N0 * 2 end
-  local tables = {}
-  local function table_for(N)
-    if not tables[N] then
-      local cs, sn = {}, {}
-      for j = 0, N - 1 do cs[j], sn[j] = math.cos(2 * pi * j / N), math.sin(2 * pi * j / N) end
-      tables[N] = { cs, sn }
-    end
-    return tables[N][1], tables[N][2]
-  end
   -- coefficients 0..n-1 on |w| = rho with N and with N/2 points, and rounding levels
+  -- coefficients 0..n-1 on |w| = rho with N and with N/2 points (the sums in C), and
+  -- their rounding levels
   local function on_circle(rho, N)
-    local st, G = core.invmap_circle(J.tape, params, t0, F0, m, s, rho, N)
+    local st, C1, C2, gmax = core.invmap_circle(J.tape, params, t0, F0, m, s, rho, N, n)
     if st ~= "ok" then return nil end
-    local re, im, re2, im2, gmax = {}, {}, {}, {}, 0
-    for j, z in ipairs(G:totable()) do
-      re[j - 1], im[j - 1] = z[1], z[2]
-      if (j - 1) % 2 == 0 then re2[(j - 1) // 2], im2[(j - 1) // 2] = z[1], z[2] end
-      gmax = math.max(gmax, math.sqrt(z[1] * z[1] + z[2] * z[2]))
-    end
-    local cs, sn = table_for(N)
-    fft(re, im, N, cs, sn, N)
-    fft(re2, im2, N // 2, cs, sn, N)
     local c, c2, lvl = {}, {}, {}
     for k = 0, n - 1 do
-      local rk = rho ^ k
-      c[k] = cnew(re[k] / (N * rk), im[k] / (N * rk))
-      if k < N // 2 then c2[k] = cnew(re2[k] / (N / 2 * rk), im2[k] / (N / 2 * rk)) end
-      lvl[k] = 64 * EPS * gmax / rk
+      c[k] = C1:get(k + 1)
+      if k < N // 2 then c2[k] = C2:get(k + 1) end
+      lvl[k] = 64 * EPS * gmax / rho ^ k
     end
     return c, c2, lvl
   end

@@ -225,20 +225,59 @@ local function text(n)
   return wrap(n.a, p) .. sym .. wrap(n.b, right_min), p
 end
 
-Expr.__tostring = function(n) return (text(n)) end
-
---- Free symbols of the expressions in the list, in order of first appearance.
+--- The nodes of the expressions in the list, children before parents, each once (an
+-- explicit stack: a chain of 10^5 or more operations must not exhaust Lua's stack).
 local function walk(roots)
   local order, seen = {}, {}
-  local function visit(n)
-    if seen[n] then return end
-    seen[n] = true
-    if n.a then visit(n.a) end
-    if n.b then visit(n.b) end
-    order[#order + 1] = n
+  local stack, state = {}, {}
+  for _, r in ipairs(roots) do
+    if not seen[r] then
+      seen[r] = true
+      local top = 1
+      stack[1], state[1] = r, 0
+      while top > 0 do
+        local n, st = stack[top], state[top]
+        if st < 2 then
+          state[top] = st + 1
+          local child = (st == 0) and n.a or n.b
+          if child and not seen[child] then
+            seen[child] = true
+            top = top + 1
+            stack[top], state[top] = child, 0
+          end
+        else
+          order[#order + 1] = n
+          top = top - 1
+        end
+      end
+    end
   end
-  for _, r in ipairs(roots) do visit(r) end
   return order
+end
+
+-- Printing is recursive and a DAG with shared nodes can print exponentially long
+-- ((t+1)^2 squared 25 times as products prints 2^25 factors): beyond this many
+-- characters (bounded from above, per node, without building the text) an expression
+-- prints as a summary.
+local PRINT_LIMIT = 20000
+
+Expr.__tostring = function(n)
+  local size, count = {}, 0
+  for _, m in ipairs(walk({ n })) do
+    count = count + 1
+    if m.op == "var" or m.op == "param" then size[m] = #m.name
+    elseif m.op == "const" then size[m] = 48.0
+    else size[m] = 12.0 + (m.a and size[m.a] or 0) + (m.b and size[m.b] or 0) + (m.k and 48 or 0) end
+  end
+  if size[n] > PRINT_LIMIT then
+    local names = {}
+    for _, m in ipairs(walk({ n })) do
+      if m.op == "var" or m.op == "param" then names[#names + 1] = m.name end
+    end
+    return format("<expression of %d operations in %s, too long to print>", count,
+      #names > 0 and concat(names, ", ") or "no symbols")
+  end
+  return (text(n))
 end
 
 function methods.symbols(e)

@@ -153,9 +153,9 @@ end
 local MAX_REGION_RATIO = 1e15
 
 -- Checks a user's region (level: the error level to blame). With J, also that it is
--- usable for J: not absurdly large, and, when the contour has an end at infinity, near
--- enough the contour for the valleys (sampled on rings of 4 to 16 radii about the
--- center) to describe the directions in which its ends leave.
+-- usable for J: not absurdly large, and (except for J:landscape), when the contour has an
+-- end at infinity, near enough the contour for the valleys (sampled on rings of 4 to 16
+-- radii about the center) to describe the directions in which its ends leave.
 local function check_region(region, fname, J, level)
   level = level or 3
   if type(region) ~= "table" then
@@ -181,7 +181,8 @@ local function check_region(region, fname, J, level)
         .. "give the radius at the scale of the saddles and the contour", fname, r,
         MAX_REGION_RATIO, scale), level)
     end
-    if not J.contour.closed then
+    -- (J:landscape may look at any region: it does not use the contour)
+    if not J.contour.closed and fname ~= "landscape" then
       for _, p in ipairs(J.contour.pieces) do
         local a = (p.kind == "ray_out" and p.a) or (p.kind == "ray_in" and p.b) or nil
         if a and cabs(a - center) > 4 * r then
@@ -241,10 +242,11 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
   local L = { region = region, params = params, notes = {} }
   if cont and cont.fast then
     -- continuation: the previous step's saddles seed Newton; no search of the region
-    local sing = landscape.singularities(J, params, region, { fast = true })
+    local sing = landscape.singularities(J, params, region,
+      { fast = true, seeds = cont.sing_seeds or {} })
     L.singularities = sing
     L.saddles, L.saddle_count = landscape.saddles(J, params, region, sing, cont.seeds, true)
-    L.valleys, L.growth = landscape.valleys(J, params, region)
+    L.valleys, L.growth = landscape.valleys(J, params, region, { fast = true })
     return setmetatable(L, { __index = { report = M.landscape_report } })
   end
   if region.bounded then
@@ -503,6 +505,11 @@ function methods.quad(J, opts)
       tostring(along)), 2)
   end
   local L = J:_landscape(params, o.region and check_region(o.region, "quad", J), false)
+  return M.quad_with(J, params, L, along)
+end
+
+--- The quadrature on a landscape already mapped (sweeps reuse theirs).
+function M.quad_with(J, params, L, along)
   local v, e, info
   if along == "given" then
     v, e, info = quad_given(J, params, L)

@@ -217,7 +217,7 @@ function M.singularities(J, params, region, opts)
   local htape = J:critical_tape()
   for k, c in ipairs(crit) do
     local zs, zi = M.zeros(htape, params, { out = k, deriv = 0 }, region,
-      { poles = false })
+      { poles = false, seeds = opts and opts.seeds, seeds_only = opts and opts.fast })
     info.evals = info.evals + zi.evals
     for _, z in ipairs(zs) do
       list[#list + 1] = { at = z.at, mult = z.mult, crit = c }
@@ -319,10 +319,10 @@ end
 -- Valleys at infinity.
 ---------------------------------------------------------------------------------------
 
-local NANG = 360
+local RING_ANGLES = 360   -- angles on each ring (fewer when following a sweep: see valleys)
 
 -- log |g e^F| (and F) on the circle of radius r about c at NANG angles.
-local function ring(tape, params, c, r)
+local function ring(tape, params, c, r, NANG)
   local pts = {}
   for k = 0, NANG - 1 do pts[k + 1] = c + r * expi(2 * pi * k / NANG) end
   local F, g = tape:eval_many(core.cvec(pts), params)
@@ -376,10 +376,10 @@ end
 -- (found by sampling, indicative).
 -- Polynomial-type growth seen on rings of radius f*4R, f*8R, f*16R: the sectors of the
 -- leading term a t^n, or nil when the growth is not (yet) that of a power.
-local function polynomial_valleys(J, params, c, R, f)
+local function polynomial_valleys(J, params, c, R, f, NANG)
   local R1, R2, R3 = f * 4 * R, f * 8 * R, f * 16 * R
-  local _, F2 = ring(J.tape, params, c, R2)
-  local _, F3 = ring(J.tape, params, c, R3)
+  local _, F2 = ring(J.tape, params, c, R2, NANG)
+  local _, F3 = ring(J.tape, params, c, R3, NANG)
   -- growth exponent: median of log2 |F(R3)| / |F(R2)|
   local ratios = {}
   for k = 1, NANG do
@@ -437,11 +437,13 @@ local function polynomial_valleys(J, params, c, R, f)
   return nil
 end
 
-function M.valleys(J, params, region)
+function M.valleys(J, params, region, opts)
   local c, R = region.center, region.radius
+  -- following a sweep, 72 angles fix the sectors well enough (they move little)
+  local NANG = (opts and opts.fast) and 72 or RING_ANGLES
   -- lower-order terms (a log, say) can hide the power at first: look further out too
   for _, f in ipairs({ 1, 16, 256 }) do
-    local v, info = polynomial_valleys(J, params, c, R, f)
+    local v, info = polynomial_valleys(J, params, c, R, f, NANG)
     if v then return v, info end
   end
   local R1, R2, R3
@@ -451,8 +453,8 @@ function M.valleys(J, params, region)
   -- overflows): decaying from R1 to R3 and far below the level at R1
   local nest = 0
   do
-    local _, Fa = ring(J.tape, params, c, 8 * R)
-    local _, Fb = ring(J.tape, params, c, 16 * R)
+    local _, Fa = ring(J.tape, params, c, 8 * R, NANG)
+    local _, Fb = ring(J.tape, params, c, 16 * R, NANG)
     local ratios = {}
     for k = 1, NANG do
       local a, b = cabs(Fa[k]), cabs(Fb[k])
@@ -462,9 +464,9 @@ function M.valleys(J, params, region)
     nest = ratios[floor(#ratios / 2) + 1] or huge
   end
   R1, R2, R3 = 1.25 * R, 1.6 * R, 2 * R
-  l1 = ring(J.tape, params, c, R1)
-  l2 = ring(J.tape, params, c, R2)
-  l3 = ring(J.tape, params, c, R3)
+  l1 = ring(J.tape, params, c, R1, NANG)
+  l2 = ring(J.tape, params, c, R2, NANG)
+  l3 = ring(J.tape, params, c, R3, NANG)
   local flags = {}
   local ref = -huge
   for k = 1, NANG do ref = math.max(ref, math.min(l1[k], 1e300)) end

@@ -85,19 +85,19 @@ end
 -- rescaled formula derived at those values assumes). K.rescaling describes the map and
 -- K.homogeneity says whether K's exponent is P(x) psi(s).
 function M.rescale(J, opts)
-  if type(opts) ~= "table" then error("bad argument #1 to 'rescale' (options table expected)", 3) end
+  if type(opts) ~= "table" then error("bad argument #1 to 'rescale' (options table expected)", 2) end
   for k in pairs(opts) do
     if k ~= "var" and k ~= "t" and k ~= "at" then
-      error(format("rescale: unknown option '%s' (options: var, t, at)", tostring(k)), 3)
+      error(format("rescale: unknown option '%s' (options: var, t, at)", tostring(k)), 2)
     end
   end
   local s, T = opts.var, opts.t
   if not (expr.is(s) and s.op == "var") then
-    error("rescale: option 'var' must be a new variable made by steep.var", 3)
+    error("rescale: option 'var' must be a new variable made by steep.var", 2)
   end
-  if s == J.var then error("rescale: the new variable must differ from " .. J.var.name, 3) end
+  if s == J.var then error("rescale: the new variable must differ from " .. J.var.name, 2) end
   if not (expr.is(T) and T:depends_on(s)) then
-    error("rescale: option 't' must be an expression in " .. s.name .. " (t = x^a * s, ...)", 3)
+    error("rescale: option 't' must be an expression in " .. s.name .. " (t = x^a * s, ...)", 2)
   end
   -- every symbol of t must be s or a parameter: a variable other than s is unknown here
   -- (a parameter not yet in J is fine: it is bound at evaluation), even one that shares
@@ -105,7 +105,7 @@ function M.rescale(J, opts)
   for _, name in ipairs(T:symbols()) do
     if name ~= s.name and T:depends_on(expr.symbol("var", name)) then
       error(format("rescale: the substitution names the variable '%s', which is neither "
-        .. "the new variable %s nor a parameter", name, s.name), 3)
+        .. "the new variable %s nor a parameter", name, s.name), 2)
     end
   end
   local at = opts.at or {}
@@ -121,14 +121,14 @@ function M.rescale(J, opts)
     local ok, v = pcall(e.value, expr.lift(e), b)
     if not ok then
       error("rescale: cannot evaluate the substitution at the holding values ("
-        .. tostring(v):gsub("^[^\n]-:%d+: ", "") .. "); give them with at = {...}", 4)
+        .. tostring(v):gsub("^[^\n]-:%d+: ", "") .. "); give them with at = {...}", 3)
     end
     return v
   end
   for _, z in ipairs(pts) do
     if cabs(val(d2, z)) > 1e-12 * (1 + cabs(val(dT, z))) then
       error("rescale: the substitution is not affine in " .. s.name .. " (t = c*s + d): "
-        .. "its contour cannot be mapped", 3)
+        .. "its contour cannot be mapped", 2)
     end
   end
   local c = val(dT, cnew(0, 0))
@@ -137,7 +137,7 @@ function M.rescale(J, opts)
     local ps = {}
     for k, v in pairs(at) do ps[#ps + 1] = k .. " = " .. tostring(v) end
     error(format("rescale: the substitution t = %s is not invertible at %s (dt/d%s = %s)",
-      tostring(T), table.concat(ps, ", "), s.name, tostring(c)), 3)
+      tostring(T), table.concat(ps, ", "), s.name, tostring(c)), 2)
   end
   local K = require("steep.integral").new {
     var = s, exponent = Fs, amplitude = gs, contour = map_contour(J.contour, c, d),
@@ -223,23 +223,23 @@ function M.parameter_values(spec, fname)
   end
   if type(spec) ~= "table" then
     error(fname .. ": give the large parameter as {from =, to =, steps =}, a list, or "
-      .. "a steep.path of values", 4)
+      .. "a steep.path of values", 3)
   end
   if spec.from ~= nil or spec.to ~= nil then
     local a, b, n = spec.from, spec.to, spec.steps or 50
-    if not (cparts(a) and cparts(b)) then error(fname .. ": 'from' and 'to' must be numbers", 4) end
+    if not (cparts(a) and cparts(b)) then error(fname .. ": 'from' and 'to' must be numbers", 3) end
     if type(n) ~= "number" or n < 1 or n ~= math.floor(n) or n > 1e6 then
-      error(fname .. ": 'steps' must be a whole number from 1 to 10^6", 4)
+      error(fname .. ": 'steps' must be a whole number from 1 to 10^6", 3)
     end
     local out = {}
     for k = 0, n do out[#out + 1] = a + (b - a) * (k / n) end
     return out
   end
-  if #spec == 0 then error(fname .. ": the list of parameter values is empty", 4) end
+  if #spec == 0 then error(fname .. ": the list of parameter values is empty", 3) end
   for i, v in ipairs(spec) do
     local re, im = cparts(v)
     if not re or re ~= re or im ~= im or abs(re) == huge or abs(im) == huge then
-      error(format("%s: parameter value %d is not a finite number", fname, i), 4)
+      error(format("%s: parameter value %d is not a finite number", fname, i), 3)
     end
   end
   return spec
@@ -271,13 +271,13 @@ end
 local function need_table(opts, fname)
   if type(opts) ~= "table" then
     error(format("bad argument #1 to '%s' (options table expected, got %s)", fname,
-      type(opts)), 4)
+      type(opts)), 3)
   end
 end
 
 function M.crossings(J, opts)
   need_table(opts, "crossings")
-  if not J.large then error("crossings: the integral names no large parameter", 3) end
+  if not J.large then error("crossings: the integral names no large parameter", 2) end
   local x = J.large.name
   local values = M.parameter_values(opts[x], "crossings")
   local rest = copy(opts)
@@ -481,15 +481,15 @@ end
 -- (a rounded to a simple fraction when it is within 0.02 of one).
 function M.suggest(J, opts)
   need_table(opts, "suggest_rescaling")
-  if not J.large then error("suggest_rescaling: the integral names no large parameter", 3) end
+  if not J.large then error("suggest_rescaling: the integral names no large parameter", 2) end
   local x = J.large.name
   local range = opts[x]
   if type(range) ~= "table" or not range.from or not range.to then
-    error("suggest_rescaling: give " .. x .. " = {from =, to =}", 3)
+    error("suggest_rescaling: give " .. x .. " = {from =, to =}", 2)
   end
   local a, b = range.from, range.to
   if type(a) ~= "number" or type(b) ~= "number" or a * b <= 0 or a == b then
-    error("suggest_rescaling: from and to must be distinct numbers of the same sign", 3)
+    error("suggest_rescaling: from and to must be distinct numbers of the same sign", 2)
   end
   local fixed = copy(opts)
   fixed[x] = nil
@@ -569,12 +569,12 @@ end
 -- the reason found.
 function M.compare(J, opts)
   need_table(opts, "compare")
-  if not J.large then error("compare: the integral names no large parameter", 3) end
+  if not J.large then error("compare: the integral names no large parameter", 2) end
   local x = J.large.name
   local values = M.parameter_values(opts[x], "compare")
   local order = opts.order or 4
   local resc = opts.rescale
-  if type(resc) ~= "table" then error("compare: option 'rescale' = {var =, t =} is required", 3) end
+  if type(resc) ~= "table" then error("compare: option 'rescale' = {var =, t =} is required", 2) end
   local fixed = {}
   for k, v in pairs(opts) do
     if k ~= x and k ~= "order" and k ~= "rescale" and k ~= "region" then fixed[k] = v end
@@ -720,7 +720,7 @@ end
 -- table (only shard 1 writes the header).
 function M.sweep(J, opts)
   need_table(opts, "sweep")
-  if not J.large then error("sweep: the integral names no large parameter", 3) end
+  if not J.large then error("sweep: the integral names no large parameter", 2) end
   local x = J.large.name
   local values = M.parameter_values(opts[x], "sweep")
   -- options and the other parameters are checked once here (an unknown name or an
@@ -730,7 +730,7 @@ function M.sweep(J, opts)
     probe[x] = values[1]
     local integral_m = require("steep.integral")
     local _, o = integral_m.split_options(J, probe, { order = true, csv = true, shard = true,
-      progress = true, continuation = true, region = true }, "sweep")
+      progress = true, continuation = true, region = true, budget = true }, "sweep")
     if o.region then opts = copy(opts); opts.region = integral_m.check_region(o.region, "sweep", J) end
   end
   local order = require("steep.asymptotics").check_order(opts.order or 4, "sweep")
@@ -740,7 +740,7 @@ function M.sweep(J, opts)
     if type(shard) ~= "table" or type(shard[1]) ~= "number" or type(shard[2]) ~= "number"
         or shard[1] < 1 or shard[1] > shard[2] or shard[1] ~= math.floor(shard[1])
         or shard[2] ~= math.floor(shard[2]) then
-      error("sweep: option 'shard' must be {k, n} with 1 <= k <= n", 3)
+      error("sweep: option 'shard' must be {k, n} with 1 <= k <= n", 2)
     end
     local per = #values / shard[2]
     first = math.floor((shard[1] - 1) * per) + 1
@@ -774,13 +774,16 @@ function M.sweep(J, opts)
     local ok, err = pcall(function()
       local L
       if continuation and prev then
-        L = J:_landscape(p, prev.region, false, { seeds = prev.saddles, fast = true })
-        if #L.saddles < #prev.saddles then L = J:_landscape(p, nil, false) end
+        L = J:_landscape(p, prev.region, false, { seeds = prev.saddles, fast = true,
+          sing_seeds = prev.singularities })
+        if #L.saddles < #prev.saddles or #L.singularities < #prev.singularities then
+          L = J:_landscape(p, nil, false)
+        end
       else
         L = J:_landscape(p, opts.region, false)
       end
       local r = require("steep.asymptotics").expand(J, p, { order = order, landscape = L })
-      local q, qe = J:quad(copy(p))
+      local q, qe = require("steep.integral").quad_with(J, p, L, "deformed")
       row.expansion, row.error, row.quad, row.quad_error = r.value, r.error, q, qe
       row.relative_error = cabs(r.value - q) / math.max(cabs(q), 1e-300)
       row.estimated = r.error / math.max(cabs(q), 1e-300)
@@ -798,8 +801,9 @@ function M.sweep(J, opts)
         end
       end
       row.valleys = table.concat(ends, " -> ")
-      prev = { region = L.region, saddles = {} }
+      prev = { region = L.region, saddles = {}, singularities = {} }
       for _, sd in ipairs(L.saddles) do prev.saddles[#prev.saddles + 1] = sd.at end
+      for _, sg in ipairs(L.singularities) do prev.singularities[#prev.singularities + 1] = sg.at end
     end)
     if not ok then row.failure = tostring(err); prev = nil end
     rows[#rows + 1] = row
@@ -815,7 +819,7 @@ function M.sweep(J, opts)
   setmetatable(out, { __index = { report = M.sweep_report, csv = M.sweep_csv } })
   if opts.csv then
     local f, e = io.open(opts.csv, "w")
-    if not f then error("sweep: cannot write " .. tostring(opts.csv) .. ": " .. tostring(e), 3) end
+    if not f then error("sweep: cannot write " .. tostring(opts.csv) .. ": " .. tostring(e), 2) end
     f:write(out:csv(not shard or shard[1] == 1))
     f:close()
   end
