@@ -376,6 +376,36 @@ static int land_invmap_cubic(lua_State *L) {
   return 2;
 }
 
+/* core.laurent(tape, params, p, rho, N, depth) -> cvec of a_m rho^m for m = -depth..1
+ * (entry m + depth + 1), max |integrand| on the circle: the trapezoidal rule on
+ * |t - p| = rho (exponentially accurate for an integrand analytic on an annulus). */
+static int land_laurent(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx c = bind_checkcomplex(L, 3);
+  double rho = luaL_checknumber(L, 4);
+  lua_Integer N = luaL_checkinteger(L, 5), depth = luaL_checkinteger(L, 6);
+  luaL_argcheck(L, rho > 0 && isfinite(rho), 4, "radius must be positive and finite");
+  luaL_argcheck(L, N >= 8 && N <= 65536, 5, "number of points must be 8..65536");
+  luaL_argcheck(L, depth >= 1 && depth <= 1024, 6, "depth must be 1..1024");
+  cplx *f = bind_scratch(L, (size_t)N * sizeof(cplx));
+  double vmax = 0;
+  for (lua_Integer k = 0; k < N; k++) {
+    f[k] = integrand(p, c + rho * cexp(I * (6.283185307179586 * (double)k / (double)N)));
+    vmax = fmax(vmax, cabs(f[k]));
+  }
+  cplx *out = bind_newcvec(L, (size_t)depth + 2);
+  for (lua_Integer m = -depth; m <= 1; m++) {
+    cplx sum = 0;
+    for (lua_Integer k = 0; k < N; k++) {
+      lua_Integer idx = ((k * m) % N + N) % N;
+      sum += f[k] * cexp(-I * (6.283185307179586 * (double)idx / (double)N));
+    }
+    out[m + depth] = sum / (double)N;
+  }
+  lua_pushnumber(L, vmax);
+  return 2;
+}
+
 /* ---- geometry ------------------------------------------------------------------- */
 
 /* core.turning(points, z) -> change of arg(t - z) / 2pi along the polyline, or nil if
@@ -418,7 +448,7 @@ static const luaL_Reg land_funcs[] = {
   {"zero", land_zero}, {"count", land_count}, {"trace", land_trace},
   {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
   {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},
-  {"invmap_cubic", land_invmap_cubic},
+  {"invmap_cubic", land_invmap_cubic}, {"laurent", land_laurent},
   {"turning", geo_turning}, {"crossings", geo_crossings}, {"distance", geo_distance},
   {NULL, NULL}
 };

@@ -161,17 +161,9 @@ end
 -- Trapezoidal rule on a circle (exponentially accurate for analytic periodic integrands):
 -- the Laurent coefficients a_n rho^n, n = -depth..1, of the integrand about p.
 local function laurent(tape, params, p, rho, n, depth)
-  local pts = {}
-  for k = 0, n - 1 do pts[k + 1] = p + rho * expi(2 * pi * k / n) end
-  local vals = core.integrand_many(tape, params, pts)
+  local c, vmax = core.laurent(tape, params, p, rho, n, depth)
   local coef = {}
-  for m = -depth, 1 do
-    local s = cnew(0, 0)
-    for k = 0, n - 1 do s = s + vals:get(k + 1) * expi(-2 * pi * k * m / n) end
-    coef[m] = s / n
-  end
-  local vmax = 0
-  for k = 1, n do vmax = math.max(vmax, cabs(vals:get(k))) end
+  for m = -depth, 1 do coef[m] = c:get(m + depth + 1) end
   return coef, vmax
 end
 

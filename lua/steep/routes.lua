@@ -39,7 +39,7 @@ function M.check_budget(b, fname)
   if b == nil then return nil end
   if type(b) ~= "number" or not (b > 0) or b ~= b then
     error(format("%s: option 'budget' must be a positive number of seconds, got %s", fname,
-      tostring(b)), 4)
+      tostring(b)), 3)
   end
   return b
 end
