@@ -6,10 +6,12 @@
 -- uses as its check.
 --
 -- What it shows: the plain two-saddle expansion degrades as the points merge (its error
--- estimate grows; J:crossings reports the coalescence), quadrature stays exact, and the
--- uniform answer is the Airy function itself (steep.airy computes Ai and Ai' for complex
--- arguments by steepest-path quadrature of DLMF 9.5.4). The Airy-type uniform expansion
--- for general exponents (Chester, Friedman & Ursell 1957) is not built yet.
+-- estimate grows; J:crossings reports the coalescence) until J:expand switches to the
+-- Airy-type uniform form for the pair (Chester, Friedman & Ursell 1957; steep.coalesce,
+-- when |zeta| < 4 for the cubic map's zeta, here about a x^{2/3}); quadrature stays
+-- exact; and the answer is the Airy function itself (steep.airy computes Ai and Ai' for
+-- complex arguments by steepest-path quadrature of DLMF 9.5.4). The table's "kind" column
+-- says which form J:expand used.
 --
 -- Parameters (as a module): M.table{x =, a = {values}, order = N}.
 -- Run: lua5.4 recipes/merging_points.lua (an invented sweep of a at x = 30).
@@ -25,20 +27,22 @@ M.J = steep.integral { var = t, exponent = steep.I * x * (t ^ 3 / 3 - a * t),
 --- M.table{x =, a = {values}, order = N} -> rows, text
 function M.table(spec)
   local rows = {}
-  local lines = { string.format("%-8s %-26s %-26s %-10s %s", "a", "plain expansion",
-    "quadrature", "rel.err", "uniform (Airy) rel.err") }
+  local lines = { string.format("%-8s %-26s %-26s %-10s %-24s %s", "a", "J:expand",
+    "quadrature", "rel.err", "uniform (Airy) rel.err", "kind") }
   for _, av in ipairs(spec.a) do
     local q = M.J:quad { x = spec.x, a = av }
     local ok, r = pcall(M.J.expand, M.J, { x = spec.x, a = av, order = spec.order or 3 })
     local ai = steep.airy(-av * spec.x ^ (2 / 3))
     local uniform = 2 * math.pi * spec.x ^ (-1 / 3) * ai
-    local row = { a = av, quad = q, uniform = uniform,
-      expansion = ok and r.value or nil, failure = not ok and tostring(r) or nil }
+    local kind = ok and r.contributions[1] and r.contributions[1].kind or "-"
+    local row = { a = av, quad = q, uniform = uniform, kind = kind,
+      expansion = ok and r.value or nil, error = ok and r.error or nil,
+      failure = not ok and tostring(r) or nil }
     rows[#rows + 1] = row
-    lines[#lines + 1] = string.format("%-8g %-26s %-26s %-10s %.3g", av,
+    lines[#lines + 1] = string.format("%-8g %-26s %-26s %-10s %-24.3g %s", av,
       ok and tostring(r.value) or "failed", tostring(q),
       ok and string.format("%.3g", (r.value - q):abs() / q:abs()) or "-",
-      (uniform - q):abs() / q:abs())
+      (uniform - q):abs() / q:abs(), kind)
   end
   return rows, table.concat(lines, "\n")
 end

@@ -7,7 +7,7 @@
 
 local root = arg[0]:match("^(.*)/tests/run%.lua$") or "."
 package.path = table.concat({ root .. "/lua/?.lua", root .. "/lua/?/init.lua",
-  root .. "/tests/?.lua", package.path }, ";")
+  root .. "/tests/?.lua", root .. "/recipes/?.lua", package.path }, ";")
 package.cpath = (os.getenv("STEEP_CPATH") or "lua/?.so"):gsub("^([^/])", root .. "/%1")
   .. ";" .. root .. "/tests/ref/?.so;" .. package.cpath
 

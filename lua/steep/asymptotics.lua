@@ -51,7 +51,7 @@ M.check_order = check_order
 -- (DLMF 7.7.2 with w(-z) = 2 e^{-z^2} - w(z), DLMF 7.4.3), and H by its series to any order.
 -- The jump of that integral as b crosses the real axis, 2 pi i e^{-b^2} r, is exactly the
 -- residue term the decomposition gains or loses there, so the total is continuous.
-local UNIFORM_RADIUS = 8   -- |b| below which the pole is treated uniformly (saddle widths)
+local UNIFORM_RADIUS = 16  -- |b| below which the pole is treated uniformly (saddle widths)
 
 local function pole_near(J, params, L, s, sm, plan_residues)
   local best

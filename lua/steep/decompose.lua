@@ -393,7 +393,11 @@ function M.decompose(J, params, L, contour)
       plan.notes[#plan.notes + 1] = format("the winding number about %s is not an integer "
         .. "(%.6g): the closure is ambiguous", tostring(s.at), w)
     elseif n ~= 0 then
-      if s.kind == "pole" then
+      if s.kind == "pole" and s.residue_unknown then
+        plan.status = "unsupported"
+        plan.notes[#plan.notes + 1] = format("the deformation sweeps over the pole at %s "
+          .. "(order %s) whose residue could not be computed", tostring(s.at), tostring(s.order))
+      elseif s.kind == "pole" then
         plan.residues[#plan.residues + 1] = { index = idx, winding = n }
       elseif s.kind ~= "sink" or s.branch then
         -- a sink with a non-integer coefficient is a branch point: the deformation must

@@ -368,6 +368,14 @@ function M.truncate(terms, order, scale, logsize)
     end
     local s = cnew(0, 0)
     for k = 1, bi - 1 do s = s + terms[k] end
+    -- terms that oscillate in size (complex singularities of the Borel transform) can
+    -- dip far below their envelope at the smallest one: then the envelope there, the
+    -- geometric mean of the neighbours, is the honest size of the error
+    local before, after = terms[bi - 1], terms[bi + 1]
+    if before and after then
+      local env = math.sqrt(cabs(before) * cabs(after))
+      if best < 0.5 * env then best = env end
+    end
     return s * scale, math.max(best * cabs(scale), floor(bi - 1)), bi - 1
   end
   local used = math.min(order, n)

@@ -284,11 +284,23 @@ function M.singularities(J, params, region, opts)
       end
       local a = laurent(J.tape, params, m.at, rho, 4 * depth + 32, depth)
       local b, vmax = laurent(J.tape, params, m.at, rho, 8 * depth + 64, depth)
-      local big = 0
-      for k = -depth, 1 do big = math.max(big, cabs(b[k])) end
+      local big, finite = 0, true
+      for k = -depth, 1 do
+        local v = cabs(b[k])
+        if not (v < huge) then finite = false end   -- inf or NaN
+        big = math.max(big, v)
+      end
+      if not finite then big = huge end
       local order = 0
       for k = -depth, -1 do if cabs(b[k]) > 1e-10 * big then order = math.max(order, -k) end end
-      if order == 0 then
+      if not (big < huge) or big ~= big then
+        -- the sums overflowed (a pole of very high order): it is still a pole, of the order
+        -- its log coefficient says; its residue is unknown, which matters only if a
+        -- deformation sweeps over it (the decomposition then says so)
+        s.residue, s.residue_error = nil, nil
+        s.order = s.order or depth
+        s.residue_unknown = true
+      elseif order == 0 then
         s.kind = "removable"
       else
         s.order = order

@@ -2,7 +2,8 @@
  *
  * Each function calls the gsl_sf_*_e (or gsl_cdf_*) routine, checks its status and
  * raises a Lua error carrying gsl_strerror on failure. The special functions return
- * (value, error estimate) as GSL reports them; the cdf_* functions return the value.
+ * (value, error estimate) as GSL reports them; the cdf_* and *_pdf functions return the
+ * value.
  * faddeeva_w comes from libcerf (w_of_z), not GSL: it returns the real and imaginary
  * parts of w(z) = exp(-z^2) erfc(-iz) (DLMF 7.2.3) and has no error estimate.
  */
@@ -20,6 +21,7 @@
 #include <gsl/gsl_sf_gamma.h>
 #include <gsl/gsl_sf_result.h>
 #include <gsl/gsl_cdf.h>
+#include <gsl/gsl_randist.h>
 
 #include <cerf.h>
 
@@ -143,6 +145,14 @@ static int l_cdf_ugaussian_Q(lua_State *L)
   return push_cdf(L, "cdf_ugaussian_Q", gsl_cdf_ugaussian_Q(luaL_checknumber(L, 1)));
 }
 
+/* gamma_pdf(x, a, b): the density x^(a-1) e^(-x/b) / (Gamma(a) b^a) of the gamma law with
+ * shape a and scale b (gsl_ran_gamma_pdf). */
+static int l_gamma_pdf(lua_State *L)
+{
+  double x = luaL_checknumber(L, 1), a = luaL_checknumber(L, 2), b = luaL_checknumber(L, 3);
+  return push_cdf(L, "gamma_pdf", gsl_ran_gamma_pdf(x, a, b));
+}
+
 static const luaL_Reg funcs[] = {
   { "airy_Ai", l_airy_Ai },
   { "airy_Ai_deriv", l_airy_Ai_deriv },
@@ -156,6 +166,7 @@ static const luaL_Reg funcs[] = {
   { "cdf_gamma_Q", l_cdf_gamma_Q },
   { "cdf_binomial_Q", l_cdf_binomial_Q },
   { "cdf_ugaussian_Q", l_cdf_ugaussian_Q },
+  { "gamma_pdf", l_gamma_pdf },
   { NULL, NULL }
 };
 

@@ -1,0 +1,318 @@
+-- Tests of the recipes (recipes/*.lua): each loads as a module (recipes/ is on the test
+-- runner's path) and computes something checkable against values computed here
+-- independently, each runs as a script, and a recipe asking for a newer API fails loudly.
+-- The saddlepoint recipe has its own file (tests/test_saddlepoint.lua).
+local lu = require "luaunit"
+local H = require "helpers"
+local gsl = require "gslref"
+local steep = H.steep
+
+local abs, pi = math.abs, math.pi
+
+local root = debug.getinfo(1, "S").source:match("^@(.*)/tests/test_recipes%.lua$") or "."
+
+local function cabs(z) return type(z) == "number" and abs(z) or z:abs() end
+
+---------------------------------------------------------------------------------------
+
+TestRecipesLaplaceEndpoint = {}
+
+local le = require "laplace_endpoint"
+local lt = le.t
+-- the recipe's invented example: g(t) = 1/(1 + t^2), h(t) = t + t^2/4
+local LG, LH = 1 / (1 + lt ^ 2), lt + lt ^ 2 / 4
+
+-- Watson's lemma by hand: with u = h(t), t = 2 (sqrt(1 + u) - 1), dt/du = (1 + u)^(-1/2)
+-- and g(t(u)) dt/du = 1 - u/2 - (5/8) u^2 + (11/16) u^3 + ..., so
+-- L(x) ~ 1/x - 1/(2 x^2) - (5/4)/x^3 + (33/8)/x^4 (k! G_k / x^(k+1); worked out for this
+-- test). The recipe's integral gives these terms.
+function TestRecipesLaplaceEndpoint:test_watson_terms()
+  local J = le.integral { g = LG, h = LH }
+  local r = J:expand { x = 10, order = 4 }
+  lu.assertEquals(r.contributions[1].kind, "endpoint")
+  local want = { 1, -1 / 2, -5 / 4, 33 / 8 }
+  for k, w in ipairs(want) do
+    H.close(r.contributions[1].terms[k], w / 10 ^ k, 1e-12, "Watson term " .. k .. " at x = 10")
+  end
+end
+
+-- M.analyse: optimal truncation against quadrature at x = 10..40. The expansion's
+-- relative error falls with x, and it is within the agreement rule J:check applies
+-- (|expansion - quadrature| <= 3 (estimate + quadrature error)).
+function TestRecipesLaplaceEndpoint:test_optimal_truncation_honest()
+  local xs = {}
+  for x = 10, 40, 5 do xs[#xs + 1] = x end
+  local rows, text = le.analyse { g = LG, h = LH, x = xs }
+  lu.assertEquals(#rows, #xs)
+  lu.assertStrContains(text, "rel.err")
+  local bad = {}
+  for i, row in ipairs(rows) do
+    lu.assertEquals(row.x, xs[i])
+    local q = cabs(row.quad)
+    local diff = cabs(row.expansion - row.quad)
+    H.close(diff / q, row.relative_error, 1e-12, "the row's relative error at x = " .. row.x)
+    if not (diff <= 3 * (row.estimate * q + row.quad_error)) then
+      bad[#bad + 1] = string.format("x = %g: relative error %.3g, estimate %.3g (ratio %.2f, "
+        .. "%d terms)", row.x, row.relative_error, row.estimate, row.relative_error / row.estimate,
+        row.terms)
+    end
+  end
+  lu.assertTrue(rows[3].relative_error < rows[1].relative_error and
+    rows[7].relative_error < rows[3].relative_error, "error falls from x = 10 to 20 to 40")
+  lu.assertTrue(rows[7].relative_error < 1e-13, "x = 40: relative error " .. rows[7].relative_error)
+  if #bad > 0 then
+    lu.fail("optimal truncation: the error exceeds 3 x the estimate at " .. table.concat(bad, "; "))
+  end
+end
+
+-- A fixed number of terms (4): the estimate (the first omitted term) is honest.
+function TestRecipesLaplaceEndpoint:test_fixed_order_honest()
+  local rows = le.analyse { g = LG, h = LH, x = { 10, 20, 40 }, order = 4 }
+  for _, row in ipairs(rows) do
+    lu.assertEquals(row.terms, 4)
+    lu.assertTrue(row.relative_error <= 3 * row.estimate, string.format("x = %g: relative "
+      .. "error %.3g, estimate %.3g", row.x, row.relative_error, row.estimate))
+  end
+end
+
+---------------------------------------------------------------------------------------
+
+TestRecipesCoefficients = {}
+
+local co = require "coefficients"
+local cz = co.z
+
+-- [z^n] (1 + z + z^2)^n (1 + z/2) by multiplying the polynomial out in floating point (the
+-- coefficients are positive integers: exact below 2^53, relative rounding ~ n u beyond)
+local function trinomial_coefficient(n)
+  local c, deg = { [0] = 1.0 }, 0
+  for _ = 1, n do
+    local d = {}
+    for k = 0, deg + 2 do d[k] = (c[k] or 0) + (c[k - 1] or 0) + (c[k - 2] or 0) end
+    c, deg = d, deg + 2
+  end
+  return c[n] + 0.5 * c[n - 1]
+end
+
+-- Large powers: the series of order 6 (the default) against the exact coefficients:
+-- relative error under n^-6 + 1e-13 (observed 3e-7 at n = 10, 3e-13 at n = 100), a real
+-- value, and the leading term 1.5 * 3^(n + 1/2) / (2 sqrt(pi n)) (the central trinomial
+-- coefficients grow as 3^(n + 1/2) / (2 sqrt(pi n)), from memory; A(1) = 1.5).
+function TestRecipesCoefficients:test_large_powers()
+  local lp = co.large_powers { A = 1 + cz / 2, B = 1 + cz + cz ^ 2 }
+  H.close(lp.radius, 1, 1e-14, "the saddle on the positive axis")
+  for _, n in ipairs({ 10, 20, 50, 100, 200, 400 }) do
+    local v = lp.at(n)
+    local want = trinomial_coefficient(n)
+    H.close(v, want, n ^ -6 + 1e-13, "[z^" .. n .. "] (1 + z + z^2)^n (1 + z/2)")
+    lu.assertTrue(abs(v:im()) <= 1e-13 * want, "imaginary part at n = " .. n)
+  end
+  local lead
+  for _, c in ipairs(lp.series) do
+    if cabs(c.at - 1) < 1e-12 then lead = c end
+  end
+  lu.assertNotNil(lead, "a contribution from the saddle at z = 1")
+  for _, n in ipairs({ 100, 400 }) do
+    H.close(lead:value(n, 1) / (2 * pi * steep.I), 1.5 * 3 ^ (n + 0.5) / (2 * math.sqrt(pi * n)),
+      1e-12, "leading term at n = " .. n)
+  end
+end
+
+-- Bell numbers by the Bell triangle (each row starts with the last entry of the one
+-- before; each entry is its left neighbour plus the entry above that neighbour; B_n starts
+-- row n), in floating point.
+local function bell_numbers(nmax)
+  local B, row = { [0] = 1.0 }, { 1.0 }
+  for n = 1, nmax do
+    local nr = { row[#row] }
+    for k = 1, #row do nr[k + 1] = nr[k] + row[k] end
+    row = nr
+    B[n] = row[1]
+  end
+  return B
+end
+
+-- [z^n] e^{e^z - 1} = B_n / n! by the non-homogeneous route: within 3 times its error
+-- estimate, and the relative error falling with n (observed 1.2e-5 at n = 10, 1.9e-9 at
+-- n = 60).
+function TestRecipesCoefficients:test_bell_numbers()
+  local B = bell_numbers(60)
+  H.close(B[10], 115975, 0, "B_10 from the triangle")      -- the triangle itself, checked
+  local ns = { 10, 20, 30, 40, 60 }
+  local rows = co.nonhomogeneous { P = steep.exp(cz) - 1, n = ns }
+  local last = math.huge
+  for i, row in ipairs(rows) do
+    lu.assertEquals(row.n, ns[i])
+    local fact = 1.0
+    for k = 2, row.n do fact = fact * k end
+    local got, want = row.value * fact, B[row.n]
+    local rel = abs(got - want) / want
+    local msg = string.format("B_%d: got %.17g, want %.17g (relative error %.3g, estimate %.3g)",
+      row.n, got, want, rel, row.error / abs(row.value))
+    lu.assertTrue(abs(row.value - want / fact) <= 3 * row.error, msg)
+    lu.assertTrue(rel < last, msg .. ": falls with n")
+    last = rel
+  end
+  lu.assertTrue(last < 1e-8, "n = 60: relative error " .. last)
+end
+
+---------------------------------------------------------------------------------------
+
+TestRecipesMergingPoints = {}
+
+local mp = require "merging_points"
+
+-- The uniform answer 2 pi x^(-1/3) Ai(-a x^(2/3)) (steep.airy) against quadrature and
+-- against GSL's Ai, to 1e-10 relative, as the points merge, coincide (a = 0) and move off
+-- the real axis (a < 0).
+function TestRecipesMergingPoints:test_uniform_airy_value()
+  local X = 30
+  local as = { 1, 0.5, 0.2, 0.05, 0.01, 0, -0.2, -0.5 }
+  local rows, text = mp.table { x = X, a = as }
+  lu.assertStrContains(text, "uniform (Airy) rel.err")
+  for i, row in ipairs(rows) do
+    lu.assertEquals(row.a, as[i])
+    local ref = 2 * pi * X ^ (-1 / 3) * gsl.airy_Ai(-row.a * X ^ (2 / 3))   -- gsl_sf_airy_Ai_e
+    H.close(row.uniform, row.quad, 1e-10, "uniform vs quadrature, a = " .. row.a)
+    H.close(row.uniform, ref, 1e-10, "uniform vs GSL, a = " .. row.a)
+  end
+end
+
+-- The plain two-saddle expansion (order 3) while J:expand still uses it (x = 30,
+-- a x^(2/3) >= 4): its error, relative to the size of the two saddles' terms, grows as
+-- a -> 0 and stays within 3 times its estimate. Closer in, J:expand switches to the
+-- Airy-type uniform form of the pair, which agrees with quadrature to 1e-10.
+function TestRecipesMergingPoints:test_plain_expansion_degrades()
+  local X = 30
+  local last = 0
+  for _, a in ipairs({ 3, 2, 1, 0.7, 0.45 }) do
+    local r = mp.J:expand { x = X, a = a, order = 3 }
+    local q = mp.J:quad { x = X, a = a }
+    local size = 0
+    for _, c in ipairs(r.contributions) do
+      lu.assertEquals(c.kind, "saddle", "a = " .. a)
+      size = size + cabs(c.value)
+    end
+    local d = cabs(r.value - q)
+    local msg = string.format("a = %g: error %.3g, relative to the saddles' size %.3g, "
+      .. "estimate %.3g", a, d, d / size, r.error)
+    lu.assertTrue(d <= 3 * r.error, msg)
+    lu.assertTrue(d / size > 2 * last, msg .. string.format(" (previous %.3g)", last))
+    last = d / size
+  end
+  local rows = mp.table { x = X, a = { 0.3, 0.1, 0.01, -0.1 }, order = 3 }
+  for _, row in ipairs(rows) do
+    lu.assertStrContains(row.kind, "uniform, Airy type")
+    H.close(row.expansion, row.quad, 1e-10, "J:expand near coalescence, a = " .. row.a)
+  end
+end
+
+---------------------------------------------------------------------------------------
+
+TestRecipesScripts = {}
+
+local function q(s) return "'" .. s:gsub("'", "'\\''") .. "'" end
+
+-- The steep module the runner uses (the plain build, or the sanitized one under make asan)
+local steep_cpath = (os.getenv("STEEP_CPATH") or "lua/?.so"):gsub("^([^/])", root .. "/%1")
+
+-- runs `lua5.4 <file>` with LUA_PATH / LUA_CPATH naming the tree; output, exit status
+local function run_script(file, tmpdir)
+  local cmd = string.format("cd %s && env -u LUA_INIT -u LUA_INIT_5_4 LUA_PATH=%s LUA_CPATH=%s "
+    .. "%s lua5.4 %s 2>&1", q(root), q(root .. "/lua/?.lua;" .. root .. "/lua/?/init.lua;;"),
+    q(steep_cpath .. ";;"), tmpdir and ("TMPDIR=" .. q(tmpdir)) or "", q(file))
+  local p = assert(io.popen(cmd))
+  local out = p:read("a")
+  local ok, how, code = p:close()
+  return out, ok, how, code
+end
+
+-- Each recipe runs as a script (exit status 0) and prints its table.
+function TestRecipesScripts:test_recipes_run()
+  local tmpdir = os.tmpname()
+  os.remove(tmpdir)
+  assert(os.execute("mkdir " .. q(tmpdir)))
+  local expect = {
+    ["laplace_endpoint.lua"] = { "Invented example", "rel.err", "\n40 " },
+    ["coefficients.lua"] = { "(1 + z + z^2)^n", "n = 200", "Bell numbers", "n = 40" },
+    ["merging_points.lua"] = { "Invented sweep", "uniform (Airy) rel.err", "\n0.02 " },
+    ["saddlepoint.lua"] = { "Invented example", "P(tail >= threshold)", "caution: " },
+    ["demo.lua"] = { "== the integral", "== both routes against quadrature", "Caution" },
+  }
+  local ls = assert(io.popen("ls " .. q(root .. "/recipes")))
+  local seen = 0
+  for f in ls:lines() do
+    if f:match("%.lua$") then
+      seen = seen + 1
+      local frags = expect[f]
+      lu.assertNotNil(frags, "a test expectation for recipes/" .. f)
+      local out, ok, how, code = run_script("recipes/" .. f, tmpdir)
+      if not ok then
+        lu.fail(string.format("recipes/%s failed (%s %s):\n%s", f, tostring(how),
+          tostring(code), out))
+      end
+      for _, frag in ipairs(frags) do lu.assertStrContains(out, frag) end
+      if f == "saddlepoint.lua" then
+        -- the printed tail at x = 2 (n = 20) against the exact gamma tail
+        local p = tonumber(out:match("\n2%s+(%S+)"))
+        lu.assertNotNil(p, "row x = 2 in:\n" .. out)
+        H.close(p, gsl.cdf_gamma_Q(40, 20, 1), 1e-3, "saddlepoint script, x = 2")
+      end
+    end
+  end
+  ls:close()
+  lu.assertEquals(seen, 5, "recipes found")
+  os.execute("rm -rf " .. q(tmpdir))
+end
+
+---------------------------------------------------------------------------------------
+
+TestRecipesVersion = {}
+
+-- A recipe written for a newer API (here laplace_endpoint.lua with its version line asking
+-- for 9.0) fails loudly: as a module the load raises an error naming both versions; as a
+-- script it stops with a non-zero exit status before printing anything.
+function TestRecipesVersion:test_newer_api_fails_loudly()
+  H.raises({ "this script needs steep 9.0", "the installed steep is " .. steep.version },
+    steep.require_version, "9.0")
+  local f = assert(io.open(root .. "/recipes/laplace_endpoint.lua"))
+  local src = f:read("a")
+  f:close()
+  local n
+  src, n = src:gsub('steep%.require_version%("0%.1"%)', 'steep.require_version("9.0")')
+  lu.assertEquals(n, 1, "the recipe states its API version")
+  local base = os.tmpname()
+  local dir, name = base:match("^(.*)/([^/]+)$")
+  local modname = name:gsub("[^%w_]", "_") .. "_laplace_endpoint"
+  local path = dir .. "/" .. modname .. ".lua"
+  f = assert(io.open(path, "w"))
+  f:write(src)
+  f:close()
+  local saved = package.path
+  package.path = dir .. "/?.lua;" .. package.path
+  local ok, err = pcall(require, modname)
+  package.path = saved
+  package.loaded[modname] = nil
+  lu.assertFalse(ok, "loading a recipe that needs API 9.0")
+  err = tostring(err)
+  lu.assertStrContains(err, "this script needs steep 9.0")
+  lu.assertStrContains(err, "the installed steep is " .. steep.version)
+  -- as a script: the script-detection pattern matches laplace_endpoint.lua, so copy the
+  -- file to that name in a directory of its own
+  local sdir = base .. "_dir"
+  assert(os.execute("mkdir " .. q(sdir)))
+  local spath = sdir .. "/laplace_endpoint.lua"
+  f = assert(io.open(spath, "w"))
+  f:write(src)
+  f:close()
+  local out, sok, how, code = run_script(spath)
+  os.remove(path)
+  os.remove(spath)
+  os.remove(sdir)
+  os.remove(base)
+  lu.assertTrue(not sok and how == "exit" and code ~= 0,
+    "the script's exit status is non-zero:\n" .. out)
+  lu.assertStrContains(out, "this script needs steep 9.0")
+  lu.assertStrContains(out, "the installed steep is " .. steep.version)
+  lu.assertNil(out:find("Invented example", 1, true), "nothing computed:\n" .. out)
+end

@@ -1,0 +1,138 @@
+-- Tests of the uniform forms: the saddle with a nearby pole of the amplitude (through the
+-- Faddeeva function) as the pole crosses the steepest path, and steep.airy (Ai and Ai'
+-- by steepest-path quadrature) against GSL on the real axis and against identities of
+-- the Airy functions at complex points.
+local lu = require "luaunit"
+local H = require "helpers"
+local gsl = require "gslref"
+local steep = H.steep
+
+local I, pi = steep.I, math.pi
+
+local function cabs(z) return type(z) == "number" and math.abs(z) or z:abs() end
+
+---------------------------------------------------------------------------------------
+
+TestUniformPole = {}
+
+-- J(x, y) = integral of exp(-x t^2/2) / (t - (0.3 + i y)) dt along the path from -inf
+-- (direction pi) to -2 + i, then to 2 + i, then to +inf (direction 0). The contour stays
+-- above the pole, so J is analytic in y; the steepest path through the saddle t = 0 is the
+-- real axis, which the pole crosses as y changes sign: for y > 0 the deformation picks up
+-- the pole's residue, for y < 0 it does not, and the uniform form's Faddeeva term jumps
+-- by exactly that residue.
+local t, x, y = steep.var "t", steep.param "x", steep.param "y"
+local J = steep.integral { var = t, exponent = -x * t ^ 2 / 2,
+  amplitude = 1 / (t - (0.3 + I * y)),
+  contour = steep.path { steep.inf(pi), -2 + I, 2 + I, steep.inf(0) }, large = x }
+
+local YS = { 0.3, 0.2, 0.1, 1e-2, 1e-3, 1e-6, 1e-9, -1e-9, -1e-6, -1e-3, -1e-2, -0.1, -0.2, -0.3 }
+
+local expansions = {}
+local function expand(yv)
+  if not expansions[yv] then expansions[yv] = J:expand { x = 10, y = yv, order = 4 } end
+  return expansions[yv]
+end
+
+-- Each expansion (x = 10, four terms) agrees with quadrature along the given contour within
+-- 3 times its reported error (plus the quadrature's), and uses the uniform form; the
+-- residue term appears exactly when the pole is above the real axis.
+function TestUniformPole:test_against_quadrature()
+  for _, yv in ipairs(YS) do
+    local r = expand(yv)
+    local q, qe, info = J:quad { x = 10, y = yv, along = "given" }
+    local msg = string.format("y = %g", yv)
+    lu.assertEquals(info.status, "ok", msg)
+    local d = cabs(r.value - q)
+    if not (d <= 3 * (r.error + qe)) then
+      lu.fail(string.format("%s: |expansion - quadrature| = %.3g exceeds 3 x (%.3g + %.3g); "
+        .. "expansion %s, quadrature %s", msg, d, r.error, qe, tostring(r.value), tostring(q)))
+    end
+    local uniform, residue = false, false
+    for _, c in ipairs(r.contributions) do
+      if c.kind:find("uniform", 1, true) then uniform = true end
+      if c.kind == "pole" then residue = true end
+    end
+    lu.assertTrue(uniform, msg .. ": a uniform contribution")
+    lu.assertEquals(residue, yv > 0, msg .. ": the residue term")
+  end
+end
+
+-- No jump at the crossing: J is analytic in y, so the change from y = -1e-9 to 1e-9 is
+-- (within the error estimates) 1e-3 times the change from -1e-6 to 1e-6 (the symmetric
+-- differences agree to O(h^2)), and matches the change of the quadrature. A wrong side
+-- for the pole would show as a jump of 2 pi |e^{-x p^2/2}| ~ 4.7.
+function TestUniformPole:test_no_jump_at_crossing()
+  local a, b = expand(1e-9), expand(-1e-9)
+  local c, d = expand(1e-6), expand(-1e-6)
+  local small = a.value - b.value
+  local big = (c.value - d.value) * 1e-3
+  local tol = a.error + b.error + 1e-3 * (c.error + d.error)
+  lu.assertTrue(cabs(small - big) <= tol, string.format("J(1e-9) - J(-1e-9) = %s against "
+    .. "1e-3 (J(1e-6) - J(-1e-6)) = %s: difference %.3g, allowed %.3g", tostring(small),
+    tostring(big), cabs(small - big), tol))
+  local qa, qea = J:quad { x = 10, y = 1e-9, along = "given" }
+  local qb, qeb = J:quad { x = 10, y = -1e-9, along = "given" }
+  lu.assertTrue(cabs(small - (qa - qb)) <= a.error + b.error + qea + qeb,
+    string.format("jump of the expansion %s, of the quadrature %s", tostring(small),
+      tostring(qa - qb)))
+end
+
+---------------------------------------------------------------------------------------
+
+TestUniformAiry = {}
+
+-- steep.airy on the real axis against gsl_sf_airy_Ai_e and gsl_sf_airy_Ai_deriv_e, x from
+-- -5 to 5 in steps of 1/4 (no zero of Ai or Ai' on that grid; the nearest, Ai'(-1.0188) = 0,
+-- leaves |Ai'(-1)| = 0.010): 1e-10 relative, a real value, and an honest error estimate.
+function TestUniformAiry:test_real_axis_against_gsl()
+  for k = -20, 20 do
+    local xv = k / 4
+    local ai, aip, e, ep = steep.airy(xv)
+    local want, want_d = gsl.airy_Ai(xv), gsl.airy_Ai_deriv(xv)
+    H.close(ai, want, 1e-10, "Ai(" .. xv .. ")")
+    H.close(aip, want_d, 1e-10, "Ai'(" .. xv .. ")")
+    lu.assertTrue(math.abs(ai:im()) <= 1e-14 * math.abs(want), "Ai real at " .. xv)
+    lu.assertTrue(cabs(ai - want) <= 10 * e + 1e-15 * math.abs(want), "Ai error estimate at " .. xv)
+    lu.assertTrue(cabs(aip - want_d) <= 10 * ep + 1e-15 * math.abs(want_d),
+      "Ai' error estimate at " .. xv)
+  end
+end
+
+-- At complex points, with omega = e^{2 pi i/3}:
+--   the connection formula Ai(z) + omega Ai(omega z) + omega^2 Ai(omega^2 z) = 0
+--   (DLMF 9.2.12, from memory; at z = 0 it reads Ai(0) (1 + omega + omega^2) = 0), and its
+--   derivative Ai'(z) + omega^2 Ai'(omega z) + omega Ai'(omega^2 z) = 0;
+--   the Wronskian Ai(z) d/dz[Ai(z e^{-2 pi i/3})] - Ai'(z) Ai(z e^{-2 pi i/3}) = e^{i pi/6}/(2 pi)
+--   (DLMF 9.2.8, from memory; checked by hand at z = 0 with Ai(0) Ai'(0) = -1/(2 sqrt(3) pi));
+--   the Airy equation Ai'' = z Ai, with Ai'' by a central difference of Ai' (step 1e-3
+--   along 1 + i: truncation ~ 1e-7 relative, so a loose 1e-5).
+-- Sums are compared with the size of their largest term (1e-11).
+function TestUniformAiry:test_complex_identities()
+  local w = steep.exp(2 * pi * I / 3)
+  local wbar = steep.exp(-2 * pi * I / 3)
+  for _, z in ipairs({ 1 + I, -2 + 0.5 * I, 3 - 2 * I, -1 - 3 * I, 0.5 * I, -4 + 0.1 * I }) do
+    local msg = "z = " .. tostring(z)
+    local a0, d0 = steep.airy(z)
+    local a1, d1 = steep.airy(w * z)
+    local a2, d2 = steep.airy(w * w * z)
+    local s = a0 + w * a1 + w * w * a2
+    local size = math.max(cabs(a0), cabs(a1), cabs(a2))
+    lu.assertTrue(cabs(s) <= 1e-11 * size, string.format("%s: Ai connection formula: |sum| = "
+      .. "%.3g, largest term %.3g", msg, cabs(s), size))
+    local sd = d0 + w * w * d1 + w * d2
+    local sized = math.max(cabs(d0), cabs(d1), cabs(d2))
+    lu.assertTrue(cabs(sd) <= 1e-11 * sized, string.format("%s: Ai' connection formula: |sum| "
+      .. "= %.3g, largest term %.3g", msg, cabs(sd), sized))
+    local b, bd = steep.airy(wbar * z)
+    local wr = a0 * wbar * bd - d0 * b
+    local sizew = cabs(a0 * bd) + cabs(d0 * b)
+    H.close(wr, steep.exp(I * pi / 6) / (2 * pi), 1e-11 * math.max(1, sizew * 2 * pi),
+      msg .. ": Wronskian")
+    local h = 1e-3 * (1 + I) / math.sqrt(2)
+    local _, dp = steep.airy(z + h)
+    local _, dm = steep.airy(z - h)
+    local second = (dp - dm) / (2 * h)
+    H.close(second, z * a0, 1e-5, msg .. ": Ai'' = z Ai", 1e-5 * (cabs(d0) + cabs(a0)))
+  end
+end
