@@ -325,6 +325,16 @@ static int push_coefs(lua_State *L, const cplx *G, size_t N, double rho, lua_Int
   return 3;
 }
 
+/* The results of an inverse-map binding, with the cvec of G values on the stack: status
+ * and the values, or (ncoef > 0) status and push_coefs' three results. */
+static int invmap_results(lua_State *L, int st, const cplx *G, size_t N, double rho,
+                          lua_Integer ncoef) {
+  lua_pushstring(L, invmap_text[st]);
+  if (ncoef > 0) return st != INVMAP_OK ? 1 : 1 + push_coefs(L, G, N, rho, ncoef);
+  lua_insert(L, -2);
+  return 2;
+}
+
 /* core.invmap_circle(tape, params, t0, F0, m, s, rho, N [, ncoef]) -> status, cvec of G
  * values; with ncoef: status, coefficients (N points), coefficients (N/2 points), max|G| */
 static int land_invmap(lua_State *L) {
@@ -341,14 +351,7 @@ static int land_invmap(lua_State *L) {
   lua_Integer ncoef = luaL_optinteger(L, 9, 0);
   cplx *G = bind_newcvec(L, (size_t)N);
   int st = invmap_circle(p, t0, F0, m, s, rho, (size_t)N, G);
-  if (ncoef > 0) {
-    lua_pushstring(L, invmap_text[st]);
-    if (st != INVMAP_OK) return 1;
-    return 1 + push_coefs(L, G, (size_t)N, rho, ncoef);
-  }
-  lua_pushstring(L, invmap_text[st]);
-  lua_insert(L, -2);
-  return 2;
+  return invmap_results(L, st, G, (size_t)N, rho, ncoef);
 }
 
 /* core.invmap_cubic(tape, params, t1, A, zeta, ua, tprime, rho, N [, ncoef]) -> as
@@ -366,14 +369,7 @@ static int land_invmap_cubic(lua_State *L) {
   lua_Integer ncoef = luaL_optinteger(L, 10, 0);
   cplx *G = bind_newcvec(L, (size_t)N);
   int st = invmap_cubic(p, t1, A, zeta, ua, tprime, rho, (size_t)N, G);
-  if (ncoef > 0) {
-    lua_pushstring(L, invmap_text[st]);
-    if (st != INVMAP_OK) return 1;
-    return 1 + push_coefs(L, G, (size_t)N, rho, ncoef);
-  }
-  lua_pushstring(L, invmap_text[st]);
-  lua_insert(L, -2);
-  return 2;
+  return invmap_results(L, st, G, (size_t)N, rho, ncoef);
 }
 
 /* core.laurent(tape, params, p, rho, N, depth) -> cvec of a_m rho^m for m = -depth..1
