@@ -50,6 +50,15 @@ static double optnum(lua_State *L, int t, const char *key, double dflt) {
   return v;
 }
 
+/* An integer option in [lo, hi], checked before any conversion (a NaN or out-of-range
+ * double cast to an integer type would be undefined behaviour). */
+static long optint(lua_State *L, int t, const char *key, long dflt, long lo, long hi) {
+  double v = optnum(L, t, key, (double)dflt);
+  if (!(v >= (double)lo && v <= (double)hi))
+    luaL_error(L, "option '%s' must be a whole number from %d to %d", key, (int)lo, (int)hi);
+  return (long)v;
+}
+
 static cplx optcomplex(lua_State *L, int t, const char *key, cplx dflt) {
   lua_getfield(L, t, key);
   cplx v = dflt;
@@ -87,8 +96,8 @@ static int zero_jet(void *ctx, cplx t, size_t order, cplx *c) {
 static void checkzerofn(lua_State *L, int idx, problem *p, zero_fn *z) {
   luaL_checktype(L, idx, LUA_TTABLE);
   z->p = p;
-  z->out = (int)optnum(L, idx, "out", 1) - 1;
-  z->deriv = (int)optnum(L, idx, "deriv", 0);
+  z->out = (int)optint(L, idx, "out", 1, 1, 1 << 20) - 1;
+  z->deriv = (int)optint(L, idx, "deriv", 0, 0, 4);
   if (z->out < 0 || (size_t)z->out >= p->t->nout) luaL_error(L, "zero: no such tape output");
   if (z->deriv < 0 || z->deriv > 4) luaL_error(L, "zero: derivative order out of range");
 }
@@ -158,8 +167,8 @@ static int land_trace(lua_State *L) {
   o.center = optcomplex(L, 5, "center", 0);
   o.radius = optnum(L, 5, "radius", 10);
   o.scale = optnum(L, 5, "scale", 1);
-  o.maxsteps = (int)optnum(L, 5, "maxsteps", 4000);
-  size_t maxpts = (size_t)optnum(L, 5, "maxpts", 4000);
+  o.maxsteps = (int)optint(L, 5, "maxsteps", 4000, 1, 1000000);
+  size_t maxpts = (size_t)optint(L, 5, "maxpts", 4000, 2, 1000000);
   if (!(o.radius > 0 && o.scale > 0 && isfinite(o.radius) && isfinite(o.scale)))
     return luaL_error(L, "trace: radius and scale must be positive and finite");
   if (o.maxsteps < 1 || o.maxsteps > 1000000 || maxpts < 2 || maxpts > 1000000)
@@ -232,8 +241,8 @@ static int land_quad_polyline(lua_State *L) {
   cplx *pts = checkpoints(L, 3, &n);
   luaL_checktype(L, 4, LUA_TTABLE);
   double abstol = optnum(L, 4, "abstol", 0), reltol = optnum(L, 4, "reltol", 1e-13);
-  size_t limit = (size_t)optnum(L, 4, "limit", QUAD_MAX_SUB);
-  long budget = (long)optnum(L, 4, "budget", 2e6);   /* integrand evaluations in all */
+  size_t limit = (size_t)optint(L, 4, "limit", QUAD_MAX_SUB, 1, QUAD_MAX_SUB);
+  long budget = optint(L, 4, "budget", 2000000, 1, 2000000000);   /* evaluations in all */
   lua_getfield(L, 4, "singular_start");
   int sing0 = lua_toboolean(L, -1);
   lua_getfield(L, 4, "singular_end");

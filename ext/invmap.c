@@ -67,12 +67,14 @@ static cplx mapdP(const mapspec *ms, cplx w) {
  * redone with four times as many steps, to a bound. F is followed by continuity: where
  * the principal value jumps across a branch cut of a log inside F between two nearby
  * points (its change differs from F' dh by much more than the step's second-order
- * term), the jump is added to *off, and the equation solved is for F + off. */
+ * term), the jump is added to *off, and the equation solved is for F + off. Every step
+ * spends one unit of *budget; none left is INVMAP_NEWTON. */
 static int follow(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx w1, cplx *h,
-                  cplx *dF, cplx *off, int steps, int arc, double rho) {
+                  cplx *dF, cplx *off, int steps, int arc, double rho, long *budget) {
   double th0 = carg(w0), th1 = th0 + carg(w1 / w0);
   cplx wprev = w0;
   for (int k = 1; k <= steps; k++) {
+    if (--*budget < 0) return INVMAP_NEWTON;
     double u = (double)k / steps;
     cplx w = arc ? rho * cexp(I * (th0 + u * (th1 - th0))) : w0 + u * (w1 - w0);
     cplx dh = -mapdP(ms, wprev) / *dF * (w - wprev);   /* h'(w) dw */
@@ -94,14 +96,16 @@ static int follow(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx
       pure = fabs(creal(jump)) < 1e-8 * cabs(jump);
     }
     if (big && !pure && steps <= 16384) {
-      return follow(p, t0, F0, ms, wprev, w1, h, dF, off, 4 * (steps - k + 1), arc, rho);
+      return follow(p, t0, F0, ms, wprev, w1, h, dF, off, 4 * (steps - k + 1), arc, rho,
+                    budget);
     }
     if (big) offn -= jump;
     int ok = solve(p, t0, F0 - offn, mapP(ms, w), &hn, &dFn) == 0 &&
              cabs(hn - (*h + dh)) <= 0.5 * cabs(dh) + 1e-14 * cabs(hn);
     if (!ok) {
       if (steps > 65536) return INVMAP_NEWTON;
-      return follow(p, t0, F0, ms, wprev, w1, h, dF, off, 4 * (steps - k + 1), arc, rho);
+      return follow(p, t0, F0, ms, wprev, w1, h, dF, off, 4 * (steps - k + 1), arc, rho,
+                    budget);
     }
     *h = hn;
     *dF = dFn;
@@ -112,16 +116,21 @@ static int follow(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx
 }
 
 /* Round the circle |w| = rho from a solved start (w0, h), writing G at the N points
- * rho e^{2 pi i j/N}: out along the ray through w0, round to angle 0, then the circle. */
+ * rho e^{2 pi i j/N}: out along the ray through w0, round to angle 0, then the circle.
+ * The trip takes about N + 80 continuation steps when h(w) is tame; refining by four at
+ * each failure could otherwise cost millions of steps (of up to ~50 jets each) where h
+ * is badly stretched or a branch point lies on the path, hence a bound on the total. */
+#define STEP_BUDGET(N) (131072 + 16 * (long)(N))
 static int circle(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx h, cplx dF,
                   double rho, size_t N, cplx *G) {
   const double twopi = 6.283185307179586;
   cplx off = 0;
+  long budget = STEP_BUDGET(N);
   cplx dir = cabs(w0) > 0 ? w0 / cabs(w0) : 1;
-  int st = follow(p, t0, F0, ms, w0, rho * dir, &h, &dF, &off, 60, 0, rho);
+  int st = follow(p, t0, F0, ms, w0, rho * dir, &h, &dF, &off, 60, 0, rho, &budget);
   if (st != INVMAP_OK) return st;
   if (cabs(dir - 1) > 1e-15) {
-    st = follow(p, t0, F0, ms, rho * dir, rho, &h, &dF, &off, 16, 1, rho);
+    st = follow(p, t0, F0, ms, rho * dir, rho, &h, &dF, &off, 16, 1, rho, &budget);
     if (st != INVMAP_OK) return st;
   }
   cplx h0 = h;
@@ -129,7 +138,7 @@ static int circle(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx
     cplx wj = rho * cexp(I * (twopi * (double)j / (double)N));
     if (j > 0) {
       cplx wprev = rho * cexp(I * (twopi * (double)(j - 1) / (double)N));
-      st = follow(p, t0, F0, ms, wprev, wj, &h, &dF, &off, 1, 1, rho);
+      st = follow(p, t0, F0, ms, wprev, wj, &h, &dF, &off, 1, 1, rho, &budget);
       if (st != INVMAP_OK) return st;
     }
     cplx F;
@@ -144,7 +153,7 @@ static int circle(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx
   }
   /* once round: back where we started? */
   cplx wlast = rho * cexp(I * (twopi * (double)(N - 1) / (double)N));
-  st = follow(p, t0, F0, ms, wlast, rho, &h, &dF, &off, 1, 1, rho);
+  st = follow(p, t0, F0, ms, wlast, rho, &h, &dF, &off, 1, 1, rho, &budget);
   if (st != INVMAP_OK) return st;
   if (cabs(h - h0) > 1e-8 * (cabs(h0) + 1e-300)) return INVMAP_NOTCLOSED;
   return INVMAP_OK;

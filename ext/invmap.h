@@ -19,7 +19,8 @@
 
 enum invmap_status {
   INVMAP_OK = 0,
-  INVMAP_NEWTON,     /* Newton's method failed even with small steps */
+  INVMAP_NEWTON,     /* Newton's method failed even with small steps, or the trip needed
+                      * more than 131072 + 16 N continuation steps in all */
   INVMAP_NOTCLOSED,  /* going round the circle did not return to the start: a branch
                       * point of h(w) lies inside (rho too large) */
   INVMAP_SINGULAR    /* F or g could not be evaluated on the way */

@@ -14,6 +14,7 @@
 #include "series.h"
 #include "quad.h"
 #include "geom.h"
+#include "invmap.h"
 #include "roots.h"
 #include "path.h"
 #include "problem.h"
@@ -666,6 +667,37 @@ static void test_tape_check(void) {
   check(tape_check(&h.t, &why) == -1, "tape_check: unused operands -1 are accepted");
 }
 
+/* ---- inverse map (invmap.c) ---------------------------------------------------------- */
+
+/* Regression (found by tests/fuzz/fuzz_paths.c, a timeout): following h(u) round the circle
+ * refines a failing stretch four times over, up to 262144 steps, and did so again and
+ * again; a trip now has a budget of 131072 + 16 N steps. F(t) = -i log(t + 36i) with the
+ * cubic map of a tiny zeta on |u| = 4: u^3/3 swings by 21, so t would have to come within
+ * e^-21 of the branch point -36i and go out to e^21 (the old code got round after about
+ * 8.1 million jets). Each step takes at most 51 jets (2, 8 for the jump test, 41 for
+ * Newton's method). */
+static void test_invmap_budget(void) {
+  htape h;
+  const tape_ins ins[6] = {
+    {OP_VAR, -1, -1, 0, 0}, {OP_CONST, -1, -1, 0, 36 * I}, {OP_ADD, 0, 1, 0, 0},
+    {OP_LOG, 2, -1, 0, 0}, {OP_CONST, -1, -1, 0, -I}, {OP_MUL, 4, 3, 0, 0}};
+  htape_init(&h, ins, 6, 0);
+  const char *why = "";
+  check(tape_check(&h.t, &why) == -1, "hand-built tape -i log(t + 36i) is well formed");
+  void *mem = malloc(problem_bytes(&h.t));
+  problem p;
+  problem_init(&p, &h.t, NULL, mem);
+  enum { N = 64 };
+  cplx G[N], t1 = 0.14 + 0.02 * I, zeta = -6e-5 * (1 + I), F1, dF1;
+  check(problem_dF(&p, t1, &F1, &dF1) == STEEP_OK, "F and F' of -i log(t + 36i) at t1");
+  cplx A = F1 - zeta * zeta + zeta * zeta * zeta / 3;   /* u_a = zeta: F(t1) = P(u_a) */
+  p.evals = 0;
+  int st = invmap_cubic(&p, t1, A, zeta, zeta, 0.06 * I, 4, N, G);
+  check(st == INVMAP_NEWTON && p.evals <= 51L * (131072 + 16 * N) + 41,
+        "invmap_cubic: a map too stretched to follow gives up within its step budget");
+  free(mem);
+}
+
 int main(void) {
   test_series();
   test_quad();
@@ -673,6 +705,7 @@ int main(void) {
   test_roots();
   test_path();
   test_tape_check();
+  test_invmap_budget();
   printf("kernels: %d passed, %d failed\n", passed, failed);
   return failed ? 1 : 0;
 }

@@ -21,7 +21,10 @@ static inline uint8_t fz_u8(fz *f) {
   return *f->p++;
 }
 
-static inline uint16_t fz_u16(fz *f) { uint16_t lo = fz_u8(f); return (uint16_t)(lo | (fz_u8(f) << 8)); }
+static inline uint16_t fz_u16(fz *f) {
+  uint16_t lo = fz_u8(f);
+  return (uint16_t)(lo | (fz_u8(f) << 8));
+}
 
 static inline uint64_t fz_u64(fz *f) {
   uint64_t v = 0;

@@ -4,8 +4,9 @@
  * of a second polynomial, optionally with an amplitude (a pole, a polynomial, a square
  * root) as output 2. With small bounds, as the Lua layer calls them: root_newton from
  * random seeds, root_count on random circles, path_saddle_starts and path_trace
- * (maxsteps <= 200), invmap_circle (N <= 32), quadrature along a segment and the
- * geometry of the traced path. Nothing may crash or hang (libFuzzer's -timeout).
+ * (maxsteps <= 200), invmap_circle and invmap_cubic (N <= 32), quadrature along a
+ * segment and the geometry of the traced path. Nothing may crash or hang (libFuzzer's
+ * -timeout).
  */
 #include "fuzz.h"
 #include "geom.h"
@@ -61,8 +62,8 @@ static void build(btape *b, fz *f) {
   if (kind > 0) {
     int Q = poly(b, f, var, par), e;
     switch (kind) {
-      case 1: e = emit(b, OP_EXP, Q, -1, 0, 0); break;                      /* exp-polynomial */
-      case 2: e = emit(b, OP_LOG, Q, -1, 0, 0); break;                      /* branch cuts */
+      case 1: e = emit(b, OP_EXP, Q, -1, 0, 0); break;   /* exp-polynomial */
+      case 2: e = emit(b, OP_LOG, Q, -1, 0, 0); break;   /* branch cuts */
       case 3: e = emit(b, OP_POWC, Q, -1, 0, fz_cplx(f, 0)); break;
       case 4: e = emit(b, OP_POWI, Q, -1, (long)(int8_t)fz_u8(f) % 6, 0); break;
       case 5: e = emit(b, OP_SIN + (int)fz_below(f, OP_ATAN - OP_SIN + 1), Q, -1, 0, 0); break;
@@ -207,6 +208,21 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size) {
     cplx *G = fz_alloc(N, sizeof *G);
     if (problem_dF(&p, t0, &F0, &dF0) == STEEP_OK) {
       int st = invmap_circle(&p, t0, F0, m, s, positive(&f, 1e-4, 2), N, G);
+      if (st < INVMAP_OK || st > INVMAP_SINGULAR) abort();
+    }
+    free(G);
+  }
+  if (ops & 32) {   /* the cubic map of two nearby saddles: F(t1) = A + zeta ua - ua^3/3 */
+    cplx t1 = center + fz_near(&f, 1), zeta = fz_near(&f, 2), tprime = fz_cplx(&f, 0), F1, dF1;
+    cplx ua = (fz_u8(&f) & 1) ? -csqrt(zeta) : csqrt(zeta);
+    if (fz_u8(&f) & 1) ua = fz_near(&f, 2);   /* not a saddle of the model */
+    if (tprime == 0) tprime = 1;
+    size_t N = 8 + fz_below(&f, 25);
+    double rho = positive(&f, 1e-3, 4);
+    cplx *G = fz_alloc(N, sizeof *G);
+    if (problem_dF(&p, t1, &F1, &dF1) == STEEP_OK) {
+      cplx A = F1 - zeta * ua + ua * ua * ua / 3.0;
+      int st = invmap_cubic(&p, t1, A, zeta, ua, tprime, rho, N, G);
       if (st < INVMAP_OK || st > INVMAP_SINGULAR) abort();
     }
     free(G);

@@ -2,7 +2,8 @@
  * fuzz_tape.c — tapes from arbitrary bytes: random operations (unknown ones included),
  * operand slots, constants, integer powers, parameters and outputs. As the binding does,
  * only tapes that tape_check accepts are evaluated, at one point, at a batch of points
- * and as jets of orders 0..64; every buffer has exactly the size tape.h states.
+ * and as jets of orders 0..64 (of every slot, or of the slots up to one, as problem_jet
+ * asks); every buffer has exactly the size tape.h states.
  * Nothing may crash or trip a sanitizer.
  */
 #include "fuzz.h"
@@ -76,7 +77,8 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size) {
     /* a batch: more than one block of TAPE_BLOCK points as often as not */
     size_t m = fz_below(&f, MAX_BATCH + 1);
     cplx *xs = fz_alloc(m, sizeof *xs);
-    for (size_t i = 0; i < m; i++) xs[i] = (fz_u8(&f) & 1) ? fz_cplx(&f, raw) : x + 0.01 * (double)i;
+    for (size_t i = 0; i < m; i++)
+      xs[i] = (fz_u8(&f) & 1) ? fz_cplx(&f, raw) : x + 0.01 * (double)i;
     out = fz_alloc(no * m, sizeof *out);
     work = fz_alloc(n * TAPE_BLOCK, sizeof *work);
     tape_eval_batch(&t, xs, m, params, out, work);
@@ -91,8 +93,11 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size) {
       cplx *jw = fz_alloc(n * (order + 1), sizeof *jw);
       cplx *scratch = fz_alloc(4 * (order + 1), sizeof *scratch);
       long badj = -2;
-      int st = tape_jet(&t, xj, params, order, jw, scratch, &badj);
-      if (st != STEEP_OK && (badj < 0 || badj >= (long)n)) abort();   /* names a slot */
+      uint8_t u = fz_u8(&f);   /* all slots, or those up to (and past) one of them */
+      size_t upto = u & 1 ? (size_t)(u >> 1) % (n + 2) : n - 1;
+      int st = u & 1 ? tape_jet_upto(&t, xj, params, order, jw, scratch, &badj, upto)
+                     : tape_jet(&t, xj, params, order, jw, scratch, &badj);
+      if (st != STEEP_OK && (badj < 0 || badj >= (long)n || (size_t)badj > upto)) abort();
       if (st < STEEP_OK || st > STEEP_NONFINITE) abort();
       free(jw);
       free(scratch);
