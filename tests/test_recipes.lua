@@ -238,6 +238,7 @@ function TestRecipesScripts:test_recipes_run()
     ["merging_points.lua"] = { "Invented sweep", "uniform (Airy) rel.err", "\n0.02 " },
     ["saddlepoint.lua"] = { "Invented example", "P(tail >= threshold)", "caution: " },
     ["demo.lua"] = { "== the integral", "== both routes against quadrature", "Caution" },
+    ["special_functions.lua"] = { "airy", "gamma", "hankel", "bessel" },
   }
   local ls = assert(io.popen("ls " .. q(root .. "/recipes")))
   local seen = 0
@@ -261,11 +262,43 @@ function TestRecipesScripts:test_recipes_run()
     end
   end
   ls:close()
-  lu.assertEquals(seen, 5, "recipes found")
+  lu.assertEquals(seen, 6, "recipes found")
   os.execute("rm -rf " .. q(tmpdir))
 end
 
 ---------------------------------------------------------------------------------------
+
+TestRecipesSpecialFunctions = {}
+
+-- The family of representations against GSL (and exact factorials): the expansion agrees
+-- with quadrature within the error estimates, and the value is the function's.
+function TestRecipesSpecialFunctions:test_family_against_references()
+  local sf = require "special_functions"
+  -- Ai(6): gsl_sf_airy_Ai
+  local r = sf.analyse("airy", { x = 6 }, 5)
+  lu.assertTrue(r.agrees, "airy: expansion and quadrature agree")
+  H.close(r.quad, gsl.airy_Ai(6), 1e-10, "Ai(6) by quadrature vs gsl_sf_airy_Ai")
+  lu.assertTrue((r.value - gsl.airy_Ai(6)):abs() <= 3 * r.error, "Ai(6) expansion within 3x")
+  -- Gamma(13) = 12! exactly (DLMF 5.2.1 with x = 12)
+  r = sf.analyse("gamma", { x = 12 }, 6)
+  H.close(r.quad, 479001600, 1e-10, "12! by quadrature")
+  lu.assertTrue((r.value - 479001600):abs() <= 3 * r.error, "12! expansion within 3x")
+  -- e^x E1(x): gsl_sf_expint_E1
+  local ref = math.exp(15) * gsl.expint_E1(15)
+  r = sf.analyse("expint", { x = 15 }, 6)
+  H.close(r.quad, ref, 1e-10, "e^15 E1(15) by quadrature")
+  lu.assertTrue((r.value - ref):abs() <= 3 * r.error, "e^15 E1(15) expansion within 3x")
+  -- a representation of one's own: the Gaussian integral of exp(-x t^2) = sqrt(pi/x)
+  local steep = require "steep"
+  local t, x = steep.var "t", steep.param "x"
+  sf.add("gauss", { var = t, exponent = -x * t ^ 2,
+    contour = steep.line(steep.inf(math.pi), steep.inf(0)), large = x })
+  r = sf.analyse("gauss", { x = 3 }, 2)
+  H.close(r.quad, math.sqrt(math.pi / 3), 1e-12, "sqrt(pi/3), exact")
+  H.close(r.value, math.sqrt(math.pi / 3), 1e-12, "sqrt(pi/3), expansion (exact here)")
+  -- Bessel's representation: the decomposition is not settled; the error says so
+  H.raises({ "could not be decomposed" }, sf.analyse, "bessel", { x = 30, n = 2 }, 4)
+end
 
 TestRecipesVersion = {}
 
