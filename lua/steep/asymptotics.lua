@@ -425,10 +425,38 @@ function M.report(r, opts)
   add("parameters: %s%s", table.concat(ps, ", "),
     J.large and ("   (large parameter: " .. J.large.name .. ")") or "")
   add("terms per contribution: %s", tostring(r.order))
-  add("contributions (most dominant first):")
+  -- the landscape the decomposition used
+  local L = r.landscape
+  if L then
+    add("landscape (region: center %s, radius %.4g):", fmtc(L.region.center), L.region.radius)
+    for j, sd in ipairs(L.saddles) do
+      add("  saddle %d at %s, order %d, F = %s", j, fmtc(sd.at), sd.order, fmtc(sd.F))
+    end
+    for _, sg in ipairs(L.singularities) do
+      add("  %s at %s (%s)", sg.kind, fmtc(sg.at), sg.source)
+    end
+    local vs = {}
+    for _, v in ipairs(L.valleys or {}) do vs[#vs + 1] = landscape.describe_valley(v) end
+    add("  valleys: %s", #vs > 0 and table.concat(vs, ", ") or "none found")
+  end
+  add("contributions (most dominant first; a saddle counts when the contour crosses its "
+    .. "steepest ascent paths, weights below; a pole when the deformation sweeps over it):")
   for i, c in ipairs(r.contributions) do
-    add("  %d. %-28s at %-24s value %-30s error %.3g (%d terms)", i, c.kind, fmtc(c.at),
-      fmtc(c.value), c.error, c.used)
+    local why = ""
+    if c.weights then
+      local w = {}
+      for k, v in ipairs(c.weights) do if v ~= 0 then w[#w + 1] = format("ray %d: %+d", k, v) end end
+      why = #w > 0 and ("weights " .. table.concat(w, ", ")) or ""
+    elseif c.kind == "pole" then
+      why = format("winding %+d, residue %s", c.weight, fmtc(c.residue))
+    elseif c.weight then
+      why = format("endpoint weight %+d", c.weight)
+    end
+    add("  %d. %-28s at %-24s value %-30s error %.3g (%d terms) %s", i, c.kind, fmtc(c.at),
+      fmtc(c.value), c.error, c.used, why)
+    if c.terms and c.terms[1] then
+      add("     leading term %s%s", fmtc(c.terms[1]), c.note and ("; " .. c.note) or "")
+    end
   end
   add("total: %s   estimated error %.3g", fmtc(r.value), r.error)
   if r.check then
@@ -439,6 +467,8 @@ function M.report(r, opts)
     " (not compared with quadrature: verify = true or J:check does that)")
   if r.stokes then add("warning: a saddle connection was found (Stokes line): see notes") end
   for _, n in ipairs(r.notes or {}) do add("note: %s", n) end
+  add("caution: an asymptotic approximation; check it (J:check) before it informs any "
+    .. "engineering, financial or safety decision")
   return table.concat(lines, "\n")
 end
 
