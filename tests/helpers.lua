@@ -1,4 +1,5 @@
 -- Shared helpers for the tests: relative-tolerance assertions and a seeded generator.
+-- (No reference values here: each test names the source of its own.)
 local lu = require "luaunit"
 local steep = require "steep"
 
