@@ -14,6 +14,7 @@
 #include "invmap.h"
 #include "path.h"
 #include "quad.h"
+#include "rings.h"
 #include "roots.h"
 
 /* A problem over the tape at argument 1 with the parameters at argument 2. */
@@ -411,6 +412,41 @@ static int land_laurent(lua_State *L) {
   return 2;
 }
 
+/* ---- rings ---------------------------------------------------------------------- */
+
+/* core.ring_power(tape, params, c, r2, r3, n) -> growth, degree, lead2, lead3: see
+ * ring_power in rings.h (lead2, lead3 nil when the growth is not a whole power). */
+static int land_ring_power(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx c = bind_checkcomplex(L, 3);
+  double r2 = luaL_checknumber(L, 4), r3 = luaL_checknumber(L, 5);
+  lua_Integer n = luaL_checkinteger(L, 6);
+  luaL_argcheck(L, r2 > 0 && r3 > r2 && isfinite(r3), 5, "radii must satisfy 0 < r2 < r3 < inf");
+  luaL_argcheck(L, n >= 4 && n <= 65536, 6, "number of angles must be 4..65536");
+  cplx *work = bind_scratch(L, 3 * (size_t)n * sizeof(cplx));
+  double growth;
+  cplx lead2, lead3;
+  int deg = ring_power(p, c, r2, r3, (int)n, &growth, &lead2, &lead3, work);
+  lua_pushnumber(L, growth);
+  lua_pushinteger(L, deg);
+  if (deg == 0) return 2;
+  bind_pushcomplex(L, lead2);
+  bind_pushcomplex(L, lead3);
+  return 4;
+}
+
+/* core.log_spread(tape, params, c, rho, n) -> spread of log |g e^F| on the circle */
+static int land_log_spread(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx c = bind_checkcomplex(L, 3);
+  double rho = luaL_checknumber(L, 4);
+  lua_Integer n = luaL_checkinteger(L, 5);
+  luaL_argcheck(L, rho > 0 && isfinite(rho), 4, "radius must be positive and finite");
+  luaL_argcheck(L, n >= 4 && n <= 65536, 5, "number of points must be 4..65536");
+  lua_pushnumber(L, ring_log_spread(p, c, rho, (int)n));
+  return 1;
+}
+
 /* ---- geometry ------------------------------------------------------------------- */
 
 /* core.turning(points, z) -> change of arg(t - z) / 2pi along the polyline, or nil if
@@ -449,12 +485,26 @@ static int geo_distance(lua_State *L) {
   return 1;
 }
 
+/* core.nearest(points, z) -> distance, k: the first segment points[k]..points[k+1]
+ * nearest to z (1-based; the polyline needs two points) */
+static int geo_nearest(lua_State *L) {
+  size_t n = 0, seg = 0;
+  cplx *pts = checkpoints(L, 1, &n);
+  cplx z = bind_checkcomplex(L, 2);
+  luaL_argcheck(L, n >= 2, 1, "a polyline of at least two points expected");
+  lua_pushnumber(L, geom_nearest(pts, n, z, &seg));
+  lua_pushinteger(L, (lua_Integer)seg + 1);
+  return 2;
+}
+
 static const luaL_Reg land_funcs[] = {
   {"zero", land_zero}, {"count", land_count}, {"trace", land_trace},
   {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
   {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},
   {"invmap_cubic", land_invmap_cubic}, {"laurent", land_laurent},
+  {"ring_power", land_ring_power}, {"log_spread", land_log_spread},
   {"turning", geo_turning}, {"crossings", geo_crossings}, {"distance", geo_distance},
+  {"nearest", geo_nearest},
   {NULL, NULL}
 };
 

@@ -54,14 +54,21 @@ int geom_crossings(const cplx *a, size_t na, const cplx *b, size_t nb, cplx *pts
   return total;
 }
 
-double geom_distance(const cplx *p, size_t n, cplx z) {
+double geom_nearest(const cplx *p, size_t n, cplx z, size_t *seg) {
   double best = n ? cabs(p[0] - z) : INFINITY;
+  if (seg) *seg = 0;
   for (size_t k = 0; k + 1 < n; k++) {
     cplx d = p[k + 1] - p[k];
     double len2 = creal(d) * creal(d) + cimag(d) * cimag(d);
     double u = len2 > 0 ? creal(conj(d) * (z - p[k])) / len2 : 0;
     u = fmin(1, fmax(0, u));
-    best = fmin(best, cabs(p[k] + u * d - z));
+    double dist = cabs(p[k] + u * d - z);
+    if (dist < best) {
+      best = dist;
+      if (seg) *seg = k;
+    }
   }
   return best;
 }
+
+double geom_distance(const cplx *p, size_t n, cplx z) { return geom_nearest(p, n, z, NULL); }

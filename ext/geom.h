@@ -23,6 +23,10 @@ double geom_turning(const cplx *p, size_t n, cplx z);
 int geom_crossings(const cplx *a, size_t na, const cplx *b, size_t nb, cplx *pts,
                    size_t maxpts, size_t *npts);
 
+/* Distance from z to the polyline p[0..n-1]; *seg (if not NULL) gets the index k of
+ * the first segment p[k]..p[k+1] at that distance (0 when n < 2). */
+double geom_nearest(const cplx *p, size_t n, cplx z, size_t *seg);
+
 /* Distance from z to the polyline p[0..n-1]. */
 double geom_distance(const cplx *p, size_t n, cplx z);
 

@@ -262,20 +262,9 @@ function M.fix_pole_side(plan, near, c, rays)
   for k = #ray2, 2, -1 do poly[#poly + 1] = ray2[k] end
   for k = 1, #ray1 do poly[#poly + 1] = ray1[k] end
   -- side relative to the polyline: nearest segment's orientation
-  local best, side_poly = huge, 0
-  for k = 1, #poly - 1 do
-    local a, b2 = poly[k], poly[k + 1]
-    local d = b2 - a
-    local u = (near.pole.at - a) / d
-    local ur = math.max(0, math.min(1, (cparts(u))))
-    local q = a + d * ur
-    local dist = cabs(near.pole.at - q)
-    if dist < best then
-      best = dist
-      local _, im = cparts((near.pole.at - a) / d)
-      side_poly = im > 0 and 1 or -1
-    end
-  end
+  local _, k = core.nearest(poly, near.pole.at)
+  local _, im = cparts((near.pole.at - poly[k]) / (poly[k + 1] - poly[k]))
+  local side_poly = im > 0 and 1 or -1
   local _, bi = cparts(near.b)
   local side_exact = bi > 0 and 1 or -1
   if side_poly == side_exact then return end

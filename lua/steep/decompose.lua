@@ -20,6 +20,7 @@ local contour_m = require "steep.contour"
 local cnew, cparts = complex.new, complex.parts
 local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
 local format, pi, abs, floor, huge = string.format, math.pi, math.abs, math.floor, math.huge
+local cos, sin = math.cos, math.sin
 
 local M = {}
 
@@ -108,9 +109,25 @@ local function closure_to_valley(L, z, k, Rref)
   -- unwrap th next to the valley's interval
   while th < v.from - pi do th = th + 2 * pi end
   while th > v.to + pi do th = th - 2 * pi end
-  local pts = { z, c + Rref * expi(th) }
+  -- (plain arithmetic on the parts: this runs for every pole at every step of a sweep)
+  local cr, ci = cparts(c)
+  local pts = { z, cnew(cr + Rref * cos(th), ci + Rref * sin(th)) }
   local n = 64
-  for j = 1, n do pts[#pts + 1] = c + Rref * expi(th + (mid - th) * j / n) end
+  for j = 1, n do
+    local a = th + (mid - th) * j / n
+    pts[j + 2] = cnew(cr + Rref * cos(a), ci + Rref * sin(a))
+  end
+  return pts
+end
+
+-- The contour as a polyline out to radius R (64 pieces per segment or ray): kept per
+-- contour, since a sweep decomposes the same contour at every step in the same region.
+local samples = setmetatable({}, { __mode = "k" })
+local function sampled(contour, R)
+  local kept = samples[contour]
+  if kept and kept.radius == R then return kept.points end
+  local pts = contour:sample { radius = R, n = 64 }
+  samples[contour] = { radius = R, points = pts }
   return pts
 end
 
@@ -161,10 +178,34 @@ end
 -- L.singularities), winding}; plan.status: "ok" or the reason it is incomplete;
 -- plan.notes: list of strings.
 function M.decompose(J, params, L, contour)
+  -- a landscape belongs to one set of parameter values, so its plan for a contour is
+  -- kept with it (an expansion and its quadrature check decompose the same contour)
+  L._plans = L._plans or setmetatable({}, { __mode = "k" })
+  local kept = L._plans[contour]
+  if not kept then
+    kept = M.decompose_uncached(J, params, L, contour)
+    L._plans[contour] = kept
+  end
+  return M.copy_plan(kept)
+end
+
+--- A copy that callers may change (residue windings, notes) without touching the kept
+-- plan; the polylines of the pieces are shared (read-only).
+function M.copy_plan(plan)
+  local out = {}
+  for k, v in pairs(plan) do out[k] = v end
+  out.notes = table.move(plan.notes, 1, #plan.notes, 1, {})
+  out.residues = {}
+  for i, r in ipairs(plan.residues) do out.residues[i] = { index = r.index, winding = r.winding } end
+  out.pieces = table.move(plan.pieces, 1, #plan.pieces, 1, {})
+  return out
+end
+
+function M.decompose_uncached(J, params, L, contour)
   local R = L.region.radius
   local plan = { pieces = {}, residues = {}, notes = {}, status = "ok", evals = 0 }
   local Rfar = 8 * R
-  local cpts = contour:sample { radius = Rfar, n = 64 }
+  local cpts = sampled(contour, Rfar)
   M.check_contour(L, contour, cpts)
 
   -- boundary of the contour

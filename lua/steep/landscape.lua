@@ -170,16 +170,7 @@ end
 -- The spread of log |integrand| on the circle of radius rho about p (32 points): small
 -- when the circle is close enough to a pole for the pole to dominate.
 local function log_spread(tape, params, p, rho)
-  local n, pts = 32, {}
-  for k = 0, n - 1 do pts[k + 1] = p + rho * expi(2 * pi * (k + 0.5) / n) end
-  local vals = core.integrand_many(tape, params, pts)
-  local lo, hi = huge, -huge
-  for k = 1, n do
-    local v = cabs(vals:get(k))
-    if v ~= v or v == huge or v == 0 then return huge end
-    lo, hi = math.min(lo, log(v)), math.max(hi, log(v))
-  end
-  return hi - lo
+  return core.log_spread(tape, params, p, rho, 32)
 end
 
 -- The coefficient c of c*log(t - p) in F at a log point: (1/2 pi i) times the integral of
@@ -382,27 +373,12 @@ end
 -- leading term a t^n, or nil when the growth is not (yet) that of a power.
 local function polynomial_valleys(J, params, c, R, f, NANG)
   local R1, R2, R3 = f * 4 * R, f * 8 * R, f * 16 * R
-  local _, F2 = ring(J.tape, params, c, R2, NANG)
-  local _, F3 = ring(J.tape, params, c, R3, NANG)
-  -- growth exponent: median of log2 |F(R3)| / |F(R2)|
-  local ratios = {}
-  for k = 1, NANG do
-    local a, b = cabs(F2[k]), cabs(F3[k])
-    if a > 0 and b > 0 and a < huge and b < huge then ratios[#ratios + 1] = log(b / a) / log(2) end
-  end
-  table.sort(ratios)
-  local nest = ratios[floor(#ratios / 2) + 1] or 0
-  local n = floor(nest + 0.5)
+  -- growth exponent: median over the angles of log2 |F(R3)| / |F(R2)|; when it is a
+  -- whole n, F ~ a t^n with a fitted on each ring (core.ring_power)
+  local _, n, s2, s3 = core.ring_power(J.tape, params, c, R2, R3, NANG)
   local valleys = {}
-  if n >= 1 and abs(nest - n) < 0.1 then
+  if n >= 1 then
     -- polynomial type: F ~ a t^n; check that the leading coefficient is stable
-    local s2, s3 = cnew(0, 0), cnew(0, 0)
-    for k = 1, NANG do
-      local u = expi(2 * pi * (k - 1) / NANG)
-      s2 = s2 + F2[k] / (c + R2 * u) ^ n
-      s3 = s3 + F3[k] / (c + R3 * u) ^ n
-    end
-    s2, s3 = s2 / NANG, s3 / NANG
     if cabs(s3) > 0 and cabs(s2 - s3) < 0.05 * cabs(s3) then
       -- the fitted phase carries the lower-order terms' share (log R / R, say); a
       -- phase within 5e-3 of a multiple of pi/12 is taken to be it exactly (real and
@@ -457,15 +433,8 @@ function M.valleys(J, params, region, opts)
   -- overflows): decaying from R1 to R3 and far below the level at R1
   local nest = 0
   do
-    local _, Fa = ring(J.tape, params, c, 8 * R, NANG)
-    local _, Fb = ring(J.tape, params, c, 16 * R, NANG)
-    local ratios = {}
-    for k = 1, NANG do
-      local a, b = cabs(Fa[k]), cabs(Fb[k])
-      if a > 0 and b > 0 and a < huge and b < huge then ratios[#ratios + 1] = log(b / a) / log(2) end
-    end
-    table.sort(ratios)
-    nest = ratios[floor(#ratios / 2) + 1] or huge
+    nest = core.ring_power(J.tape, params, c, 8 * R, 16 * R, NANG)
+    if nest ~= nest then nest = huge end   -- no finite ratio at all
   end
   R1, R2, R3 = 1.25 * R, 1.6 * R, 2 * R
   l1 = ring(J.tape, params, c, R1, NANG)

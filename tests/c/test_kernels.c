@@ -3,7 +3,7 @@
  * identities that must hold to rounding on seeded random coefficients; quadrature
  * (quad.c) on exact integrals; polyline geometry (geom.c) on figures whose winding and
  * crossing numbers are known; zeros (roots.c) of a polynomial with known roots; steepest
- * paths (path.c) over tapes built by hand. Prints one line
+ * paths (path.c) and samples on circles (rings.c) over tapes built by hand. Prints one line
  * `kernels: N passed, M failed` and exits non-zero on failure.
  */
 #include <math.h>
@@ -18,6 +18,7 @@
 #include "roots.h"
 #include "path.h"
 #include "problem.h"
+#include "rings.h"
 #include "tape.h"
 
 #define PI 3.14159265358979323846
@@ -698,6 +699,56 @@ static void test_invmap_budget(void) {
   free(mem);
 }
 
+/* ---- rings (rings.c) ------------------------------------------------------------- */
+
+static void test_rings(void) {
+  /* F(t) = 2i t^3 + t: the mean of F/t^3 over a circle about 0 is 2i exactly (the
+   * trapezoidal rule integrates t^-2 to 0 on n >= 3 points); |F| grows like r^3 */
+  htape h;
+  const tape_ins ins[5] = {
+    {OP_VAR, -1, -1, 0, 0}, {OP_POWI, 0, -1, 3, 0}, {OP_CONST, -1, -1, 0, 2 * I},
+    {OP_MUL, 2, 1, 0, 0}, {OP_ADD, 3, 0, 0, 0}};
+  htape_init(&h, ins, 5, 0);
+  const char *why = "";
+  check(tape_check(&h.t, &why) == -1, "hand-built tape 2i t^3 + t is well formed");
+  void *mem = malloc(problem_bytes(&h.t));
+  problem p;
+  problem_init(&p, &h.t, NULL, mem);
+  enum { N = 72 };
+  cplx work[3 * N], l2, l3;
+  double growth;
+  int deg = ring_power(&p, 0, 10, 20, N, &growth, &l2, &l3, work);
+  check(deg == 3 && fabs(growth - 3) < 1e-2 && cabs(l2 - 2 * I) <= 1e-14 && cabs(l3 - 2 * I) <= 1e-14,
+        "ring_power: 2i t^3 + t grows like t^3 with leading coefficient 2i");
+  /* about another centre the fit is F/t^3 still (t, not t - c): close to 2i far out */
+  deg = ring_power(&p, 0.5 + 0.25 * I, 100, 200, N, &growth, &l2, &l3, work);
+  check(deg == 3 && cabs(l3 - 2 * I) <= 1e-3, "ring_power: off-centre rings, same leading term");
+  free(mem);
+
+  /* F(t) = -t^2/2 (no amplitude): log |e^F| = -Re t^2 / 2, so on |t| = rho at the angles
+   * (k + 1/2) 2pi/32 its spread is rho^2 cos(pi/16) */
+  const tape_ins gins[4] = {
+    {OP_VAR, -1, -1, 0, 0}, {OP_POWI, 0, -1, 2, 0}, {OP_CONST, -1, -1, 0, -0.5},
+    {OP_MUL, 1, 2, 0, 0}};
+  htape_init(&h, gins, 4, 0);
+  mem = malloc(problem_bytes(&h.t));
+  problem_init(&p, &h.t, NULL, mem);
+  check(fabs(ring_log_spread(&p, 0, 2, 32) - 4 * cos(PI / 16)) <= 1e-13,
+        "ring_log_spread: -t^2/2 on |t| = 2 spreads by 4 cos(pi/16)");
+  check(isinf(ring_log_spread(&p, 0, 100, 32)), "ring_log_spread: INFINITY where e^F overflows");
+  check(ring_power(&p, 0, 10, 20, N, &growth, &l2, &l3, work) == 2 && cabs(l3 + 0.5) <= 1e-14,
+        "ring_power: -t^2/2 has degree 2, leading coefficient -1/2");
+  free(mem);
+
+  /* geom_nearest: the first nearest segment of 0 -> 1 -> 1 + i */
+  cplx poly[3] = {0, 1, 1 + I};
+  size_t seg = 9;
+  check(fabs(geom_nearest(poly, 3, 2 + 0.5 * I, &seg) - 1) <= 1e-15 && seg == 1,
+        "geom_nearest: a point beside the second segment");
+  check(fabs(geom_nearest(poly, 3, 0.5 - 0.1 * I, &seg) - 0.1) <= 1e-15 && seg == 0,
+        "geom_nearest: a point below the first segment");
+}
+
 int main(void) {
   test_series();
   test_quad();
@@ -706,6 +757,7 @@ int main(void) {
   test_path();
   test_tape_check();
   test_invmap_budget();
+  test_rings();
   printf("kernels: %d passed, %d failed\n", passed, failed);
   return failed ? 1 : 0;
 }
