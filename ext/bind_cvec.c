@@ -2,6 +2,7 @@
  * bind_cvec.c — steep.cvec: a flat array of complex numbers in C memory, so that batch
  * evaluation of a tape at many points costs one call and no Lua value per point.
  */
+#include <math.h>
 #include <string.h>
 #include "bind.h"
 
@@ -57,6 +58,21 @@ static int cvec_range(lua_State *L) {
   return 1;
 }
 
+/* core.cvec_arc(c, r, from, to, n): the n + 1 points c + r e^{i a}, a evenly spaced from
+ * `from` to `to` inclusive (an arc as a polyline). */
+static int cvec_arc(lua_State *L) {
+  cplx c = bind_checkcomplex(L, 1);
+  double r = luaL_checknumber(L, 2), from = luaL_checknumber(L, 3), to = luaL_checknumber(L, 4);
+  lua_Integer n = luaL_checkinteger(L, 5);
+  luaL_argcheck(L, n >= 1 && (size_t)n < CVEC_MAX, 5, "number of pieces out of range");
+  cplx *v = bind_newcvec(L, (size_t)n + 1);
+  for (lua_Integer i = 0; i <= n; i++) {
+    double a = from + (to - from) * ((double)i / (double)n);
+    v[i] = c + r * (cos(a) + I * sin(a));
+  }
+  return 1;
+}
+
 static int cvec_get(lua_State *L) {
   cvec *c = checkcvec(L, 1);
   lua_Integer i = luaL_checkinteger(L, 2);
@@ -102,4 +118,6 @@ void bind_cvec_open(lua_State *L) {
   lua_setfield(L, -2, "cvec");
   lua_pushcfunction(L, cvec_range);
   lua_setfield(L, -2, "cvec_range");
+  lua_pushcfunction(L, cvec_arc);
+  lua_setfield(L, -2, "cvec_arc");
 }

@@ -308,18 +308,22 @@ static int land_integrand_many(lua_State *L) {
 
 static const char *invmap_text[] = {"ok", "newton", "notclosed", "singular"};
 
+/* The N-th roots of unity e^{-2 pi i j/N}, j < N, into root (the sums below would
+ * otherwise spend most of their time in sincos). */
+static void unit_roots(size_t N, cplx *root) {
+  for (size_t j = 0; j < N; j++) root[j] = cexp(-I * (6.283185307179586 * (double)j / (double)N));
+}
+
 /* Taylor coefficients from the values G[0..N-1] on |w| = rho (trapezoidal rule):
- * c_k = (1/(N rho^k)) sum_j G_j e^{-2 pi i jk/N}, k < n, with `stride` 1 (all points) or 2
- * (every other point, an N/2 rule for an aliasing check). Direct sums, O(N n). */
+ * c_k = (1/(M rho^k)) sum_j G_{j stride} e^{-2 pi i jk/M}, k < n, M = N/stride, with
+ * `stride` 1 (all points) or 2 (every other point, an N/2 rule for an aliasing check);
+ * root holds unit_roots(N). Direct sums, O(M n). */
 static void circle_coefs(const cplx *G, size_t N, size_t stride, double rho, size_t n,
-                         cplx *c) {
+                         const cplx *root, cplx *c) {
   size_t M = N / stride;
   for (size_t k = 0; k < n; k++) {
     cplx sum = 0;
-    for (size_t j = 0; j < M; j++) {
-      size_t idx = (j * k) % M;
-      sum += G[j * stride] * cexp(-I * (6.283185307179586 * (double)idx / (double)M));
-    }
+    for (size_t j = 0; j < M; j++) sum += G[j * stride] * root[((j * k) % M) * stride];
     c[k] = sum / ((double)M * pow(rho, (double)k));
   }
 }
@@ -329,8 +333,11 @@ static int push_coefs(lua_State *L, const cplx *G, size_t N, double rho, lua_Int
   if (n < 1 || (size_t)n > N / 2) return luaL_error(L, "number of coefficients out of range");
   double gmax = 0;
   for (size_t j = 0; j < N; j++) gmax = fmax(gmax, cabs(G[j]));
-  circle_coefs(G, N, 1, rho, (size_t)n, bind_newcvec(L, (size_t)n));
-  circle_coefs(G, N, 2, rho, (size_t)n, bind_newcvec(L, (size_t)n));
+  cplx *root = bind_scratch(L, N * sizeof(cplx));
+  unit_roots(N, root);
+  circle_coefs(G, N, 1, rho, (size_t)n, root, bind_newcvec(L, (size_t)n));
+  circle_coefs(G, N, 2, rho, (size_t)n, root, bind_newcvec(L, (size_t)n));
+  lua_remove(L, -3);   /* the roots, no longer used */
   lua_pushnumber(L, gmax);
   return 3;
 }
@@ -399,13 +406,12 @@ static int land_laurent(lua_State *L) {
     f[k] = integrand(p, c + rho * cexp(I * (6.283185307179586 * (double)k / (double)N)));
     vmax = fmax(vmax, cabs(f[k]));
   }
+  cplx *root = bind_scratch(L, (size_t)N * sizeof(cplx));
+  unit_roots((size_t)N, root);
   cplx *out = bind_newcvec(L, (size_t)depth + 2);
   for (lua_Integer m = -depth; m <= 1; m++) {
     cplx sum = 0;
-    for (lua_Integer k = 0; k < N; k++) {
-      lua_Integer idx = ((k * m) % N + N) % N;
-      sum += f[k] * cexp(-I * (6.283185307179586 * (double)idx / (double)N));
-    }
+    for (lua_Integer k = 0; k < N; k++) sum += f[k] * root[((k * m) % N + N) % N];
     out[m + depth] = sum / (double)N;
   }
   lua_pushnumber(L, vmax);

@@ -32,12 +32,6 @@ local function full(path)
   return out
 end
 
-local function reversed(list)
-  local out = {}
-  for k = #list, 1, -1 do out[#out + 1] = list[k] end
-  return out
-end
-
 local function join(a, b)   -- a then b, dropping b's first point (shared)
   local out = {}
   for _, z in ipairs(a) do out[#out + 1] = z end
@@ -99,8 +93,8 @@ function M.check_contour(L, contour, pts)
   end
 end
 
--- Turning of the closure from a far end point z to valley k's reference point, as the
--- polyline: radially out to radius Rref, then along the arc inside the valley.
+-- The closure from a far end point z to valley k's reference point, as two polylines:
+-- radially out to radius Rref, then along the arc inside the valley (a steep.cvec).
 local function closure_to_valley(L, z, k, Rref)
   local v = L.valleys[k]
   local mid = v.type == "edge" and v.from or 0.5 * (v.from + v.to)
@@ -109,15 +103,7 @@ local function closure_to_valley(L, z, k, Rref)
   -- unwrap th next to the valley's interval
   while th < v.from - pi do th = th + 2 * pi end
   while th > v.to + pi do th = th - 2 * pi end
-  -- (plain arithmetic on the parts: this runs for every pole at every step of a sweep)
-  local cr, ci = cparts(c)
-  local pts = { z, cnew(cr + Rref * cos(th), ci + Rref * sin(th)) }
-  local n = 64
-  for j = 1, n do
-    local a = th + (mid - th) * j / n
-    pts[j + 2] = cnew(cr + Rref * cos(a), ci + Rref * sin(a))
-  end
-  return pts
+  return { { z, c + Rref * expi(th) }, core.cvec_arc(c, Rref, th, mid, 64) }
 end
 
 -- The contour as a polyline out to radius R (64 pieces per segment or ray): kept per
@@ -125,10 +111,12 @@ end
 local samples = setmetatable({}, { __mode = "k" })
 local function sampled(contour, R)
   local kept = samples[contour]
-  if kept and kept.radius == R then return kept.points end
-  local pts = contour:sample { radius = R, n = 64 }
-  samples[contour] = { radius = R, points = pts }
-  return pts
+  if not (kept and kept.radius == R) then
+    local pts = contour:sample { radius = R, n = 64 }
+    kept = { radius = R, points = pts, cvec = core.cvec(pts) }
+    samples[contour] = kept
+  end
+  return kept.points, kept.cvec
 end
 
 --- If the contour passes through z (not at an end): its incoming and outgoing directions
@@ -205,7 +193,7 @@ function M.decompose_uncached(J, params, L, contour)
   local R = L.region.radius
   local plan = { pieces = {}, residues = {}, notes = {}, status = "ok", evals = 0 }
   local Rfar = 8 * R
-  local cpts = sampled(contour, Rfar)
+  local cpts, cvec = sampled(contour, Rfar)
   M.check_contour(L, contour, cpts)
 
   -- boundary of the contour
@@ -304,7 +292,7 @@ function M.decompose_uncached(J, params, L, contour)
       weights[bk] = at_end.sign
     else
       local n = {}
-      for k, a in ipairs(paths.ascent) do n[k] = core.crossings(cpts, full(a)) end
+      for k, a in ipairs(paths.ascent) do n[k] = core.crossings(cvec, full(a)) end
       for k = 1, m do weights[k] = n[k % m + 1] - n[k] end
     end
     for k, c in ipairs(weights) do
@@ -377,12 +365,27 @@ function M.decompose_uncached(J, params, L, contour)
 
   -- residues: winding of (contour - combination), closed through the valleys
   local Rref = 16 * R
+  -- the cycle as polylines with signs (closures as lists of polylines)
   local function closure(z, label)
     local k = label:match("^valley (%d+)$")
     if k then return closure_to_valley(L, z, tonumber(k), Rref) end
     local sj = label:match("^sink (%d+)$")
-    if sj then return { z, L.singularities[tonumber(sj)].at } end
+    if sj then return { { z, L.singularities[tonumber(sj)].at } } end
     return nil
+  end
+  local cycle = { { cvec, 1 } }
+  local function close(z, label, sign)
+    local c = label and closure(z, label)
+    for _, poly in ipairs(c or {}) do cycle[#cycle + 1] = { poly, sign } end
+  end
+  if not contour.closed then
+    close(cpts[1], start_label, -1)     -- run backwards into the start
+    close(cpts[#cpts], finish_label, 1)
+  end
+  for _, piece in ipairs(plan.pieces) do
+    local poly = piece.full
+    cycle[#cycle + 1] = { core.cvec(poly), -piece.weight }
+    close(poly[#poly], piece.ends[2], -piece.weight)
   end
   for idx, s in ipairs(L.singularities) do
     -- a singular point at a finite end of the contour is an integrable endpoint
@@ -394,33 +397,12 @@ function M.decompose_uncached(J, params, L, contour)
       end
     end
     if at_contour_end then goto next_singularity end
-    local w = 0
-    local function add(poly, sign)
-      local t = core.turning(poly, s.at)
-      if t == nil then return false end
-      w = w + sign * t
-      return true
-    end
-    local ok = true
-    -- the contour, closed at its ends
-    if contour.closed then
-      ok = add(cpts, 1)
-    else
-      ok = add(cpts, 1)
-      if start_label then
-        local c = closure(cpts[1], start_label)
-        if c then ok = ok and add(reversed(c), 1) end
-      end
-      if finish_label then
-        local c = closure(cpts[#cpts], finish_label)
-        if c then ok = ok and add(c, 1) end
-      end
-    end
-    for _, piece in ipairs(plan.pieces) do
-      local poly = piece.full
-      ok = ok and add(poly, -piece.weight)
-      local c1 = closure(poly[#poly], piece.ends[2])
-      if c1 then ok = ok and add(c1, -piece.weight) end
+    -- its winding number: the turnings of the pieces (a reversed piece turns back)
+    local w, ok = 0, true
+    for _, item in ipairs(cycle) do
+      local t = core.turning(item[1], s.at)
+      if t == nil then ok = false; break end
+      w = w + item[2] * t
     end
     local n = floor(w + 0.5)
     if not ok and s.kind == "sink" then
