@@ -318,10 +318,11 @@ function M.decompose_uncached(J, params, L, contour)
     local Fv = J.tape:eval_many(piece.points, params)
     local Fc = piece.F or {}
     for k = 1, math.min(#piece.points, #Fc) do
-      -- principal value against the value followed by continuity along the path
-      local d = Fv[k] - Fc[k]
-      local dr, di = cparts(d)
-      local fr = cparts(Fv[k])
+      -- principal value against the value followed by continuity along the path (on the
+      -- parts: this runs over every point of every path)
+      local fv, fc = Fv[k], Fc[k]
+      local fr = fv[1]
+      local dr, di = fr - fc[1], fv[2] - fc[2]
       -- harmless: a jump of 2 pi i k leaves exp(F) unchanged (an integer power), and where
       -- the integrand is negligible (into a sink) nothing depends on it
       local harmless = (abs(dr) <= tol and abs(math.sin(di / 2)) <= tol) or not (fr > lr - 30)
@@ -329,7 +330,7 @@ function M.decompose_uncached(J, params, L, contour)
         plan.status = "incomplete"
         plan.notes[#plan.notes + 1] = format("a steepest descent path of the %s %s crosses "
           .. "a branch cut of the exponent near %s (F jumps by %s)", piece.kind,
-          piece.index or tostring(piece.at), tostring(piece.points[k]), tostring(d))
+          piece.index or tostring(piece.at), tostring(piece.points[k]), tostring(fv - fc))
         break
       end
     end

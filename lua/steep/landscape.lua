@@ -555,11 +555,7 @@ local function stop_points(L, skip_saddle, descent)
   return stops, radii, what
 end
 
-local function cvec_list(v)
-  local out = {}
-  for k = 1, #v do out[k] = v:get(k) end
-  return out
-end
+local function cvec_list(v) return v:totable() end
 
 -- What a trace ended at, in words the decomposition compares: "valley k", "hill",
 -- "sink k" (a log point where the integrand vanishes), "singularity k", "saddle k",
