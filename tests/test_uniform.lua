@@ -80,6 +80,39 @@ end
 
 ---------------------------------------------------------------------------------------
 
+-- A second pole inside the first circle the uniform form tries: exp(-x t^2/2) / ((t - P1)
+-- (t - P2)) on the real line at x = 10, P1 = 0.1i near the saddle (its image b = 0.22i)
+-- and P2 = 0.5 + 0.2i at |w| = 1.2 (the first circle has radius |b| + 1.2 = 1.42). A
+-- circle enclosing P2 would add its residue to H's coefficients; the form must notice and
+-- use a smaller circle. (With P2 that close, H's series converges slowly and the expansion
+-- is rough at x = 10: the test asks for an honest estimate, not a small error.)
+-- Reference by partial fractions and DLMF 7.7.2 (Im z > 0):
+-- integral of exp(-a t^2) / (t - z) dt = i pi w(z sqrt(a)), w from libcerf.
+function TestUniformPole:test_second_pole_inside_first_circle()
+  local P1, P2 = 0.1 * I, 0.5 + 0.2 * I
+  local J2 = steep.integral { var = t, exponent = -x * t ^ 2 / 2,
+    amplitude = 1 / ((t - P1) * (t - P2)),
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = x }
+  local X = 10
+  local sa = math.sqrt(X / 2)
+  local function w(z)
+    local re, im = gsl.faddeeva_w((z * sa):re(), (z * sa):im())
+    return steep.complex(re, im)
+  end
+  local want = I * pi * (w(P1) - w(P2)) / (P1 - P2)
+  local r = J2:expand { x = X, order = 4 }
+  local uniform
+  for _, c in ipairs(r.contributions) do
+    if c.kind:find("uniform", 1, true) then uniform = c end
+  end
+  lu.assertNotNil(uniform, "the saddle is expanded uniformly (pole P1 nearby)")
+  local rho = tonumber(uniform.note:match("circle |w| = ([%d.e+-]+)"))
+  lu.assertTrue(rho < 1.2, "the circle used excludes P2's image (radius " .. tostring(rho) .. ")")
+  local d = cabs(r.value - want)
+  lu.assertTrue(d <= 3 * r.error, string.format("|expansion - "
+    .. "Faddeeva reference| = %.3g, 3 x estimate %.3g, |J| = %.3g", d, 3 * r.error, cabs(want)))
+end
+
 TestUniformAiry = {}
 
 -- steep.airy on the real axis against gsl_sf_airy_Ai_e and gsl_sf_airy_Ai_deriv_e, x from

@@ -81,21 +81,46 @@ local function uniform_pole_contribution(J, params, L, j, c, near, order)
   local s = L.saddles[j]
   local nraw = 2 * ((order == "optimal" and 40 or order) + 2)
   local a, F0, sm = expand.saddle_series(J, params, s.at, 2, 4)
-  -- H's coefficients: a circle in the w plane enclosing b, inside G's other singularities
+  -- H's coefficients: a circle in the w plane enclosing b, inside G's other singularities.
+  -- A circle is trusted when the rule on every other point agrees to 1e-7 (so that the
+  -- aliasing error of the whole rule, about the square of that, is near rounding) and
+  -- nothing else singular lies inside: its first two coefficients must be those of the
+  -- series a of G about the saddle with the pole's part added back, H_k = a_k + r/b^(k+1)
+  -- (any other singular point inside would add its residues to every H_k). That needs b
+  -- itself to many digits; b^2 = F0 - F(pole) carries the rounding of F (1e-13 assumed),
+  -- so for a pole within about 1e-3 saddle widths a second, smaller circle enclosing b
+  -- must give the same coefficients instead.
   local bmag = cabs(near.b)
+  local b_rel = 1e-13 * math.max(1, cabs(F0), cabs(near.Fp)) / (bmag * bmag)
+  local function trusted(h1, half, level, rho)
+    for k = 0, nraw - 1 do
+      if half[k] and cabs(h1[k] - half[k]) > 1e-7 * cabs(h1[k]) + 4 * level(k) then
+        return false
+      end
+    end
+    if b_rel < 1e-6 then
+      local binv = 1 / near.b
+      local pole_k = near.r * binv
+      for k = 0, 1 do   -- (H may vanish outright: the scale includes the pole's part)
+        local tol = (1e-7 + (k + 1) * b_rel) * (cabs(a[k]) + cabs(pole_k)) + 2 * level(k)
+        if cabs(h1[k] - (a[k] + pole_k)) > tol then return false end
+        pole_k = pole_k * binv
+      end
+      return true
+    end
+    local h2 = expand.circle_coefficients(J, params, s.at, F0, 2, sm, nraw,
+      0.5 * (rho + bmag) + 0.05)
+    if not h2 then return false end
+    local size = cabs(h1[0]) + cabs(near.r) / math.max(bmag, 0.1)
+    for k = 0, math.min(nraw - 1, 8) do
+      if cabs(h1[k] - h2[k]) > 1e-8 * (cabs(h1[k]) + size) then return false end
+    end
+    return true
+  end
   local h, used_rho
   for _, rho in ipairs({ bmag + 1.2, bmag + 0.8, bmag + 0.5, 1.5 * bmag + 0.2 }) do
-    local h1 = expand.circle_coefficients(J, params, s.at, F0, 2, sm, nraw, rho)
-    local h2 = expand.circle_coefficients(J, params, s.at, F0, 2, sm, nraw, 0.5 * (rho + bmag) + 0.05)
-    if h1 and h2 then
-      -- (the scale includes the pole part's size on the circle: H may vanish outright)
-      local agree = true
-      local size = cabs(h1[0]) + cabs(near.r) / math.max(bmag, 0.1)
-      for k = 0, math.min(nraw - 1, 8) do
-        if cabs(h1[k] - h2[k]) > 1e-8 * (cabs(h1[k]) + size) then agree = false end
-      end
-      if agree then h, used_rho = h1, rho; break end
-    end
+    local h1, half, level = expand.circle_coefficients(J, params, s.at, F0, 2, sm, nraw, rho)
+    if h1 and trusted(h1, half, level, rho) then h, used_rho = h1, rho; break end
   end
   if not h then return nil end
   local sign = c[1]          -- +1: in along ray 2, out along ray 1 (w increasing)

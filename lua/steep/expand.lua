@@ -55,19 +55,24 @@ local function ser(list, n)
   return series(t)
 end
 
---- circle_coefficients(J, params, t0, F0, m, s, n, rho) -> c[0..n-1] or nil: the
--- coefficients (1/2 pi i) of the integral of G(w) w^(-k-1) over |w| = rho. Inside the
--- disc of convergence they are G's Taylor coefficients; a circle that also encloses a
--- simple pole r/(w - b) of G gives those of G - r/(w - b) instead (the pole's own part
--- has no net residue: r/(w - b) w^(-k-1) decays like w^(-k-2)).
+--- circle_coefficients(J, params, t0, F0, m, s, n, rho) -> c, c_half, level or nil: the
+-- coefficients c[k] = (1/2 pi i) of the integral of G(w) w^(-k-1) over |w| = rho,
+-- k = 0..n-1, by the trapezoidal rule on N >= 4n points; c_half[k] the same on every
+-- other point (k < N/2: their difference measures the aliasing error, whose square is
+-- that of c), and level(k) the rounding level of c[k]. Inside the disc of convergence
+-- they are G's Taylor coefficients; a circle that also encloses a simple pole
+-- r/(w - b) of G gives those of G - r/(w - b) instead (the pole's own part has no net
+-- residue: r/(w - b) w^(-k-1) decays like w^(-k-2)).
+local EPS = 2.220446049250313e-16
 function M.circle_coefficients(J, params, t0, F0, m, s, n, rho)
   local N = 256
   while N < 4 * n do N = N * 2 end
-  local st, C = core.invmap_circle(J.tape, params, t0, F0, m, s, rho, N, n)
+  local st, C, C2, gmax = core.invmap_circle(J.tape, params, t0, F0, m, s, rho, N, n)
   if st ~= "ok" then return nil end
-  local out = {}
-  for k = 0, n - 1 do out[k] = C:get(k + 1) end
-  return out
+  local out, half = C:totable(), C2:totable()
+  for k = 0, n - 1 do out[k] = out[k + 1]; half[k] = half[k + 1] end
+  out[n], half[n] = nil, nil
+  return out, half, function(k) return 64 * EPS * gmax / rho ^ k end
 end
 
 -- The coefficients of G(w) by Cauchy's formula on a circle inside G's disc of
@@ -83,7 +88,6 @@ end
 -- The radius starts at 0.8 times an estimate of R from the coefficients a and shrinks
 -- until both hold (N is doubled once first when only the second fails). Returns the
 -- coefficients and how they were obtained.
-local EPS = 2.220446049250313e-16
 local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
   if n <= 6 then return a, "series" end
   -- root test on the coefficients relative to the largest of a_0..a_2 (so that an overall
