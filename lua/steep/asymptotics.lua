@@ -93,10 +93,14 @@ local function uniform_pole_contribution(J, params, L, j, c, near, order)
   local bmag = cabs(near.b)
   local b_rel = 1e-13 * math.max(1, cabs(F0), cabs(near.Fp)) / (bmag * bmag)
   local function trusted(h1, half, level, rho)
+    -- (the aliasing of the pole's part is measured against its own size on the circle,
+    -- |r| / ((rho - |b|) rho^k): H may vanish outright)
+    local pole_size = cabs(near.r) / (rho - bmag)
     for k = 0, nraw - 1 do
-      if half[k] and cabs(h1[k] - half[k]) > 1e-7 * cabs(h1[k]) + 4 * level(k) then
+      if half[k] and cabs(h1[k] - half[k]) > 1e-7 * (cabs(h1[k]) + pole_size) + 4 * level(k) then
         return false
       end
+      pole_size = pole_size / rho
     end
     if b_rel < 1e-6 then
       local binv = 1 / near.b
