@@ -237,3 +237,84 @@ int tape_jet_upto(const tape *t, cplx x, const cplx *params, size_t order, cplx 
   }
   return STEEP_OK;
 }
+
+static int finite2(cplx a, cplx b) {
+  return isfinite(creal(a)) && isfinite(cimag(a)) && isfinite(creal(b)) && isfinite(cimag(b));
+}
+
+/* Value and derivative of one varying instruction from its operands' (a, da), (b, db). */
+static int dual1(const tape_ins *in, cplx a, cplx da, cplx b, cplx db, cplx x, cplx *v,
+                 cplx *d) {
+  switch (in->op) {
+    case OP_VAR: *v = x; *d = 1; return STEEP_OK;
+    case OP_ADD: *v = a + b; *d = da + db; return STEEP_OK;
+    case OP_SUB: *v = a - b; *d = da - db; return STEEP_OK;
+    case OP_MUL: *v = a * b; *d = da * b + a * db; return STEEP_OK;
+    case OP_DIV:
+      if (b == 0) return STEEP_SINGULAR;
+      *v = a / b;
+      *d = (da - *v * db) / b;
+      return STEEP_OK;
+    case OP_NEG: *v = -a; *d = -da; return STEEP_OK;
+    case OP_POWI:
+      if (in->k < 0 && a == 0) return STEEP_SINGULAR;
+      *v = powi(a, in->k);
+      *d = in->k == 0 ? 0 : (double)in->k * powi(a, in->k - 1) * da;
+      return STEEP_OK;
+    case OP_POWC:
+      if (a == 0) return STEEP_BRANCH;
+      *v = cexp(in->c * clog(a));   /* as ser_pow, so values match the jets' */
+      *d = in->c * *v / a * da;
+      return STEEP_OK;
+    case OP_EXP: *v = cexp(a); *d = *v * da; return STEEP_OK;
+    case OP_LOG:
+      if (a == 0) return STEEP_SINGULAR;
+      *v = clog(a);
+      *d = da / a;
+      return STEEP_OK;
+    case OP_SQRT:
+      if (a == 0) return STEEP_BRANCH;
+      *v = csqrt(a);
+      *d = 0.5 * da / *v;
+      return STEEP_OK;
+    case OP_SIN: *v = csin(a); *d = ccos(a) * da; return STEEP_OK;
+    case OP_COS: *v = ccos(a); *d = -csin(a) * da; return STEEP_OK;
+    case OP_SINH: *v = csinh(a); *d = ccosh(a) * da; return STEEP_OK;
+    case OP_COSH: *v = ccosh(a); *d = csinh(a) * da; return STEEP_OK;
+    case OP_TAN:
+      if (ccos(a) == 0) return STEEP_SINGULAR;
+      *v = ctan(a);
+      *d = (1.0 + *v * *v) * da;
+      return STEEP_OK;
+    case OP_TANH:
+      if (ccosh(a) == 0) return STEEP_SINGULAR;
+      *v = ctanh(a);
+      *d = (1.0 - *v * *v) * da;
+      return STEEP_OK;
+    case OP_ATAN:
+      if (1.0 + a * a == 0) return STEEP_SINGULAR;
+      *v = catan(a);
+      *d = da / (1.0 + a * a);
+      return STEEP_OK;
+    default: return STEEP_NONFINITE;
+  }
+}
+
+int tape_dual_upto(const tape *t, cplx x, const cplx *params, cplx *v, cplx *d, long *bad,
+                   size_t upto) {
+  for (size_t j = 0; j <= upto && j < t->n; j++) {
+    const tape_ins *in = &t->ins[j];
+    cplx a = in->a >= 0 ? v[in->a] : 0, b = in->b >= 0 ? v[in->b] : 0;
+    int st = STEEP_OK;
+    if (!t->varying[j]) {
+      v[j] = apply1(in, a, b, x, params);
+      d[j] = 0;
+    } else {
+      cplx da = in->a >= 0 ? d[in->a] : 0, db = in->b >= 0 ? d[in->b] : 0;
+      st = dual1(in, a, da, b, db, x, &v[j], &d[j]);
+    }
+    if (st == STEEP_OK && !finite2(v[j], d[j])) st = STEEP_NONFINITE;
+    if (st != STEEP_OK) { *bad = (long)j; return st; }
+  }
+  return STEEP_OK;
+}

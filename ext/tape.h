@@ -72,4 +72,12 @@ int tape_jet(const tape *t, cplx x, const cplx *params, size_t order, cplx *work
 int tape_jet_upto(const tape *t, cplx x, const cplx *params, size_t order, cplx *work,
                   cplx *scratch, long *bad, size_t upto);
 
+/* Value and first derivative of slots 0..upto at x (forward mode): v[j] and d[j], each
+ * array t->n entries. The order-1 case of tape_jet_upto without its series machinery,
+ * which steepest paths, inverse maps and Newton's method call at every step. Returns
+ * STEEP_OK or the status of the first failing instruction (as tape_jet_upto; index to
+ * *bad). */
+int tape_dual_upto(const tape *t, cplx x, const cplx *params, cplx *v, cplx *d, long *bad,
+                   size_t upto);
+
 #endif

@@ -699,6 +699,56 @@ static void test_invmap_budget(void) {
   free(mem);
 }
 
+/* ---- first derivatives (tape_dual_upto) against jets of order 1 ------------------ */
+
+static void test_dual(void) {
+  /* every unary operation on u = 0.3 t + 0.2 i, then combined with the others: value
+   * and derivative must agree with the jet of order 1 (coefficients 0 and 1) to rounding */
+  static const int unary[] = {OP_EXP, OP_LOG, OP_SQRT, OP_SIN, OP_COS, OP_TAN, OP_SINH,
+                              OP_COSH, OP_TANH, OP_ATAN, OP_NEG, OP_POWI, OP_POWC};
+  const cplx xs[3] = {0.7 + 0.4 * I, -1.3 + 0.2 * I, 0.1 - 2.1 * I};
+  double worst = 0;
+  int status_ok = 1;
+  for (size_t u = 0; u < sizeof unary / sizeof *unary; u++) {
+    htape h;
+    const tape_ins ins[9] = {
+      {OP_VAR, -1, -1, 0, 0}, {OP_CONST, -1, -1, 0, 0.3}, {OP_MUL, 1, 0, 0, 0},
+      {OP_CONST, -1, -1, 0, 0.2 * I}, {OP_ADD, 2, 3, 0, 0},
+      {unary[u], 4, -1, unary[u] == OP_POWI ? -3 : 0, unary[u] == OP_POWC ? 0.5 - 1.5 * I : 0},
+      {OP_DIV, 5, 4, 0, 0}, {OP_SUB, 6, 0, 0, 0}, {OP_MUL, 7, 5, 0, 0}};
+    htape_init(&h, ins, 9, 0);
+    const char *why = "";
+    if (tape_check(&h.t, &why) != -1) { status_ok = 0; continue; }
+    cplx work[9 * 2], scratch[4 * 2], v[9], d[9];
+    long bad;
+    for (int k = 0; k < 3; k++) {
+      int sj = tape_jet_upto(&h.t, xs[k], NULL, 1, work, scratch, &bad, 8);
+      int sd = tape_dual_upto(&h.t, xs[k], NULL, v, d, &bad, 8);
+      if (sj != STEEP_OK || sd != STEEP_OK) { status_ok = 0; continue; }
+      worst = fmax(worst, fmax(relerr(v[8], work[16]), relerr(d[8], work[17])));
+    }
+  }
+  check(status_ok, "tape_dual_upto: every operation evaluates where its jet does");
+  check(worst <= 1e-13, "tape_dual_upto: value and derivative agree with the jet of order 1");
+  /* singular points give the jets' statuses: log(0), 1/0, sqrt(0) */
+  htape h;
+  const tape_ins lg[2] = {{OP_VAR, -1, -1, 0, 0}, {OP_LOG, 0, -1, 0, 0}};
+  const tape_ins sq[2] = {{OP_VAR, -1, -1, 0, 0}, {OP_SQRT, 0, -1, 0, 0}};
+  const tape_ins inv[3] = {{OP_CONST, -1, -1, 0, 1}, {OP_VAR, -1, -1, 0, 0}, {OP_DIV, 0, 1, 0, 0}};
+  cplx v[3], d[3];
+  long bad = -1;
+  const char *why = "";
+  htape_init(&h, lg, 2, 0);
+  check(tape_check(&h.t, &why) == -1 && tape_dual_upto(&h.t, 0, NULL, v, d, &bad, 1) == STEEP_SINGULAR &&
+        bad == 1, "tape_dual_upto: log(0) is singular at slot 1");
+  htape_init(&h, sq, 2, 0);
+  check(tape_check(&h.t, &why) == -1 && tape_dual_upto(&h.t, 0, NULL, v, d, &bad, 1) == STEEP_BRANCH,
+        "tape_dual_upto: sqrt(0) is a branch point");
+  htape_init(&h, inv, 3, 0);
+  check(tape_check(&h.t, &why) == -1 && tape_dual_upto(&h.t, 0, NULL, v, d, &bad, 2) == STEEP_SINGULAR,
+        "tape_dual_upto: 1/0 is singular");
+}
+
 /* ---- rings (rings.c) ------------------------------------------------------------- */
 
 static void test_rings(void) {
@@ -758,6 +808,7 @@ int main(void) {
   test_tape_check();
   test_invmap_budget();
   test_rings();
+  test_dual();
   printf("kernels: %d passed, %d failed\n", passed, failed);
   return failed ? 1 : 0;
 }
