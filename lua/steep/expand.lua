@@ -83,8 +83,9 @@ end
 -- aliasing allows. A circle is trusted only if
 --   * its low-order coefficients agree with the series a (reliable there): a circle past
 --     a pole of G would silently add the pole's residue to every coefficient;
---   * the rule on every other point (N/2) agrees to 1e-7 relative, so that the error of
---     the N-point rule, about the square of that, is near rounding.
+--   * the rule on every other point (N/2) agrees to 1e-6 relative, so that the error of
+--     the N-point rule, about the square of that (the coefficients decay geometrically),
+--     is 1e-12 or less.
 -- The radius starts at 0.8 times an estimate of R from the coefficients a and shrinks
 -- until both hold (N is doubled once first when only the second fails). Returns the
 -- coefficients and how they were obtained.
@@ -99,7 +100,7 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
     if v > 0 and S > 0 then R = math.min(R, (v / S) ^ (-1 / k)) end
   end
   if R == huge then return a, "series" end
-  local N0 = 512
+  local N0 = 256
   while N0 < 4 * n do N0 = N0 * 2 end
   -- coefficients 0..n-1 on |w| = rho with N and with N/2 points, and rounding levels
   -- coefficients 0..n-1 on |w| = rho with N and with N/2 points (the sums in C), and
@@ -132,7 +133,7 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
         end
       end
       for k = 0, math.min(n - 1, N // 8) do
-        if cabs(c[k] - c2[k]) > 1e-7 * cabs(c[k]) + 4 * lvl[k] then
+        if cabs(c[k] - c2[k]) > 1e-6 * cabs(c[k]) + 4 * lvl[k] then
           ok_alias = false
           break
         end
