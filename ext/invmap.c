@@ -76,12 +76,13 @@ static cplx mapdP(const mapspec *ms, cplx w) {
  * the predictor plus one per Newton iteration. */
 static int follow(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx w1,
                   mappoint *q, int steps, int arc, double rho, long *budget) {
-  double th0 = carg(w0), th1 = th0 + carg(w1 / w0);
+  double th0 = 0, th1 = 0;
+  if (arc && steps > 1) th0 = carg(w0), th1 = th0 + carg(w1 / w0);
   cplx wprev = w0;
   for (int k = 1; k <= steps; k++) {
     if (--*budget < 0) return INVMAP_NEWTON;
     double u = (double)k / steps;
-    cplx w = arc ? rho * cexp(I * (th0 + u * (th1 - th0))) : w0 + u * (w1 - w0);
+    cplx w = k == steps ? w1 : arc ? rho * cexp(I * (th0 + u * (th1 - th0))) : w0 + u * (w1 - w0);
     cplx dh = -mapdP(ms, wprev) / q->dF * (w - wprev);   /* h'(w) dw */
     mappoint n = {q->h + dh, 0, 0, q->off};
     if (problem_dF(p, t0 + n.h, &n.F, &n.dF) != STEEP_OK) return INVMAP_SINGULAR;
@@ -130,14 +131,14 @@ static int circle(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, mapp
     st = follow(p, t0, F0, ms, rho * dir, rho, &q, 16, 1, rho, &budget);
     if (st != INVMAP_OK) return st;
   }
-  cplx h0 = q.h;
+  cplx h0 = q.h, wprev = rho;
   for (size_t j = 0; j < N; j++) {
     cplx wj = rho * cexp(I * (twopi * (double)j / (double)N));
     if (j > 0) {
-      cplx wprev = rho * cexp(I * (twopi * (double)(j - 1) / (double)N));
       st = follow(p, t0, F0, ms, wprev, wj, &q, 1, 1, rho, &budget);
       if (st != INVMAP_OK) return st;
     }
+    wprev = wj;
     cplx F;
     cplx g = 1;
     if (p->t->nout > 1) {
@@ -149,8 +150,7 @@ static int circle(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, mapp
     if (!(isfinite(creal(G[j])) && isfinite(cimag(G[j])))) return INVMAP_SINGULAR;
   }
   /* once round: back where we started? */
-  cplx wlast = rho * cexp(I * (twopi * (double)(N - 1) / (double)N));
-  st = follow(p, t0, F0, ms, wlast, rho, &q, 1, 1, rho, &budget);
+  st = follow(p, t0, F0, ms, wprev, rho, &q, 1, 1, rho, &budget);
   if (st != INVMAP_OK) return st;
   if (cabs(q.h - h0) > 1e-8 * (cabs(h0) + 1e-300)) return INVMAP_NOTCLOSED;
   return INVMAP_OK;

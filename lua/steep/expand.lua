@@ -35,7 +35,11 @@ M.MAX_SADDLE_ORDER = 8
 -- Gamma of a positive real argument (GSL is the reference in the tests; here the
 -- Lanczos-free route through lgamma is enough: Lua has no gamma, so use the reflection-
 -- free product for small arguments and Stirling's series with many terms).
+local gamma_kept, gamma_count = {}, 0   -- the same few arguments recur (k/m, k + 1/2)
 local function gamma(x)
+  local kept = gamma_kept[x]
+  if kept then return kept end
+  local x0 = x
   -- shift up to x >= 20, then Stirling with 8 terms (error < 1e-17 there)
   local prod = 1
   while x < 20 do prod = prod * x; x = x + 1 end
@@ -44,7 +48,10 @@ local function gamma(x)
   local s = 1 / 12 - inv2 * (1 / 360 - inv2 * (1 / 1260 - inv2 * (1 / 1680 - inv2 * (1 / 1188
     - inv2 * (691 / 360360 - inv2 * (1 / 156 - inv2 * 3617 / 122400))))))
   local lg = (z - 0.5) * log(z) - z + 0.5 * log(2 * pi) + s * inv
-  return exp(lg) / prod
+  local v = exp(lg) / prod
+  if gamma_count >= 4096 then gamma_kept, gamma_count = {}, 0 end   -- bounded memory
+  gamma_kept[x0], gamma_count = v, gamma_count + 1
+  return v
 end
 M.gamma = gamma
 
@@ -55,18 +62,20 @@ local function ser(list, n)
   return series(t)
 end
 
---- circle_coefficients(J, params, t0, F0, m, s, n, rho) -> c, c_half, level or nil: the
--- coefficients c[k] = (1/2 pi i) of the integral of G(w) w^(-k-1) over |w| = rho,
--- k = 0..n-1, by the trapezoidal rule on N >= 4n points; c_half[k] the same on every
+--- circle_coefficients(J, params, t0, F0, m, s, n, rho [, N]) -> c, c_half, level or nil:
+-- the coefficients c[k] = (1/2 pi i) of the integral of G(w) w^(-k-1) over |w| = rho,
+-- k = 0..n-1, by the trapezoidal rule on N points (by default a power of 2, >= 256, >= 4n); c_half[k] the same on every
 -- other point (k < N/2: their difference measures the aliasing error, whose square is
 -- that of c), and level(k) the rounding level of c[k]. Inside the disc of convergence
 -- they are G's Taylor coefficients; a circle that also encloses a simple pole
 -- r/(w - b) of G gives those of G - r/(w - b) instead (the pole's own part has no net
 -- residue: r/(w - b) w^(-k-1) decays like w^(-k-2)).
 local EPS = 2.220446049250313e-16
-function M.circle_coefficients(J, params, t0, F0, m, s, n, rho)
-  local N = 256
-  while N < 4 * n do N = N * 2 end
+function M.circle_coefficients(J, params, t0, F0, m, s, n, rho, N)
+  if not N then
+    N = 256
+    while N < 4 * n do N = N * 2 end
+  end
   local st, C, C2, gmax = core.invmap_circle(J.tape, params, t0, F0, m, s, rho, N, n)
   if st ~= "ok" then return nil end
   local out, half = C:totable(), C2:totable()
@@ -102,23 +111,9 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
   if R == huge then return a, "series" end
   local N0 = 256
   while N0 < 4 * n do N0 = N0 * 2 end
-  -- coefficients 0..n-1 on |w| = rho with N and with N/2 points, and rounding levels
-  -- coefficients 0..n-1 on |w| = rho with N and with N/2 points (the sums in C), and
-  -- their rounding levels
-  local function on_circle(rho, N)
-    local st, C1, C2, gmax = core.invmap_circle(J.tape, params, t0, F0, m, s, rho, N, n)
-    if st ~= "ok" then return nil end
-    local c, c2, lvl = {}, {}, {}
-    for k = 0, n - 1 do
-      c[k] = C1:get(k + 1)
-      if k < N // 2 then c2[k] = C2:get(k + 1) end
-      lvl[k] = 64 * EPS * gmax / rho ^ k
-    end
-    return c, c2, lvl
-  end
   local rho, N, doubled = 0.8 * R, N0, false
   for _ = 1, 12 do
-    local c, c2, lvl = on_circle(rho, N)
+    local c, c2, level = M.circle_coefficients(J, params, t0, F0, m, s, n, rho, N)
     local ok_series, ok_alias = c ~= nil, c ~= nil
     if c then
       -- a coefficient that vanishes is compared with the natural size at its order: the
@@ -127,13 +122,13 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
       for k = 0, math.min(n - 1, 8) do
         size = math.max(size, cabs(a[k]) * rho ^ k)
         if cabs(c[k] - a[k]) > 1e-7 * math.max(cabs(a[k]), cabs(c[k])) + 1e-9 * size / rho ^ k
-            + 2 * lvl[k] then
+            + 2 * level(k) then
           ok_series = false
           break
         end
       end
       for k = 0, math.min(n - 1, N // 8) do
-        if cabs(c[k] - c2[k]) > 1e-6 * cabs(c[k]) + 4 * lvl[k] then
+        if cabs(c[k] - c2[k]) > 1e-6 * cabs(c[k]) + 4 * level(k) then
           ok_alias = false
           break
         end
@@ -197,12 +192,16 @@ function M.saddle_terms(a, F0, m, c, nraw)
   local eF0 = complex.new(0, 0) + 1
   local terms, powers = {}, {}
   for n = 0, nraw - 1 do
-    local factor = cnew(0, 0)
+    -- sum_k c_k omega_k^(n+1), on the parts
+    local fr, fi = 0, 0
     for k = 1, m do
-      if c[k] ~= 0 then factor = factor + c[k] * expi(2 * pi * (k - 1) * (n + 1) / m) end
+      if c[k] ~= 0 then
+        local angle = 2 * pi * (k - 1) * (n + 1) / m
+        fr, fi = fr + c[k] * math.cos(angle), fi + c[k] * math.sin(angle)
+      end
     end
-    if cabs(factor) > 1e-12 then
-      local coef = a[n] * factor * (gamma((n + 1) / m) / m)
+    if math.sqrt(fr * fr + fi * fi) > 1e-12 then
+      local coef = a[n] * cnew(fr, fi) * (gamma((n + 1) / m) / m)
       terms[#terms + 1] = coef
       powers[#powers + 1] = n
     end
