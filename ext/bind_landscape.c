@@ -323,7 +323,12 @@ static void circle_coefs(const cplx *G, size_t N, size_t stride, double rho, siz
   size_t M = N / stride;
   for (size_t k = 0; k < n; k++) {
     cplx sum = 0;
-    for (size_t j = 0; j < M; j++) sum += G[j * stride] * root[((j * k) % M) * stride];
+    size_t idx = 0, step = k % M;   /* idx = j k mod M, stepped: no division per term */
+    for (size_t j = 0; j < M; j++) {
+      sum += G[j * stride] * root[idx * stride];
+      idx += step;
+      if (idx >= M) idx -= M;
+    }
     c[k] = sum / ((double)M * pow(rho, (double)k));
   }
 }

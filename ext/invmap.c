@@ -5,6 +5,10 @@
 #include <math.h>
 #include "invmap.h"
 
+/* max(|Re z|, |Im z|): within a factor sqrt 2 of |z|, without hypot's care, for the
+ * tolerance tests taken at every step */
+static double size(cplx z) { return fmax(fabs(creal(z)), fabs(cimag(z))); }
+
 /* A solved point of the map: h, with F and F' at t0 + h, and the offset added to the
  * principal F where a branch cut of a log inside it was crossed (F followed by
  * continuity is F + off). */
@@ -23,8 +27,8 @@ static int solve(problem *p, cplx t0, cplx F0, cplx target, mappoint *q) {
     if (problem_dF(p, t0 + q->h, &q->F, &q->dF) != STEEP_OK) return -1;
     /* quadratic convergence: a step this small leaves an error near rounding; or the
      * residual was at the rounding level of F0 - F itself (small h: cancellation) */
-    if (cabs(step) <= 1e-10 * (cabs(q->h) + 1e-300) ||
-        cabs(r) <= 8 * DBL_EPSILON * (cabs(F0) + cabs(q->F) + cabs(target)))
+    if (size(step) <= 1e-10 * (size(q->h) + 1e-300) ||
+        size(r) <= 8 * DBL_EPSILON * (size(F0) + size(q->F) + size(target)))
       return 0;
   }
   return -1;
@@ -89,7 +93,7 @@ static int follow(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx
     /* a large discrepancy is a branch jump only if it survives small steps (the
      * trapezoidal error of a long step near a singular point can be large too) */
     cplx jump = n.F - q->F - 0.5 * (q->dF + n.dF) * dh;
-    int big = cabs(jump) > fmax(0.5, 0.25 * cabs(0.5 * (q->dF + n.dF) * dh));
+    int big = size(jump) > fmax(0.5, 0.25 * size(0.5 * (q->dF + n.dF) * dh));
     /* a cut of log makes F jump by a purely imaginary amount (Re F is continuous): take
      * such a jump at once; anything else large is a step too long for the trapezoid */
     int pure = 0;
@@ -103,7 +107,7 @@ static int follow(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx
     if (big) n.off -= jump;
     /* solve for the principal F: F0 - off - F = P(w) */
     int ok = solve(p, t0, F0 - n.off, mapP(ms, w), &n) == 0 &&
-             cabs(n.h - (q->h + dh)) <= 0.5 * cabs(dh) + 1e-14 * cabs(n.h);
+             size(n.h - (q->h + dh)) <= 0.5 * size(dh) + 1e-14 * size(n.h);
     if (!ok) {
       if (steps > 65536) return INVMAP_NEWTON;
       return follow(p, t0, F0, ms, wprev, w1, q, 4 * (steps - k + 1), arc, rho, budget);

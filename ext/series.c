@@ -176,8 +176,11 @@ void ser_compose(cplx *out, const cplx *a, const cplx *r, size_t n, cplx *work) 
   cplx *tmp = work;
   memset(out, 0, n * sizeof *out);
   /* Horner: out = (...(a_{n-1} r + a_{n-2}) r + ...) r + a_0.  Since r_0 = 0, the k-th
-   * step only needs n - k coefficients; keeping all n is simpler and still O(n^3). */
-  for (size_t k = n; k-- > 0;) {
+   * step only needs n - k coefficients; keeping all n is simpler and still O(n^3).
+   * Trailing zeros of a (a constant or a polynomial amplitude) cost nothing. */
+  size_t top = n;
+  while (top > 1 && a[top - 1] == 0) top--;
+  for (size_t k = top; k-- > 0;) {
     ser_mul(tmp, out, r, n);
     memcpy(out, tmp, n * sizeof *tmp);
     out[0] += a[k];

@@ -98,6 +98,13 @@ end
 -- The radius starts at 0.8 times an estimate of R from the coefficients a and shrinks
 -- until both hold (N is doubled once first when only the second fails). Returns the
 -- coefficients and how they were obtained.
+-- |u - v| for complex u, v, on the parts (these comparisons run over every coefficient)
+local function dist(u, v)
+  local ur, ui = cparts(u)
+  local vr, vi = cparts(v)
+  return math.sqrt((ur - vr) ^ 2 + (ui - vi) ^ 2)
+end
+
 local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
   if n <= 6 then return a, "series" end
   -- root test on the coefficients relative to the largest of a_0..a_2 (so that an overall
@@ -121,14 +128,14 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
       local size = 0
       for k = 0, math.min(n - 1, 8) do
         size = math.max(size, cabs(a[k]) * rho ^ k)
-        if cabs(c[k] - a[k]) > 1e-7 * math.max(cabs(a[k]), cabs(c[k])) + 1e-9 * size / rho ^ k
+        if dist(c[k], a[k]) > 1e-7 * math.max(cabs(a[k]), cabs(c[k])) + 1e-9 * size / rho ^ k
             + 2 * level(k) then
           ok_series = false
           break
         end
       end
       for k = 0, math.min(n - 1, N // 8) do
-        if cabs(c[k] - c2[k]) > 1e-6 * cabs(c[k]) + 4 * level(k) then
+        if dist(c[k], c2[k]) > 1e-6 * cabs(c[k]) + 4 * level(k) then
           ok_alias = false
           break
         end
@@ -160,26 +167,24 @@ function M.saddle_series(J, params, t0, m, n)
       order, core.max_order), 0)
   end
   local Fj, gj = J.tape:jet(t0, order, params)
-  local F0 = Fj:coef(0)
-  local fm = Fj:coef(m)
+  local Fc = Fj:coefs()           -- Fc[k + 1] = f_k (the series arithmetic stays in C)
+  local F0, fm = Fc[1], Fc[m + 1]
   -- r(h) = (F0 - F(t0 + h)) / (-f_m h^m) = sum_k (f_{m+k} / f_m) h^k
-  local r = {}
-  for k = 0, n - 1 do r[k + 1] = Fj:coef(m + k) / fm end
-  local rs = ser(r, n)
+  local rs = series(table.move(Fc, m + 1, m + n, 1, {})) * (1 / fm)
   local root = rs ^ (1 / m)     -- principal branch near 1
   -- s: |f_m|^(1/m) e^{-i alpha_1}, alpha_1 = (pi - arg f_m)/m the first descent angle
   local alpha = (pi - carg(fm)) / m
   local sm = cabs(fm) ^ (1 / m) * expi(-alpha)
-  local w = { 0 }
-  for k = 1, n do w[k + 1] = sm * root:coef(k - 1) end
+  local w = (root * sm):coefs()
+  table.insert(w, 1, 0)
   local hw = ser(w, n + 1):revert()                  -- h(w), length n + 1
   -- G(w) = g(t0 + h(w)) h'(w): compose g's jet (about t0) with h(w)
-  local gser = {}
-  for k = 0, n do gser[k + 1] = gj:coef(k) end
+  local gser = table.move(gj:coefs(), 1, n + 1, 1, {})
   local gh = ser(gser, n + 1):compose(hw)
   local G = gh * hw:deriv()                          -- length n
-  local a = {}
-  for k = 0, n - 1 do a[k] = G:coef(k) end
+  local a = G:coefs()
+  table.move(a, 1, n, 0)
+  a[n] = nil
   local how
   a, how = cauchy_coefficients(J, params, t0, F0, m, sm, a, n)
   return a, F0, sm, alpha, how
