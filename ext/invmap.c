@@ -136,6 +136,14 @@ static int circle(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, mapp
     if (st != INVMAP_OK) return st;
   }
   cplx h0 = q.h, wprev = rho;
+  /* the amplitude at each point, unless it does not depend on t (then once) */
+  const tape *tp = p->t;
+  int g_varies = tp->nout > 1 && tp->varying[tp->out[1]];
+  cplx g = 1, F;
+  if (tp->nout > 1 && !g_varies) {
+    (void)problem_integrand(p, t0 + q.h, &F);
+    g = p->vals[1];
+  }
   for (size_t j = 0; j < N; j++) {
     cplx wj = rho * cexp(I * (twopi * (double)j / (double)N));
     if (j > 0) {
@@ -143,9 +151,7 @@ static int circle(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, mapp
       if (st != INVMAP_OK) return st;
     }
     wprev = wj;
-    cplx F;
-    cplx g = 1;
-    if (p->t->nout > 1) {
+    if (g_varies) {
       (void)problem_integrand(p, t0 + q.h, &F);
       g = p->vals[1];
     }

@@ -98,12 +98,13 @@ end
 -- The radius starts at 0.8 times an estimate of R from the coefficients a and shrinks
 -- until both hold (N is doubled once first when only the second fails). Returns the
 -- coefficients and how they were obtained.
--- |u - v| for complex u, v, on the parts (these comparisons run over every coefficient)
+-- |u - v| and |u| for complex values u, v (never plain numbers here: they come from C),
+-- on the parts: these comparisons run over every coefficient
 local function dist(u, v)
-  local ur, ui = cparts(u)
-  local vr, vi = cparts(v)
-  return math.sqrt((ur - vr) ^ 2 + (ui - vi) ^ 2)
+  local dr, di = u[1] - v[1], u[2] - v[2]
+  return math.sqrt(dr * dr + di * di)
 end
+local function mag(u) return math.sqrt(u[1] * u[1] + u[2] * u[2]) end
 
 local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
   if n <= 6 then return a, "series" end
@@ -127,15 +128,15 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
       -- largest lower one carried to the circle, max_{j<=k} |a_j| rho^j / rho^k
       local size = 0
       for k = 0, math.min(n - 1, 8) do
-        size = math.max(size, cabs(a[k]) * rho ^ k)
-        if dist(c[k], a[k]) > 1e-7 * math.max(cabs(a[k]), cabs(c[k])) + 1e-9 * size / rho ^ k
+        size = math.max(size, mag(a[k]) * rho ^ k)
+        if dist(c[k], a[k]) > 1e-7 * math.max(mag(a[k]), mag(c[k])) + 1e-9 * size / rho ^ k
             + 2 * level(k) then
           ok_series = false
           break
         end
       end
       for k = 0, math.min(n - 1, N // 8) do
-        if dist(c[k], c2[k]) > 1e-6 * cabs(c[k]) + 4 * level(k) then
+        if dist(c[k], c2[k]) > 1e-6 * mag(c[k]) + 4 * level(k) then
           ok_alias = false
           break
         end
