@@ -37,6 +37,10 @@ void bind_pushseries(lua_State *L, const cplx *c, size_t n);
 cplx *bind_tocvec(lua_State *L, int idx, size_t *n);
 cplx *bind_newcvec(lua_State *L, size_t n);
 
+/* Points from a steep.cvec or a list of numbers/complex values at idx (a list is copied
+ * into scratch memory left on the stack), or a Lua error naming the bad entry. */
+cplx *bind_checkpoints(lua_State *L, int idx, size_t *n);
+
 /* Tapes (bind_tape.c): the tape at idx (or an argument error), and its parameter
  * values read by name from the table at pidx (errors name unbound parameters). */
 struct tape;

@@ -51,3 +51,20 @@ size_t bind_checkorder(lua_State *L, int arg) {
 void *bind_scratch(lua_State *L, size_t bytes) {
   return lua_newuserdatauv(L, bytes ? bytes : 1, 0);
 }
+
+cplx *bind_checkpoints(lua_State *L, int idx, size_t *n) {
+  cplx *v = bind_tocvec(L, idx, n);
+  if (v) return v;
+  luaL_checktype(L, idx, LUA_TTABLE);
+  lua_Integer len = luaL_len(L, idx);
+  *n = len > 0 ? (size_t)len : 0;
+  v = bind_scratch(L, *n * sizeof(cplx));
+  for (size_t i = 0; i < *n; i++) {
+    lua_geti(L, idx, (lua_Integer)i + 1);
+    if (!bind_tocomplex(L, -1, &v[i]))
+      luaL_error(L, "point %d is a %s (number or complex expected)", (int)i + 1,
+                 luaL_typename(L, -1));
+    lua_pop(L, 1);
+  }
+  return v;
+}

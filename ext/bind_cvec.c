@@ -73,6 +73,19 @@ static int cvec_arc(lua_State *L) {
   return 1;
 }
 
+/* core.cvec_join(a, b): the polyline a followed by b without b's first point (shared
+ * with a's last); a and b are cvecs or lists of points, b may be nil or empty. */
+static int cvec_join(lua_State *L) {
+  size_t na = 0, nb = 0;
+  const cplx *a = bind_checkpoints(L, 1, &na);
+  const cplx *b = lua_isnoneornil(L, 2) ? NULL : bind_checkpoints(L, 2, &nb);
+  size_t extra = nb > 0 ? nb - 1 : 0;
+  cplx *v = bind_newcvec(L, na + extra);
+  if (na) memcpy(v, a, na * sizeof *v);
+  if (extra) memcpy(v + na, b + 1, extra * sizeof *v);
+  return 1;
+}
+
 static int cvec_get(lua_State *L) {
   cvec *c = checkcvec(L, 1);
   lua_Integer i = luaL_checkinteger(L, 2);
@@ -120,4 +133,6 @@ void bind_cvec_open(lua_State *L) {
   lua_setfield(L, -2, "cvec_range");
   lua_pushcfunction(L, cvec_arc);
   lua_setfield(L, -2, "cvec_arc");
+  lua_pushcfunction(L, cvec_join);
+  lua_setfield(L, -2, "cvec_join");
 }

@@ -26,24 +26,6 @@ static problem *checkproblem(lua_State *L) {
   return p;
 }
 
-/* Points from a steep.cvec or a list of numbers/complex values at idx. */
-static cplx *checkpoints(lua_State *L, int idx, size_t *n) {
-  cplx *v = bind_tocvec(L, idx, n);
-  if (v) return v;
-  luaL_checktype(L, idx, LUA_TTABLE);
-  lua_Integer len = luaL_len(L, idx);
-  *n = len > 0 ? (size_t)len : 0;
-  v = bind_scratch(L, *n * sizeof(cplx));
-  for (size_t i = 0; i < *n; i++) {
-    lua_geti(L, idx, (lua_Integer)i + 1);
-    if (!bind_tocomplex(L, -1, &v[i]))
-      luaL_error(L, "point %d is a %s (number or complex expected)", (int)i + 1,
-                 luaL_typename(L, -1));
-    lua_pop(L, 1);
-  }
-  return v;
-}
-
 static double optnum(lua_State *L, int t, const char *key, double dflt) {
   lua_getfield(L, t, key);
   double v = luaL_optnumber(L, -1, dflt);
@@ -177,7 +159,7 @@ static int land_trace(lua_State *L) {
   size_t ns = 0;
   lua_getfield(L, 5, "stops");
   int si = lua_gettop(L);
-  const cplx *stops = lua_isnil(L, si) ? NULL : checkpoints(L, si, &ns);
+  const cplx *stops = lua_isnil(L, si) ? NULL : bind_checkpoints(L, si, &ns);
   double *stop_r = bind_scratch(L, (ns + 1) * sizeof(double));
   lua_getfield(L, 5, "stop_r");
   for (size_t j = 0; j < ns; j++) {
@@ -222,6 +204,35 @@ static int land_saddle_starts(lua_State *L) {
   return 1;
 }
 
+/* core.branch_jump(tape, params, points, F, level) -> nil, or k, point, jump: the first
+ * point of a traced path where the principal value of F differs from the value F[k]
+ * followed by continuity along it by more than a harmless jump. Harmless: 2 pi i times
+ * an integer (exp(F) is unchanged) within 1e-6 max(1, |level|), or where the integrand
+ * is negligible (Re F below Re level - 30). A path that crosses a branch cut of the
+ * exponent would otherwise be integrated on the wrong sheet there. */
+static int land_branch_jump(lua_State *L) {
+  problem *p = checkproblem(L);
+  size_t n = 0, nF = 0;
+  cplx *pts = bind_checkpoints(L, 3, &n), *Fc = bind_checkpoints(L, 4, &nF);
+  cplx level = bind_checkcomplex(L, 5);
+  double lr = creal(level), tol = 1e-6 * fmax(1, cabs(level));
+  cplx *slots = p->vals + p->t->nout;   /* as problem_integrand lays them out */
+  for (size_t k = 0; k < n && k < nF; k++) {
+    tape_eval(p->t, pts[k], p->params, p->vals, slots);
+    cplx d = p->vals[0] - Fc[k];
+    double fr = creal(p->vals[0]), dr = creal(d);
+    int harmless = (fabs(dr) <= tol && fabs(sin(cimag(d) / 2)) <= tol) || !(fr > lr - 30);
+    if (isfinite(dr) && !harmless) {
+      lua_pushinteger(L, (lua_Integer)k + 1);
+      bind_pushcomplex(L, pts[k]);
+      bind_pushcomplex(L, d);
+      return 3;
+    }
+  }
+  lua_pushnil(L);
+  return 1;
+}
+
 /* ---- quadrature ------------------------------------------------------------------ */
 
 static cplx integrand(void *ctx, cplx t) {
@@ -239,7 +250,7 @@ static const char *quad_text[] = {"ok", "limit", "nonfinite"};
 static int land_quad_polyline(lua_State *L) {
   problem *p = checkproblem(L);
   size_t n = 0;
-  cplx *pts = checkpoints(L, 3, &n);
+  cplx *pts = bind_checkpoints(L, 3, &n);
   luaL_checktype(L, 4, LUA_TTABLE);
   double abstol = optnum(L, 4, "abstol", 0), reltol = optnum(L, 4, "reltol", 1e-13);
   size_t limit = (size_t)optint(L, 4, "limit", QUAD_MAX_SUB, 1, QUAD_MAX_SUB);
@@ -298,7 +309,7 @@ static int land_quad_polyline(lua_State *L) {
 static int land_integrand_many(lua_State *L) {
   problem *p = checkproblem(L);
   size_t n = 0;
-  cplx *pts = checkpoints(L, 3, &n);
+  cplx *pts = bind_checkpoints(L, 3, &n);
   cplx *out = bind_newcvec(L, n);
   for (size_t k = 0; k < n; k++) out[k] = integrand(p, pts[k]);
   return 1;
@@ -464,7 +475,7 @@ static int land_log_spread(lua_State *L) {
  * the polyline passes through z */
 static int geo_turning(lua_State *L) {
   size_t n = 0;
-  cplx *pts = checkpoints(L, 1, &n);
+  cplx *pts = bind_checkpoints(L, 1, &n);
   double w = geom_turning(pts, n, bind_checkcomplex(L, 2));
   if (isnan(w)) lua_pushnil(L);
   else lua_pushnumber(L, w);
@@ -474,7 +485,7 @@ static int geo_turning(lua_State *L) {
 /* core.crossings(a, b) -> signed count, list of crossing points */
 static int geo_crossings(lua_State *L) {
   size_t na = 0, nb = 0, found = 0;
-  cplx *a = checkpoints(L, 1, &na), *b = checkpoints(L, 2, &nb);
+  cplx *a = bind_checkpoints(L, 1, &na), *b = bind_checkpoints(L, 2, &nb);
   enum { MAXP = 256 };
   cplx pts[MAXP];
   int total = geom_crossings(a, na, b, nb, pts, MAXP, &found);
@@ -491,7 +502,7 @@ static int geo_crossings(lua_State *L) {
 /* core.distance(points, z) -> distance from z to the polyline */
 static int geo_distance(lua_State *L) {
   size_t n = 0;
-  cplx *pts = checkpoints(L, 1, &n);
+  cplx *pts = bind_checkpoints(L, 1, &n);
   lua_pushnumber(L, geom_distance(pts, n, bind_checkcomplex(L, 2)));
   return 1;
 }
@@ -500,7 +511,7 @@ static int geo_distance(lua_State *L) {
  * nearest to z (1-based; the polyline needs two points) */
 static int geo_nearest(lua_State *L) {
   size_t n = 0, seg = 0;
-  cplx *pts = checkpoints(L, 1, &n);
+  cplx *pts = bind_checkpoints(L, 1, &n);
   cplx z = bind_checkcomplex(L, 2);
   luaL_argcheck(L, n >= 2, 1, "a polyline of at least two points expected");
   lua_pushnumber(L, geom_nearest(pts, n, z, &seg));
@@ -513,7 +524,7 @@ static const luaL_Reg land_funcs[] = {
   {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
   {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},
   {"invmap_cubic", land_invmap_cubic}, {"laurent", land_laurent},
-  {"ring_power", land_ring_power}, {"log_spread", land_log_spread},
+  {"branch_jump", land_branch_jump}, {"ring_power", land_ring_power}, {"log_spread", land_log_spread},
   {"turning", geo_turning}, {"crossings", geo_crossings}, {"distance", geo_distance},
   {"nearest", geo_nearest},
   {NULL, NULL}

@@ -53,6 +53,30 @@ end
 
 ---------------------------------------------------------------------------------------
 
+TestQuadBranchCut = {}
+
+-- Euler's integral Gamma(c + 1) = int_0^inf exp(c log t - t) dt (DLMF 5.2.1) with complex
+-- c: one descent path of the saddle t = c spirals into the sink t = 0 and crosses the cut
+-- of log on the negative axis, where the principal value of F jumps by 2 pi i c (not a
+-- multiple of 2 pi i). The decomposition must say so, and quadrature must fall back to the
+-- given contour and still be right (reference: gsl_sf_lngamma_complex_e).
+function TestQuadBranchCut:test_spiral_into_a_sink_crosses_the_cut()
+  for _, c in ipairs({ C(2, 3), C(2, 12) }) do
+    local J = steep.integral { var = t, exponent = c * steep.log(t) - t,
+      contour = steep.line(0, steep.inf(0)) }
+    local msg = "Gamma(" .. tostring(c + 1) .. ")"
+    local v, e, info = J:quad {}
+    lu.assertEquals(info.along, "given", msg .. ": route")
+    local note = table.concat(info.notes, " ")
+    lu.assertStrContains(note, "crosses a branch cut of the exponent", false)
+    local ref = 1 / rgamma(c + 1)
+    H.close(v, ref, 1e-10, msg)
+    honest(v, e, ref, msg)
+  end
+end
+
+---------------------------------------------------------------------------------------
+
 TestQuadBessel = {}
 
 -- J_n(x) = (1/2 pi) int_{-pi}^{pi} exp(i (x sin t - n t)) dt: Bessel's integral

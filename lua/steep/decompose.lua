@@ -24,13 +24,9 @@ local cos, sin = math.cos, math.sin
 
 local M = {}
 
--- A path's full polyline: the part used for quadrature followed by the coarse tail.
-local function full(path)
-  local out = {}
-  for _, z in ipairs(path.points) do out[#out + 1] = z end
-  for k = 2, #path.tail do out[#out + 1] = path.tail[k] end
-  return out
-end
+-- A path's full polyline (a cvec): the part used for quadrature followed by the coarse
+-- tail.
+local function full(path) return core.cvec_join(path.points, path.tail) end
 
 local function join(a, b)   -- a then b, dropping b's first point (shared)
   local out = {}
@@ -233,8 +229,8 @@ function M.decompose_uncached(J, params, L, contour)
         if g and cabs(g) > 0 then ref = ref + math.log(cabs(g)) end
         local path = landscape.trace(J, params, L, point, F, true, { ref = ref })
         plan.evals = plan.evals + path.evals
-        plan.pieces[#plan.pieces + 1] = { kind = "endpoint", at = point, weight = sign, F = path.F,
-          points = path.points, full = full(path), ends = { "point", path.ends },
+        plan.pieces[#plan.pieces + 1] = { kind = "endpoint", at = point, weight = sign,
+          path = path, points = path.points, full = full(path), ends = { "point", path.ends },
           reason = path.reason }
         bump(path.ends, -sign)   -- its finite start cancels the contour's own end
       end
@@ -299,7 +295,7 @@ function M.decompose_uncached(J, params, L, contour)
       if c ~= 0 then
         local d = paths.descent[k]
         plan.pieces[#plan.pieces + 1] = { kind = "saddle", index = j, ray = k, weight = c,
-          order = m, points = d.points, F = d.F, full = full(d), ends = { "saddle " .. j, d.ends },
+          order = m, path = d, points = d.points, full = full(d), ends = { "saddle " .. j, d.ends },
           at_endpoint = at_end ~= nil, reason = d.reason }
         bump(d.ends, -c)
       end
@@ -313,26 +309,12 @@ function M.decompose_uncached(J, params, L, contour)
   for _, piece in ipairs(plan.pieces) do
     local level = piece.kind == "saddle" and L.saddles[piece.index].F
       or J.tape:eval(piece.at, params)
-    local lr = cparts(level)
-    local tol = 1e-6 * math.max(1, cabs(level))
-    local Fv = J.tape:eval_many(piece.points, params)
-    local Fc = piece.F or {}
-    for k = 1, math.min(#piece.points, #Fc) do
-      -- principal value against the value followed by continuity along the path (on the
-      -- parts: this runs over every point of every path)
-      local fv, fc = Fv[k], Fc[k]
-      local fr = fv[1]
-      local dr, di = fr - fc[1], fv[2] - fc[2]
-      -- harmless: a jump of 2 pi i k leaves exp(F) unchanged (an integer power), and where
-      -- the integrand is negligible (into a sink) nothing depends on it
-      local harmless = (abs(dr) <= tol and abs(math.sin(di / 2)) <= tol) or not (fr > lr - 30)
-      if dr == dr and abs(dr) < huge and not harmless then
-        plan.status = "incomplete"
-        plan.notes[#plan.notes + 1] = format("a steepest descent path of the %s %s crosses "
-          .. "a branch cut of the exponent near %s (F jumps by %s)", piece.kind,
-          piece.index or tostring(piece.at), tostring(piece.points[k]), tostring(fv - fc))
-        break
-      end
+    local k, at, jump = core.branch_jump(J.tape, params, piece.path.traced, piece.path.F, level)
+    if k then
+      plan.status = "incomplete"
+      plan.notes[#plan.notes + 1] = format("a steepest descent path of the %s %s crosses "
+        .. "a branch cut of the exponent near %s (F jumps by %s)", piece.kind,
+        piece.index or tostring(piece.at), tostring(at), tostring(jump))
     end
   end
 
@@ -385,8 +367,8 @@ function M.decompose_uncached(J, params, L, contour)
   end
   for _, piece in ipairs(plan.pieces) do
     local poly = piece.full
-    cycle[#cycle + 1] = { core.cvec(poly), -piece.weight }
-    close(poly[#poly], piece.ends[2], -piece.weight)
+    cycle[#cycle + 1] = { poly, -piece.weight }
+    close(poly:get(#poly), piece.ends[2], -piece.weight)
   end
   for idx, s in ipairs(L.singularities) do
     -- a singular point at a finite end of the contour is an integrable endpoint

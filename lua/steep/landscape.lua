@@ -591,7 +591,8 @@ end
 
 --- trace(J, params, L, start, level, descent, opts) -> path
 -- path = {points = list (for quadrature: up to where the integrand is negligible),
---         tail = list (followed on, coarsely, to classify the end), ends = label,
+--         traced, F = cvecs of the traced points and of F followed along them,
+--         tail = cvec (followed on, coarsely, to classify the end), ends = label,
 --         reason = why phase one stopped, evals}
 function M.trace(J, params, L, start, level, descent, opts)
   opts = opts or {}
@@ -608,16 +609,19 @@ function M.trace(J, params, L, start, level, descent, opts)
     descent = descent, cutoff = opts.cutoff or 50, ref = ref, center = L.region.center,
     radius = 1000 * R, scale = R / 10, maxsteps = 6000, maxpts = 6000,
     stops = stops, stop_r = radii })
-  local path = { points = cvec_list(pts), F = cvec_list(Fs), reason = reason, evals = evals,
+  -- points as a list (quadrature pieces, maps); the traced points and the values of F
+  -- followed by continuity along them stay in C (cvecs) for the branch check
+  local path = { points = cvec_list(pts), traced = pts, F = Fs, reason = reason, evals = evals,
     level = level, descent = descent }
   if #path.points == 0 then
     -- F or F' is not finite at the start itself (a log point of the exponent, say)
-    path.points, path.tail, path.ends, path.tail_reason = { start }, {}, "singular", reason
+    path.points, path.tail, path.ends, path.tail_reason = { start }, core.cvec {}, "singular",
+      reason
     return path
   end
   local last = path.points[#path.points]
   local tail_reason, tail_which = reason, which
-  path.tail = {}
+  path.tail = core.cvec {}   -- the coarse continuation (a cvec), to classify the end
   if reason == "low" or reason == "high" or reason == "edge" then
     -- follow on coarsely, well outside the region, to see where it goes
     local far = math.max(8 * R, 2 * cabs(last - L.region.center))
@@ -625,10 +629,10 @@ function M.trace(J, params, L, start, level, descent, opts)
       descent = descent, coarse = true, cutoff = 1e300, ref = -1e300,
       center = L.region.center, radius = far, scale = R / 10, maxsteps = 3000,
       maxpts = 3000, stops = stops, stop_r = radii })
-    path.tail = cvec_list(tp)
+    path.tail = tp
     path.evals = path.evals + ev2
     tail_reason, tail_which = r2, w2
-    last = path.tail[#path.tail] or last
+    if #tp > 0 then last = tp:get(#tp) end
   end
   path.ends = end_label(L, descent, tail_reason, tail_which, what, last)
   path.tail_reason = tail_reason
@@ -654,7 +658,6 @@ function M.saddle_paths(J, params, L, j)
     for k, st in ipairs(starts) do
       local p = M.trace(J, params, L, st, s.F, descent, { skip_saddle = j, ref = ref })
       table.insert(p.points, 1, s.at)
-      table.insert(p.F, 1, s.F)
       out[descent and "descent" or "ascent"][k] = p
     end
   end

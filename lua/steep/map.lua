@@ -720,10 +720,7 @@ end
 
 -- A path's whole polyline: the part used for quadrature, then its coarse tail.
 local function full(path)
-  local pts = {}
-  for _, z in ipairs(path.points) do pts[#pts + 1] = z end
-  for k = 2, #(path.tail or {}) do pts[#pts + 1] = path.tail[k] end
-  return pts
+  return path.tail and core.cvec_join(path.points, path.tail):totable() or path.points
 end
 
 -- The fraction near f (within +-w) of a run whose point lies farthest from the markers
@@ -750,7 +747,8 @@ local function draw_deformed(ctx)
   local used = {}
   for _, piece in ipairs(plan.pieces) do
     if piece.weight ~= 0 then
-      local runs = visible_runs(piece.full or piece.points, ctx.tf, ctx.box)
+      local runs = visible_runs(piece.full and piece.full:totable() or piece.points, ctx.tf,
+        ctx.box)
       if #runs > 0 then
         ctx.summary.pieces = ctx.summary.pieces + 1
         used[#used + 1] = { runs = runs, piece = piece }
