@@ -481,6 +481,31 @@ local function read_lines(path)
   return text, lines
 end
 
+-- Continuation (each step's saddles seed Newton at the next) must give the rows a full
+-- search gives: the family over x in [3, 8], and Airy's integral (two saddles that move
+-- towards each other, x from 4 down to 0.5). Common practice: continuation is a speed-up,
+-- not a different answer.
+function TestRoutesSweep:test_continuation_matches_full_search()
+  local J = family(P)
+  local tt, xx = steep.var "t", steep.param "x"
+  local Jai = steep.integral { var = tt, exponent = I * (tt ^ 3 / 3 + xx * tt),
+    contour = steep.line(steep.inf(math.pi), steep.inf(0)), large = xx }
+  for _, case in ipairs({ { J, { from = 3, to = 8, steps = 24 } },
+                          { Jai, { from = 4, to = 0.5, steps = 24 } } }) do
+    local on = case[1]:sweep { x = case[2], order = 4, progress = false }
+    local off = case[1]:sweep { x = case[2], order = 4, progress = false, continuation = false }
+    lu.assertEquals(#on.rows, 25)
+    for i, row in ipairs(on.rows) do
+      local msg = "x = " .. tostring(row.x)
+      lu.assertNil(row.failure, msg)
+      lu.assertNil(off.rows[i].failure, msg)
+      H.close(row.expansion, off.rows[i].expansion, 1e-12, msg .. ": expansion")
+      H.close(row.quad, off.rows[i].quad, 1e-12, msg .. ": quadrature")
+      lu.assertTrue(row.agrees, msg .. ": expansion and quadrature agree")
+    end
+  end
+end
+
 function TestRoutesSweep:test_csv_and_shards()
   local J = family(P)
   local values = { 3, 4.5, -3, -5, C(3, 1), C(-4, 0.5), 6 }

@@ -105,6 +105,7 @@ local function dist(u, v)
   return math.sqrt(dr * dr + di * di)
 end
 local function mag(u) return math.sqrt(u[1] * u[1] + u[2] * u[2]) end
+M.dist, M.mag = dist, mag
 
 local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
   if n <= 6 then return a, "series" end

@@ -124,7 +124,9 @@ function M.zeros(tape, params, spec, region, opts)
     if st == "ok" then info.count = count + (opts.poles or 0) end
     local rnd = lcg(12345)
     local round = 0
-    while info.count and total() < info.count and round < 4 do
+    -- (following a sweep from seeds only, a shortfall is reported, not searched for:
+    -- the caller falls back to a full search)
+    while info.count and total() < info.count and round < 4 and not opts.seeds_only do
       round = round + 1
       for _ = 1, 150 do
         local r, th = R * math.sqrt(rnd()), 2 * pi * rnd()
@@ -396,7 +398,10 @@ local function polynomial_valleys(J, params, c, R, f, NANG)
       -- boundary directions where a power of |t| still makes the integrand integrable
       for k = 0, 2 * n - 1 do
         local th = norm_angle((pi / 2 - phi + pi * k) / n)
-        local pts = { c + R1 * expi(th), c + R2 * expi(th), c + R3 * expi(th) }
+        local cr, ci = cparts(c)
+        local ct, st = math.cos(th), math.sin(th)
+        local pts = { cnew(cr + R1 * ct, ci + R1 * st), cnew(cr + R2 * ct, ci + R2 * st),
+          cnew(cr + R3 * ct, ci + R3 * st) }
         local Fv, gv = J.tape:eval_many(pts, params)
         local ell = {}
         for j = 1, 3 do
@@ -517,7 +522,7 @@ function M.saddles(J, params, region, singularities, seeds, seeds_only)
     end
   end
   local zs, info = M.zeros(J.tape, params, { out = 1, deriv = 1 }, region,
-    { poles = seeds_only and false or poles, seeds = seeds, seeds_only = seeds_only })
+    { poles = poles, seeds = seeds, seeds_only = seeds_only })
   local out = {}
   for _, z in ipairs(zs) do
     local m = z.mult + 1

@@ -776,7 +776,11 @@ function M.sweep(J, opts)
       if continuation and prev then
         L = J:_landscape(p, prev.region, false, { seeds = prev.saddles, fast = true,
           sing_seeds = prev.singularities })
-        if #L.saddles < #prev.saddles or #L.singularities < #prev.singularities then
+        -- fewer saddles or singularities than before, or fewer saddles than the argument
+        -- principle counts (one entering the region): search the whole region again
+        local sc = L.saddle_count
+        if #L.saddles < #prev.saddles or #L.singularities < #prev.singularities
+            or (sc and sc.count and sc.found < sc.count) then
           L = J:_landscape(p, nil, false)
         end
       else
