@@ -406,8 +406,10 @@ static int land_invmap_cubic(lua_State *L) {
 }
 
 /* core.laurent(tape, params, p, rho, N, depth) -> cvec of a_m rho^m for m = -depth..1
- * (entry m + depth + 1), max |integrand| on the circle: the trapezoidal rule on
- * |t - p| = rho (exponentially accurate for an integrand analytic on an annulus). */
+ * (entry m + depth + 1), max |integrand| on the circle, and (N even) the same cvec from
+ * every other point (an N/2 rule on the same samples, for an error estimate): the
+ * trapezoidal rule on |t - p| = rho (exponentially accurate for an integrand analytic
+ * on an annulus). */
 static int land_laurent(lua_State *L) {
   problem *p = checkproblem(L);
   cplx c = bind_checkcomplex(L, 3);
@@ -424,14 +426,23 @@ static int land_laurent(lua_State *L) {
   }
   cplx *root = bind_scratch(L, (size_t)N * sizeof(cplx));
   unit_roots((size_t)N, root);
+  int halves = N % 2 == 0;
   cplx *out = bind_newcvec(L, (size_t)depth + 2);
+  cplx *half = halves ? bind_newcvec(L, (size_t)depth + 2) : NULL;
   for (lua_Integer m = -depth; m <= 1; m++) {
-    cplx sum = 0;
-    for (lua_Integer k = 0; k < N; k++) sum += f[k] * root[((k * m) % N + N) % N];
+    cplx sum = 0, sum2 = 0;
+    for (lua_Integer k = 0; k < N; k++) {
+      cplx term = f[k] * root[((k * m) % N + N) % N];
+      sum += term;
+      if (k % 2 == 0) sum2 += term;
+    }
     out[m + depth] = sum / (double)N;
+    if (halves) half[m + depth] = sum2 / (double)(N / 2);
   }
+  if (halves) lua_insert(L, -2);   /* out, half -> half, out */
   lua_pushnumber(L, vmax);
-  return 2;
+  if (halves) lua_rotate(L, -3, -1);   /* half, out, vmax -> out, vmax, half */
+  return halves ? 3 : 2;
 }
 
 /* ---- rings ---------------------------------------------------------------------- */

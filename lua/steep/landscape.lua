@@ -163,10 +163,10 @@ end
 -- Trapezoidal rule on a circle (exponentially accurate for analytic periodic integrands):
 -- the Laurent coefficients a_n rho^n, n = -depth..1, of the integrand about p.
 local function laurent(tape, params, p, rho, n, depth)
-  local c, vmax = core.laurent(tape, params, p, rho, n, depth)
-  local coef = {}
-  for m = -depth, 1 do coef[m] = c:get(m + depth + 1) end
-  return coef, vmax
+  local c, vmax, c_half = core.laurent(tape, params, p, rho, n, depth)
+  local coef, half = {}, {}
+  for m = -depth, 1 do coef[m], half[m] = c:get(m + depth + 1), c_half:get(m + depth + 1) end
+  return coef, vmax, half
 end
 
 -- The spread of log |integrand| on the circle of radius rho about p (32 points): small
@@ -275,8 +275,9 @@ function M.singularities(J, params, region, opts)
         if spread < huge and not (half < 0.75 * spread) then break end
         rho, spread = 0.5 * rho, half
       end
-      local a = laurent(J.tape, params, m.at, rho, 4 * depth + 32, depth)
-      local b, vmax = laurent(J.tape, params, m.at, rho, 8 * depth + 64, depth)
+      -- b on 8 depth + 64 points, a on every other one (their difference estimates b's
+      -- error)
+      local b, vmax, a = laurent(J.tape, params, m.at, rho, 8 * depth + 64, depth)
       local big, finite = 0, true
       for k = -depth, 1 do
         local v = cabs(b[k])
