@@ -29,6 +29,12 @@ size_t bind_checkorder(lua_State *L, int arg);
  * Lua error raised afterwards leaks nothing). */
 void *bind_scratch(lua_State *L, size_t bytes);
 
+/* A buffer of at least `bytes` kept for reuse by this lua_State (in its registry), for
+ * the large work arrays of a kernel call: valid until the next bind_buffer call on the
+ * same state, so only one caller may hold it, and only while no Lua code runs. Spares
+ * the allocator a fresh block of that size at every call. */
+void *bind_buffer(lua_State *L, size_t bytes);
+
 /* A new steep.series userdata holding c[0..n-1] (bind_series.c). */
 void bind_pushseries(lua_State *L, const cplx *c, size_t n);
 

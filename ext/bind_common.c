@@ -68,3 +68,20 @@ cplx *bind_checkpoints(lua_State *L, int idx, size_t *n) {
   }
   return v;
 }
+
+/* The registry key of the reusable buffer (its address is unique to this module). */
+static const char buffer_key = 0;
+
+void *bind_buffer(lua_State *L, size_t bytes) {
+  if (bytes == 0) bytes = 1;
+  if (lua_rawgetp(L, LUA_REGISTRYINDEX, &buffer_key) == LUA_TUSERDATA &&
+      lua_rawlen(L, -1) >= bytes) {
+    void *p = lua_touserdata(L, -1);
+    lua_pop(L, 1);
+    return p;
+  }
+  lua_pop(L, 1);
+  void *p = lua_newuserdatauv(L, bytes, 0);
+  lua_rawsetp(L, LUA_REGISTRYINDEX, &buffer_key);
+  return p;
+}

@@ -170,7 +170,7 @@ static int land_trace(lua_State *L) {
   o.stops = stops;
   o.stop_r = stop_r;
   o.nstops = ns;
-  cplx *pts = bind_scratch(L, maxpts * sizeof(cplx)), *Fs = bind_scratch(L, maxpts * sizeof(cplx));
+  cplx *pts = bind_buffer(L, 2 * maxpts * sizeof(cplx)), *Fs = pts + maxpts;
   size_t n = 0;
   int which = -1;
   int end = path_trace(p, start, level, &o, pts, Fs, maxpts, &n, &which);
