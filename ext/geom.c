@@ -9,7 +9,11 @@ double geom_turning(const cplx *p, size_t n, cplx z) {
   for (size_t k = 0; k + 1 < n; k++) {
     cplx u = p[k] - z, v = p[k + 1] - z;
     if (u == 0 || v == 0) return NAN;
-    double d = carg(v / u);
+    /* arg(v / u) without a division: the angle of v conj(u) (products overflow only
+     * beyond 1e150, where the quotient is taken instead) */
+    double d = fmax(fmax(fabs(creal(u)), fabs(cimag(u))), fmax(fabs(creal(v)), fabs(cimag(v)))) < 1e150
+      ? atan2(creal(u) * cimag(v) - cimag(u) * creal(v), creal(u) * creal(v) + cimag(u) * cimag(v))
+      : carg(v / u);
     /* a segment passing through z turns by exactly +-pi: z lies on the curve */
     if (fabs(fabs(d) - 3.141592653589793) < 1e-12) return NAN;
     total += d;

@@ -5,6 +5,7 @@
 #include <string.h>
 #include "tape.h"
 #include "series.h"
+#include "cdiv.h"
 
 static const struct { const char *name; int arity; } op_info[OP_COUNT] = {
   [OP_CONST] = {"const", 0}, [OP_VAR] = {"var", 0},   [OP_PARAM] = {"param", 0},
@@ -69,7 +70,7 @@ static cplx powi(cplx z, long m) {
     e >>= 1;
     if (e) z *= z;
   }
-  return m < 0 ? 1.0 / r : r;
+  return m < 0 ? cdiv(1.0, r) : r;
 }
 
 /* Principal-branch power with an exactly real result for a real base > 0 and real
@@ -88,7 +89,7 @@ static cplx apply1(const tape_ins *in, cplx a, cplx b, cplx x, const cplx *param
     case OP_ADD:   return a + b;
     case OP_SUB:   return a - b;
     case OP_MUL:   return a * b;
-    case OP_DIV:   return a / b;
+    case OP_DIV:   return cdiv(a, b);
     case OP_NEG:   return -a;
     case OP_POWI:  return powi(a, in->k);
     case OP_POWC:  return powc(a, in->c);
@@ -127,7 +128,7 @@ static void apply_block(const tape_ins *in, cplx *w, const cplx *a, const cplx *
     case OP_ADD:   for (i = 0; i < m; i++) w[i] = a[i] + b[i]; break;
     case OP_SUB:   for (i = 0; i < m; i++) w[i] = a[i] - b[i]; break;
     case OP_MUL:   for (i = 0; i < m; i++) w[i] = a[i] * b[i]; break;
-    case OP_DIV:   for (i = 0; i < m; i++) w[i] = a[i] / b[i]; break;
+    case OP_DIV:   for (i = 0; i < m; i++) w[i] = cdiv(a[i], b[i]); break;
     case OP_NEG:   for (i = 0; i < m; i++) w[i] = -a[i]; break;
     case OP_POWI:
       if (in->k == 2) for (i = 0; i < m; i++) w[i] = a[i] * a[i];
@@ -252,8 +253,8 @@ static int dual1(const tape_ins *in, cplx a, cplx da, cplx b, cplx db, cplx x, c
     case OP_MUL: *v = a * b; *d = da * b + a * db; return STEEP_OK;
     case OP_DIV:
       if (b == 0) return STEEP_SINGULAR;
-      *v = a / b;
-      *d = (da - *v * db) / b;
+      *v = cdiv(a, b);
+      *d = cdiv(da - *v * db, b);
       return STEEP_OK;
     case OP_NEG: *v = -a; *d = -da; return STEEP_OK;
     case OP_POWI:
@@ -264,18 +265,18 @@ static int dual1(const tape_ins *in, cplx a, cplx da, cplx b, cplx db, cplx x, c
     case OP_POWC:
       if (a == 0) return STEEP_BRANCH;
       *v = cexp(in->c * clog(a));   /* as ser_pow, so values match the jets' */
-      *d = in->c * *v / a * da;
+      *d = cdiv(in->c * *v, a) * da;
       return STEEP_OK;
     case OP_EXP: *v = cexp(a); *d = *v * da; return STEEP_OK;
     case OP_LOG:
       if (a == 0) return STEEP_SINGULAR;
       *v = clog(a);
-      *d = da / a;
+      *d = cdiv(da, a);
       return STEEP_OK;
     case OP_SQRT:
       if (a == 0) return STEEP_BRANCH;
       *v = csqrt(a);
-      *d = 0.5 * da / *v;
+      *d = cdiv(0.5 * da, *v);
       return STEEP_OK;
     case OP_SIN: *v = csin(a); *d = ccos(a) * da; return STEEP_OK;
     case OP_COS: *v = ccos(a); *d = -csin(a) * da; return STEEP_OK;
@@ -294,7 +295,7 @@ static int dual1(const tape_ins *in, cplx a, cplx da, cplx b, cplx db, cplx x, c
     case OP_ATAN:
       if (1.0 + a * a == 0) return STEEP_SINGULAR;
       *v = catan(a);
-      *d = da / (1.0 + a * a);
+      *d = cdiv(da, 1.0 + a * a);
       return STEEP_OK;
     default: return STEEP_NONFINITE;
   }
