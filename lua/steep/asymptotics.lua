@@ -124,7 +124,12 @@ local function uniform_pole_contribution(J, params, L, j, c, near, order)
   end
   local h, used_rho
   for _, rho in ipairs({ bmag + 1.2, bmag + 0.8, bmag + 0.5, 1.5 * bmag + 0.2 }) do
-    local h1, half, level = expand.circle_coefficients(J, params, s.at, F0, 2, sm, nraw, rho)
+    -- points: the pole's part aliases like (|b|/rho)^N; enough for the half rule to be
+    -- clear of it (1e-10), at least 64 and 4 per coefficient
+    local N = 64
+    local need = 2 * math.log(1e-10) / math.log(bmag / rho)
+    while N < need or N < 4 * nraw do N = 2 * N end
+    local h1, half, level = expand.circle_coefficients(J, params, s.at, F0, 2, sm, nraw, rho, N)
     if h1 and trusted(h1, half, level, rho) then h, used_rho = h1, rho; break end
   end
   if not h then return nil end
