@@ -29,10 +29,37 @@ static double cross(cplx u, cplx v) { return creal(u) * cimag(v) - cimag(u) * cr
  * simplicity). */
 static int left_of(cplx p, cplx r, cplx z) { return cross(r, z - p) > 0; }
 
+/* The bounding box of the polyline p[0..n-1]: x0, x1, y0, y1. */
+static void bbox(const cplx *p, size_t n, double box[4]) {
+  box[0] = box[2] = INFINITY;
+  box[1] = box[3] = -INFINITY;
+  for (size_t k = 0; k < n; k++) {
+    box[0] = fmin(box[0], creal(p[k])), box[1] = fmax(box[1], creal(p[k]));
+    box[2] = fmin(box[2], cimag(p[k])), box[3] = fmax(box[3], cimag(p[k]));
+  }
+}
+
 int geom_crossings(const cplx *a, size_t na, const cplx *b, size_t nb, cplx *pts,
                    size_t maxpts, size_t *npts) {
   int total = 0;
   size_t found = 0;
+  /* b's segments that touch b's part inside a's bounding box: only those can cross */
+  double abox[4];
+  bbox(a, na, abox);
+  size_t lo = nb, hi = 0;   /* b[lo..hi] spans every segment of b touching a's box */
+  for (size_t j = 0; j + 1 < nb; j++) {
+    if (fmax(creal(b[j]), creal(b[j + 1])) < abox[0] || fmin(creal(b[j]), creal(b[j + 1])) > abox[1] ||
+        fmax(cimag(b[j]), cimag(b[j + 1])) < abox[2] || fmin(cimag(b[j]), cimag(b[j + 1])) > abox[3])
+      continue;
+    if (j < lo) lo = j;
+    hi = j + 1;
+  }
+  if (lo >= nb) {
+    if (npts) *npts = 0;
+    return 0;
+  }
+  b += lo;
+  nb = hi - lo + 1;
   for (size_t i = 0; i + 1 < na; i++) {
     cplx p = a[i], r = a[i + 1] - a[i];
     double ax0 = fmin(creal(a[i]), creal(a[i + 1])), ax1 = fmax(creal(a[i]), creal(a[i + 1]));
@@ -63,6 +90,12 @@ double geom_nearest(const cplx *p, size_t n, cplx z, size_t *seg) {
   if (seg) *seg = 0;
   for (size_t k = 0; k + 1 < n; k++) {
     cplx d = p[k + 1] - p[k];
+    /* a segment whose box lies farther than the best distance cannot be nearer */
+    double dx = fmax(0, fmax(fmin(creal(p[k]), creal(p[k + 1])) - creal(z),
+                             creal(z) - fmax(creal(p[k]), creal(p[k + 1]))));
+    double dy = fmax(0, fmax(fmin(cimag(p[k]), cimag(p[k + 1])) - cimag(z),
+                             cimag(z) - fmax(cimag(p[k]), cimag(p[k + 1]))));
+    if (dx > best || dy > best) continue;
     double len2 = creal(d) * creal(d) + cimag(d) * cimag(d);
     double u = len2 > 0 ? creal(conj(d) * (z - p[k])) / len2 : 0;
     u = fmin(1, fmax(0, u));
