@@ -77,10 +77,10 @@ local function pole_integral(b)
   return cnew(0, -pi) * w(-b)
 end
 
-local function uniform_pole_contribution(J, params, L, j, c, near, order)
+local function uniform_pole_contribution(J, params, L, j, c, near, order, series)
   local s = L.saddles[j]
   local nraw = 2 * ((order == "optimal" and 40 or order) + 2)
-  local a, F0, sm = expand.saddle_series(J, params, s.at, 2, 4)
+  local a, F0, sm = series[1], series[2], series[3]   -- saddle_series(..., 2, 4)
   -- H's coefficients: a circle in the w plane enclosing b, inside G's other singularities.
   -- A circle is trusted when the rule on every other point agrees to 1e-7 (so that the
   -- aliasing error of the whole rule, about the square of that, is near rounding) and
@@ -160,10 +160,10 @@ local function saddle_contribution(J, params, L, j, rays, order, plan)
   end
   local symmetric = (m == 2 and c[1] == -c[2])
   if symmetric and c[1] ~= 0 and L.singularities then
-    local _, _, sm = expand.saddle_series(J, params, s.at, 2, 3)
-    local near = pole_near(J, params, L, s, sm)
+    local series = table.pack(expand.saddle_series(J, params, s.at, 2, 4))
+    local near = pole_near(J, params, L, s, series[3])
     if near then
-      local u = uniform_pole_contribution(J, params, L, j, c, near, order)
+      local u = uniform_pole_contribution(J, params, L, j, c, near, order, series)
       if u then
         -- re-decide the pole's side of this saddle's path exactly (from Im b)
         if plan then M.fix_pole_side(plan, near, c, rays) end
