@@ -243,7 +243,7 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
   if cont and cont.fast then
     -- continuation: the previous step's saddles seed Newton; no search of the region
     local sing = landscape.singularities(J, params, region,
-      { fast = true, seeds = cont.sing_seeds or {} })
+      { fast = true, seeds = cont.sing_seeds or {}, radii = cont.sing_radii })
     L.singularities = sing
     L.saddles, L.saddle_count = landscape.saddles(J, params, region, sing, cont.seeds, true)
     L.valleys, L.growth = landscape.valleys(J, params, region, { fast = true })

@@ -226,6 +226,14 @@ function M.singularities(J, params, region, opts)
       if j ~= idx then nearest = math.min(nearest, cabs(o.at - m.at)) end
     end
     local rho = 0.25 * nearest
+    -- following a sweep: start from the radius the same point needed at the last step
+    -- (opts.radii, parallel to opts.seeds), when that is smaller
+    local seeds, radii = opts and opts.seeds, opts and opts.radii
+    if seeds and radii then
+      for k, z in ipairs(seeds) do
+        if radii[k] and cabs(z - m.at) < radii[k] then rho = math.min(rho, radii[k]) end
+      end
+    end
     local s = { at = m.at, sources = {} }
     local in_exponent, kinds = false, {}
     for _, c in ipairs(m.sources) do
@@ -275,6 +283,7 @@ function M.singularities(J, params, region, opts)
         if spread < huge and not (half < 0.75 * spread) then break end
         rho, spread = 0.5 * rho, half
       end
+      s.radius = rho   -- the circle its Laurent coefficients were taken on
       -- b on 8 depth + 64 points, a on every other one (their difference estimates b's
       -- error)
       local b, vmax, a = laurent(J.tape, params, m.at, rho, 8 * depth + 64, depth)

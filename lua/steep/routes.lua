@@ -775,7 +775,7 @@ function M.sweep(J, opts)
       local L
       if continuation and prev then
         L = J:_landscape(p, prev.region, false, { seeds = prev.saddles, fast = true,
-          sing_seeds = prev.singularities })
+          sing_seeds = prev.singularities, sing_radii = prev.radii })
         -- fewer saddles or singularities than before, or fewer saddles than the argument
         -- principle counts (one entering the region): search the whole region again
         local sc = L.saddle_count
@@ -805,9 +805,11 @@ function M.sweep(J, opts)
         end
       end
       row.valleys = table.concat(ends, " -> ")
-      prev = { region = L.region, saddles = {}, singularities = {} }
+      prev = { region = L.region, saddles = {}, singularities = {}, radii = {} }
       for _, sd in ipairs(L.saddles) do prev.saddles[#prev.saddles + 1] = sd.at end
-      for _, sg in ipairs(L.singularities) do prev.singularities[#prev.singularities + 1] = sg.at end
+      for k, sg in ipairs(L.singularities) do
+        prev.singularities[k], prev.radii[k] = sg.at, sg.radius or false
+      end
     end)
     if not ok then row.failure = tostring(err); prev = nil end
     rows[#rows + 1] = row
