@@ -4,13 +4,14 @@
  * of a second polynomial, optionally with an amplitude (a pole, a polynomial, a square
  * root) as output 2. With small bounds, as the Lua layer calls them: root_newton from
  * random seeds, root_count on random circles, path_saddle_starts and path_trace
- * (maxsteps <= 200), invmap_circle and invmap_cubic (N <= 32), quadrature along a
+ * (maxsteps <= 200), invmap_circle and invmap_cubic (N <= 32), ring samples, quadrature along a
  * segment and the geometry of the traced path. Nothing may crash or hang (libFuzzer's
  * -timeout).
  */
 #include "fuzz.h"
 #include "geom.h"
 #include "invmap.h"
+#include "rings.h"
 #include "path.h"
 #include "problem.h"
 #include "quad.h"
@@ -226,6 +227,16 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size) {
       if (st < INVMAP_OK || st > INVMAP_SINGULAR) abort();
     }
     free(G);
+  }
+  if (ops & 64) {   /* samples on circles: growth between rings, spread of log |g e^F| */
+    size_t n = 4 + fz_below(&f, 60);
+    double r2 = positive(&f, 1e-3, 50), r3 = r2 * (1 + positive(&f, 1e-3, 4));
+    cplx *work = fz_alloc(3 * n, sizeof *work), l2, l3;
+    double growth;
+    int deg = ring_power(&p, center + fz_near(&f, 1), r2, r3, (int)n, &growth, &l2, &l3, work);
+    if (deg < 0 || deg > 1024) abort();
+    (void)ring_log_spread(&p, center + fz_near(&f, 1), positive(&f, 1e-6, 10), (int)n);
+    free(work);
   }
   if (ops & 16) {   /* quadrature of g e^F along a segment */
     cplx a = center + fz_near(&f, radius), e = center + fz_near(&f, radius), r;

@@ -2,8 +2,9 @@
  * fuzz_tape.c — tapes from arbitrary bytes: random operations (unknown ones included),
  * operand slots, constants, integer powers, parameters and outputs. As the binding does,
  * only tapes that tape_check accepts are evaluated, at one point, at a batch of points
- * and as jets of orders 0..64 (of every slot, or of the slots up to one, as problem_jet
- * asks); every buffer has exactly the size tape.h states.
+ * as jets of orders 0..64 (of every slot, or of the slots up to one, as problem_jet
+ * asks) and as value and derivative (tape_dual_upto); every buffer has exactly the size
+ * tape.h states.
  * Nothing may crash or trip a sanitizer.
  */
 #include "fuzz.h"
@@ -101,6 +102,17 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size) {
       if (st < STEEP_OK || st > STEEP_NONFINITE) abort();
       free(jw);
       free(scratch);
+    }
+    /* first derivatives by forward mode, up to a slot as problem_dF asks */
+    {
+      cplx *v = fz_alloc(n, sizeof *v), *d = fz_alloc(n, sizeof *d);
+      long badd = -2;
+      size_t upto = (size_t)fz_below(&f, n + 2);
+      int st = tape_dual_upto(&t, x, params, v, d, &badd, upto);
+      if (st != STEEP_OK && (badd < 0 || badd >= (long)n || (size_t)badd > upto)) abort();
+      if (st < STEEP_OK || st > STEEP_NONFINITE) abort();
+      free(v);
+      free(d);
     }
     free(params);
   }
