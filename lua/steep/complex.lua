@@ -26,9 +26,10 @@ end
 local function is_complex(v) return getmetatable(v) == mt end
 
 --- Real and imaginary parts of a number or complex value, or nil for anything else.
+-- (complex values first: they are the common case in the hot loops, and need one call)
 local function parts(v)
-  if type(v) == "number" then return v, 0 end
   if getmetatable(v) == mt then return v[1], v[2] end
+  if type(v) == "number" then return v, 0 end
   return nil
 end
 
@@ -43,7 +44,11 @@ local function delegate(event, a, b)
     type(other)), 3)
 end
 
+-- + - * read the operands' parts inline (these run in every loop of the library): two
+-- complex values, or a complex value and a number; anything else goes through parts.
 mt.__add = function(a, b)
+  local ma, mb = getmetatable(a), getmetatable(b)
+  if ma == mt and mb == mt then return setmetatable({ a[1] + b[1], a[2] + b[2] }, mt) end
   local ar, ai = parts(a)
   local br, bi = parts(b)
   if not (ar and br) then return delegate("__add", a, b) end
@@ -51,6 +56,8 @@ mt.__add = function(a, b)
 end
 
 mt.__sub = function(a, b)
+  local ma, mb = getmetatable(a), getmetatable(b)
+  if ma == mt and mb == mt then return setmetatable({ a[1] - b[1], a[2] - b[2] }, mt) end
   local ar, ai = parts(a)
   local br, bi = parts(b)
   if not (ar and br) then return delegate("__sub", a, b) end
@@ -58,6 +65,11 @@ mt.__sub = function(a, b)
 end
 
 mt.__mul = function(a, b)
+  local ma, mb = getmetatable(a), getmetatable(b)
+  if ma == mt and mb == mt then
+    local ar, ai, br, bi = a[1], a[2], b[1], b[2]
+    return setmetatable({ ar * br - ai * bi, ar * bi + ai * br }, mt)
+  end
   local ar, ai = parts(a)
   local br, bi = parts(b)
   if not (ar and br) then return delegate("__mul", a, b) end
