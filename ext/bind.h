@@ -13,6 +13,10 @@
 #include <lauxlib.h>
 #include "steep.h"
 
+/* Keeps the complex metatable on top of the stack for the conversions below (called
+ * once, by luaopen_steep_core; the table stays on the stack). */
+void bind_keep_complex_mt(lua_State *L);
+
 /* 1 and *z set if the value at idx is a number or a steep complex value. */
 int bind_tocomplex(lua_State *L, int idx, cplx *z);
 

@@ -4,6 +4,15 @@
 #include <math.h>
 #include "bind.h"
 
+/* The complex metatable is also kept under this key (a light userdata: no string
+ * lookup), for the conversions that run once per point. */
+static const char complex_mt_key = 0;
+
+void bind_keep_complex_mt(lua_State *L) {
+  lua_pushvalue(L, -1);
+  lua_rawsetp(L, LUA_REGISTRYINDEX, &complex_mt_key);
+}
+
 int bind_tocomplex(lua_State *L, int idx, cplx *z) {
   idx = lua_absindex(L, idx);
   if (lua_type(L, idx) == LUA_TNUMBER) {
@@ -11,7 +20,7 @@ int bind_tocomplex(lua_State *L, int idx, cplx *z) {
     return 1;
   }
   if (lua_type(L, idx) != LUA_TTABLE || !lua_getmetatable(L, idx)) return 0;
-  luaL_getmetatable(L, STEEP_COMPLEX_MT);
+  lua_rawgetp(L, LUA_REGISTRYINDEX, &complex_mt_key);
   int ok = lua_rawequal(L, -1, -2);
   lua_pop(L, 2);
   if (!ok) return 0;
@@ -35,7 +44,8 @@ void bind_pushcomplex(lua_State *L, cplx z) {
   lua_rawseti(L, -2, 1);
   lua_pushnumber(L, cimag(z));
   lua_rawseti(L, -2, 2);
-  luaL_setmetatable(L, STEEP_COMPLEX_MT);
+  lua_rawgetp(L, LUA_REGISTRYINDEX, &complex_mt_key);
+  lua_setmetatable(L, -2);
 }
 
 size_t bind_checkorder(lua_State *L, int arg) {

@@ -22,6 +22,7 @@ int luaopen_steep_core(lua_State *L) {
   gsl_set_error_handler_off();
   lua_newtable(L);
   luaL_newmetatable(L, STEEP_COMPLEX_MT);  /* methods are added by lua/steep/complex.lua */
+  bind_keep_complex_mt(L);
   lua_setfield(L, -2, "complex_mt");
   bind_series_open(L);
   bind_tape_open(L);
