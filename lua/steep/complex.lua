@@ -44,36 +44,30 @@ local function delegate(event, a, b)
     type(other)), 3)
 end
 
--- + - * read the operands' parts inline (these run in every loop of the library): two
--- complex values, or a complex value and a number; anything else goes through parts.
+-- + - * / read the operands' parts inline (these run in every loop of the library): a
+-- complex value or a number on either side; anything else is delegated.
 mt.__add = function(a, b)
-  local ma, mb = getmetatable(a), getmetatable(b)
-  if ma == mt and mb == mt then return setmetatable({ a[1] + b[1], a[2] + b[2] }, mt) end
-  local ar, ai = parts(a)
-  local br, bi = parts(b)
+  local ar, ai, br, bi
+  if getmetatable(a) == mt then ar, ai = a[1], a[2] elseif type(a) == "number" then ar, ai = a, 0 end
+  if getmetatable(b) == mt then br, bi = b[1], b[2] elseif type(b) == "number" then br, bi = b, 0 end
   if not (ar and br) then return delegate("__add", a, b) end
-  return new(ar + br, ai + bi)
+  return setmetatable({ ar + br, ai + bi }, mt)
 end
 
 mt.__sub = function(a, b)
-  local ma, mb = getmetatable(a), getmetatable(b)
-  if ma == mt and mb == mt then return setmetatable({ a[1] - b[1], a[2] - b[2] }, mt) end
-  local ar, ai = parts(a)
-  local br, bi = parts(b)
+  local ar, ai, br, bi
+  if getmetatable(a) == mt then ar, ai = a[1], a[2] elseif type(a) == "number" then ar, ai = a, 0 end
+  if getmetatable(b) == mt then br, bi = b[1], b[2] elseif type(b) == "number" then br, bi = b, 0 end
   if not (ar and br) then return delegate("__sub", a, b) end
-  return new(ar - br, ai - bi)
+  return setmetatable({ ar - br, ai - bi }, mt)
 end
 
 mt.__mul = function(a, b)
-  local ma, mb = getmetatable(a), getmetatable(b)
-  if ma == mt and mb == mt then
-    local ar, ai, br, bi = a[1], a[2], b[1], b[2]
-    return setmetatable({ ar * br - ai * bi, ar * bi + ai * br }, mt)
-  end
-  local ar, ai = parts(a)
-  local br, bi = parts(b)
+  local ar, ai, br, bi
+  if getmetatable(a) == mt then ar, ai = a[1], a[2] elseif type(a) == "number" then ar, ai = a, 0 end
+  if getmetatable(b) == mt then br, bi = b[1], b[2] elseif type(b) == "number" then br, bi = b, 0 end
   if not (ar and br) then return delegate("__mul", a, b) end
-  return new(ar * br - ai * bi, ar * bi + ai * br)
+  return setmetatable({ ar * br - ai * bi, ar * bi + ai * br }, mt)
 end
 
 -- Smith's algorithm (Comm. ACM 5 (1962) 435): avoids overflow in |b|^2.
@@ -94,8 +88,9 @@ local function div(ar, ai, br, bi)
 end
 
 mt.__div = function(a, b)
-  local ar, ai = parts(a)
-  local br, bi = parts(b)
+  local ar, ai, br, bi
+  if getmetatable(a) == mt then ar, ai = a[1], a[2] elseif type(a) == "number" then ar, ai = a, 0 end
+  if getmetatable(b) == mt then br, bi = b[1], b[2] elseif type(b) == "number" then br, bi = b, 0 end
   if not (ar and br) then return delegate("__div", a, b) end
   return new(div(ar, ai, br, bi))
 end

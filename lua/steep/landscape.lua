@@ -15,9 +15,20 @@ local cos, sin, atan, floor = math.cos, math.sin, math.atan, math.floor
 
 local M = {}
 
-local function cabs(z) local re, im = cparts(z); return math.sqrt(re * re + im * im) end
-local function carg(z) local re, im = cparts(z); return atan(im, re) end
-local function expi(th) return cnew(cos(th), sin(th)) end
+-- |z| and arg z of a number or complex value (the complex case read inline: these run
+-- in most loops of the library)
+local cmt, sqrt = complex.metatable, math.sqrt
+local function cabs(z)
+  local re, im
+  if getmetatable(z) == cmt then re, im = z[1], z[2] else re, im = cparts(z) end
+  return sqrt(re * re + im * im)
+end
+local function carg(z)
+  local re, im
+  if getmetatable(z) == cmt then re, im = z[1], z[2] else re, im = cparts(z) end
+  return atan(im, re)
+end
+local function expi(th) return setmetatable({ cos(th), sin(th) }, cmt) end
 
 -- Angles in (-pi, pi].
 local function norm_angle(th)
