@@ -713,6 +713,57 @@ end
 
 ---------------------------------------------------------------------------------------
 
+TestExpandDecomposition = {}
+
+-- Where the ends of the descent paths decide the saddles' weights, the decomposition
+-- takes them from the ends without tracing ascent paths; they must equal the crossing
+-- numbers with the ascent paths (the classical rule, e.g. Berry & Howls 1991). Cases, on
+-- contours that pass through no saddle (through a saddle the contour's own directions
+-- decide): Airy's integral with one contributing saddle (complex x) and with two, a
+-- Gaussian with a crossed pole, Stirling's integral from its endpoint (a sink), a quartic
+-- (degenerate) saddle, and an exponent with three saddles.
+function TestExpandDecomposition:test_weights_from_ends_equal_crossing_numbers()
+  local decompose = require "steep.decompose"
+  local tv, xv = steep.var "t", steep.param "x"
+  local line = steep.line(steep.inf(pi), steep.inf(0))
+  local above = steep.path { steep.inf(pi), -3 + 0.5 * I, 3 + 0.5 * I, steep.inf(0) }
+  local cases = {
+    -- (at real x > 0 Airy's integral lies on a Stokes line, and at x < 0 the real line
+    -- runs through both saddles: neither is a case for the ends)
+    { steep.integral { var = tv, exponent = I * (tv ^ 3 / 3 + xv * tv), contour = line },
+      { x = C(4 * math.cos(0.3), 4 * math.sin(0.3)) } },
+    { steep.integral { var = tv, exponent = I * (tv ^ 3 / 3 + xv * tv), contour = above }, { x = -4 } },
+    { steep.integral { var = tv, exponent = -xv * tv ^ 2 / 2 + I * tv, amplitude = 1 / (tv - 0.5 * I),
+        contour = line }, { x = 3 } },
+    { steep.integral { var = tv, exponent = xv * (steep.log(tv) - tv),
+        contour = steep.path { 0, 1 + I, steep.inf(0) } }, { x = 5 } },
+    { steep.integral { var = tv, exponent = -xv * tv ^ 4, contour = above }, { x = 2 } },
+    { steep.integral { var = tv, exponent = -xv * (tv ^ 4 / 4 - tv ^ 2 / 2), contour = above },
+      { x = C(3 * math.cos(0.2), 3 * math.sin(0.2)) } },   -- (real x: saddle connections)
+  }
+  for n, case in ipairs(cases) do
+    local J, p = case[1], case[2]
+    local L = J:_landscape(p, nil, false)
+    local a = decompose.decompose_uncached(J, p, L, J.contour)
+    local b = decompose.decompose_uncached(J, p, L, J.contour, { by_crossings = true })
+    local msg = "case " .. n
+    lu.assertEquals(a.status, "ok", msg)
+    lu.assertEquals(b.status, "ok", msg)
+    local function weights(plan)
+      local w = {}
+      for _, piece in ipairs(plan.pieces) do
+        w[#w + 1] = string.format("%s %s %s %d", piece.kind, tostring(piece.index),
+          tostring(piece.ray), piece.weight)
+      end
+      for _, r in ipairs(plan.residues) do w[#w + 1] = "residue " .. r.index .. " " .. r.winding end
+      return table.concat(w, "; ")
+    end
+    lu.assertEquals(weights(a), weights(b), msg)
+    lu.assertEquals(a.weights_by, "ends", msg .. ": weights found from the ends")
+    lu.assertEquals(b.weights_by, "crossings", msg)
+  end
+end
+
 TestExpandErrors = {}
 
 -- After an error the module must still work: a quick expansion that is exact.

@@ -155,12 +155,112 @@ function M.passes_through(contour, z, R)
   return nil
 end
 
+-- The weights of the saddles `free` from the ends alone, or nil. The contour is an
+-- integer combination of descent rays (sum c_k = 0 per saddle) whose ends must cancel
+-- `boundary` (the contour's ends less the endpoint paths) together with the rays of the
+-- saddles already weighted (`fixed`). When the ends of the free saddles' combinations are
+-- linearly independent (no combination of them is closed) that linear system has at most
+-- one solution; if it has an integer one, those are the weights (the crossing numbers
+-- with the ascent paths would give the same). Rays that end anywhere but a valley or a
+-- sink make it give up.
+local function solve_by_ends(L, boundary, fixed, free)
+  if #free == 0 then return {} end
+  local target = {}   -- label -> what the free rays must take away
+  for label, n in pairs(boundary) do target[label] = n end
+  for j, w in pairs(fixed) do
+    for k, c in ipairs(w) do
+      local e = L.paths[j].descent[k].ends
+      target[e] = (target[e] or 0) - c
+    end
+  end
+  -- unknowns: c_(j,k) for k < m, with c_(j,m) = -(the others)
+  local cols = {}
+  for _, j in ipairs(free) do
+    local d = L.paths[j].descent
+    for k = 1, #d do
+      if not (d[k].ends:match("^valley %d+$") or d[k].ends:match("^sink %d+$")) then return nil end
+    end
+    for k = 1, #d - 1 do cols[#cols + 1] = { j = j, k = k, plus = d[#d].ends, minus = d[k].ends } end
+  end
+  -- rows: labels; equations: sum_col u_col (e(plus) - e(minus)) = -target... i.e. the
+  -- free rays remove target: ray (j,k) with weight c bumps its end by -c
+  local rows, index = {}, {}
+  local function row(label)
+    if not index[label] then rows[#rows + 1] = label; index[label] = #rows end
+    return index[label]
+  end
+  for label in pairs(target) do row(label) end
+  for _, c in ipairs(cols) do row(c.plus); row(c.minus) end
+  table.sort(rows)
+  for i, label in ipairs(rows) do index[label] = i end
+  local nr, nc = #rows, #cols
+  if nc > nr then return nil end
+  local A = {}
+  for i = 1, nr do
+    A[i] = {}
+    for c = 1, nc + 1 do A[i][c] = 0 end
+    A[i][nc + 1] = target[rows[i]] or 0
+  end
+  -- ray (j,k), k < m, with weight u: boundary[minus] -= u; ray m with -u: boundary[plus] += u;
+  -- the ends cancel when sum_u u (e(minus) - e(plus)) = target
+  for c, col in ipairs(cols) do
+    A[index[col.minus]][c] = A[index[col.minus]][c] + 1
+    A[index[col.plus]][c] = A[index[col.plus]][c] - 1
+  end
+  -- Gaussian elimination with partial pivoting on a copy; full column rank required
+  local M2 = {}
+  for i = 1, nr do M2[i] = table.move(A[i], 1, nc + 1, 1, {}) end
+  local piv_rows = {}
+  local r = 1
+  for c = 1, nc do
+    local best, bi = 0, nil
+    for i = r, nr do if abs(M2[i][c]) > best then best, bi = abs(M2[i][c]), i end end
+    if not bi or best < 1e-9 then return nil end   -- dependent: not decided by the ends
+    M2[r], M2[bi] = M2[bi], M2[r]
+    for i = 1, nr do
+      if i ~= r and M2[i][c] ~= 0 then
+        local f = M2[i][c] / M2[r][c]
+        for cc = c, nc + 1 do M2[i][cc] = M2[i][cc] - f * M2[r][cc] end
+      end
+    end
+    piv_rows[c] = r
+    r = r + 1
+  end
+  local u = {}
+  for c = 1, nc do
+    local v = M2[piv_rows[c]][nc + 1] / M2[piv_rows[c]][c]
+    u[c] = floor(v + 0.5)
+    if abs(v - u[c]) > 1e-9 then return nil end
+  end
+  -- the integer solution must satisfy every equation exactly (the system may be
+  -- inconsistent: then the ends cannot be matched at all, and the crossings say why)
+  for i = 1, nr do
+    local sum = 0
+    for c = 1, nc do sum = sum + A[i][c] * u[c] end
+    if sum ~= A[i][nc + 1] then return nil end
+  end
+  local out = {}
+  for c, col in ipairs(cols) do
+    local w = out[col.j]
+    if not w then
+      w = {}
+      for k = 1, #L.paths[col.j].descent do w[k] = 0 end
+      out[col.j] = w
+    end
+    w[col.k] = u[c]
+    local m = #w
+    w[m] = w[m] - u[c]
+  end
+  return out
+end
+
 --- decompose(J, params, L, contour) -> plan
 -- plan.pieces: list of {kind = "saddle" | "endpoint", index (saddle), ray (its descent
 -- ray), weight, points (for quadrature, outward), ends = {from label, to label}};
 -- plan.residues: list of {index (into
 -- L.singularities), winding}; plan.status: "ok" or the reason it is incomplete;
--- plan.notes: list of strings.
+-- plan.notes: list of strings; plan.weights_by: "ends" or "crossings" (how the weights
+-- of saddles off the contour were found).
 function M.decompose(J, params, L, contour)
   -- a landscape belongs to one set of parameter values, so its plan for a contour is
   -- kept with it (an expansion and its quadrature check decompose the same contour)
@@ -185,7 +285,9 @@ function M.copy_plan(plan)
   return out
 end
 
-function M.decompose_uncached(J, params, L, contour)
+-- (opts.by_crossings: weights from the ascent paths' crossings even where the ends
+-- would decide them; the tests compare the two)
+function M.decompose_uncached(J, params, L, contour, opts)
   local R = L.region.radius
   local plan = { pieces = {}, residues = {}, notes = {}, status = "ok", evals = 0 }
   local Rfar = 8 * R
@@ -243,12 +345,17 @@ function M.decompose_uncached(J, params, L, contour)
   -- crosses the ascent rays in between with sign -1 each; so with n_k the crossing number
   -- of the contour with ascent ray k, c_k = n_(k+1) - n_k (indices cyclic). For a simple
   -- saddle this is the classical intersection number with the whole ascent path.
+  --
+  -- Where the ends of the descent paths decide the weights alone (the boundaries of the
+  -- saddles' descent combinations are independent), they are found from the ends and the
+  -- ascent paths are not traced: the combination must end where the contour does, and
+  -- that has one solution then (solve_by_ends). Otherwise, and always for saddles the
+  -- contour runs through or starts at, as above.
   L.paths = L.paths or {}
+  local fixed, free = {}, {}   -- saddle index -> weights; list of saddle indices
   for j, s in ipairs(L.saddles) do
     local paths = L.paths[j] or landscape.saddle_paths(J, params, L, j)
     L.paths[j] = paths
-    for _, p in ipairs(paths.descent) do plan.evals = plan.evals + p.evals end
-    for _, p in ipairs(paths.ascent) do plan.evals = plan.evals + p.evals end
     for _, p in ipairs(paths.descent) do
       if p.ends:match("^saddle") then
         plan.notes[#plan.notes + 1] = format("saddle %d: its descent path runs into %s "
@@ -276,27 +383,42 @@ function M.decompose_uncached(J, params, L, contour)
       local kin, kout = nearest_ray(through.din + pi), nearest_ray(through.dout)
       weights[kout] = weights[kout] + 1
       weights[kin] = weights[kin] - 1
+      fixed[j] = weights
     elseif at_end then
       -- the contour starts (or ends) at this saddle: it leaves along the descent ray
       -- nearest its own direction there
-      local best, bk = huge, 1
-      for k, p in ipairs(paths.descent) do
-        local d = abs(landscape.norm_angle(carg(p.points[2] - s.at) - at_end.direction))
-        if d < best then best, bk = d, k end
-      end
+      weights = {}
       for k = 1, m do weights[k] = 0 end
-      weights[bk] = at_end.sign
+      weights[nearest_ray(at_end.direction)] = at_end.sign
+      fixed[j] = weights
     else
-      local n = {}
+      free[#free + 1] = j
+    end
+  end
+  local by_ends = not plan.stokes and not (opts and opts.by_crossings)
+    and solve_by_ends(L, boundary, fixed, free)
+  if #free > 0 then plan.weights_by = by_ends and "ends" or "crossings" end
+  for _, j in ipairs(free) do
+    local weights = by_ends and by_ends[j]
+    if not weights then
+      local m, n, paths = L.saddles[j].order, {}, L.paths[j]
+      weights = {}
       for k, a in ipairs(paths.ascent) do n[k] = core.crossings(cvec, full(a)) end
       for k = 1, m do weights[k] = n[k % m + 1] - n[k] end
     end
-    for k, c in ipairs(weights) do
+    fixed[j] = weights
+  end
+  for j, s in ipairs(L.saddles) do
+    local paths = L.paths[j]
+    for _, p in ipairs(paths.descent) do plan.evals = plan.evals + p.evals end
+    for _, p in ipairs(rawget(paths, "ascent") or {}) do plan.evals = plan.evals + p.evals end
+    local at_end = endpoint_saddle[j]
+    for k, c in ipairs(fixed[j]) do
       if c ~= 0 then
         local d = paths.descent[k]
         plan.pieces[#plan.pieces + 1] = { kind = "saddle", index = j, ray = k, weight = c,
-          order = m, path = d, points = d.points, full = full(d), ends = { "saddle " .. j, d.ends },
-          at_endpoint = at_end ~= nil, reason = d.reason }
+          order = s.order, path = d, points = d.points, full = full(d),
+          ends = { "saddle " .. j, d.ends }, at_endpoint = at_end ~= nil, reason = d.reason }
         bump(d.ends, -c)
       end
     end

@@ -671,23 +671,30 @@ end
 
 --- saddle_paths(J, params, L, j) -> {descent = {p1, p2, ...}, ascent = {...}} for saddle j:
 -- the m descent and m ascent paths out of a saddle of order m, in the order of
--- core.saddle_starts (angles increasing).
+-- core.saddle_starts (angles increasing). The ascent paths are traced when first read
+-- (the decomposition often needs only the descent paths' ends).
 function M.saddle_paths(J, params, L, j)
   local s = L.saddles[j]
   local R = L.region.radius
   local gm = cabs(s.g)
   local ref = cparts(s.F) + (gm > 0 and log(gm) or -30)
-  local out = { descent = {}, ascent = {} }
-  for _, descent in ipairs({ true, false }) do
+  local function traced(descent)
+    local out = {}
     local starts = core.saddle_starts(J.tape, params, s.at, s.F, s.order, s.coef, descent,
       R / 10)
     for k, st in ipairs(starts) do
       local p = M.trace(J, params, L, st, s.F, descent, { skip_saddle = j, ref = ref })
       table.insert(p.points, 1, s.at)
-      out[descent and "descent" or "ascent"][k] = p
+      out[k] = p
     end
+    return out
   end
-  return out
+  return setmetatable({ descent = traced(true) }, { __index = function(t, key)
+    if key ~= "ascent" then return nil end
+    local a = traced(false)
+    rawset(t, "ascent", a)
+    return a
+  end })
 end
 
 M.norm_angle = norm_angle
