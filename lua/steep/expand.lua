@@ -107,8 +107,14 @@ end
 local function mag(u) return math.sqrt(u[1] * u[1] + u[2] * u[2]) end
 M.dist, M.mag = dist, mag
 
-local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
+-- `series` is the list a[0..n-1] from the series route, or a function giving its first
+-- k entries (computed only as far as needed).
+local function cauchy_coefficients(J, params, t0, F0, m, s, series, n)
+  local by_reversion = series
+  if type(series) == "table" then by_reversion = function() return series end end
+  local a = by_reversion(math.min(n, 17))   -- what the checks below read
   if n <= 6 then return a, "series" end
+  local function all() return n > 17 and by_reversion(n) or a end
   -- root test on the coefficients relative to the largest of a_0..a_2 (so that an overall
   -- scale, as the 1/x of 1/(x + w), does not bias the estimate)
   local S = math.max(cabs(a[0]), cabs(a[1]), cabs(a[2]))
@@ -117,7 +123,7 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
     local v = cabs(a[k])
     if v > 0 and S > 0 then R = math.min(R, (v / S) ^ (-1 / k)) end
   end
-  if R == huge then return a, "series" end
+  if R == huge then return all(), "series" end
   local N0 = 256
   while N0 < 4 * n do N0 = N0 * 2 end
   local rho, N, doubled = 0.8 * R, N0, false
@@ -152,7 +158,7 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, a, n)
       rho, N, doubled = 0.85 * rho, N0, false
     end
   end
-  return a, "series (no circle could be trusted)"
+  return all(), "series (no circle could be trusted)"
 end
 
 --- saddle_series(J, params, t0, m, n) -> a (list a[0..n-1] as complex, 0-based), F0, s
@@ -169,26 +175,28 @@ function M.saddle_series(J, params, t0, m, n)
       order, core.max_order), 0)
   end
   local Fj, gj = J.tape:jet(t0, order, params)
-  local Fc = Fj:coefs()           -- Fc[k + 1] = f_k (the series arithmetic stays in C)
+  local Fc, gc = Fj:coefs(), gj:coefs()   -- Fc[k + 1] = f_k (series arithmetic stays in C)
   local F0, fm = Fc[1], Fc[m + 1]
-  -- r(h) = (F0 - F(t0 + h)) / (-f_m h^m) = sum_k (f_{m+k} / f_m) h^k
-  local rs = series(table.move(Fc, m + 1, m + n, 1, {})) * (1 / fm)
-  local root = rs ^ (1 / m)     -- principal branch near 1
   -- s: |f_m|^(1/m) e^{-i alpha_1}, alpha_1 = (pi - arg f_m)/m the first descent angle
   local alpha = (pi - carg(fm)) / m
   local sm = cabs(fm) ^ (1 / m) * expi(-alpha)
-  local w = (root * sm):coefs()
-  table.insert(w, 1, 0)
-  local hw = ser(w, n + 1):revert()                  -- h(w), length n + 1
-  -- G(w) = g(t0 + h(w)) h'(w): compose g's jet (about t0) with h(w)
-  local gser = table.move(gj:coefs(), 1, n + 1, 1, {})
-  local gh = ser(gser, n + 1):compose(hw)
-  local G = gh * hw:deriv()                          -- length n
-  local a = G:coefs()
-  table.move(a, 1, n, 0)
-  a[n] = nil
-  local how
-  a, how = cauchy_coefficients(J, params, t0, F0, m, sm, a, n)
+  -- the first n coefficients of G(w) = g(t0 + h(w)) h'(w) by series reversion (O(n^3))
+  local function by_reversion(n)
+    -- r(h) = (F0 - F(t0 + h)) / (-f_m h^m) = sum_k (f_{m+k} / f_m) h^k
+    local rs = series(table.move(Fc, m + 1, m + n, 1, {})) * (1 / fm)
+    local root = rs ^ (1 / m)     -- principal branch near 1
+    local w = (root * sm):coefs()
+    table.insert(w, 1, 0)
+    local hw = ser(w, n + 1):revert()                  -- h(w), length n + 1
+    -- compose g's jet (about t0) with h(w)
+    local gh = ser(table.move(gc, 1, n + 1, 1, {}), n + 1):compose(hw)
+    local a = (gh * hw:deriv()):coefs()                -- length n
+    table.move(a, 1, n, 0)
+    a[n] = nil
+    return a
+  end
+  -- the circle needs only the first 17 for its checks; all n only if it is not trusted
+  local a, how = cauchy_coefficients(J, params, t0, F0, m, sm, by_reversion, n)
   return a, F0, sm, alpha, how
 end
 
