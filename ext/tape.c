@@ -260,7 +260,10 @@ static int dual1(const tape_ins *in, cplx a, cplx da, cplx b, cplx db, cplx x, c
     case OP_POWI:
       if (in->k < 0 && a == 0) return STEEP_SINGULAR;
       *v = powi(a, in->k);
-      *d = in->k == 0 ? 0 : (double)in->k * powi(a, in->k - 1) * da;
+      /* k a^(k-1) da, as k a^k / a (k - 1 would overflow for the least long); at a = 0
+       * (k >= 0 here) the derivative is da for k = 1 and 0 otherwise */
+      if (a != 0) *d = (double)in->k * cdiv(*v, a) * da;
+      else *d = in->k == 1 ? da : 0;
       return STEEP_OK;
     case OP_POWC:
       if (a == 0) return STEEP_BRANCH;

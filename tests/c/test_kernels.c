@@ -6,6 +6,7 @@
  * paths (path.c) and samples on circles (rings.c) over tapes built by hand. Prints one line
  * `kernels: N passed, M failed` and exits non-zero on failure.
  */
+#include <limits.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -747,6 +748,16 @@ static void test_dual(void) {
   htape_init(&h, inv, 3, 0);
   check(tape_check(&h.t, &why) == -1 && tape_dual_upto(&h.t, 0, NULL, v, d, &bad, 2) == STEEP_SINGULAR,
         "tape_dual_upto: 1/0 is singular");
+  /* the least long as an integer power (found by fuzzing: k - 1 overflowed): no undefined
+   * behaviour, a status in range; and t^1 at 0 has derivative 1 */
+  const tape_ins least[2] = {{OP_VAR, -1, -1, 0, 0}, {OP_POWI, 0, -1, LONG_MIN, 0}};
+  htape_init(&h, least, 2, 0);
+  int st = tape_check(&h.t, &why) == -1 ? tape_dual_upto(&h.t, 2, NULL, v, d, &bad, 1) : -1;
+  check(st >= STEEP_OK && st <= STEEP_NONFINITE, "tape_dual_upto: t^LONG_MIN evaluates to a status");
+  const tape_ins one[2] = {{OP_VAR, -1, -1, 0, 0}, {OP_POWI, 0, -1, 1, 0}};
+  htape_init(&h, one, 2, 0);
+  check(tape_check(&h.t, &why) == -1 && tape_dual_upto(&h.t, 0, NULL, v, d, &bad, 1) == STEEP_OK &&
+        v[1] == 0 && d[1] == 1, "tape_dual_upto: t^1 at 0 has derivative 1");
 }
 
 /* ---- rings (rings.c) ------------------------------------------------------------- */
