@@ -34,10 +34,13 @@ size_t bind_checkorder(lua_State *L, int arg);
 void *bind_scratch(lua_State *L, size_t bytes);
 
 /* A buffer of at least `bytes` kept for reuse by this lua_State (in its registry), for
- * the large work arrays of a kernel call: valid until the next bind_buffer call on the
- * same state, so only one caller may hold it, and only while no Lua code runs. Spares
- * the allocator a fresh block of that size at every call. */
-void *bind_buffer(lua_State *L, size_t bytes);
+ * the large work arrays of a kernel call; spares the allocator a fresh block of that size
+ * at every call. *held says whether the caller holds it (then it must call
+ * bind_buffer_release with that flag when done); a call while it is held (a finalizer
+ * calling back into the module during an allocation) gets fresh scratch memory instead,
+ * and so does every call after a holder was interrupted by an error. */
+void *bind_buffer(lua_State *L, size_t bytes, int *held);
+void bind_buffer_release(lua_State *L, int held);
 
 /* A new steep.series userdata holding c[0..n-1] (bind_series.c). */
 void bind_pushseries(lua_State *L, const cplx *c, size_t n);

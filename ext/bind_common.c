@@ -79,19 +79,36 @@ cplx *bind_checkpoints(lua_State *L, int idx, size_t *n) {
   return v;
 }
 
-/* The registry key of the reusable buffer (its address is unique to this module). */
-static const char buffer_key = 0;
+/* The registry keys of the reusable buffer and of its "in use" mark (addresses unique
+ * to this module). */
+static const char buffer_key = 0, buffer_busy_key = 0;
 
-void *bind_buffer(lua_State *L, size_t bytes) {
+void *bind_buffer(lua_State *L, size_t bytes, int *held) {
   if (bytes == 0) bytes = 1;
+  *held = 0;
+  /* in use already: a finalizer run by an allocation of the holder called back into the
+   * module; that caller gets scratch memory of its own */
+  int busy = lua_rawgetp(L, LUA_REGISTRYINDEX, &buffer_busy_key) != LUA_TNIL;
+  lua_pop(L, 1);
+  if (busy) return bind_scratch(L, bytes);
+  void *p;
   if (lua_rawgetp(L, LUA_REGISTRYINDEX, &buffer_key) == LUA_TUSERDATA &&
       lua_rawlen(L, -1) >= bytes) {
-    void *p = lua_touserdata(L, -1);
+    p = lua_touserdata(L, -1);
     lua_pop(L, 1);
-    return p;
+  } else {
+    lua_pop(L, 1);
+    p = lua_newuserdatauv(L, bytes, 0);
+    lua_rawsetp(L, LUA_REGISTRYINDEX, &buffer_key);
   }
-  lua_pop(L, 1);
-  void *p = lua_newuserdatauv(L, bytes, 0);
-  lua_rawsetp(L, LUA_REGISTRYINDEX, &buffer_key);
+  lua_pushboolean(L, 1);
+  lua_rawsetp(L, LUA_REGISTRYINDEX, &buffer_busy_key);
+  *held = 1;
   return p;
+}
+
+void bind_buffer_release(lua_State *L, int held) {
+  if (!held) return;
+  lua_pushnil(L);
+  lua_rawsetp(L, LUA_REGISTRYINDEX, &buffer_busy_key);
 }

@@ -170,12 +170,14 @@ static int land_trace(lua_State *L) {
   o.stops = stops;
   o.stop_r = stop_r;
   o.nstops = ns;
-  cplx *pts = bind_buffer(L, 2 * maxpts * sizeof(cplx)), *Fs = pts + maxpts;
+  int held;
+  cplx *pts = bind_buffer(L, 2 * maxpts * sizeof(cplx), &held), *Fs = pts + maxpts;
   size_t n = 0;
   int which = -1;
   int end = path_trace(p, start, level, &o, pts, Fs, maxpts, &n, &which);
   memcpy(bind_newcvec(L, n), pts, n * sizeof(cplx));
   memcpy(bind_newcvec(L, n), Fs, n * sizeof(cplx));
+  bind_buffer_release(L, held);
   lua_pushstring(L, end_text[end]);
   if (which >= 0) lua_pushinteger(L, which + 1);
   else lua_pushnil(L);
