@@ -495,9 +495,15 @@ function TestRoutesSweep:test_continuation_matches_full_search()
     local on = case[1]:sweep { x = case[2], order = 4, progress = false }
     local off = case[1]:sweep { x = case[2], order = 4, progress = false, continuation = false }
     lu.assertEquals(#on.rows, 25)
+    -- the first step searches, the others follow (these families keep their saddles)
+    lu.assertEquals(on.rows[1].landscape, "full search")
+    lu.assertStrContains(on:report(), "saddles followed from the previous step at 24 values, "
+      .. "searched for in the whole region at 1")
+    lu.assertStrContains(off:report(), "at 0 values, searched for in the whole region at 25")
     for i, row in ipairs(on.rows) do
       local msg = "x = " .. tostring(row.x)
       lu.assertNil(row.failure, msg)
+      if i > 1 then lu.assertEquals(row.landscape, "continued", msg) end
       lu.assertNil(off.rows[i].failure, msg)
       H.close(row.expansion, off.rows[i].expansion, 1e-12, msg .. ": expansion")
       H.close(row.quad, off.rows[i].quad, 1e-12, msg .. ": quadrature")

@@ -773,15 +773,18 @@ function M.sweep(J, opts)
     do
     local ok, err = pcall(function()
       local L
+      row.landscape = "full search"
       if continuation and prev then
         L = J:_landscape(p, prev.region, false, { seeds = prev.saddles, fast = true,
           sing_seeds = prev.singularities, sing_radii = prev.radii })
+        row.landscape = "continued"
         -- fewer saddles or singularities than before, or fewer saddles than the argument
         -- principle counts (one entering the region): search the whole region again
         local sc = L.saddle_count
         if #L.saddles < #prev.saddles or #L.singularities < #prev.singularities
             or (sc and sc.count and sc.found < sc.count) then
           L = J:_landscape(p, nil, false)
+          row.landscape = "full search"
         end
       else
         L = J:_landscape(p, opts.region, false)
@@ -868,7 +871,7 @@ end
 function M.sweep_report(sw, opts)
   local other = require("steep.report").format(opts, sw, sw.rows,
     { "x", "expansion", "error", "quad", "quad_error", "relative_error", "estimated",
-      "agrees", "stokes", "valleys", "failure" })
+      "agrees", "stokes", "valleys", "landscape", "failure" })
   if other then return other end
   local lines = { format("sweep of %s, %d terms", tostring(sw.integral), sw.order),
     format("%-12s %-26s %-26s %-11s %-11s %s", sw.large, "expansion", "quadrature",
@@ -882,6 +885,13 @@ function M.sweep_report(sw, opts)
         (r.agrees and "" or "DISAGREES") .. (r.stokes and " stokes" or ""))
     end
   end
+  local continued, searched = 0, 0
+  for _, r in ipairs(sw.rows) do
+    if r.landscape == "continued" then continued = continued + 1
+    elseif r.landscape then searched = searched + 1 end
+  end
+  lines[#lines + 1] = format("saddles followed from the previous step at %d values, searched "
+    .. "for in the whole region at %d", continued, searched)
   return table.concat(lines, "\n")
 end
 
