@@ -13,8 +13,9 @@
 #include <lauxlib.h>
 #include "steep.h"
 
-/* Keeps the complex metatable on top of the stack for the conversions below (called
- * once, by luaopen_steep_core; the table stays on the stack). */
+/* Stores the complex metatable (on top of the stack, and left there) in the registry
+ * under a light-userdata key, for the conversions below: no string lookup per point.
+ * Called once, by luaopen_steep_core. */
 void bind_keep_complex_mt(lua_State *L);
 
 /* 1 and *z set if the value at idx is a number or a steep complex value. */
@@ -33,14 +34,14 @@ size_t bind_checkorder(lua_State *L, int arg);
  * Lua error raised afterwards leaks nothing). */
 void *bind_scratch(lua_State *L, size_t bytes);
 
-/* A buffer of at least `bytes` kept for reuse by this lua_State (in its registry), for
- * the large work arrays of a kernel call; spares the allocator a fresh block of that size
- * at every call. *held says whether the caller holds it (then it must call
- * bind_buffer_release with that flag when done); a call while it is held (a finalizer
- * calling back into the module during an allocation) gets fresh scratch memory instead,
- * and so does every call after a holder was interrupted by an error. */
-void *bind_buffer(lua_State *L, size_t bytes, int *held);
-void bind_buffer_release(lua_State *L, int held);
+/* A buffer of at least `bytes` for the large work arrays of a kernel call, reused from
+ * call to call (kept in the registry of the Lua state, which its coroutines share): spares
+ * the allocator a fresh block of that size at every call. It is pushed on the stack (so
+ * the collector keeps it while in use) and taken out of the registry until
+ * bind_buffer_release(L, its stack index) puts it back; a call in between (re-entrant, or
+ * after an error skipped the release) simply gets a new one. */
+void *bind_buffer(lua_State *L, size_t bytes);
+void bind_buffer_release(lua_State *L, int idx);
 
 /* A new steep.series userdata holding c[0..n-1] (bind_series.c). */
 void bind_pushseries(lua_State *L, const cplx *c, size_t n);

@@ -79,36 +79,28 @@ cplx *bind_checkpoints(lua_State *L, int idx, size_t *n) {
   return v;
 }
 
-/* The registry keys of the reusable buffer and of its "in use" mark (addresses unique
- * to this module). */
-static const char buffer_key = 0, buffer_busy_key = 0;
+/* The registry key of the reusable buffer (an address unique to this module). */
+static const char buffer_key = 0;
 
-void *bind_buffer(lua_State *L, size_t bytes, int *held) {
+void *bind_buffer(lua_State *L, size_t bytes) {
   if (bytes == 0) bytes = 1;
-  *held = 0;
-  /* in use already: a finalizer run by an allocation of the holder called back into the
-   * module; that caller gets scratch memory of its own */
-  int busy = lua_rawgetp(L, LUA_REGISTRYINDEX, &buffer_busy_key) != LUA_TNIL;
-  lua_pop(L, 1);
-  if (busy) return bind_scratch(L, bytes);
-  void *p;
-  if (lua_rawgetp(L, LUA_REGISTRYINDEX, &buffer_key) == LUA_TUSERDATA &&
-      lua_rawlen(L, -1) >= bytes) {
-    p = lua_touserdata(L, -1);
-    lua_pop(L, 1);
-  } else {
-    lua_pop(L, 1);
-    p = lua_newuserdatauv(L, bytes, 0);
-    lua_rawsetp(L, LUA_REGISTRYINDEX, &buffer_key);
+  /* taken out of the registry while in use: a re-entrant call (a finalizer calling back
+   * during an allocation) finds none and makes its own, and an error that skips the
+   * release only costs a new one next time. A kept buffer far larger than asked (over
+   * 1 MB and 4 times the request) is let go rather than held for ever. */
+  if (lua_rawgetp(L, LUA_REGISTRYINDEX, &buffer_key) == LUA_TUSERDATA) {
+    size_t have = lua_rawlen(L, -1);
+    if (have >= bytes && !(have > ((size_t)1 << 20) && have / 4 > bytes)) {
+      lua_pushnil(L);
+      lua_rawsetp(L, LUA_REGISTRYINDEX, &buffer_key);
+      return lua_touserdata(L, -1);
+    }
   }
-  lua_pushboolean(L, 1);
-  lua_rawsetp(L, LUA_REGISTRYINDEX, &buffer_busy_key);
-  *held = 1;
-  return p;
+  lua_pop(L, 1);
+  return lua_newuserdatauv(L, bytes, 0);
 }
 
-void bind_buffer_release(lua_State *L, int held) {
-  if (!held) return;
-  lua_pushnil(L);
-  lua_rawsetp(L, LUA_REGISTRYINDEX, &buffer_busy_key);
+void bind_buffer_release(lua_State *L, int idx) {
+  lua_pushvalue(L, idx);
+  lua_rawsetp(L, LUA_REGISTRYINDEX, &buffer_key);
 }

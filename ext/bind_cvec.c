@@ -74,15 +74,17 @@ static int cvec_arc(lua_State *L) {
 }
 
 /* core.cvec_join(a, b): the polyline a followed by b without b's first point (shared
- * with a's last); a and b are cvecs or lists of points, b may be nil or empty. */
+ * with a's last; all of b when a is empty); a and b are cvecs or lists of points, b may
+ * be nil or empty. */
 static int cvec_join(lua_State *L) {
   size_t na = 0, nb = 0;
   const cplx *a = bind_checkpoints(L, 1, &na);
   const cplx *b = lua_isnoneornil(L, 2) ? NULL : bind_checkpoints(L, 2, &nb);
-  size_t extra = nb > 0 ? nb - 1 : 0;
+  size_t skip = na > 0 && nb > 0 ? 1 : 0;   /* nothing is shared with an empty a */
+  size_t extra = nb - skip;
   cplx *v = bind_newcvec(L, na + extra);
   if (na) memcpy(v, a, na * sizeof *v);
-  if (extra) memcpy(v + na, b + 1, extra * sizeof *v);
+  if (extra) memcpy(v + na, b + skip, extra * sizeof *v);
   return 1;
 }
 

@@ -170,14 +170,14 @@ static int land_trace(lua_State *L) {
   o.stops = stops;
   o.stop_r = stop_r;
   o.nstops = ns;
-  int held;
-  cplx *pts = bind_buffer(L, 2 * maxpts * sizeof(cplx), &held), *Fs = pts + maxpts;
+  cplx *pts = bind_buffer(L, 2 * maxpts * sizeof(cplx)), *Fs = pts + maxpts;
+  int buffer = lua_gettop(L);
   size_t n = 0;
   int which = -1;
   int end = path_trace(p, start, level, &o, pts, Fs, maxpts, &n, &which);
   memcpy(bind_newcvec(L, n), pts, n * sizeof(cplx));
   memcpy(bind_newcvec(L, n), Fs, n * sizeof(cplx));
-  bind_buffer_release(L, held);
+  bind_buffer_release(L, buffer);
   lua_pushstring(L, end_text[end]);
   if (which >= 0) lua_pushinteger(L, which + 1);
   else lua_pushnil(L);
@@ -209,21 +209,25 @@ static int land_saddle_starts(lua_State *L) {
 /* core.branch_jump(tape, params, points, F, level) -> nil, or k, point, jump: the first
  * point of a traced path where the principal value of F differs from the value F[k]
  * followed by continuity along it by more than a harmless jump. Harmless: 2 pi i times
- * an integer (exp(F) is unchanged) within 1e-6 max(1, |level|), or where the integrand
- * is negligible (Re F below Re level - 30). A path that crosses a branch cut of the
- * exponent would otherwise be integrated on the wrong sheet there. */
+ * an integer (exp(F) is unchanged) -- a real part within 1e-6 max(1, |level|) and an
+ * imaginary part within max(1e-6, 1e-12 |level|) of a multiple of 2 pi (rounding of F
+ * grows with |F|; a fixed bound on the angle keeps a log cut's jump visible however large
+ * F is) -- or where the integrand is negligible (Re F below Re level - 30). A path that
+ * crosses a branch cut of the exponent would otherwise be integrated on the wrong sheet
+ * there. */
 static int land_branch_jump(lua_State *L) {
   problem *p = checkproblem(L);
   size_t n = 0, nF = 0;
   cplx *pts = bind_checkpoints(L, 3, &n), *Fc = bind_checkpoints(L, 4, &nF);
   cplx level = bind_checkcomplex(L, 5);
   double lr = creal(level), tol = 1e-6 * fmax(1, cabs(level));
+  double tol_angle = fmax(1e-6, 1e-12 * cabs(level));
   cplx *slots = p->vals + p->t->nout;   /* as problem_integrand lays them out */
   for (size_t k = 0; k < n && k < nF; k++) {
     tape_eval(p->t, pts[k], p->params, p->vals, slots);
     cplx d = p->vals[0] - Fc[k];
     double fr = creal(p->vals[0]), dr = creal(d);
-    int harmless = (fabs(dr) <= tol && fabs(sin(cimag(d) / 2)) <= tol) || !(fr > lr - 30);
+    int harmless = (fabs(dr) <= tol && fabs(sin(cimag(d) / 2)) <= tol_angle) || !(fr > lr - 30);
     if (isfinite(dr) && !harmless) {
       lua_pushinteger(L, (lua_Integer)k + 1);
       bind_pushcomplex(L, pts[k]);
@@ -349,6 +353,7 @@ static void circle_coefs(const cplx *G, size_t N, size_t stride, double rho, siz
 /* Pushes the coefficient cvecs for N and N/2 points and max|G| (for rounding levels). */
 static int push_coefs(lua_State *L, const cplx *G, size_t N, double rho, lua_Integer n) {
   if (n < 1 || (size_t)n > N / 2) return luaL_error(L, "number of coefficients out of range");
+  if (N % 2) return luaL_error(L, "coefficients need an even number of points (the N/2 rule)");
   double gmax = 0;
   for (size_t j = 0; j < N; j++) gmax = fmax(gmax, cabs(G[j]));
   cplx *root = bind_scratch(L, N * sizeof(cplx));
@@ -430,6 +435,7 @@ static int land_laurent(lua_State *L) {
   unit_roots((size_t)N, root);
   int halves = N % 2 == 0;
   cplx *out = bind_newcvec(L, (size_t)depth + 2);
+  lua_pushnumber(L, vmax);
   cplx *half = halves ? bind_newcvec(L, (size_t)depth + 2) : NULL;
   for (lua_Integer m = -depth; m <= 1; m++) {
     cplx sum = 0, sum2 = 0;
@@ -441,9 +447,6 @@ static int land_laurent(lua_State *L) {
     out[m + depth] = sum / (double)N;
     if (halves) half[m + depth] = sum2 / (double)(N / 2);
   }
-  if (halves) lua_insert(L, -2);   /* out, half -> half, out */
-  lua_pushnumber(L, vmax);
-  if (halves) lua_rotate(L, -3, -1);   /* half, out, vmax -> out, vmax, half */
   return halves ? 3 : 2;
 }
 

@@ -9,9 +9,12 @@ double geom_turning(const cplx *p, size_t n, cplx z) {
   for (size_t k = 0; k + 1 < n; k++) {
     cplx u = p[k] - z, v = p[k + 1] - z;
     if (u == 0 || v == 0) return NAN;
-    /* arg(v / u) without a division: the angle of v conj(u) (products overflow only
-     * beyond 1e150, where the quotient is taken instead) */
-    double d = fmax(fmax(fabs(creal(u)), fabs(cimag(u))), fmax(fabs(creal(v)), fabs(cimag(v)))) < 1e150
+    /* arg(v / u) without a division: the angle of v conj(u) (its products overflow or
+     * underflow only for points beyond 1e140 or within 1e-140 of z, where the quotient is
+     * taken instead) */
+    double big = fmax(fmax(fabs(creal(u)), fabs(cimag(u))), fmax(fabs(creal(v)), fabs(cimag(v))));
+    double small = fmin(fmax(fabs(creal(u)), fabs(cimag(u))), fmax(fabs(creal(v)), fabs(cimag(v))));
+    double d = big < 1e140 && small > 1e-140
       ? atan2(creal(u) * cimag(v) - cimag(u) * creal(v), creal(u) * creal(v) + cimag(u) * cimag(v))
       : carg(v / u);
     /* a segment passing through z turns by exactly +-pi: z lies on the curve */
@@ -43,7 +46,8 @@ int geom_crossings(const cplx *a, size_t na, const cplx *b, size_t nb, cplx *pts
                    size_t maxpts, size_t *npts) {
   int total = 0;
   size_t found = 0;
-  /* b's segments that touch b's part inside a's bounding box: only those can cross */
+  /* only b's segments that touch a's bounding box can cross a: the stretch of b from the
+   * first to the last of them */
   double abox[4];
   bbox(a, na, abox);
   size_t lo = nb, hi = 0;   /* b[lo..hi] spans every segment of b touching a's box */

@@ -7,7 +7,7 @@
 
 /* max(|Re z|, |Im z|): within a factor sqrt 2 of |z|, without hypot's care, for the
  * tolerance tests taken at every step */
-static double size(cplx z) { return fmax(fabs(creal(z)), fabs(cimag(z))); }
+static double maxnorm(cplx z) { return fmax(fabs(creal(z)), fabs(cimag(z))); }
 
 /* A solved point of the map: h, with F and F' at t0 + h, and the offset added to the
  * principal F where a branch cut of a log inside it was crossed (F followed by
@@ -27,8 +27,8 @@ static int solve(problem *p, cplx t0, cplx F0, cplx target, mappoint *q) {
     if (problem_dF(p, t0 + q->h, &q->F, &q->dF) != STEEP_OK) return -1;
     /* quadratic convergence: a step this small leaves an error near rounding; or the
      * residual was at the rounding level of F0 - F itself (small h: cancellation) */
-    if (size(step) <= 1e-10 * (size(q->h) + 1e-300) ||
-        size(r) <= 8 * DBL_EPSILON * (size(F0) + size(q->F) + size(target)))
+    if (maxnorm(step) <= 1e-10 * (maxnorm(q->h) + 1e-300) ||
+        maxnorm(r) <= 8 * DBL_EPSILON * (maxnorm(F0) + maxnorm(q->F) + maxnorm(target)))
       return 0;
   }
   return -1;
@@ -93,7 +93,7 @@ static int follow(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx
     /* a large discrepancy is a branch jump only if it survives small steps (the
      * trapezoidal error of a long step near a singular point can be large too) */
     cplx jump = n.F - q->F - 0.5 * (q->dF + n.dF) * dh;
-    int big = size(jump) > fmax(0.5, 0.25 * size(0.5 * (q->dF + n.dF) * dh));
+    int big = maxnorm(jump) > fmax(0.5, 0.25 * maxnorm(0.5 * (q->dF + n.dF) * dh));
     /* a cut of log makes F jump by a purely imaginary amount (Re F is continuous): take
      * such a jump at once; anything else large is a step too long for the trapezoid */
     int pure = 0;
@@ -107,7 +107,7 @@ static int follow(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx
     if (big) n.off -= jump;
     /* solve for the principal F: F0 - off - F = P(w) */
     int ok = solve(p, t0, F0 - n.off, mapP(ms, w), &n) == 0 &&
-             size(n.h - (q->h + dh)) <= 0.5 * size(dh) + 1e-14 * size(n.h);
+             maxnorm(n.h - (q->h + dh)) <= 0.5 * maxnorm(dh) + 1e-14 * maxnorm(n.h);
     if (!ok) {
       if (steps > 65536) return INVMAP_NEWTON;
       return follow(p, t0, F0, ms, wprev, w1, q, 4 * (steps - k + 1), arc, rho, budget);
@@ -121,8 +121,9 @@ static int follow(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx
 /* Round the circle |w| = rho from a solved start (w0, *q), writing G at the N points
  * rho e^{2 pi i j/N}: out along the ray through w0, round to angle 0, then the circle.
  * The trip takes about N + 80 continuation steps when h(w) is tame; refining by four at
- * each failure could otherwise cost millions of steps (of up to ~50 jets each) where h
- * is badly stretched or a branch point lies on the path, hence a bound on the total. */
+ * each failure could otherwise cost millions of steps (of up to ~40 evaluations of F and
+ * F' each) where h is badly stretched or a branch point lies on the path, hence a bound
+ * on the total. */
 #define STEP_BUDGET(N) (131072 + 16 * (long)(N))
 static int circle(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, mappoint q,
                   double rho, size_t N, cplx *G) {

@@ -34,7 +34,7 @@ int problem_jet(problem *p, cplx x, size_t order, int out, cplx *coef);
 /* The integrand g(x) e^{F(x)} (g = 1 when the tape has one output), and F(x) in *F. */
 cplx problem_integrand(problem *p, cplx x, cplx *F);
 
-/* F(x) and F'(x): one jet of order 1. Returns a steep_status. */
+/* F(x) and F'(x) by forward mode (tape_dual_upto). Returns a steep_status. */
 int problem_dF(problem *p, cplx x, cplx *F, cplx *dF);
 
 #endif

@@ -1,6 +1,7 @@
 /*
  * tape.c — checking and evaluating tapes; contracts in tape.h.
  */
+#include <limits.h>
 #include <math.h>
 #include <string.h>
 #include "tape.h"
@@ -260,10 +261,10 @@ static int dual1(const tape_ins *in, cplx a, cplx da, cplx b, cplx db, cplx x, c
     case OP_POWI:
       if (in->k < 0 && a == 0) return STEEP_SINGULAR;
       *v = powi(a, in->k);
-      /* k a^(k-1) da, as k a^k / a (k - 1 would overflow for the least long); at a = 0
-       * (k >= 0 here) the derivative is da for k = 1 and 0 otherwise */
-      if (a != 0) *d = (double)in->k * cdiv(*v, a) * da;
-      else *d = in->k == 1 ? da : 0;
+      /* k a^(k-1) da; for the least long (k - 1 would overflow) as k a^k / a */
+      if (in->k == 0) *d = 0;
+      else if (in->k != LONG_MIN) *d = (double)in->k * powi(a, in->k - 1) * da;
+      else *d = (double)in->k * cdiv(*v, a) * da;
       return STEEP_OK;
     case OP_POWC:
       if (a == 0) return STEEP_BRANCH;

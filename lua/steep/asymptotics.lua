@@ -97,7 +97,7 @@ local function uniform_pole_contribution(J, params, L, j, c, near, order, series
     -- |r| / ((rho - |b|) rho^k): H may vanish outright)
     local pole_size = cabs(near.r) / (rho - bmag)
     for k = 0, nraw - 1 do
-      if half[k] and expand.dist(h1[k], half[k]) > 1e-7 * (expand.mag(h1[k]) + pole_size)
+      if expand.dist(h1[k], half[k]) > 1e-7 * (expand.mag(h1[k]) + pole_size)
           + 4 * level(k) then
         return false
       end

@@ -20,30 +20,12 @@ local contour_m = require "steep.contour"
 local cnew, cparts = complex.new, complex.parts
 local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
 local format, pi, abs, floor, huge = string.format, math.pi, math.abs, math.floor, math.huge
-local cos, sin = math.cos, math.sin
 
 local M = {}
 
 -- A path's full polyline (a cvec): the part used for quadrature followed by the coarse
 -- tail.
 local function full(path) return core.cvec_join(path.points, path.tail) end
-
-local function join(a, b)   -- a then b, dropping b's first point (shared)
-  local out = {}
-  for _, z in ipairs(a) do out[#out + 1] = z end
-  for k = 2, #b do out[#out + 1] = b[k] end
-  return out
-end
-
--- a then b without their shared first point (the saddle): the two paths are joined by a
--- short chord past the saddle, so that a contour through the saddle itself meets the
--- joined path inside a segment rather than at a vertex (where crossings are fragile).
-local function join_past(a, b)
-  local out = {}
-  for k = 1, #a - 1 do out[#out + 1] = a[k] end
-  for k = 2, #b do out[#out + 1] = b[k] end
-  return out
-end
 
 -- The label of a contour end: a finite point ("point <index>"), a sink, or a valley.
 local function contour_end_label(L, e, which)
@@ -273,15 +255,23 @@ function M.decompose(J, params, L, contour)
   return M.copy_plan(kept)
 end
 
---- A copy that callers may change (residue windings, notes) without touching the kept
--- plan; the polylines of the pieces are shared (read-only).
+--- A copy that callers may change (residue windings, notes, the fields of a piece)
+-- without touching the kept plan; the traced paths and polylines are shared (read-only).
+-- (Contours are immutable, so a plan kept for one stays right; plan.evals counts the
+-- evaluations that made it.)
 function M.copy_plan(plan)
   local out = {}
   for k, v in pairs(plan) do out[k] = v end
   out.notes = table.move(plan.notes, 1, #plan.notes, 1, {})
   out.residues = {}
   for i, r in ipairs(plan.residues) do out.residues[i] = { index = r.index, winding = r.winding } end
-  out.pieces = table.move(plan.pieces, 1, #plan.pieces, 1, {})
+  out.pieces = {}
+  for i, piece in ipairs(plan.pieces) do
+    local p = {}
+    for k, v in pairs(piece) do p[k] = v end
+    p.ends = { piece.ends[1], piece.ends[2] }
+    out.pieces[i] = p
+  end
   return out
 end
 

@@ -49,8 +49,10 @@ local function gamma(x)
     - inv2 * (691 / 360360 - inv2 * (1 / 156 - inv2 * 3617 / 122400))))))
   local lg = (z - 0.5) * log(z) - z + 0.5 * log(2 * pi) + s * inv
   local v = exp(lg) / prod
-  if gamma_count >= 4096 then gamma_kept, gamma_count = {}, 0 end   -- bounded memory
-  gamma_kept[x0], gamma_count = v, gamma_count + 1
+  if x0 == x0 then   -- (NaN cannot be a key)
+    if gamma_count >= 4096 then gamma_kept, gamma_count = {}, 0 end   -- bounded memory
+    gamma_kept[x0], gamma_count = v, gamma_count + 1
+  end
   return v
 end
 M.gamma = gamma

@@ -237,12 +237,13 @@ function M.singularities(J, params, region, opts)
       if j ~= idx then nearest = math.min(nearest, cabs(o.at - m.at)) end
     end
     local rho = 0.25 * nearest
-    -- following a sweep: start from the radius the same point needed at the last step
-    -- (opts.radii, parallel to opts.seeds), when that is smaller
+    -- following a sweep: start from twice the radius the same point needed at the last
+    -- step (opts.radii, parallel to opts.seeds), when that is smaller, so that the halving
+    -- below finds it again in a step or two and the circle can also grow back
     local seeds, radii = opts and opts.seeds, opts and opts.radii
     if seeds and radii then
       for k, z in ipairs(seeds) do
-        if radii[k] and cabs(z - m.at) < radii[k] then rho = math.min(rho, radii[k]) end
+        if radii[k] and cabs(z - m.at) < radii[k] then rho = math.min(rho, 2 * radii[k]) end
       end
     end
     local s = { at = m.at, sources = {} }

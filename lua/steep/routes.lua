@@ -887,7 +887,8 @@ function M.sweep_report(sw, opts)
   end
   local continued, searched = 0, 0
   for _, r in ipairs(sw.rows) do
-    if r.landscape == "continued" then continued = continued + 1
+    if r.failure then   -- (not counted)
+    elseif r.landscape == "continued" then continued = continued + 1
     elseif r.landscape then searched = searched + 1 end
   end
   lines[#lines + 1] = format("saddles followed from the previous step at %d values, searched "
