@@ -28,7 +28,8 @@ enum invmap_status {
 
 /* G[j] = g(t0 + h_j) h'(w_j) at w_j = rho exp(2 pi i j / N), j = 0..N-1, where
  * F0 - F(t0 + h) = w^m and h ~ w / s for small w (s^m = -f_m: the branch that sends
- * w > 0 along the chosen descent direction). Cost: about 3 evaluations of F and F' per point (forward mode). */
+ * w > 0 along the chosen descent direction). Cost: about 3 evaluations of F and F' per
+ * point (forward mode). */
 int invmap_circle(problem *p, cplx t0, cplx F0, int m, cplx s, double rho, size_t N,
                   cplx *G);
 
