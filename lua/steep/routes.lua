@@ -714,8 +714,9 @@ end
 --- J:sweep{x = {list} | {from =, to =, steps =}, order = N, csv = file, shard = {k, n},
 -- progress = true|false, <other params>} -> rows
 -- Expansion and quadrature over the range. Each step starts from the previous step's
--- saddles (continuation: Newton from them, no search of the whole region) and falls back
--- to a full search when the continuation finds fewer saddles. A shard k of n takes the
+-- saddles and singularities (continuation: Newton from them, no search of the whole
+-- region) and falls back to a full search when it finds fewer of them, or fewer saddles
+-- than the argument principle counts in the region. A shard k of n takes the
 -- k-th contiguous block of the values, so the CSV pieces concatenate into the whole
 -- table (only shard 1 writes the header).
 function M.sweep(J, opts)
