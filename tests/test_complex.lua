@@ -85,6 +85,23 @@ function TestComplex:test_division_robustness()
   lu.assertTrue(n:re() ~= n:re() and n:im() ~= n:im(), "0/0 is NaN in both parts")
 end
 
+-- |z| without overflow or underflow of the squares: 3-4-5 triangles scaled to 1e200 and
+-- 1e-200 (Pythagoras; the scaled values are exact up to the rounding of 3e200 etc.), as
+-- the library's own modulus (complex.hypot) and the landscape's (landscape.cabs) give it.
+function TestComplex:test_modulus_far_from_one()
+  local complex = require "steep.complex"
+  local landscape = require "steep.landscape"
+  H.close(complex.hypot(3e200, 4e200), 5e200, 1e-15, "hypot of 3e200, 4e200")
+  H.close(complex.hypot(-3e-200, 4e-200), 5e-200, 1e-15, "hypot of -3e-200, 4e-200")
+  H.close(landscape.cabs(C(3e200, -4e200)), 5e200, 1e-15, "|3e200 - 4e200 i|")
+  H.close(landscape.cabs(C(3e-200, 4e-200)), 5e-200, 1e-15, "|3e-200 + 4e-200 i|")
+  lu.assertEquals(complex.hypot(0, 0), 0)
+  lu.assertEquals(complex.hypot(math.huge, 1), math.huge)
+  local n = complex.hypot(0 / 0, 1)
+  lu.assertTrue(n ~= n, "hypot of NaN is NaN")
+  H.close(complex.hypot(3, 4), 5, 0, "the plain case")
+end
+
 function TestComplex:test_tostring()
   lu.assertEquals(tostring(C(1, 2)), "1+2i")
   lu.assertEquals(tostring(C(1, -2)), "1-2i")

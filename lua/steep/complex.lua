@@ -150,7 +150,20 @@ function methods.abs(z) return cmath.abs(z) end
 function methods.arg(z) return atan(z[2], z[1]) end
 function methods.conj(z) return new(z[1], -z[2]) end
 
+--- sqrt(re^2 + im^2) without overflow or underflow of the squares (the plain formula
+-- first: it is right unless the result is beyond 1e150 either way).
+local function hypot(re, im)
+  local r = sqrt(re * re + im * im)
+  if r < 1e150 and r > 1e-150 then return r end
+  if re ~= re or im ~= im then return 0 / 0 end
+  local m = math.max(math.abs(re), math.abs(im))
+  if m == 0 or m == huge then return m end
+  re, im = re / m, im / m
+  return m * sqrt(re * re + im * im)
+end
+
 M.new = new
+M.hypot = hypot
 M.is = is_complex
 M.parts = parts
 M.I = new(0, 1)

@@ -102,11 +102,8 @@ end
 -- coefficients and how they were obtained.
 -- |u - v| and |u| for complex values u, v (never plain numbers here: they come from C),
 -- on the parts: these comparisons run over every coefficient
-local function dist(u, v)
-  local dr, di = u[1] - v[1], u[2] - v[2]
-  return math.sqrt(dr * dr + di * di)
-end
-local function mag(u) return math.sqrt(u[1] * u[1] + u[2] * u[2]) end
+local function dist(u, v) return complex.hypot(u[1] - v[1], u[2] - v[2]) end
+local function mag(u) return complex.hypot(u[1], u[2]) end
 M.dist, M.mag = dist, mag
 
 -- `series` is the list a[0..n-1] from the series route, or a function giving its first

@@ -17,11 +17,11 @@ local M = {}
 
 -- |z| and arg z of a number or complex value (the complex case read inline: these run
 -- in most loops of the library)
-local cmt, sqrt = complex.metatable, math.sqrt
+local cmt, hypot = complex.metatable, complex.hypot
 local function cabs(z)
   local re, im
   if getmetatable(z) == cmt then re, im = z[1], z[2] else re, im = cparts(z) end
-  return sqrt(re * re + im * im)
+  return hypot(re, im)
 end
 local function carg(z)
   local re, im
