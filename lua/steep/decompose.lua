@@ -8,7 +8,9 @@
 -- "Analytic continuation of Chern-Simons theory", 2010, sec. 3; Berry & Howls, Proc. R.
 -- Soc. A 434 (1991) 657-675). A descent path from an endpoint has constant Im F equal to
 -- Im F there, so it meets no ascent path of a saddle at another level: the weights are
--- unchanged by adding the endpoint paths. What remains between the contour and the
+-- unchanged by adding the endpoint paths. The combination must end where the contour
+-- does; where that condition has a single integer solution (the saddles' descent paths
+-- join independent sets of valleys), it gives the weights without the ascent paths. What remains between the contour and the
 -- combination is a closed cycle; its winding number about each pole gives the residue
 -- term, and it must not wind about a branch point or an essential singularity.
 
