@@ -10,9 +10,10 @@
 -- Im F there, so it meets no ascent path of a saddle at another level: the weights are
 -- unchanged by adding the endpoint paths. The combination must end where the contour
 -- does; where that condition has a single integer solution (the saddles' descent paths
--- join independent sets of valleys), it gives the weights without the ascent paths. What remains between the contour and the
--- combination is a closed cycle; its winding number about each pole gives the residue
--- term, and it must not wind about a branch point or an essential singularity.
+-- join independent sets of valleys), it gives the weights without the ascent paths.
+-- What remains between the contour and the combination is a closed cycle; its winding
+-- number about each pole gives the residue term, and it must not wind about a branch
+-- point or an essential singularity.
 
 local core = require "steep.core"
 local complex = require "steep.complex"
