@@ -170,6 +170,28 @@ function TestUniformAiry:test_complex_identities()
   end
 end
 
+-- Airy's integral (1/2 pi) int exp(i (t^3/3 + x t)) dt (DLMF 9.5.4) with its two saddles
+-- +-sqrt(-x) 2e-2 to 2e-4 apart: J:expand decomposes the pair and expands it by the
+-- Airy-type form, which is exact for this cubic; against gsl_sf_airy_Ai within 3 times the
+-- reported error (plus 1e-13 relative).
+function TestUniformAiry:test_expand_with_saddles_close_together()
+  local tt, xx = steep.var "t", steep.param "x"
+  local J = steep.integral { var = tt, exponent = I * (tt ^ 3 / 3 + xx * tt),
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = xx }
+  for _, xv in ipairs({ -1e-4, -1e-6, -1e-8, 1e-8 + 1e-8 * I }) do
+    local msg = "x = " .. tostring(xv)
+    local r = J:expand { x = xv, order = 3 }
+    local ref = gsl.airy_Ai(type(xv) == "number" and xv or xv:re())
+    if type(xv) ~= "number" then
+      -- Ai(x) = Ai(re x) + i im(x) Ai'(re x) + O(im x^2): the derivative from GSL too
+      ref = ref + I * xv:im() * gsl.airy_Ai_deriv(xv:re())
+    end
+    local d = cabs(r.value / (2 * pi) - ref)
+    lu.assertTrue(d <= 3 * r.error / (2 * pi) + 1e-13 * cabs(ref), string.format("%s: "
+      .. "|expansion - Ai| = %.3g, estimate %.3g", msg, d, r.error / (2 * pi)))
+  end
+end
+
 ---------------------------------------------------------------------------------------
 
 TestUniformCoalescence = {}
@@ -186,9 +208,11 @@ function TestUniformCoalescence:test_through_coalescence()
     amplitude = 1 / (1 + t ^ 2 / 9), contour = steep.line(steep.inf(math.pi), steep.inf(0)),
     large = x }
   local values = {}
-  -- (at a = 0 exactly the two points are one saddle of order 3, expanded as such; closer
-  -- than about 1e-3 apart the pair is not yet decomposed reliably: a known limit)
-  for _, av in ipairs({ 0.5, 0.1, 0.01, 0.003, 0, -0.003, -0.01, -0.1 }) do
+  -- (at a = 0 exactly the two points are one saddle of order 3, expanded as such; as
+  -- close as 1e-8 apart they are the uniform pair, whose paths must start closer to each
+  -- saddle than the other one lies)
+  for _, av in ipairs({ 0.5, 0.1, 0.01, 0.003, 1e-4, 1e-6, 1e-8, 0, -1e-8, -1e-6, -1e-4,
+      -0.003, -0.01, -0.1 }) do
     local r = J:expand { x = 10, a = av, order = 3 }
     local q, qe = J:quad { x = 10, a = av }
     lu.assertStrContains(r.contributions[1].kind, av == 0 and "order 3" or "Airy type",

@@ -679,10 +679,18 @@ function M.saddle_paths(J, params, L, j)
   local R = L.region.radius
   local gm = cabs(s.g)
   local ref = cparts(s.F) + (gm > 0 and log(gm) or -30)
+  -- the first step off the saddle stays well inside the distance to the nearest other
+  -- saddle or singular point (two saddles close together: a longer one lands past the
+  -- other saddle, on a path to the wrong valley)
+  local step = R / 10
+  for k, o in ipairs(L.saddles) do
+    if k ~= j then step = math.min(step, cabs(o.at - s.at) / 8) end
+  end
+  for _, o in ipairs(L.singularities or {}) do step = math.min(step, cabs(o.at - s.at) / 8) end
   local function traced(descent)
     local out = {}
     local starts = core.saddle_starts(J.tape, params, s.at, s.F, s.order, s.coef, descent,
-      R / 10)
+      step)
     for k, st in ipairs(starts) do
       local p = M.trace(J, params, L, st, s.F, descent, { skip_saddle = j, ref = ref })
       table.insert(p.points, 1, s.at)
