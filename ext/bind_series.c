@@ -51,7 +51,7 @@ static const cplx *operand(lua_State *L, int i, size_t n, size_t *len) {
   if (!bind_tocomplex(L, i, &z))
     luaL_error(L, "series arithmetic with a %s (number, complex or series expected)",
                luaL_typename(L, i));
-  cplx *c = bind_scratch(L, n * sizeof(cplx));
+  cplx *c = bind_array(L, n, sizeof(cplx));
   memset(c, 0, n * sizeof(cplx));
   c[0] = z;
   *len = n;
@@ -104,7 +104,7 @@ static int series_pow(lua_State *L) {
   }
   if (isint && (m > 1000000000 || m < -1000000000))
     return luaL_error(L, "series power: exponent %I is too large", m);
-  cplx *work = bind_scratch(L, 2 * n * sizeof(cplx));
+  cplx *work = bind_array(L, 2 * n, sizeof(cplx));
   series *r = newseries(L, n);
   int st = isint ? ser_powi(r->c, a->c, (long)m, n, work) : ser_pow(r->c, a->c, p, n);
   if (st != STEEP_OK)
@@ -145,7 +145,7 @@ enum { F_EXP, F_LOG, F_SQRT, F_SIN, F_COS, F_TAN, F_SINH, F_COSH, F_TANH, F_ATAN
 static int series_fn(lua_State *L, int f, const char *name) {
   series *a = checkseries(L, 1);
   size_t n = a->n;
-  cplx *work = bind_scratch(L, 2 * n * sizeof(cplx));
+  cplx *work = bind_array(L, 2 * n, sizeof(cplx));
   series *r = newseries(L, n);
   int st = STEEP_OK;
   switch (f) {
@@ -185,7 +185,7 @@ static int series_compose(lua_State *L) {
   if (r->c[0] != 0)
     return luaL_argerror(L, 2, "inner series must have a zero constant term");
   size_t n = a->n < r->n ? a->n : r->n;
-  cplx *work = bind_scratch(L, 2 * n * sizeof(cplx));
+  cplx *work = bind_array(L, 2 * n, sizeof(cplx));
   series *out = newseries(L, n);
   ser_compose(out->c, a->c, r->c, n, work);
   return 1;
@@ -197,7 +197,7 @@ static int series_revert(lua_State *L) {
   if (a->c[0] != 0) return luaL_error(L, "series revert: the constant term must be zero");
   if (a->c[1] == 0)
     return luaL_error(L, "series revert: the linear coefficient is zero (not invertible)");
-  cplx *work = bind_scratch(L, a->n * a->n * sizeof(cplx));
+  cplx *work = bind_array(L, bind_mulcount(L, a->n, a->n), sizeof(cplx));
   series *out = newseries(L, a->n);
   ser_revert(out->c, a->c, a->n, work);
   return 1;
