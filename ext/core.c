@@ -3,7 +3,6 @@
  */
 #define _POSIX_C_SOURCE 200809L   /* isatty */
 #include <unistd.h>
-#include <gsl/gsl_errno.h>
 #include "bind.h"
 
 /* core.isatty(fd) -> true if the file descriptor is a terminal (progress output) */
@@ -16,10 +15,11 @@ static int core_isatty(lua_State *L) {
 int luaopen_steep_core(lua_State *L);
 
 int luaopen_steep_core(lua_State *L) {
-  /* GSL's default error handler aborts the process; the library checks every GSL status
-   * instead. The handler is process-wide (not per lua_State), and setting it to "off" is
-   * idempotent, so every lua_State that loads the module may do it. */
-  gsl_set_error_handler_off();
+  /* GSL's error handler is process-wide: the host application's setting is its own, and
+   * loading the module leaves it as it was. No kernel of the module calls GSL (quadrature,
+   * roots and series are the module's own; w(z) comes from libcerf, which has no handler),
+   * so there is nothing to switch off; a kernel that ever calls GSL must use a routine
+   * that returns a status without calling the handler, or be guarded explicitly. */
   lua_newtable(L);
   luaL_newmetatable(L, STEEP_COMPLEX_MT);  /* methods are added by lua/steep/complex.lua */
   bind_keep_complex_mt(L);
