@@ -423,7 +423,7 @@ function TestBadInput:test_routes()
     bad({ fn .. ": region radius must be a positive finite number, got -1" },
       function() local r = J[fn](J, { x = { 2, 3 }, region = { radius = -1 } }); return r end)
   end
-  bad({ "sweep: option 'shard' must be {k, n} with 1 <= k <= n" },
+  bad({ "sweep: option 'shard' must be {k, n} with whole numbers 1 <= k <= n" },
     function() local r = J:sweep { x = { 1, 2 }, shard = { 3, 2 } }; return r end)
   bad({ "sweep: option 'shard'" },
     function() local r = J:sweep { x = { 1, 2 }, shard = { 1.5, 2 } }; return r end)
@@ -613,6 +613,95 @@ function TestBadInput:test_lying_list_lengths()
   still_usable("lying lengths")
 end
 
+-- Maps whose drawing loops could run away (a tick step the doubles cannot add to the
+-- tick's value: 2 GB in 44 s once), views double precision cannot draw, and result files
+-- that cannot be written: each a clear error before the work, or after it with what was
+-- computed kept.
+function TestBadInput:test_maps_and_files()
+  local J = gauss()
+  local tmpdir = os.tmpname()
+  os.remove(tmpdir)
+  assert(os.execute("mkdir " .. tmpdir))
+  local svg = tmpdir .. "/map.svg"
+  bad({ "map: the view radius 1 is too small to draw around the center 1e+17",
+    "at least 1e+07" }, function() return J:map { x = 1, file = svg, view = { center = 1e17, radius = 1 } } end)
+  bad({ "map: the view radius 1e-300 is too small", "never below 1e-280" },
+    function() return J:map { x = 1, file = svg, view = { center = 0, radius = 1e-300 } } end)
+  bad({ "map: the view (center 0, radius 1e+300) is too large to draw" },
+    function() return J:map { x = 1, file = svg, view = { center = 0, radius = 1e300 } } end)
+  bad({ "map: the region radius 1 is too small to draw around the center 1e+17" },
+    function() return J:map { x = 1, file = svg, region = { center = 1e17, radius = 1 } } end)
+  -- a saddle at 1e16 with its natural window: drawn, with ticks the doubles resolve
+  -- (the tick loop used to stall or fail with "'for' step is zero")
+  local c = 1e16
+  local Jfar = steep.integral { var = t, exponent = -x * (t - c) ^ 2, contour = steep.line(c - 10, c + 10),
+    large = x }
+  local file, summary = Jfar:map { x = 1, file = svg }
+  lu.assertEquals(file, svg)
+  lu.assertEquals(summary.saddles, 1)
+  local f = assert(io.open(svg))
+  local text = f:read("a")
+  f:close()
+  local ticks, seen = 0, {}
+  for label in text:gmatch('class="tick"[^>]*>([^<]*)<') do
+    ticks = ticks + 1
+    lu.assertNil(seen[label], "tick labels are distinct: " .. label)
+    seen[label] = true
+  end
+  lu.assertTrue(ticks >= 4 and ticks <= 80, ticks .. " ticks")
+  -- files: a device that cannot take the data, a name that is no string, a directory,
+  -- a missing directory
+  bad({ "map: cannot write /dev/full: No space left on device" },
+    function() return J:map { x = 1, file = "/dev/full" } end)
+  bad({ "map: option 'file' must name the SVG file" }, function() return J:map { x = 1, file = 42 } end)
+  bad({ "map: cannot write " .. tmpdir .. ": it is a directory" },
+    function() return J:map { x = 1, file = tmpdir } end)
+  bad({ "map: cannot write " .. tmpdir .. "/none/map.svg: No such file or directory" },
+    function() return J:map { x = 1, file = tmpdir .. "/none/map.svg" } end)
+  -- a sweep's CSV: the name is checked and the file opened before any row is computed
+  local computed = 0
+  local Jc = gauss()
+  local landscape_method = Jc._landscape
+  Jc._landscape = function(...) computed = computed + 1; return landscape_method(...) end
+  bad({ "sweep: option 'csv' must name a file (a non-empty string), got number" },
+    function() return Jc:sweep { x = { 2, 3 }, csv = 42 } end)
+  bad({ "sweep: option 'csv' must name a file (a non-empty string), got boolean" },
+    function() return Jc:sweep { x = { 2, 3 }, csv = true } end)
+  bad({ "sweep: cannot write " .. tmpdir .. "/none/rows.csv: No such file or directory" },
+    function() return Jc:sweep { x = { 2, 3 }, csv = tmpdir .. "/none/rows.csv" } end)
+  lu.assertEquals(computed, 0, "no row computed before the bad CSV name was refused")
+  -- a write that fails after the work: the error carries the computed sweep
+  local msg
+  local ok, err = pcall(function() return Jc:sweep { x = { 2, 3 }, csv = "/dev/full", progress = false } end)
+  lu.assertFalse(ok)
+  msg = tostring(err)
+  lu.assertStrContains(msg, "sweep: cannot write /dev/full: No space left on device")
+  lu.assertEquals(#err.result.rows, 2, "the rows are kept in the error")
+  H.close(err.result.rows[2].quad, math.sqrt(pi / 3), 1e-12, "a kept row: int exp(-3 t^2) dt = sqrt(pi/3) (exact)")
+  cases = cases + 1
+  -- a good CSV goes through a temporary name: only the file itself is left
+  Jc:sweep { x = { 2 }, csv = tmpdir .. "/rows.csv", progress = false }
+  local p = assert(io.popen("ls -A " .. tmpdir))
+  local listing = p:read("a")
+  p:close()
+  lu.assertEquals(listing, "map.svg\nrows.csv\n", "no temporary file left behind")
+  -- shards: whole numbers 1 <= k <= n only
+  for _, sh in ipairs({ { math.huge, math.huge }, { 1, math.huge }, { 0 / 0, 2 }, { 1.5, 2 },
+                        { 2, 1 }, { 1, 2 ^ 40 }, "1/2" }) do
+    bad({ "sweep: option 'shard' must be {k, n} with whole numbers 1 <= k <= n" },
+      function() return J:sweep { x = { 2, 3 }, shard = sh } end)
+  end
+  -- crossings: a time budget, checked like sweep's
+  bad({ "crossings: option 'budget' must be a positive number of seconds, got -1" },
+    function() return J:crossings { x = { 1, 2 }, budget = -1 } end)
+  local cr = J:crossings { x = { from = 1, to = 2, steps = 1000000 }, budget = 1e-3 }
+  lu.assertStrContains(cr.status, "incomplete: the time budget of 0.001 s was used up after")
+  lu.assertTrue(cr.followed < 1000001)
+  lu.assertStrContains(cr:report(), "status: incomplete")
+  os.execute("rm -rf " .. tmpdir)
+  still_usable("maps and files")
+end
+
 function TestBadInput:test_errors_leave_no_garbage()
   -- errors raised inside the C core after scratch memory was allocated: repeated, the
   -- Lua heap stays flat (scratch lives in collectable userdata)
@@ -644,6 +733,6 @@ end
 function TestBadInput:test_zz_catalogue_size()
   -- (runs last by name) the whole catalogue, when it all ran (not under a -p filter),
   -- holds at least 45 cases; and the library still works
-  if groups >= 14 then lu.assertTrue(cases >= 45, "bad-input cases run: " .. cases) end
+  if groups >= 15 then lu.assertTrue(cases >= 45, "bad-input cases run: " .. cases) end
   still_usable("end")
 end

@@ -47,7 +47,10 @@ function M.crossings(J, opts)
   local values = routes.parameter_values(opts[x], "crossings")
   local rest = copy(opts)
   rest[x] = values[1]
-  local params, o = require("steep.integral").split_options(J, rest, { region = true }, "crossings")
+  local params, o = require("steep.integral").split_options(J, rest, { region = true,
+    budget = true }, "crossings")
+  local budget = routes.check_budget(o.budget, "crossings")
+  local clock0, done = os.clock(), 0
   if o.region then o.region = require("steep.integral").check_region(o.region, "crossings", J) end
   local poly0 = J.contour:sample { radius = 50, n = 32 }
   local scale = 1
@@ -61,6 +64,8 @@ function M.crossings(J, opts)
   local prev_factor
   local function add_event(e) events[#events + 1] = e end
   for step, v in ipairs(values) do
+    if budget and os.clock() - clock0 > budget then break end
+    done = step
     local p = with_large(J, params, v)
     local ok, L = pcall(J._landscape, J, p, o.region or region, false)
     if not ok then
@@ -222,7 +227,14 @@ function M.crossings(J, opts)
     track[#track + 1] = { x = v, singularities = cur, saddles = sad }
     ::continue::
   end
-  local out = { events = events, track = track, large = x, values = values, integral = J }
+  local status = "complete"
+  if done < #values then
+    status = format("incomplete: the time budget of %g s was used up after %d of %d values%s",
+      budget, done, #values, done > 0 and format(" (the last one followed: %s = %s)", x,
+      fmtv(values[done])) or "")
+  end
+  local out = { events = events, track = track, large = x, values = values, integral = J,
+    status = status, followed = done }
   return setmetatable(out, { __index = { report = M.crossings_report } })
 end
 
@@ -233,10 +245,12 @@ function M.crossings_report(c, opts)
   local lines = { format("crossing check of %s along %s = %s .. %s (%d values)",
     tostring(c.integral), c.large, fmtv(c.values[1]), fmtv(c.values[#c.values]), #c.values) }
   if #c.events == 0 then
-    lines[#lines + 1] = "no events: no singularity changed side of the contour, no saddles "
-      .. "merged, no Stokes line was crossed"
+    lines[#lines + 1] = format("no events%s: no singularity changed side of the contour, no "
+      .. "saddles merged, no Stokes line was crossed", c.status == "complete" and ""
+      or " over the values followed")
   end
   for i, e in ipairs(c.events) do lines[#lines + 1] = format("%d. [%s] %s", i, e.kind, e.text) end
+  if c.status ~= "complete" then lines[#lines + 1] = "status: " .. c.status end
   return table.concat(lines, "\n")
 end
 

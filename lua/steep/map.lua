@@ -28,6 +28,7 @@ local grid = require "steep.map_grid"
 local draw = require "steep.map_draw"
 local legend = require "steep.map_legend"
 local style = require "steep.map_style"
+local files = require "steep.files"
 
 local cnew, cparts = complex.new, complex.parts
 local cabs = landscape.cabs
@@ -42,6 +43,7 @@ local draw_markers, draw_labels, draw_axes = draw.draw_markers, draw.draw_labels
 local draw_legend, title_lines = legend.draw_legend, legend.title_lines
 
 local M = {}
+local draw_map
 
 ---------------------------------------------------------------------------------------
 -- Options.
@@ -60,6 +62,33 @@ local function check_disc(d, name)
     error(format("map: %s radius must be a positive finite number, got %s", name, tostring(r)), 4)
   end
   return { center = cnew(re, im), radius = r }
+end
+
+-- A window that double precision can draw: its grid nodes, pixels and ticks must be
+-- distinct numbers, so the radius may not be too small for the center's size (the grid
+-- spacing, at least 2r/600, must stay far above the rounding of |center|, about 2e-16
+-- |center|), and nothing may overflow (2r, |center| + r). A window too narrow is refused
+-- when the user gave it; a fitted one is widened to the narrowest drawable.
+local MIN_RELATIVE_RADIUS = 1e-10
+local MAX_EXTENT, MIN_RADIUS = 1e280, 1e-280
+
+local function narrowest(center)
+  return max(MIN_RADIUS, MIN_RELATIVE_RADIUS * cabs(center))
+end
+
+local function check_drawable(d, name)
+  local c = cabs(d.center)
+  if c > MAX_EXTENT or d.radius > MAX_EXTENT then
+    error(format("map: the %s (center %s, radius %.4g) is too large to draw in double precision "
+      .. "(center and radius at most %.0e)", name, tostring(d.center), d.radius, MAX_EXTENT), 4)
+  end
+  if d.radius < narrowest(d.center) then
+    error(format("map: the %s radius %.4g is too small to draw around the center %s: double "
+      .. "precision cannot tell its grid points apart (the radius must be at least %.4g here: "
+      .. "1e-10 times |center|, and never below 1e-280)", name, d.radius, tostring(d.center),
+      narrowest(d.center)), 4)
+  end
+  return d
 end
 
 local function check_int(v, name, lo, hi, default)
@@ -96,7 +125,13 @@ local function fitted_view(J, L)
   end
   if r <= 0 then r = 1 end
   r = max(r, half + 0.25 * r, 1e-3 * R)
-  return { center = cnew(0.5 * (x0 + x1), 0.5 * (y0 + y1)), radius = r }
+  local center = cnew(0.5 * (x0 + x1), 0.5 * (y0 + y1))
+  if r < narrowest(center) then
+    -- features closer together than double precision can draw at their distance from
+    -- the origin: the narrowest drawable window, and a note saying why
+    return { center = center, radius = narrowest(center), widened = true }
+  end
+  return { center = center, radius = r }
 end
 
 ---------------------------------------------------------------------------------------
@@ -112,6 +147,7 @@ function M.map(J, opts)
   end
   local region = o.region and check_disc(o.region, "region")
   local view = o.view and check_disc(o.view, "view")
+  if view then check_drawable(view, "view") elseif region then check_drawable(region, "region") end
   local W = check_int(o.width, "width", 360, 4000, 720)
   local N = check_int(o.grid, "grid", 8, 600, 120)
   local shade = o.shade or "exponent"
@@ -119,6 +155,21 @@ function M.map(J, opts)
     error(format("map: option 'shade' must be \"exponent\" or \"modulus\", got %s",
       tostring(shade)), 2)
   end
+  local nlevels = check_int(o.levels, "levels", 0, 60, 10)
+  -- the file is opened before the work (a bad name fails now, not after it)
+  local writer = files.open(o.file, "map", "file", 2)
+  local ok, summary = pcall(draw_map, J, params, o, region, view, W, N, shade, nlevels, writer)
+  if not ok then
+    writer:discard()
+    error(summary, 0)
+  end
+  local done, why = writer:commit()
+  if not done then error(files.failure("map: " .. why, { file = o.file, summary = summary }), 2) end
+  return o.file, summary
+end
+
+-- The drawing itself, into the writer; returns the summary.
+function draw_map(J, params, o, region, view, W, N, shade, nlevels, writer)
 
   local L = J:_landscape(params, region, true)
   local ok, plan = pcall(decompose.decompose, J, params, L, J.contour)
@@ -126,14 +177,20 @@ function M.map(J, opts)
     plan = { status = "failed", notes = { tostring(plan) }, pieces = {}, residues = {} }
   end
   view = view or region or fitted_view(J, L)
+  local notes = {}
+  if view.widened then
+    notes[#notes + 1] = format("the window was widened to radius %.3g: its features lie closer "
+      .. "together than double precision can draw at their distance from the origin",
+      view.radius)
+  end
 
   -- layout: the plot is a square P pixels wide; title above, legend below
   local ML, MR, MT = 72, 34, 92
   local P = W - ML - MR
   local ctx = { J = J, L = L, plan = plan, params = params, var = J.var.name, N = N,
-    shade = shade, nlevels = check_int(o.levels, "levels", 0, 60, 10),
+    shade = shade, nlevels = nlevels,
     vc = view.center, vr = view.radius, X0 = ML, Y0 = MT, P = P, cw = P / N,
-    body = {}, arrows = {}, labels = {}, marks = {}, looped = {}, present = {} }
+    body = {}, arrows = {}, labels = {}, marks = {}, looped = {}, present = {}, notes = notes }
   ctx.vcx, ctx.vcy = cparts(view.center)
   ctx.out = function(s) ctx.body[#ctx.body + 1] = s end
   local vcx, vcy, vr = ctx.vcx, ctx.vcy, ctx.vr
@@ -151,7 +208,7 @@ function M.map(J, opts)
     status = plan.status, saddles = 0, poles = 0, branch_points = 0, sinks = 0, hills = 0,
     essential = 0, valleys = 0, descent_paths = 0, ascent_paths = 0, pieces = 0,
     residues = 0, cuts = 0, arrows = 0, cells = N * N, rects = 0, level_lines = 0,
-    shade = shade }
+    shade = shade, notes = notes }
   for _, s in ipairs(L.saddles) do
     if ctx.in_view(s.at) then ctx.marks[#ctx.marks + 1] = { ctx.tf(s.at) } end
   end
@@ -187,13 +244,10 @@ function M.map(J, opts)
       min(13, (W - ML - 10) / max(20, utf8.len(sub)) * 1.8), STYLE.soft, esc(sub)),
     "</g>",
   }
-  local f, err = io.open(o.file, "w")
-  if not f then error("map: cannot write " .. tostring(err), 2) end
-  f:write('<?xml version="1.0" encoding="UTF-8"?>\n', concat(head, "\n"), "\n",
+  writer:write('<?xml version="1.0" encoding="UTF-8"?>\n', concat(head, "\n"), "\n",
     concat(ctx.body, "\n"), "\n</svg>\n")
-  f:close()
   ctx.summary.width, ctx.summary.height = W, H
-  return o.file, ctx.summary
+  return ctx.summary
 end
 
 return M

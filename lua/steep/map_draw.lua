@@ -141,7 +141,7 @@ local function draw_rim(ctx)
     return pcx + f * c, pcy + f * s
   end
   local function rim_path(a, b, off)
-    local n = max(2, ceil((b - a) / (pi / 720)))
+    local n = min(1440, max(2, ceil((b - a) / (pi / 720))))
     local parts = {}
     for k = 0, n do
       local x, y = rim_point(a + (b - a) * k / n, off)
@@ -422,13 +422,13 @@ local function draw_axes(ctx)
   local step = nice_step(2 * vr, 7)
   out(format('<g id="axes" font-family="%s" font-size="12" fill="%s">', FONT, STYLE.text))
   local ticks = {}
-  for v = ceil((vcx - vr) / step - 1e-9) * step, vcx + vr + 1e-9 * step, step do
+  for _, v in ipairs(style.multiples(vcx - vr, vcx + vr, step, 40)) do
     local x = X0 + (v - (vcx - vr)) / (2 * vr) * P
     ticks[#ticks + 1] = format("M%.1f %.1fv-6M%.1f %.1fv6", x, Y0 + P, x, Y0)
     out(format('<text class="tick" x="%.1f" y="%.1f" text-anchor="middle">%s</text>', x,
       Y0 + P + 28, tick_label(v, step)))
   end
-  for v = ceil((vcy - vr) / step - 1e-9) * step, vcy + vr + 1e-9 * step, step do
+  for _, v in ipairs(style.multiples(vcy - vr, vcy + vr, step, 40)) do
     local y = Y0 + ((vcy + vr) - v) / (2 * vr) * P
     ticks[#ticks + 1] = format("M%.1f %.1fh6M%.1f %.1fh-6", X0, y, X0 + P, y)
     out(format('<text class="tick" x="%.1f" y="%.1f" text-anchor="end">%s</text>', X0 - 16,

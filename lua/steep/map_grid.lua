@@ -204,7 +204,11 @@ local function height_grid(ctx)
     end
   end
   if not pivot then pivot = #samples > 0 and samples[floor(#samples / 2) + 1] or 0 end
-  if hi - lo < 1e-9 * max(1, abs(hi)) then lo, hi = lo - 1, hi + 1 end
+  -- a range the doubles can resolve at its size (heights of 1e20 that differ by 1
+  -- would give level steps that vanish against them), and finite
+  lo, hi = max(lo, -1e300), min(hi, 1e300)
+  local least = 1e-9 * max(1, abs(hi), abs(lo))
+  if hi - lo < least then lo, hi = lo - least, hi + least end
   local span = hi - lo
   lo, hi = min(lo, pivot - 0.15 * span), max(hi, pivot + 0.15 * span)
   ctx.lo, ctx.hi, ctx.pivot, ctx.pivot_saddle = lo, hi, pivot, pivot_saddle
@@ -253,7 +257,7 @@ local function draw_levels(ctx)
   out('<g id="levels" fill="none" clip-path="url(#plot-area)">')
   if ctx.nlevels > 0 then
     local step = nice_step(ctx.hi - ctx.lo, ctx.nlevels)
-    for c = ceil(ctx.lo / step) * step, ctx.hi, step do
+    for _, c in ipairs(style.multiples(ctx.lo, ctx.hi, step, 4 * ctx.nlevels + 4)) do
       local lines = chain(march(H, N, c))
       if #lines > 0 then
         ctx.summary.level_lines = ctx.summary.level_lines + 1

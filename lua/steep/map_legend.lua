@@ -104,7 +104,7 @@ local function draw_legend(ctx, LY)
     .. 'stroke-width="0.8"/>', X0, CY, P, CH, STYLE.frame))
   local cstep = nice_step(hi - lo, 8)
   local cticks = {}
-  for v = ceil(lo / cstep - 1e-9) * cstep, hi + 1e-9 * cstep, cstep do
+  for _, v in ipairs(style.multiples(lo, hi, cstep, 40)) do
     local x = X0 + (v - lo) / (hi - lo) * P
     cticks[#cticks + 1] = format("M%.1f %.1fv4", x, CY + CH)
     out(format('<text x="%.1f" y="%.1f" text-anchor="middle">%s</text>', x, CY + CH + 15,
@@ -146,6 +146,7 @@ local function draw_legend(ctx, LY)
     notes[#notes + 1] = "deformed contour not drawn (" .. plan.status .. "): "
       .. concat(plan.notes or {}, "; ")
   end
+  for _, n in ipairs(ctx.notes or {}) do notes[#notes + 1] = "note: " .. n end
   for _, n in ipairs(ctx.L.notes or {}) do notes[#notes + 1] = "note: " .. n end
   local NY = CY + CH + 54 + (#caption - 1) * 16
   local lines = {}

@@ -144,11 +144,38 @@ local function step_digits(step)
   return max(0, -floor(math.log(step, 10) + 1e-9))
 end
 
+-- A tick's label: fixed point with as many decimals as the step needs, or (for steps
+-- below 1e-12 or values from 1e15 up, where that would run long) scientific notation with
+-- as many significant digits as the step needs at the value's size.
 local function tick_label(v, step)
   local d = step_digits(step)
-  local s = format("%." .. d .. "f", v)
-  if tonumber(s) == 0 then s = format("%." .. d .. "f", 0) end
+  local big = max(abs(v), step)
+  local s
+  if d <= 12 and big < 1e15 then
+    s = format("%." .. d .. "f", v)
+    if tonumber(s) == 0 then s = format("%." .. d .. "f", 0) end
+  elseif v == 0 or abs(v) < 1e-9 * step then
+    s = "0"
+  else
+    local sig = min(17, max(1, floor(math.log(big, 10)) - floor(math.log(step, 10) + 1e-9) + 1))
+    s = format("%." .. (sig - 1) .. "e", v)
+  end
   return (s:gsub("^%-", "\u{2212}"))
+end
+
+-- The multiples k*step (k whole) from lo to hi, at most max_count of them, each larger
+-- than the one before: a loop `for v = lo, hi, step` never ends where the doubles cannot
+-- resolve the step at the values' size (v + step == v), and fails on a zero step.
+local function multiples(lo, hi, step, max_count)
+  local out = {}
+  if not (finite(lo) and finite(hi) and finite(step) and step > 0 and hi >= lo) then return out end
+  local k0, k1 = math.ceil(lo / step - 1e-9), floor(hi / step + 1e-9)
+  if not (finite(k0) and finite(k1)) or k1 - k0 + 1 > max_count then return out end
+  for i = 0, floor(k1 - k0) do
+    local v = (k0 + i) * step
+    if #out == 0 or v > out[#out] then out[#out + 1] = v end
+  end
+  return out
 end
 
 -- Wraps text to lines of at most n characters (by words).
@@ -170,5 +197,6 @@ M.FONT, M.RAMP, M.BANDS, M.STYLE = FONT, RAMP, BANDS, STYLE
 M.esc, M.hex, M.ramp, M.finite, M.num, M.cnum = esc, hex, ramp, finite, num, cnum
 M.angle_text, M.expr_text, M.contour_text = angle_text, expr_text, contour_text
 M.nice_step, M.step_digits, M.tick_label, M.wrap = nice_step, step_digits, tick_label, wrap
+M.multiples = multiples
 
 return M

@@ -7,6 +7,7 @@ local complex = require "steep.complex"
 local contour_m = require "steep.contour"
 local landscape = require "steep.landscape"
 local routes = require "steep.routes"
+local files = require "steep.files"
 
 local cparts = complex.parts
 local cabs = landscape.cabs
@@ -14,6 +15,54 @@ local format = string.format
 local copy, fmtv, need_table = routes.copy, routes.fmtv, routes.need_table
 
 local M = {}
+
+--- The block of values shard k of n takes from a list of N: first .. last (empty when
+-- last < first). Integer arithmetic: floating point shares lost values at the block
+-- edges (for 15 values in 11 shards the last value belonged to no shard). Shards
+-- partition the list: shard k ends where shard k + 1 begins.
+function M.shard_range(N, k, n)
+  return (k - 1) * N // n + 1, k * N // n
+end
+
+local MAX_SHARDS = 1 << 31   -- k * N stays far inside the integers (N <= 10^6 + 1)
+
+local function check_shard(shard)
+  local k = type(shard) == "table" and math.tointeger(shard[1])
+  local n = type(shard) == "table" and math.tointeger(shard[2])
+  if not (k and n and k >= 1 and k <= n and n <= MAX_SHARDS) then
+    local got = type(shard) == "table"
+      and format("{%s, %s}", tostring(shard[1]), tostring(shard[2])) or tostring(shard)
+    error(format("sweep: option 'shard' must be {k, n} with whole numbers 1 <= k <= n <= 2^31, "
+      .. "got %s", got), 3)
+  end
+  return { k, n }
+end
+
+-- Progress on stderr. On a terminal the count is redrawn in place; otherwise (stderr
+-- going to a log) a line every PROGRESS_EVERY seconds with the count, the rate and the
+-- time left, and one at the end: no carriage returns in a file.
+local PROGRESS_EVERY = 5
+
+local function progress_reporter(total, on_terminal)
+  local start = os.time()
+  local last_line = start
+  return function(done)
+    if on_terminal then
+      io.stderr:write(format("\rsweep: %d/%d", done, total))
+      if done == total then io.stderr:write("\n") end
+      return
+    end
+    local now = os.time()
+    if done == total then
+      io.stderr:write(format("sweep: %d/%d values done in %d s\n", done, total, now - start))
+    elseif now - last_line >= PROGRESS_EVERY then
+      last_line = now
+      local rate = done / math.max(now - start, 1)
+      io.stderr:write(format("sweep: %d/%d values, %.3g values/s, about %d s left\n", done,
+        total, rate, math.floor((total - done) / rate + 0.5)))
+    end
+  end
+end
 
 --- J:sweep{x = {list} | {from =, to =, steps =}, order = N, csv = file, shard = {k, n},
 -- progress = true|false, <other params>} -> rows
@@ -42,28 +91,29 @@ function M.sweep(J, opts)
   local shard = opts.shard
   local first, last = 1, #values
   if shard ~= nil then
-    if type(shard) ~= "table" or type(shard[1]) ~= "number" or type(shard[2]) ~= "number"
-        or shard[1] < 1 or shard[1] > shard[2] or shard[1] ~= math.floor(shard[1])
-        or shard[2] ~= math.floor(shard[2]) then
-      error("sweep: option 'shard' must be {k, n} with 1 <= k <= n", 2)
-    end
-    local per = #values / shard[2]
-    first = math.floor((shard[1] - 1) * per) + 1
-    last = math.floor(shard[1] * per)
+    shard = check_shard(shard)
+    first, last = M.shard_range(#values, shard[1], shard[2])
   end
+  local budget = routes.check_budget(opts.budget, "sweep")
   local fixed = {}
   for k, v in pairs(opts) do
     if k ~= x and k ~= "order" and k ~= "csv" and k ~= "shard" and k ~= "progress"
         and k ~= "continuation" and k ~= "region" and k ~= "budget" then fixed[k] = v end
   end
   local progress = opts.progress
-  if progress == nil then progress = core.isatty and core.isatty(2) and (last - first) > 20 end
+  if progress ~= nil and type(progress) ~= "boolean" then
+    error("sweep: option 'progress' must be true or false, got " .. type(progress), 2)
+  end
+  if progress == nil then progress = (last - first) >= 20 end
+  local report_progress = progress and progress_reporter(last - first + 1, core.isatty(2))
+  -- the CSV file is opened before the work: a bad name fails now, not after the sweep
+  local writer = opts.csv ~= nil and files.open(opts.csv, "sweep", "csv", 2)
   local continuation = opts.continuation ~= false
   local rows = {}
   local prev
-  local budget = routes.check_budget(opts.budget, "sweep")
   local clock0 = os.clock()
-  local out_status = "complete"
+  local skipped = 0
+  local ok_loop, loop_err = pcall(function()
   for i = first, last do
     local v = values[i]
     local p = copy(fixed)
@@ -71,7 +121,8 @@ function M.sweep(J, opts)
     local row = { x = v }
     if budget and os.clock() - clock0 > budget then
       row.failure = format("not computed: the time budget of %g s was used up", budget)
-      out_status = "incomplete: time budget reached"
+      row.skipped = true
+      skipped = skipped + 1
       rows[#rows + 1] = row
       goto next_value
     end
@@ -121,23 +172,51 @@ function M.sweep(J, opts)
     end)
     if not ok then row.failure = tostring(err); prev = nil end
     rows[#rows + 1] = row
-    if progress then
-      io.stderr:write(format("\rsweep: %d/%d", i - first + 1, last - first + 1))
-      if i == last then io.stderr:write("\n") end
-    end
     end
     ::next_value::
+    if report_progress then report_progress(i - first + 1) end
+  end
+  end)
+  if not ok_loop then
+    if writer then writer:discard() end
+    error(loop_err, 0)
   end
   local out = { rows = rows, large = x, order = order, integral = J, shard = shard,
-    status = out_status }
+    status = M.status(rows, skipped, budget), first = first, last = last }
   setmetatable(out, { __index = { report = M.sweep_report, csv = M.sweep_csv } })
-  if opts.csv then
-    local f, e = io.open(opts.csv, "w")
-    if not f then error("sweep: cannot write " .. tostring(opts.csv) .. ": " .. tostring(e), 2) end
-    f:write(out:csv(not shard or shard[1] == 1))
-    f:close()
+  if writer then
+    writer:write(out:csv(not shard or shard[1] == 1))
+    local done, why = writer:commit()
+    if not done then
+      error(files.failure("sweep: " .. why .. " (the computed rows are kept: the error's "
+        .. "field result is the sweep)", out), 2)
+    end
   end
   return out
+end
+
+--- The sweep's status: "complete" when every row was computed, otherwise "incomplete"
+-- with the counts of failed rows (the first reason quoted) and of rows the time budget
+-- left out.
+function M.status(rows, skipped, budget)
+  local failed, first_reason, at = 0, nil, nil
+  for _, r in ipairs(rows) do
+    if r.failure and not r.skipped then
+      failed = failed + 1
+      if not first_reason then first_reason, at = r.failure, r.x end
+    end
+  end
+  if failed == 0 and skipped == 0 then return "complete" end
+  local parts = {}
+  if failed > 0 then
+    parts[#parts + 1] = format("%d of %d rows failed (first at %s: %s)", failed, #rows, fmtv(at),
+      (first_reason:gsub("\n.*", "")))
+  end
+  if skipped > 0 then
+    parts[#parts + 1] = format("%d of %d rows not computed (time budget of %g s reached)",
+      skipped, #rows, budget)
+  end
+  return "incomplete: " .. table.concat(parts, "; ")
 end
 
 -- A complex column is two fields (re, im), a real column one; a missing value (a failed
@@ -151,6 +230,13 @@ end
 local function csv_real(v)
   if v == nil then return "" end
   return format("%.17g", (cparts(v)))
+end
+
+-- A boolean field: true or false, empty where the row has no value (a failed row);
+-- `computed` says a missing value means false (a flag only set when it holds).
+local function csv_bool(v, computed)
+  if v == nil and not computed then return "" end
+  return tostring(v and true or false)
 end
 
 -- A quoted text field: inner quotes and line breaks would split the field or the line.
@@ -167,7 +253,7 @@ function M.sweep_csv(sw, header)
   for _, r in ipairs(sw.rows) do
     lines[#lines + 1] = table.concat({ csv_complex(r.x), csv_complex(r.expansion),
       csv_real(r.error), csv_complex(r.quad), csv_real(r.quad_error), csv_real(r.relative_error),
-      csv_real(r.estimated), tostring(r.agrees), tostring(r.stokes or false),
+      csv_real(r.estimated), csv_bool(r.agrees), csv_bool(r.stokes, r.expansion ~= nil),
       csv_text(r.valleys), csv_text(r.failure) }, ",")
   end
   return table.concat(lines, "\n") .. "\n"
@@ -198,6 +284,7 @@ function M.sweep_report(sw, opts)
   end
   lines[#lines + 1] = format("saddles followed from the previous step at %d values, searched "
     .. "for in the whole region at %d", continued, searched)
+  lines[#lines + 1] = "status: " .. tostring(sw.status)
   return table.concat(lines, "\n")
 end
 
