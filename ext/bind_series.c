@@ -16,6 +16,8 @@ typedef struct {
 
 #define checkseries(L, i) ((series *)luaL_checkudata(L, i, STEEP_SERIES_MT))
 
+static int finite_c(cplx z) { return isfinite(creal(z)) && isfinite(cimag(z)); }
+
 static series *newseries(lua_State *L, size_t n) {
   series *s = lua_newuserdatauv(L, sizeof(series) + n * sizeof(cplx), 0);
   s->n = n;
@@ -37,6 +39,9 @@ static int series_new(lua_State *L) {
     if (!bind_tocomplex(L, -1, &s->c[k - 1]))
       return luaL_error(L, "bad argument #1 to 'series' (coefficient %I is a %s, "
                         "number or complex expected)", k, luaL_typename(L, -1));
+    if (!finite_c(s->c[k - 1]))
+      return luaL_error(L, "bad argument #1 to 'series' (coefficient %I is not finite: a NaN "
+                        "or an infinity)", k);
     lua_pop(L, 1);
   }
   return 1;
@@ -51,6 +56,8 @@ static const cplx *operand(lua_State *L, int i, size_t n, size_t *len) {
   if (!bind_tocomplex(L, i, &z))
     luaL_error(L, "series arithmetic with a %s (number, complex or series expected)",
                luaL_typename(L, i));
+  if (!finite_c(z))
+    luaL_error(L, "series arithmetic with a value that is not finite (a NaN or an infinity)");
   cplx *c = bind_array(L, n, sizeof(cplx));
   memset(c, 0, n * sizeof(cplx));
   c[0] = z;
@@ -95,6 +102,7 @@ static int series_unm(lua_State *L) {
 static int series_pow(lua_State *L) {
   series *a = checkseries(L, 1);
   cplx p = bind_checkcomplex(L, 2);
+  if (!finite_c(p)) return luaL_error(L, "series power: the exponent is not finite (a NaN or an infinity)");
   size_t n = a->n;
   int isint = 0;
   lua_Integer m = lua_isinteger(L, 2) ? (isint = 1, lua_tointeger(L, 2)) : 0;

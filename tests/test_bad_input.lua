@@ -151,6 +151,15 @@ function TestBadInput:test_series()
     function() return S { 0, 1 } + "a" end)
   bad({ "series integ: the order would exceed 256" },
     function() local c = {} for k = 1, 257 do c[k] = 1 end return S(c):integ() end)
+  -- NaN and infinities are refused where they enter (they gave NaN coefficients silently)
+  bad({ "bad argument #1 to 'series'", "coefficient 1 is not finite: a NaN or an infinity" },
+    S, { 0 / 0, 1 })
+  bad({ "coefficient 2 is not finite" }, S, { 1, C(0, math.huge) })
+  bad({ "series power: the exponent is not finite" }, function() return S { 1, 1 } ^ (0 / 0) end)
+  bad({ "series power: the exponent is not finite" }, function() return S { 1, 1 } ^ C(1, 0 / 0) end)
+  bad({ "series arithmetic with a value that is not finite" }, function() return S { 1, 1 } + 0 / 0 end)
+  bad({ "series arithmetic with a value that is not finite" },
+    function() return math.huge * S { 1, 1 } end)
   -- a good series operation afterwards
   local r = S { 0, 1, 1 }:revert()
   H.close(r:coef(2), -1, 1e-15, "revert of z + z^2: coefficient of z^2 is -1 (exact)")
@@ -530,6 +539,16 @@ function TestBadInput:test_hostile_sizes()
   for _ = 1, 400000 do chain = chain + t end
   bad({ "compile: the expression is too large for a tape (500000 distinct operations" },
     steep.compile, chain, t)
+  -- derivative and substitution of an expression nested 2*10^5 deep (they recursed and
+  -- overflowed Lua's stack): t + t + ... + t, 200001 terms, has derivative 200001 and
+  -- value 400002 at t = 2 (exact integers; constants fold as they are built)
+  local deep = t
+  for _ = 1, 200000 do deep = deep + t end
+  local dd = steep.diff(deep, t)
+  lu.assertEquals(dd:value({}), C(200001, 0), "derivative of the 2*10^5-deep chain")
+  lu.assertEquals(steep.substitute(deep, { [t] = 2 }):value({}), C(400002, 0),
+    "substitution into the 2*10^5-deep chain")
+  deep, dd = nil, nil
   chain, tape = nil, nil
   collectgarbage("collect")
 
