@@ -594,14 +594,18 @@ function M.valley_of(valleys, th, tol)
   local boundary, edge
   for k, v in ipairs(valleys) do
     if v.type == "strip" then goto next_valley end
-    local d = norm_angle(th - v.from)
-    local width = v.to - v.from
-    if v.type == "edge" or v.type == "line" then
-      if abs(d) <= math.max(tol, 1e-6) then edge = edge or k end
-    elseif d > tol and d < width - tol then
-      return k, false
-    elseif abs(d) <= math.max(tol, 1e-6) or abs(d - width) <= math.max(tol, 1e-6) then
-      boundary = boundary or k
+    do
+      local width = v.to - v.from
+      local t2 = math.max(tol, 1e-6)
+      -- the angle past the sector's start, in [0, 2 pi)
+      local d = (th - v.from) % (2 * pi)
+      if v.type == "edge" or v.type == "line" then
+        if d <= t2 or d >= 2 * pi - t2 then edge = edge or k end
+      elseif width >= 2 * pi - tol or (d > tol and d < width - tol) then
+        return k, false
+      elseif d <= t2 or d >= 2 * pi - t2 or abs(d - width) <= t2 then
+        boundary = boundary or k
+      end
     end
     ::next_valley::
   end
@@ -637,9 +641,23 @@ end
 --- ray_valley(L, a, th) -> index, boundary: the valley in which the ray from a in
 -- direction th ends (a sector: by th alone; a strip: the one holding the ray's line),
 -- and whether the ray runs along the valley's edge; nil when it ends in none.
-function M.ray_valley(L, a, th)
+function M.ray_valley(L, a, th, tol)
   local k, boundary = M.valley_of(L.valleys, th)
   if k then return k, boundary end
+  if tol then
+    -- (a contour end on the edge of a valley whose edge moved a little: the phase of the
+    -- exponent turned on a Stokes line) the nearest sector edge within tol
+    local best, bk = tol, nil
+    for j, v in ipairs(L.valleys) do
+      if v.type ~= "strip" then
+        for _, e in ipairs({ v.from, v.to }) do
+          local d = abs(norm_angle(th - e))
+          if d <= best then best, bk = d, j end
+        end
+      end
+    end
+    if bk then return bk, true end
+  end
   local f = family_at(L, th)
   if not f then return nil end
   local y = infinity.strip_coords(a, f.direction)
