@@ -195,7 +195,8 @@ local function solve_by_ends(L, boundary, fixed, free)
   for _, j in ipairs(free) do
     local d = L.paths[j].descent
     for k = 1, #d do
-      if not (d[k].ends:match("^valley %d+$") or d[k].ends:match("^sink %d+$")) then return nil end
+      if not (d[k].ends:match("^valley %d+$") or d[k].ends:match("^sink %d+$")
+          or d[k].ends:match("^essential ")) then return nil end
     end
     for k = 1, #d - 1 do cols[#cols + 1] = { j = j, k = k, plus = d[#d].ends, minus = d[k].ends } end
   end
@@ -674,7 +675,7 @@ function M.decompose_uncached(J, params, L, contour, opts)
   for _, piece in ipairs(plan.pieces) do
     for _, label in ipairs(piece.ends) do
       if label ~= "point" and not (label:match("^valley") or label:match("^sink")
-          or label:match("^saddle")) then
+          or label:match("^saddle") or label:match("^essential")) then
         plan.status = plan.status == "ok" and "incomplete" or plan.status
         plan.notes[#plan.notes + 1] = format("a steepest descent path of the %s %s ends at "
           .. "'%s', not in a valley or a sink: the deformation is not settled",
@@ -733,6 +734,9 @@ function M.decompose_uncached(J, params, L, contour, opts)
     -- there exactly; a gap would leave the winding numbers short of an integer)
     local dj = label:match("^saddle (%d+)$")
     if dj then return { { z, L.saddles[tonumber(dj)].at } } end
+    -- into an essential singularity through one of its valley sectors
+    local ej = label:match("^essential (%d+):")
+    if ej then return { { z, L.singularities[tonumber(ej)].at } } end
     return nil
   end
   local cycle = { { cvec, 1 } }
@@ -767,8 +771,9 @@ function M.decompose_uncached(J, params, L, contour, opts)
       w = w + item[2] * t
     end
     local n = floor(w + 0.5)
-    if not ok and s.kind == "sink" then
-      -- a path ends at the sink (the integrand vanishes there): no residue
+    if not ok and (s.kind == "sink" or (s.kind == "essential" and s.sectors)) then
+      -- a path ends at the sink, or at an essential singularity through a valley sector
+      -- (the integrand vanishes there): no residue
     elseif not ok then
       plan.status = "incomplete"
       plan.notes[#plan.notes + 1] = format("a steepest path passes through the %s at %s",
