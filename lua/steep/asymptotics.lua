@@ -24,7 +24,8 @@ local function exp_c(z) return cexp("exp", complex.new(cparts(z))) end
 local function raw_count(order, m, symmetric)
   local per = symmetric and m or 1
   if order == "optimal" then return math.min(120, 250 - m) end
-  return math.min(per * (order + 2) + m, 250 - m)
+  -- (three omitted terms: the error estimate reads how the series goes on)
+  return math.min(per * (order + 4) + m, 250 - m)
 end
 
 local function check_order(order, fname)
@@ -68,10 +69,11 @@ local function saddle_contribution(J, params, L, j, rays, order, plan)
   local value, err, used = expand.truncate(terms, order, scale, cabs(F0))
   local kind = m == 2 and "saddle" or format("saddle of order %d", m)
   if at_endpoint then kind = kind .. " at an endpoint" end
-  local tl = {}
+  local tl, omitted = {}, {}
   for k = 1, used do tl[k] = terms[k] * scale end
+  for k = used + 1, math.min(#terms, used + 3) do omitted[#omitted + 1] = terms[k] * scale end
   return { kind = kind, at = s.at, order = m, weights = c, F = F0, value = value,
-    error = err, terms = tl, powers = powers, used = used,
+    error = err, terms = tl, omitted = omitted, powers = powers, used = used,
     dominance = cparts(F0) }
 end
 
@@ -85,11 +87,12 @@ local function endpoint_contribution(J, params, piece, order)
   local terms = expand.endpoint_terms(b, beta, nraw)
   local scale = exp_c(Fa) * piece.weight
   local value, err, used = expand.truncate(terms, order, scale, cabs(Fa))
-  local tl = {}
+  local tl, omitted = {}, {}
   for k = 1, used do tl[k] = terms[k] * scale end
+  for k = used + 1, math.min(#terms, used + 3) do omitted[#omitted + 1] = terms[k] * scale end
   return { kind = beta and format("endpoint with factor (t-a)^%g", beta) or "endpoint",
     at = piece.at, weight = piece.weight, F = Fa, value = value, error = err, terms = tl,
-    used = used, dominance = cparts(Fa), beta = beta }
+    omitted = omitted, used = used, dominance = cparts(Fa), beta = beta }
 end
 
 local function residue_contribution(L, r)
