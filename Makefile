@@ -23,7 +23,8 @@ MODULE      = lua/steep/core.so
 ASAN_MODULE = ext/asan/steep/core.so
 SAN_FLAGS   = -fsanitize=address,undefined -fno-sanitize-recover=all -fno-omit-frame-pointer
 KERNEL_SRC  = ext/series.c ext/tape.c ext/problem.c ext/quad.c ext/geom.c ext/roots.c ext/path.c \
-              ext/invmap.c ext/rings.c
+              ext/invmap.c ext/rings.c ext/airy.c
+KERNEL_TESTS = tests/c/test_kernels.c tests/c/test_airy.c
 
 .PHONY: all deps test asan memcheck fuzz bench demo install uninstall env clean help
 
@@ -37,11 +38,11 @@ $(ASAN_MODULE): $(SRC) $(HDR)
 	$(CC) $(WARN) -O1 -g -fPIC -shared $(SAN_FLAGS) $(PKG_CFLAGS) -o $@ $(SRC) $(PKG_LIBS) -lm
 
 # C-level tests of the numerical kernels (no Lua involved).
-tests/c/test_kernels: tests/c/test_kernels.c $(KERNEL_SRC) $(HDR)
-	$(CC) $(WARN) -O2 -Iext -o $@ tests/c/test_kernels.c $(KERNEL_SRC) -lm
+tests/c/test_kernels: $(KERNEL_TESTS) tests/c/kernel_check.h $(KERNEL_SRC) $(HDR)
+	$(CC) $(WARN) -O2 -Iext -o $@ $(KERNEL_TESTS) $(KERNEL_SRC) -lm
 
-tests/c/test_kernels_asan: tests/c/test_kernels.c $(KERNEL_SRC) $(HDR)
-	$(CC) $(WARN) -O1 -g $(SAN_FLAGS) -Iext -o $@ tests/c/test_kernels.c $(KERNEL_SRC) -lm
+tests/c/test_kernels_asan: $(KERNEL_TESTS) tests/c/kernel_check.h $(KERNEL_SRC) $(HDR)
+	$(CC) $(WARN) -O1 -g $(SAN_FLAGS) -Iext -o $@ $(KERNEL_TESTS) $(KERNEL_SRC) -lm
 
 # GSL and libcerf reference values for the Lua tests (test-only, never installed; the
 # plain build serves make asan too).

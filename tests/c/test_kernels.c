@@ -3,7 +3,8 @@
  * identities that must hold to rounding on seeded random coefficients; quadrature
  * (quad.c) on exact integrals; polyline geometry (geom.c) on figures whose winding and
  * crossing numbers are known; zeros (roots.c) of a polynomial with known roots; steepest
- * paths (path.c) and samples on circles (rings.c) over tapes built by hand. Prints one line
+ * paths (path.c) and samples on circles (rings.c) over tapes built by hand; the Airy
+ * functions (airy.c) in test_airy.c. Prints one line
  * `kernels: N passed, M failed` and exits non-zero on failure.
  */
 #include <limits.h>
@@ -21,18 +22,19 @@
 #include "problem.h"
 #include "rings.h"
 #include "tape.h"
+#include "kernel_check.h"
 
 #define PI 3.14159265358979323846
 
 static int passed, failed;
 static unsigned long long rng_state = 0x9e3779b97f4a7c15ULL;
 
-static double rnd(void) {   /* uniform in [-1, 1) */
+double rnd(void) {   /* uniform in [-1, 1) */
   rng_state = rng_state * 6364136223846793005ULL + 1442695040888963407ULL;
   return (double)(rng_state >> 11) / (double)(1ULL << 52) - 1.0;
 }
 
-static void check(int ok, const char *what) {
+void check(int ok, const char *what) {
   if (ok) passed++;
   else { failed++; printf("FAIL %s (seed state %llu)\n", what, rng_state); }
 }
@@ -820,6 +822,7 @@ int main(void) {
   test_invmap_budget();
   test_rings();
   test_dual();
+  test_airy();
   printf("kernels: %d passed, %d failed\n", passed, failed);
   return failed ? 1 : 0;
 }

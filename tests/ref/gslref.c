@@ -59,6 +59,13 @@ static int l_airy_Bi(lua_State *L)
   return push_result(L, "airy_Bi", st, &r);
 }
 
+static int l_airy_Bi_deriv(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_airy_Bi_deriv_e(luaL_checknumber(L, 1), GSL_PREC_DOUBLE, &r);
+  return push_result(L, "airy_Bi_deriv", st, &r);
+}
+
 static int l_bessel_Jn(lua_State *L)
 {
   gsl_sf_result r;
@@ -157,6 +164,7 @@ static const luaL_Reg funcs[] = {
   { "airy_Ai", l_airy_Ai },
   { "airy_Ai_deriv", l_airy_Ai_deriv },
   { "airy_Bi", l_airy_Bi },
+  { "airy_Bi_deriv", l_airy_Bi_deriv },
   { "bessel_Jn", l_bessel_Jn },
   { "erfc", l_erfc },
   { "expint_E1", l_expint_E1 },
