@@ -8,7 +8,7 @@ LUA_SHARE   = $(PREFIX)/share/lua/5.4
 
 # Debian packages the build and the tests need (make deps installs the missing ones).
 DEB_PACKAGES = gcc make pkg-config lua5.4 liblua5.4-dev libgsl-dev libcerf-dev lua-unit lua-cjson \
-               valgrind clang libclang-rt-14-dev librsvg2-bin
+               valgrind clang libclang-rt-14-dev librsvg2-bin libgmp-dev
 
 CC         ?= cc
 WARN        = -std=c99 -Wall -Wextra -Werror
@@ -44,10 +44,10 @@ tests/c/test_kernels: $(KERNEL_TESTS) tests/c/kernel_check.h $(KERNEL_SRC) $(HDR
 tests/c/test_kernels_asan: $(KERNEL_TESTS) tests/c/kernel_check.h $(KERNEL_SRC) $(HDR)
 	$(CC) $(WARN) -O1 -g $(SAN_FLAGS) -Iext -o $@ $(KERNEL_TESTS) $(KERNEL_SRC) -lm
 
-# GSL and libcerf reference values for the Lua tests (test-only, never installed; the
-# plain build serves make asan too).
+# GSL, libcerf and exact-rational (GMP) reference values for the Lua tests (test-only,
+# never installed; the plain build serves make asan too).
 tests/ref/gslref.so: tests/ref/gslref.c
-	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) $(CFLAGS) -o $@ tests/ref/gslref.c $(PKG_LIBS) -lcerf -lm $(LDFLAGS)
+	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) $(CFLAGS) -o $@ tests/ref/gslref.c $(PKG_LIBS) -lcerf -lgmp -lm $(LDFLAGS)
 
 # A C program embedding Lua with the extension linked in, two threads with a lua_State
 # each (tests/embed/host.c; tests/test_embed.lua runs it).

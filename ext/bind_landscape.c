@@ -378,6 +378,7 @@ static int invmap_results(lua_State *L, int st, const cplx *G, size_t N, double 
 /* core.invmap_circle(tape, params, t0, F0, m, s, rho, N [, ncoef]) -> status, cvec of G
  * values; with ncoef: status, coefficients (N points), coefficients (N/2 points), max|G| */
 static int land_invmap(lua_State *L) {
+  lua_settop(L, 9);   /* (an absent ncoef reads as nil, not as the scratch pushed next) */
   problem *p = checkproblem(L);
   cplx t0 = bind_checkcomplex(L, 3), F0 = bind_checkcomplex(L, 4);
   int m = (int)luaL_checkinteger(L, 5);
@@ -397,6 +398,7 @@ static int land_invmap(lua_State *L) {
 /* core.invmap_cubic(tape, params, t1, A, zeta, ua, tprime, rho, N [, ncoef]) -> as
  * core.invmap_circle */
 static int land_invmap_cubic(lua_State *L) {
+  lua_settop(L, 10);   /* (as above) */
   problem *p = checkproblem(L);
   cplx t1 = bind_checkcomplex(L, 3), A = bind_checkcomplex(L, 4);
   cplx zeta = bind_checkcomplex(L, 5), ua = bind_checkcomplex(L, 6);
