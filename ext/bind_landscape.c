@@ -248,11 +248,21 @@ static cplx integrand(void *ctx, cplx t) {
 
 static const char *quad_text[] = {"ok", "limit", "nonfinite"};
 
+/* The integrand in batches (problem_integrand_batch) with its scratch memory. */
+typedef struct { problem *p; cplx *work, *out; } batch_ctx;
+
+static void integrand_batch(void *ctx, const cplx *t, size_t m, cplx *f) {
+  batch_ctx *c = ctx;
+  problem_integrand_batch(c->p, t, m, f, c->work, c->out);
+}
+
+static cplx integrand_one(void *ctx, cplx t) { return integrand(((batch_ctx *)ctx)->p, t); }
+
 /* core.quad_polyline(tape, params, points, opts) -> value, error, evaluations, status
  * opts: abstol, reltol, singular_start, singular_end (tanh-sinh on that segment), limit
- * (subintervals per segment), budget (evaluations in all; past it: status "limit").
- * Two passes: one Kronrod rule per segment gives the size of the integral; then every
- * segment whose error exceeds its share of the tolerance is subdivided. */
+ * (subintervals per segment), budget (evaluations in all; past it: status "limit"),
+ * first, last (integrate the points first..last only, 1-based; default all).
+ * The two passes of quad_polyline (quad.h), the first with batch evaluation of the tape. */
 static int land_quad_polyline(lua_State *L) {
   problem *p = checkproblem(L);
   size_t n = 0;
@@ -267,43 +277,18 @@ static int land_quad_polyline(lua_State *L) {
   int sing1 = lua_toboolean(L, -1);
   lua_pop(L, 2);
   if (n < 2) return luaL_error(L, "quad_polyline: needs at least 2 points");
-  size_t nseg = n - 1;
-  cplx *res = bind_scratch(L, nseg * sizeof(cplx));
-  double *err = bind_scratch(L, nseg * sizeof(double));
+  size_t first = (size_t)optint(L, 4, "first", 1, 1, (long)n - 1);
+  size_t last = (size_t)optint(L, 4, "last", (long)n, (long)first + 1, (long)n);
+  pts += first - 1;
+  n = last - first + 1;
+  batch_ctx c = {p, bind_scratch(L, p->t->n * TAPE_BLOCK * sizeof(cplx)),
+                 bind_scratch(L, p->t->nout * 15 * QUAD_BATCH * sizeof(cplx))};
+  void *scratch = bind_scratch(L, QUAD_POLYLINE_BYTES(n - 1));
   long evals = 0;
-  int status = QUAD_OK;
-  double size = 0;
-  for (size_t k = 0; k < nseg; k++) {
-    int singular = (k == 0 && sing0) || (k == nseg - 1 && sing1);
-    if (singular) {
-      int st = quad_tanhsinh(integrand, p, pts[k], pts[k + 1], abstol, reltol, &res[k],
-                             &err[k], &evals);
-      if (st != QUAD_OK) status = st;
-    } else {
-      double rabs;
-      quad_gk15(integrand, p, pts[k], pts[k + 1], &res[k], &err[k], &rabs);
-      evals += 15;
-      size += rabs;
-      continue;
-    }
-    size += cabs(res[k]);
-  }
-  /* the target is relative to the integral of |f| (cancellation is not chased) */
-  double target = fmax(abstol, reltol * size);
-  cplx total = 0;
-  double etotal = 0;
-  for (size_t k = 0; k < nseg; k++) {
-    int singular = (k == 0 && sing0) || (k == nseg - 1 && sing1);
-    if (evals > budget) status = QUAD_LIMIT;   /* keep the one-rule estimates */
-    else if (!singular && err[k] > target / (double)nseg) {
-      int st = quad_adaptive(integrand, p, pts[k], pts[k + 1], target / (double)nseg, 0, limit,
-                             &res[k], &err[k], &evals);
-      if (st != QUAD_OK) status = st;
-    }
-    total += res[k];
-    etotal += err[k];
-  }
-  if (!isfinite(creal(total)) || !isfinite(cimag(total))) status = QUAD_NONFINITE;
+  cplx total;
+  double etotal;
+  int status = quad_polyline(integrand_one, integrand_batch, &c, pts, n, abstol, reltol, limit,
+                             budget, sing0, sing1, scratch, &total, &etotal, &evals);
   bind_pushcomplex(L, total);
   lua_pushnumber(L, etotal);
   lua_pushinteger(L, evals);

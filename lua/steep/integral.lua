@@ -256,8 +256,12 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
   end
   local sing, sinfo = landscape.singularities(J, params, region)
   L.singularities, L.singularity_info = sing, sinfo
-  local seeds = {}
-  for _, z in ipairs(J.contour:finite_points()) do seeds[#seeds + 1] = z end
+  -- the contour's finite points seed Newton too; of a path of many points, 64 spread
+  -- along it (the search of the region finds the rest)
+  local seeds, fp = {}, J.contour:finite_points()
+  local stride = math.max(1, #fp // 64)
+  for k = 1, #fp, stride do seeds[#seeds + 1] = fp[k] end
+  if #fp > 0 and seeds[#seeds] ~= fp[#fp] then seeds[#seeds + 1] = fp[#fp] end
   local saddles, info = landscape.saddles(J, params, region, sing, seeds)
   L.saddles, L.saddle_count = saddles, info
   L.valleys, L.growth = landscape.valleys(J, params, region)
@@ -406,7 +410,10 @@ local function quad_given(J, params, L)
   local total, err, evals, status = cnew(0, 0), 0, 0, "ok"
   local notes = {}
   local R = L.region.radius
-  decompose.check_contour(L, J.contour, J.contour:sample { radius = 8 * R, n = 64 })
+  local poly, runs = J.contour:polyline(8 * R)
+  decompose.check_contour(L, J.contour, poly)
+  local run_at = {}
+  for _, run in ipairs(runs) do run_at[run.first] = run end
   -- an end at infinity outside every valley: the integral diverges there. Said before
   -- integrating where the valleys are exact (polynomial growth); said after, from the
   -- value, where they are indicative (found by sampling).
@@ -428,11 +435,22 @@ local function quad_given(J, params, L)
       diverges(p)
     end
   end
-  for _, p in ipairs(J.contour.pieces) do
+  local pieces = J.contour.pieces
+  local i = 1
+  while i <= #pieces do
+    local p = pieces[i]
     local v, e, ev, st
     if p.kind == "segment" then
-      v, e, ev, st = core.quad_polyline(J.tape, params, { p.a, p.b }, { reltol = QUAD_REL,
-        singular_start = singular_at(L, p.a) ~= nil, singular_end = singular_at(L, p.b) ~= nil })
+      -- a run of segments is one stretch of the polyline, integrated segment by segment
+      -- in one C call with no Lua value per point (check_contour has made sure no
+      -- singular point lies between its ends)
+      local run = run_at[i]
+      v, e, ev, st = core.quad_polyline(J.tape, params, poly, { reltol = QUAD_REL,
+        first = run.from, last = run.to,
+        singular_start = singular_at(L, p.a) ~= nil,
+        singular_end = singular_at(L, pieces[run.last].b) ~= nil,
+        budget = 2000000 + 64 * (run.to - run.from) })
+      i = run.last
     elseif p.kind == "ray_out" then
       v, e, ev, st = quad_ray(J, params, L, p.a, p.angle, 1, singular_at(L, p.a) ~= nil, notes)
     elseif p.kind == "ray_in" then
@@ -446,6 +464,7 @@ local function quad_given(J, params, L)
     end
     total, err, evals = total + v, err + e, evals + ev
     if st ~= "ok" then status = st end
+    i = i + 1
   end
   return total, err, { status = status, evals = evals, notes = notes, along = "given" }
 end
@@ -542,9 +561,15 @@ function M.quad_with(J, params, L, along)
   -- finite contour points); plus a few units in the last place of the result
   local Fmax = 0
   for _, s in ipairs(L.saddles) do Fmax = math.max(Fmax, cabs(s.F)) end
-  for _, z in ipairs(J.contour:finite_points()) do
-    local ok, F = pcall(J.tape.eval, J.tape, z, params)
-    if ok and cabs(F) == cabs(F) and cabs(F) < huge then Fmax = math.max(Fmax, cabs(F)) end
+  -- (F at the finite points of the contour in one batch, singular ones skipped; of a
+  -- path of many points, 4096 spread along it and its ends)
+  local fp, pts = J.contour:finite_points(), {}
+  local stride = math.max(1, #fp // 4096)
+  for k = 1, #fp, stride do pts[#pts + 1] = fp[k] end
+  pts[#pts + 1] = fp[#fp]
+  if #fp > 0 then
+    local Fvals = J.tape:eval_many(core.cvec(pts), params)
+    Fmax = math.max(Fmax, (Fvals:maxabs()))
   end
   e = math.max(e, (4 + Fmax) * 2.2e-16 * cabs(v))
   info.landscape = L
