@@ -160,7 +160,7 @@ static int land_trace(lua_State *L) {
   lua_getfield(L, 5, "stops");
   int si = lua_gettop(L);
   const cplx *stops = lua_isnil(L, si) ? NULL : bind_checkpoints(L, si, &ns);
-  double *stop_r = bind_scratch(L, (ns + 1) * sizeof(double));
+  double *stop_r = bind_array(L, ns + 1, sizeof(double));
   lua_getfield(L, 5, "stop_r");
   for (size_t j = 0; j < ns; j++) {
     lua_geti(L, -1, (lua_Integer)j + 1);
@@ -170,7 +170,7 @@ static int land_trace(lua_State *L) {
   o.stops = stops;
   o.stop_r = stop_r;
   o.nstops = ns;
-  cplx *pts = bind_buffer(L, 2 * maxpts * sizeof(cplx)), *Fs = pts + maxpts;
+  cplx *pts = bind_buffer(L, bind_mulcount(L, 2 * maxpts, sizeof(cplx))), *Fs = pts + maxpts;
   int buffer = lua_gettop(L);
   size_t n = 0;
   int which = -1;
@@ -281,9 +281,9 @@ static int land_quad_polyline(lua_State *L) {
   size_t last = (size_t)optint(L, 4, "last", (long)n, (long)first + 1, (long)n);
   pts += first - 1;
   n = last - first + 1;
-  batch_ctx c = {p, bind_scratch(L, p->t->n * TAPE_BLOCK * sizeof(cplx)),
-                 bind_scratch(L, p->t->nout * 15 * QUAD_BATCH * sizeof(cplx))};
-  void *scratch = bind_scratch(L, QUAD_POLYLINE_BYTES(n - 1));
+  batch_ctx c = {p, bind_array(L, p->t->n, TAPE_BLOCK * sizeof(cplx)),
+                 bind_array(L, p->t->nout, 15 * QUAD_BATCH * sizeof(cplx))};
+  void *scratch = bind_array(L, QUAD_POLYLINE_BYTES(n - 1), 1);
   long evals = 0;
   cplx total;
   double etotal;
@@ -294,6 +294,65 @@ static int land_quad_polyline(lua_State *L) {
   lua_pushinteger(L, evals);
   lua_pushstring(L, quad_text[status]);
   return 4;
+}
+
+/* core.short_stretches(tape, params, points, opts) -> list of {from, to} (1-based point
+ * indices): the stretches of consecutive segments of points[first..last] each no longer
+ * than 16 times the local scale at both its ends, so that one rule per segment (and
+ * bisection where its error says so) resolves them without grading; the segments left
+ * between stretches are the long ones. The local scale at z is integral.lua's:
+ * 0.1 max(radius, |z - center|), |z - saddle| + its width, and 1/|F'(z)| (not below 1e-3
+ * of the rest). opts: first, last, center, radius, saddles (a cvec), widths (a cvec, the
+ * real parts). One evaluation of F and F' a point. */
+static int land_short_stretches(lua_State *L) {
+  problem *p = checkproblem(L);
+  size_t n = 0;
+  cplx *pts = bind_checkpoints(L, 3, &n);
+  luaL_checktype(L, 4, LUA_TTABLE);
+  if (n < 2) return luaL_error(L, "short_stretches: needs at least 2 points");
+  size_t first = (size_t)optint(L, 4, "first", 1, 1, (long)n - 1);
+  size_t last = (size_t)optint(L, 4, "last", (long)n, (long)first + 1, (long)n);
+  cplx center = optcomplex(L, 4, "center", 0);
+  double radius = optnum(L, 4, "radius", 1);
+  size_t ns = 0, nw = 0;
+  lua_getfield(L, 4, "saddles");
+  const cplx *sad = lua_isnil(L, -1) ? NULL : bind_checkpoints(L, lua_gettop(L), &ns);
+  lua_getfield(L, 4, "widths");
+  const cplx *wid = lua_isnil(L, -1) ? NULL : bind_checkpoints(L, lua_gettop(L), &nw);
+  if (ns != nw) return luaL_error(L, "short_stretches: %d saddles but %d widths", (int)ns, (int)nw);
+  double *scale = bind_array(L, last - first + 1, sizeof(double));
+  for (size_t k = first - 1; k < last; k++) {
+    cplx z = pts[k], F, dF;
+    double sc = 0.1 * fmax(radius, cabs(z - center));
+    for (size_t j = 0; j < ns; j++)
+      if (isfinite(creal(wid[j]))) sc = fmin(sc, cabs(z - sad[j]) + creal(wid[j]));
+    if (problem_dF(p, z, &F, &dF) == STEEP_OK) {
+      double d = cabs(dF);
+      if (d > 0 && isfinite(d)) sc = fmin(sc, fmax(1 / d, 1e-3 * sc));
+    }
+    scale[k - (first - 1)] = sc;
+  }
+  lua_newtable(L);
+  lua_Integer count = 0;
+  size_t from = 0;   /* 0: no stretch open */
+  for (size_t k = first - 1; k + 1 < last; k++) {
+    double len = cabs(pts[k + 1] - pts[k]);
+    int is_short = len <= 16 * fmin(scale[k - (first - 1)], scale[k + 1 - (first - 1)]);
+    if (is_short && !from) from = k + 1;
+    if (from && (!is_short || k + 2 == last)) {
+      size_t to = is_short ? k + 2 : k + 1;
+      if (to > from) {
+        lua_createtable(L, 2, 0);
+        lua_pushinteger(L, (lua_Integer)from);
+        lua_rawseti(L, -2, 1);
+        lua_pushinteger(L, (lua_Integer)to);
+        lua_rawseti(L, -2, 2);
+        lua_rawseti(L, -2, ++count);
+      }
+      from = 0;
+    }
+  }
+  return 1;
 }
 
 /* core.integrand_many(tape, params, points) -> cvec of g e^F (for maps and checks) */
@@ -341,7 +400,7 @@ static int push_coefs(lua_State *L, const cplx *G, size_t N, double rho, lua_Int
   if (N % 2) return luaL_error(L, "coefficients need an even number of points (the N/2 rule)");
   double gmax = 0;
   for (size_t j = 0; j < N; j++) gmax = fmax(gmax, cabs(G[j]));
-  cplx *root = bind_scratch(L, N * sizeof(cplx));
+  cplx *root = bind_array(L, N, sizeof(cplx));
   unit_roots(N, root);
   circle_coefs(G, N, 1, rho, (size_t)n, root, bind_newcvec(L, (size_t)n));
   circle_coefs(G, N, 2, rho, (size_t)n, root, bind_newcvec(L, (size_t)n));
@@ -412,13 +471,13 @@ static int land_laurent(lua_State *L) {
   luaL_argcheck(L, rho > 0 && isfinite(rho), 4, "radius must be positive and finite");
   luaL_argcheck(L, N >= 8 && N <= 65536, 5, "number of points must be 8..65536");
   luaL_argcheck(L, depth >= 1 && depth <= 1024, 6, "depth must be 1..1024");
-  cplx *f = bind_scratch(L, (size_t)N * sizeof(cplx));
+  cplx *f = bind_array(L, (size_t)N, sizeof(cplx));
   double vmax = 0;
   for (lua_Integer k = 0; k < N; k++) {
     f[k] = integrand(p, c + rho * cexp(I * (6.283185307179586 * (double)k / (double)N)));
     vmax = fmax(vmax, cabs(f[k]));
   }
-  cplx *root = bind_scratch(L, (size_t)N * sizeof(cplx));
+  cplx *root = bind_array(L, (size_t)N, sizeof(cplx));
   unit_roots((size_t)N, root);
   int halves = N % 2 == 0;
   cplx *out = bind_newcvec(L, (size_t)depth + 2);
@@ -448,7 +507,7 @@ static int land_ring_power(lua_State *L) {
   lua_Integer n = luaL_checkinteger(L, 6);
   luaL_argcheck(L, r2 > 0 && r3 > r2 && isfinite(r3), 5, "radii must satisfy 0 < r2 < r3 < inf");
   luaL_argcheck(L, n >= 4 && n <= 65536, 6, "number of angles must be 4..65536");
-  cplx *work = bind_scratch(L, 3 * (size_t)n * sizeof(cplx));
+  cplx *work = bind_array(L, 3 * (size_t)n, sizeof(cplx));
   double growth;
   cplx lead2, lead3;
   int deg = ring_power(p, c, r2, r3, (int)n, &growth, &lead2, &lead3, work);
@@ -525,6 +584,7 @@ static int geo_nearest(lua_State *L) {
 static const luaL_Reg land_funcs[] = {
   {"zero", land_zero}, {"count", land_count}, {"trace", land_trace},
   {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
+  {"short_stretches", land_short_stretches},
   {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},
   {"invmap_cubic", land_invmap_cubic}, {"laurent", land_laurent},
   {"branch_jump", land_branch_jump}, {"ring_power", land_ring_power}, {"log_spread", land_log_spread},
