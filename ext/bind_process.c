@@ -10,9 +10,12 @@
  * is unsafe (locks held by them stay locked in the child): an embedding host with
  * threads should sweep with workers = 1.
  */
-#define _POSIX_C_SOURCE 200809L   /* fork, waitpid, nanosleep, sysconf */
+#define _POSIX_C_SOURCE 200809L   /* fork, nanosleep, sysconf */
+#define _DEFAULT_SOURCE           /* wait4: the child's resource usage with its status */
 #include <errno.h>
 #include <string.h>
+#include <sys/resource.h>
+#include <sys/time.h>
 #include <sys/types.h>
 #include <sys/wait.h>
 #include <time.h>
@@ -40,13 +43,16 @@ static int proc_fork(lua_State *L) {
 }
 
 /* core.wait(pid [, nohang]) -> "running" (nohang, not finished), or "exit" and the exit
- * code, or "signal" and the signal number; nil and the reason on failure */
+ * code, or "signal" and the signal number, then the child's CPU time in seconds (user
+ * and system); nil and the reason on failure */
 static int proc_wait(lua_State *L) {
   lua_Integer pid = luaL_checkinteger(L, 1);
   luaL_argcheck(L, pid > 0, 1, "a child's pid expected");
   int nohang = lua_toboolean(L, 2), status = 0;
+  struct rusage ru;
+  memset(&ru, 0, sizeof ru);
   pid_t r;
-  do r = waitpid((pid_t)pid, &status, nohang ? WNOHANG : 0);
+  do r = wait4((pid_t)pid, &status, nohang ? WNOHANG : 0, &ru);
   while (r < 0 && errno == EINTR);
   if (r < 0) {
     lua_pushnil(L);
@@ -64,7 +70,9 @@ static int proc_wait(lua_State *L) {
     lua_pushliteral(L, "signal");
     lua_pushinteger(L, WIFSIGNALED(status) ? WTERMSIG(status) : -1);
   }
-  return 2;
+  lua_pushnumber(L, (double)ru.ru_utime.tv_sec + 1e-6 * (double)ru.ru_utime.tv_usec +
+                    (double)ru.ru_stime.tv_sec + 1e-6 * (double)ru.ru_stime.tv_usec);
+  return 3;
 }
 
 /* core.child_exit(code): leaves the process at once (_exit), for a forked child only */

@@ -278,16 +278,19 @@ local function run_workers(J, values, ranges, ctx, report_progress)
   while finished < #workers do
     for _, w in ipairs(workers) do
       if not w.status then
-        local st, code = core.wait(w.pid, true)
-        if st ~= "running" then w.status, w.code, finished = st, code, finished + 1 end
+        local st, code, cpu = core.wait(w.pid, true)
+        if st ~= "running" then
+          w.status, w.code, w.cpu, finished = st, code, cpu, finished + 1
+        end
         read_new(w)
       end
     end
     if report_progress then report_progress(done) end
     if finished < #workers then core.sleep(0.05) end
   end
-  local rows = {}
+  local rows, cpu = {}, {}
   for k, w in ipairs(workers) do
+    cpu[k] = w.cpu
     read_new(w)
     local expected = w.range[2] - w.range[1] + 1
     if w.status ~= "exit" or w.code ~= 0 or #w.lines ~= expected then
@@ -300,7 +303,7 @@ local function run_workers(J, values, ranges, ctx, report_progress)
     for _, line in ipairs(w.lines) do rows[#rows + 1] = decode_row(line) end
   end
   cleanup()
-  return rows
+  return rows, cpu
 end
 
 --- J:sweep{x = {list} | {from =, to =, steps =}, order = N, csv = file, shard = {k, n},
@@ -363,11 +366,11 @@ function M.sweep(J, opts)
   local writer = opts.csv ~= nil and files.open(opts.csv, "sweep", "csv", 2)
   local ctx = { x = x, fixed = fixed, order = order, budget = budget,
     continuation = opts.continuation ~= false, region = opts.region }
-  local rows, skipped = nil, 0
+  local rows, skipped, worker_cpu = nil, 0, nil
   local ranges = last >= first and worker_ranges(first, last, workers) or {}
   local ok_loop, loop_err = pcall(function()
     if #ranges > 1 then
-      rows = run_workers(J, values, ranges, ctx, report_progress)
+      rows, worker_cpu = run_workers(J, values, ranges, ctx, report_progress)
       for _, r in ipairs(rows) do if r.skipped then skipped = skipped + 1 end end
     else
       rows, skipped = compute_rows(J, values, first, last, ctx, report_progress and
@@ -380,7 +383,7 @@ function M.sweep(J, opts)
   end
   local out = { rows = rows, large = x, order = order, integral = J, shard = shard,
     status = M.status(rows, skipped, budget), first = first, last = last,
-    workers = math.max(1, #ranges) }
+    workers = math.max(1, #ranges), worker_cpu = worker_cpu }
   setmetatable(out, { __index = { report = M.sweep_report, csv = M.sweep_csv } })
   if writer then
     writer:write(out:csv(not shard or shard[1] == 1))
