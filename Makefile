@@ -8,7 +8,7 @@ LUA_SHARE   = $(PREFIX)/share/lua/5.4
 
 # Debian packages the build and the tests need (make deps installs the missing ones).
 DEB_PACKAGES = gcc make pkg-config lua5.4 liblua5.4-dev libgsl-dev libcerf-dev lua-unit lua-cjson \
-               valgrind clang libclang-rt-14-dev librsvg2-bin
+               valgrind clang libclang-rt-14-dev librsvg2-bin libgmp-dev
 
 CC         ?= cc
 WARN        = -std=c99 -Wall -Wextra -Werror
@@ -23,7 +23,8 @@ MODULE      = lua/steep/core.so
 ASAN_MODULE = ext/asan/steep/core.so
 SAN_FLAGS   = -fsanitize=address,undefined -fno-sanitize-recover=all -fno-omit-frame-pointer
 KERNEL_SRC  = ext/series.c ext/tape.c ext/problem.c ext/quad.c ext/geom.c ext/roots.c ext/path.c \
-              ext/invmap.c ext/rings.c
+              ext/invmap.c ext/rings.c ext/airy.c
+KERNEL_TESTS = tests/c/test_kernels.c tests/c/test_airy.c
 
 .PHONY: all deps test asan memcheck fuzz bench demo install uninstall env clean help
 
@@ -37,16 +38,16 @@ $(ASAN_MODULE): $(SRC) $(HDR)
 	$(CC) $(WARN) -O1 -g -fPIC -shared $(SAN_FLAGS) $(PKG_CFLAGS) -o $@ $(SRC) $(PKG_LIBS) -lm
 
 # C-level tests of the numerical kernels (no Lua involved).
-tests/c/test_kernels: tests/c/test_kernels.c $(KERNEL_SRC) $(HDR)
-	$(CC) $(WARN) -O2 -Iext -o $@ tests/c/test_kernels.c $(KERNEL_SRC) -lm
+tests/c/test_kernels: $(KERNEL_TESTS) tests/c/kernel_check.h $(KERNEL_SRC) $(HDR)
+	$(CC) $(WARN) -O2 -Iext -o $@ $(KERNEL_TESTS) $(KERNEL_SRC) -lm
 
-tests/c/test_kernels_asan: tests/c/test_kernels.c $(KERNEL_SRC) $(HDR)
-	$(CC) $(WARN) -O1 -g $(SAN_FLAGS) -Iext -o $@ tests/c/test_kernels.c $(KERNEL_SRC) -lm
+tests/c/test_kernels_asan: $(KERNEL_TESTS) tests/c/kernel_check.h $(KERNEL_SRC) $(HDR)
+	$(CC) $(WARN) -O1 -g $(SAN_FLAGS) -Iext -o $@ $(KERNEL_TESTS) $(KERNEL_SRC) -lm
 
-# GSL and libcerf reference values for the Lua tests (test-only, never installed; the
-# plain build serves make asan too).
+# GSL, libcerf and exact-rational (GMP) reference values for the Lua tests (test-only,
+# never installed; the plain build serves make asan too).
 tests/ref/gslref.so: tests/ref/gslref.c
-	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) $(CFLAGS) -o $@ tests/ref/gslref.c $(PKG_LIBS) -lcerf -lm $(LDFLAGS)
+	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) $(CFLAGS) -o $@ tests/ref/gslref.c $(PKG_LIBS) -lcerf -lgmp -lm $(LDFLAGS)
 
 # A C program embedding Lua with the extension linked in, two threads with a lua_State
 # each (tests/embed/host.c; tests/test_embed.lua runs it).
@@ -128,8 +129,9 @@ fuzz: deps
 	    tests/fuzz/bin/$$h.log; \
 	done
 
-bench: deps $(MODULE) tests/bench/native.so tests/bench/qagi.so
+bench: deps $(MODULE) tests/bench/native.so tests/bench/qagi.so tests/ref/gslref.so
 	$(LUA) tests/bench/run.lua
+	$(LUA) tests/bench/speed.lua
 
 tests/bench/native.so: tests/bench/native.c ext/bind.h ext/steep.h
 	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) -Iext -o $@ tests/bench/native.c -lm

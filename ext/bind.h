@@ -79,5 +79,6 @@ void bind_tape_open(lua_State *L);
 void bind_cvec_open(lua_State *L);
 void bind_cmath_open(lua_State *L);
 void bind_landscape_open(lua_State *L);
+void bind_process_open(lua_State *L);
 
 #endif

@@ -107,6 +107,22 @@ static int cvec_totable(lua_State *L) {
   return 1;
 }
 
+/* cvec:maxabs() -> the largest |v| over the finite entries (0 if none), and how many
+ * entries were not finite. */
+static int cvec_maxabs(lua_State *L) {
+  cvec *c = checkcvec(L, 1);
+  double m = 0;
+  lua_Integer bad = 0;
+  for (size_t i = 0; i < c->n; i++) {
+    double a = cabs(c->v[i]);
+    if (isfinite(a)) m = fmax(m, a);
+    else bad++;
+  }
+  lua_pushnumber(L, m);
+  lua_pushinteger(L, bad);
+  return 2;
+}
+
 static int cvec_len(lua_State *L) {
   lua_pushinteger(L, (lua_Integer)checkcvec(L, 1)->n);
   return 1;
@@ -118,7 +134,7 @@ static int cvec_tostring(lua_State *L) {
 }
 
 static const luaL_Reg cvec_methods[] = {
-  {"get", cvec_get}, {"totable", cvec_totable}, {NULL, NULL}
+  {"get", cvec_get}, {"totable", cvec_totable}, {"maxabs", cvec_maxabs}, {NULL, NULL}
 };
 
 void bind_cvec_open(lua_State *L) {

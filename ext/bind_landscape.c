@@ -248,11 +248,21 @@ static cplx integrand(void *ctx, cplx t) {
 
 static const char *quad_text[] = {"ok", "limit", "nonfinite"};
 
+/* The integrand in batches (problem_integrand_batch) with its scratch memory. */
+typedef struct { problem *p; cplx *work, *out; } batch_ctx;
+
+static void integrand_batch(void *ctx, const cplx *t, size_t m, cplx *f) {
+  batch_ctx *c = ctx;
+  problem_integrand_batch(c->p, t, m, f, c->work, c->out);
+}
+
+static cplx integrand_one(void *ctx, cplx t) { return integrand(((batch_ctx *)ctx)->p, t); }
+
 /* core.quad_polyline(tape, params, points, opts) -> value, error, evaluations, status
  * opts: abstol, reltol, singular_start, singular_end (tanh-sinh on that segment), limit
- * (subintervals per segment), budget (evaluations in all; past it: status "limit").
- * Two passes: one Kronrod rule per segment gives the size of the integral; then every
- * segment whose error exceeds its share of the tolerance is subdivided. */
+ * (subintervals per segment), budget (evaluations in all; past it: status "limit"),
+ * first, last (integrate the points first..last only, 1-based; default all).
+ * The two passes of quad_polyline (quad.h), the first with batch evaluation of the tape. */
 static int land_quad_polyline(lua_State *L) {
   problem *p = checkproblem(L);
   size_t n = 0;
@@ -267,48 +277,82 @@ static int land_quad_polyline(lua_State *L) {
   int sing1 = lua_toboolean(L, -1);
   lua_pop(L, 2);
   if (n < 2) return luaL_error(L, "quad_polyline: needs at least 2 points");
-  size_t nseg = n - 1;
-  cplx *res = bind_array(L, nseg, sizeof(cplx));
-  double *err = bind_array(L, nseg, sizeof(double));
+  size_t first = (size_t)optint(L, 4, "first", 1, 1, (long)n - 1);
+  size_t last = (size_t)optint(L, 4, "last", (long)n, (long)first + 1, (long)n);
+  pts += first - 1;
+  n = last - first + 1;
+  batch_ctx c = {p, bind_array(L, p->t->n, TAPE_BLOCK * sizeof(cplx)),
+                 bind_array(L, p->t->nout, 15 * QUAD_BATCH * sizeof(cplx))};
+  void *scratch = bind_array(L, QUAD_POLYLINE_BYTES(n - 1), 1);
   long evals = 0;
-  int status = QUAD_OK;
-  double size = 0;
-  for (size_t k = 0; k < nseg; k++) {
-    int singular = (k == 0 && sing0) || (k == nseg - 1 && sing1);
-    if (singular) {
-      int st = quad_tanhsinh(integrand, p, pts[k], pts[k + 1], abstol, reltol, &res[k],
-                             &err[k], &evals);
-      if (st != QUAD_OK) status = st;
-    } else {
-      double rabs;
-      quad_gk15(integrand, p, pts[k], pts[k + 1], &res[k], &err[k], &rabs);
-      evals += 15;
-      size += rabs;
-      continue;
-    }
-    size += cabs(res[k]);
-  }
-  /* the target is relative to the integral of |f| (cancellation is not chased) */
-  double target = fmax(abstol, reltol * size);
-  cplx total = 0;
-  double etotal = 0;
-  for (size_t k = 0; k < nseg; k++) {
-    int singular = (k == 0 && sing0) || (k == nseg - 1 && sing1);
-    if (evals > budget) status = QUAD_LIMIT;   /* keep the one-rule estimates */
-    else if (!singular && err[k] > target / (double)nseg) {
-      int st = quad_adaptive(integrand, p, pts[k], pts[k + 1], target / (double)nseg, 0, limit,
-                             &res[k], &err[k], &evals);
-      if (st != QUAD_OK) status = st;
-    }
-    total += res[k];
-    etotal += err[k];
-  }
-  if (!isfinite(creal(total)) || !isfinite(cimag(total))) status = QUAD_NONFINITE;
+  cplx total;
+  double etotal;
+  int status = quad_polyline(integrand_one, integrand_batch, &c, pts, n, abstol, reltol, limit,
+                             budget, sing0, sing1, scratch, &total, &etotal, &evals);
   bind_pushcomplex(L, total);
   lua_pushnumber(L, etotal);
   lua_pushinteger(L, evals);
   lua_pushstring(L, quad_text[status]);
   return 4;
+}
+
+/* core.short_stretches(tape, params, points, opts) -> list of {from, to} (1-based point
+ * indices): the stretches of consecutive segments of points[first..last] each no longer
+ * than 16 times the local scale at both its ends, so that one rule per segment (and
+ * bisection where its error says so) resolves them without grading; the segments left
+ * between stretches are the long ones. The local scale at z is integral.lua's:
+ * 0.1 max(radius, |z - center|), |z - saddle| + its width, and 1/|F'(z)| (not below 1e-3
+ * of the rest). opts: first, last, center, radius, saddles (a cvec), widths (a cvec, the
+ * real parts). One evaluation of F and F' a point. */
+static int land_short_stretches(lua_State *L) {
+  problem *p = checkproblem(L);
+  size_t n = 0;
+  cplx *pts = bind_checkpoints(L, 3, &n);
+  luaL_checktype(L, 4, LUA_TTABLE);
+  if (n < 2) return luaL_error(L, "short_stretches: needs at least 2 points");
+  size_t first = (size_t)optint(L, 4, "first", 1, 1, (long)n - 1);
+  size_t last = (size_t)optint(L, 4, "last", (long)n, (long)first + 1, (long)n);
+  cplx center = optcomplex(L, 4, "center", 0);
+  double radius = optnum(L, 4, "radius", 1);
+  size_t ns = 0, nw = 0;
+  lua_getfield(L, 4, "saddles");
+  const cplx *sad = lua_isnil(L, -1) ? NULL : bind_checkpoints(L, lua_gettop(L), &ns);
+  lua_getfield(L, 4, "widths");
+  const cplx *wid = lua_isnil(L, -1) ? NULL : bind_checkpoints(L, lua_gettop(L), &nw);
+  if (ns != nw) return luaL_error(L, "short_stretches: %d saddles but %d widths", (int)ns, (int)nw);
+  double *scale = bind_array(L, last - first + 1, sizeof(double));
+  for (size_t k = first - 1; k < last; k++) {
+    cplx z = pts[k], F, dF;
+    double sc = 0.1 * fmax(radius, cabs(z - center));
+    for (size_t j = 0; j < ns; j++)
+      if (isfinite(creal(wid[j]))) sc = fmin(sc, cabs(z - sad[j]) + creal(wid[j]));
+    if (problem_dF(p, z, &F, &dF) == STEEP_OK) {
+      double d = cabs(dF);
+      if (d > 0 && isfinite(d)) sc = fmin(sc, fmax(1 / d, 1e-3 * sc));
+    }
+    scale[k - (first - 1)] = sc;
+  }
+  lua_newtable(L);
+  lua_Integer count = 0;
+  size_t from = 0;   /* 0: no stretch open */
+  for (size_t k = first - 1; k + 1 < last; k++) {
+    double len = cabs(pts[k + 1] - pts[k]);
+    int is_short = len <= 16 * fmin(scale[k - (first - 1)], scale[k + 1 - (first - 1)]);
+    if (is_short && !from) from = k + 1;
+    if (from && (!is_short || k + 2 == last)) {
+      size_t to = is_short ? k + 2 : k + 1;
+      if (to > from) {
+        lua_createtable(L, 2, 0);
+        lua_pushinteger(L, (lua_Integer)from);
+        lua_rawseti(L, -2, 1);
+        lua_pushinteger(L, (lua_Integer)to);
+        lua_rawseti(L, -2, 2);
+        lua_rawseti(L, -2, ++count);
+      }
+      from = 0;
+    }
+  }
+  return 1;
 }
 
 /* core.integrand_many(tape, params, points) -> cvec of g e^F (for maps and checks) */
@@ -378,6 +422,7 @@ static int invmap_results(lua_State *L, int st, const cplx *G, size_t N, double 
 /* core.invmap_circle(tape, params, t0, F0, m, s, rho, N [, ncoef]) -> status, cvec of G
  * values; with ncoef: status, coefficients (N points), coefficients (N/2 points), max|G| */
 static int land_invmap(lua_State *L) {
+  lua_settop(L, 9);   /* (an absent ncoef reads as nil, not as the scratch pushed next) */
   problem *p = checkproblem(L);
   cplx t0 = bind_checkcomplex(L, 3), F0 = bind_checkcomplex(L, 4);
   int m = (int)luaL_checkinteger(L, 5);
@@ -397,6 +442,7 @@ static int land_invmap(lua_State *L) {
 /* core.invmap_cubic(tape, params, t1, A, zeta, ua, tprime, rho, N [, ncoef]) -> as
  * core.invmap_circle */
 static int land_invmap_cubic(lua_State *L) {
+  lua_settop(L, 10);   /* (as above) */
   problem *p = checkproblem(L);
   cplx t1 = bind_checkcomplex(L, 3), A = bind_checkcomplex(L, 4);
   cplx zeta = bind_checkcomplex(L, 5), ua = bind_checkcomplex(L, 6);
@@ -538,6 +584,7 @@ static int geo_nearest(lua_State *L) {
 static const luaL_Reg land_funcs[] = {
   {"zero", land_zero}, {"count", land_count}, {"trace", land_trace},
   {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
+  {"short_stretches", land_short_stretches},
   {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},
   {"invmap_cubic", land_invmap_cubic}, {"laurent", land_laurent},
   {"branch_jump", land_branch_jump}, {"ring_power", land_ring_power}, {"log_spread", land_log_spread},

@@ -3,6 +3,7 @@
  */
 #include <float.h>
 #include <math.h>
+#include "cdiv.h"
 #include "invmap.h"
 
 /* max(|Re z|, |Im z|): within a factor sqrt 2 of |z|, without hypot's care, for the
@@ -18,18 +19,23 @@ typedef struct { cplx h, F, dF, off; } mappoint;
  * F' there; on convergence (0) they hold F and F' at the solution (h'(w) = -P'(w)/F'
  * needs F' there to rounding, so the last, tiny step is evaluated too). */
 static int solve(problem *p, cplx t0, cplx F0, cplx target, mappoint *q) {
+  double prev = 0;
   for (int it = 0; it < 40; it++) {
     if (q->dF == 0) return -1;
     cplx r = F0 - q->F - target;
-    cplx step = r / q->dF;   /* d/dh (F0 - F) = -F' : h <- h + r / F' */
+    cplx step = cdiv(r, q->dF);   /* d/dh (F0 - F) = -F' : h <- h + r / F' */
     q->h += step;
     if (!(isfinite(creal(q->h)) && isfinite(cimag(q->h)))) return -1;
     if (problem_dF(p, t0 + q->h, &q->F, &q->dF) != STEEP_OK) return -1;
-    /* quadratic convergence: a step this small leaves an error near rounding; or the
-     * residual was at the rounding level of F0 - F itself (small h: cancellation) */
-    if (maxnorm(step) <= 1e-10 * (maxnorm(q->h) + 1e-300) ||
+    /* quadratic convergence: the error left after a step s is about C s^2, with
+     * C ~ s / s_prev^2 from the last two steps; done when that is below rounding (or the
+     * step itself is that small); or the residual was at the rounding level of F0 - F
+     * itself (small h: cancellation) */
+    double s = maxnorm(step), scale = maxnorm(q->h) + 1e-300;
+    if (s <= 1e-10 * scale || (prev > 0 && s < 1e-3 * prev && s * s * s <= 1e-16 * scale * prev * prev) ||
         maxnorm(r) <= 8 * DBL_EPSILON * (maxnorm(F0) + maxnorm(q->F) + maxnorm(target)))
       return 0;
+    prev = s;
   }
   return -1;
 }
@@ -87,7 +93,7 @@ static int follow(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, cplx
     if (--*budget < 0) return INVMAP_NEWTON;
     double u = (double)k / steps;
     cplx w = k == steps ? w1 : arc ? rho * cexp(I * (th0 + u * (th1 - th0))) : w0 + u * (w1 - w0);
-    cplx dh = -mapdP(ms, wprev) / q->dF * (w - wprev);   /* h'(w) dw */
+    cplx dh = -cdiv(mapdP(ms, wprev), q->dF) * (w - wprev);   /* h'(w) dw */
     mappoint n = {q->h + dh, 0, 0, q->off};
     if (problem_dF(p, t0 + n.h, &n.F, &n.dF) != STEEP_OK) return INVMAP_SINGULAR;
     /* a large discrepancy is a branch jump only if it survives small steps (the
@@ -157,7 +163,7 @@ static int circle(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w0, mapp
       g = p->vals[1];
     }
     /* F0 - F(t0 + h(w)) = P(w)  =>  h'(w) = -P'(w) / F'(t0 + h) */
-    G[j] = g * (-mapdP(ms, wj) / q.dF);
+    G[j] = g * -cdiv(mapdP(ms, wj), q.dF);
     if (!(isfinite(creal(G[j])) && isfinite(cimag(G[j])))) return INVMAP_SINGULAR;
   }
   /* once round: back where we started? */

@@ -40,6 +40,14 @@ cplx problem_integrand(problem *p, cplx x, cplx *F) {
   return g * cexp(p->vals[0]);
 }
 
+void problem_integrand_batch(problem *p, const cplx *xs, size_t m, cplx *f, cplx *work,
+                             cplx *out) {
+  const tape *t = p->t;
+  p->evals += (long)m;
+  tape_eval_batch(t, xs, m, p->params, out, work);
+  for (size_t i = 0; i < m; i++) f[i] = (t->nout > 1 ? out[m + i] : 1.0) * cexp(out[i]);
+}
+
 int problem_dF(problem *p, cplx x, cplx *F, cplx *dF) {
   long bad;
   size_t out = (size_t)p->t->out[0];

@@ -34,6 +34,12 @@ int problem_jet(problem *p, cplx x, size_t order, int out, cplx *coef);
 /* The integrand g(x) e^{F(x)} (g = 1 when the tape has one output), and F(x) in *F. */
 cplx problem_integrand(problem *p, cplx x, cplx *F);
 
+/* The integrand at m points at once, f[i] = g(xs[i]) e^{F(xs[i])}, by the tape's batch
+ * evaluation (tape_eval_batch: one pass of the instructions per block of points).
+ * work: t->n * TAPE_BLOCK entries; out: t->nout * m entries. Counts m evaluations. */
+void problem_integrand_batch(problem *p, const cplx *xs, size_t m, cplx *f, cplx *work,
+                             cplx *out);
+
 /* F(x) and F'(x) by forward mode (tape_dual_upto). Returns a steep_status. */
 int problem_dF(problem *p, cplx x, cplx *F, cplx *dF);
 

@@ -22,17 +22,25 @@ static const double wg[4] = {
   0.129484966168869693270611432679082, 0.279705391489276667901467771423780,
   0.381830050505118944950369775488975, 0.417959183673469387755102040816327};
 
-void quad_gk15(quad_fn f, void *ctx, cplx a, cplx b, cplx *res, double *err, double *resabs_out) {
+/* Node order: t[7] the midpoint, t[j] and t[14 - j] the pair at -+xgk[j], j < 7. */
+void quad_gk15_nodes(cplx a, cplx b, cplx *t) {
   cplx mid = 0.5 * (a + b), half = 0.5 * (b - a);
+  t[7] = mid;
+  for (int j = 0; j < 7; j++) {
+    t[j] = mid - half * xgk[j];
+    t[14 - j] = mid + half * xgk[j];
+  }
+}
+
+void quad_gk15_values(const cplx *fv, cplx a, cplx b, cplx *res, double *err,
+                      double *resabs_out) {
+  cplx half = 0.5 * (b - a);
   double scale = cabs(half);
-  cplx fc = f(ctx, mid), fv[15];
+  cplx fc = fv[7];
   cplx resk = fc * wgk[7], resg = fc * wg[3];
   double resabs = cabs(fc) * wgk[7];
-  fv[7] = fc;
   for (int j = 0; j < 7; j++) {
-    cplx f1 = f(ctx, mid - half * xgk[j]), f2 = f(ctx, mid + half * xgk[j]);
-    fv[j] = f1;
-    fv[14 - j] = f2;
+    cplx f1 = fv[j], f2 = fv[14 - j];
     resk += wgk[j] * (f1 + f2);
     resabs += wgk[j] * (cabs(f1) + cabs(f2));
     if (j % 2 == 1) resg += wg[j / 2] * (f1 + f2);
@@ -48,6 +56,13 @@ void quad_gk15(quad_fn f, void *ctx, cplx a, cplx b, cplx *res, double *err, dou
   *res = resk * half;
   *err = e;
   *resabs_out = resabs;
+}
+
+void quad_gk15(quad_fn f, void *ctx, cplx a, cplx b, cplx *res, double *err, double *resabs_out) {
+  cplx t[15], fv[15];
+  quad_gk15_nodes(a, b, t);
+  for (int j = 0; j < 15; j++) fv[j] = f(ctx, t[j]);
+  quad_gk15_values(fv, a, b, res, err, resabs_out);
 }
 
 static int finite_c(cplx z) { return isfinite(creal(z)) && isfinite(cimag(z)); }
@@ -134,4 +149,59 @@ int quad_tanhsinh(quad_fn f, void *ctx, cplx a, cplx b, double abstol, double re
   *res = prev;
   *err = diff;
   return QUAD_LIMIT;
+}
+
+int quad_polyline(quad_fn f, quad_batch_fn fb, void *ctx, const cplx *pts, size_t n,
+                  double abstol, double reltol, size_t limit, long budget, int sing0,
+                  int sing1, void *scratch, cplx *res, double *err, long *nevals) {
+  size_t nseg = n - 1;
+  cplx *nodes = scratch, *vals = nodes + 15 * QUAD_BATCH, *sres = vals + 15 * QUAD_BATCH;
+  double *serr = (double *)(sres + nseg);
+  int status = QUAD_OK;
+  double size = 0;
+  for (size_t k0 = 0; k0 < nseg; k0 += QUAD_BATCH) {
+    size_t k1 = k0 + QUAD_BATCH < nseg ? k0 + QUAD_BATCH : nseg;
+    /* the rule's nodes of the regular segments of this batch, then their values */
+    size_t m = 0;
+    for (size_t k = k0; k < k1; k++) {
+      int singular = (k == 0 && sing0) || (k == nseg - 1 && sing1);
+      if (!singular) quad_gk15_nodes(pts[k], pts[k + 1], nodes + 15 * m++);
+    }
+    if (fb) fb(ctx, nodes, 15 * m, vals);
+    else for (size_t i = 0; i < 15 * m; i++) vals[i] = f(ctx, nodes[i]);
+    *nevals += (long)(15 * m);
+    m = 0;
+    for (size_t k = k0; k < k1; k++) {
+      int singular = (k == 0 && sing0) || (k == nseg - 1 && sing1);
+      if (singular) {
+        int st = quad_tanhsinh(f, ctx, pts[k], pts[k + 1], abstol, reltol, &sres[k], &serr[k],
+                               nevals);
+        if (st != QUAD_OK) status = st;
+        size += cabs(sres[k]);
+      } else {
+        double rabs;
+        quad_gk15_values(vals + 15 * m++, pts[k], pts[k + 1], &sres[k], &serr[k], &rabs);
+        size += rabs;
+      }
+    }
+  }
+  /* the target is relative to the integral of |f| (cancellation is not chased) */
+  double target = fmax(abstol, reltol * size);
+  cplx total = 0;
+  double etotal = 0;
+  for (size_t k = 0; k < nseg; k++) {
+    int singular = (k == 0 && sing0) || (k == nseg - 1 && sing1);
+    if (*nevals > budget) status = QUAD_LIMIT;   /* keep the one-rule estimates */
+    else if (!singular && serr[k] > target / (double)nseg) {
+      int st = quad_adaptive(f, ctx, pts[k], pts[k + 1], target / (double)nseg, 0, limit,
+                             &sres[k], &serr[k], nevals);
+      if (st != QUAD_OK) status = st;
+    }
+    total += sres[k];
+    etotal += serr[k];
+  }
+  if (!finite_c(total) || !isfinite(etotal)) status = QUAD_NONFINITE;
+  *res = total;
+  *err = etotal;
+  return status;
 }

@@ -28,11 +28,41 @@ enum quad_status {
  * |b - a| (the size that rounding errors scale with). 15 evaluations. */
 void quad_gk15(quad_fn f, void *ctx, cplx a, cplx b, cplx *res, double *err, double *resabs);
 
+/* The same rule split in two, for integrands evaluated in batches: the 15 nodes of a -> b
+ * into t[0..14] (a fixed order), and the result, error and size from the integrand's
+ * values fv[0..14] at them (quad_gk15 is these two around the evaluations). */
+void quad_gk15_nodes(cplx a, cplx b, cplx *t);
+void quad_gk15_values(const cplx *fv, cplx a, cplx b, cplx *res, double *err, double *resabs);
+
 /* Adaptive bisection of a -> b (the interval with the largest error first) until
  * err <= max(abstol, reltol*|res|, rounding floor 100 eps * integral of |f|), at most
  * `limit` (<= QUAD_MAX_SUB) subintervals. *nevals counts the evaluations added. */
 int quad_adaptive(quad_fn f, void *ctx, cplx a, cplx b, double abstol, double reltol,
                   size_t limit, cplx *res, double *err, long *nevals);
+
+/* The integrand at m points at once: f[i] at t[i]. */
+typedef void (*quad_batch_fn)(void *ctx, const cplx *t, size_t m, cplx *f);
+
+/* Segments per batch of quad_polyline's first pass (15 points each). */
+#define QUAD_BATCH 64
+
+/* Scratch quad_polyline needs: per segment a complex result and an error, and the
+ * batch of nodes and values. */
+#define QUAD_POLYLINE_BYTES(nseg) \
+  ((nseg) * (sizeof(cplx) + sizeof(double)) + 2 * 15 * QUAD_BATCH * sizeof(cplx))
+
+/* The integral along the polyline pts[0..n-1], segment by segment, in time linear in
+ * the number of segments: one 15-point rule per segment (the integrand through fb, in
+ * batches of QUAD_BATCH segments; f alone when fb is NULL) gives the size of the
+ * integral; then every segment whose error exceeds its share target/(n-1) of
+ * target = max(abstol, reltol * integral of |f|) is bisected (quad_adaptive through f,
+ * at most `limit` subintervals), while fewer than `budget` evaluations were spent (past
+ * it the one-rule estimates stay: QUAD_LIMIT). With sing0 (sing1) the first (last)
+ * segment takes the tanh-sinh rule (an integrable singularity at that end). scratch:
+ * QUAD_POLYLINE_BYTES(n - 1) bytes. *res, *err; *nevals counts the evaluations added. */
+int quad_polyline(quad_fn f, quad_batch_fn fb, void *ctx, const cplx *pts, size_t n,
+                  double abstol, double reltol, size_t limit, long budget, int sing0,
+                  int sing1, void *scratch, cplx *res, double *err, long *nevals);
 
 /* Tanh-sinh rule on a -> b, never evaluating at the endpoints (so integrable endpoint
  * singularities are fine); halves the step until two levels agree to the tolerance, at

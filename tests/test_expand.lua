@@ -324,6 +324,40 @@ function TestExpandStirling:test_series_coefficients_to_order_20()
   end
 end
 
+-- To order 200: the coefficients against exact rationals again, now from the test module's
+-- GMP route (gslref.stirling_gamma: the same recurrence, DLMF 5.11.1 and 24.5.3, in
+-- exact rational arithmetic), itself checked against the bignum rationals above to order
+-- 20. Every coefficient must lie within its reported error (errors[k]); the errors must
+-- say something (at most 1e-7 relative; 7e-9 at the worst here) and, to order 100, the
+-- coefficients be good to
+-- 1e-10 relative. The Cauchy circle is sized by the nearest singularity of G(w), the
+-- saddle's own image on the neighbouring sheets of log at |w| = sqrt(2 pi) (F(1) +- 2 pi i).
+function TestExpandStirling:test_series_coefficients_to_order_200()
+  local exact = gsl.stirling_gamma(200)
+  local g = stirling(20)
+  for k = 0, 20 do
+    H.close(exact[k + 1], rtonumber(g[k]), 1e-15, "GMP and bignum routes agree at gamma_" .. k)
+  end
+  local J = stirling_integral()
+  local c = J:series { order = 200 }[1]
+  lu.assertEquals(#c.coefficients, 200, "200 coefficients")
+  lu.assertEquals(#c.errors, 200, "an error estimate for each")
+  local radius = tonumber(c.method:match("|w| = ([%d.e+-]+)"))
+  lu.assertNotNil(radius, "a Cauchy circle: " .. tostring(c.method))
+  lu.assertTrue(radius > 0.95 * math.sqrt(2 * pi) and radius < math.sqrt(2 * pi),
+    "the circle just inside |w| = sqrt(2 pi): " .. c.method)
+  for k = 1, 200 do
+    local want = math.sqrt(2 * pi) * exact[k]
+    local d = cabs(c.coefficients[k] - want)
+    local msg = string.format("c_%d = sqrt(2 pi) gamma_%d", k, k - 1)
+    lu.assertTrue(d <= c.errors[k], string.format("%s: error %.3g beyond the reported %.3g",
+      msg, d, c.errors[k]))
+    lu.assertTrue(c.errors[k] <= 1e-7 * math.abs(want), string.format("%s: reported error "
+      .. "%.3g is more than 1e-7 relative", msg, c.errors[k]))
+    if k <= 101 then H.close(c.coefficients[k], want, 1e-10, msg) end
+  end
+end
+
 function TestExpandStirling:test_values_against_gsl()
   local J = stirling_integral()
   local out = J:series { order = 8 }
@@ -487,13 +521,32 @@ function TestExpandEndpoint:test_fixed_orders_against_gsl()
       within(r.value, r.error, ref, ref_err, string.format("e^x E1(x), x = %g, %d terms", X, n))
       -- the reported error is at least the next term (k!/x^(k+1), exact) and at most a
       -- few of the next terms' sum (expand.remainder: three of them and a geometric rest,
-      -- at most doubled), or the rounding floor where that is larger
+      -- at most doubled), or the rounding floor where that is larger, plus the
+      -- coefficients' own error estimates (below 1e-12 of the value here)
       local nxt = factorial(n) / X ^ (n + 1)
       local three = nxt * (1 + (n + 1) / X + (n + 1) * (n + 2) / X ^ 2)
       lu.assertTrue(r.error >= nxt * (1 - 1e-10) and
-        r.error <= math.max(4 * three, 1e-13 * ref), string.format("reported error "
-        .. "%.6g: between the next term %.6g and four times the next three", r.error, nxt))
+        r.error <= math.max(4 * three, 1e-13 * ref) + 1e-12 * ref, string.format("reported "
+        .. "error %.6g: between the next term %.6g and four times the next three", r.error, nxt))
     end
+  end
+end
+
+-- Watson's lemma to order 150: G(w) = 1/(1 + w) (the pole of the amplitude at t = -1 is
+-- the nearest singularity, |w| = 1), so c_k = (-1)^k k! exactly (DLMF 6.12.1 for
+-- e^x E1(x), from memory), within the reported errors, and to 1e-10 relative up to
+-- order 100.
+function TestExpandEndpoint:test_series_coefficients_to_order_150()
+  local c = expint_integral():series { order = 150 }[1]
+  local kfact = 1.0   -- (in floating point: 21! is past the 64-bit integers)
+  for k = 0, 149 do
+    if k > 0 then kfact = kfact * k end
+    local want = (-1) ^ k * kfact
+    local d = cabs(c.coefficients[k + 1] - want)
+    lu.assertTrue(d <= c.errors[k + 1], string.format("c_%d: error %.3g beyond the reported "
+      .. "%.3g", k, d, c.errors[k + 1]))
+    lu.assertTrue(c.errors[k + 1] <= 1e-8 * math.abs(want), "a meaningful estimate at " .. k)
+    if k <= 100 then H.close(c.coefficients[k + 1], want, 1e-10, "c_" .. k .. " = (-1)^k k!") end
   end
 end
 
@@ -779,8 +832,8 @@ end
 function TestExpandErrors:test_bad_order()
   local J = airy_integral()
   local JS = stirling_integral()
-  for _, o in ipairs({ 0, 1.5, "many", -3, 101 }) do
-    local frag = { "option 'order' must be a whole number of terms from 1 to 100",
+  for _, o in ipairs({ 0, 1.5, "many", -3, 201 }) do
+    local frag = { "option 'order' must be a whole number of terms from 1 to 200",
       "got " .. tostring(o) }
     H.raises({ "expand:", table.unpack(frag) }, J.expand, J, { x = 8, order = o })
     H.raises({ "series:", table.unpack(frag) }, JS.series, JS, { order = o })

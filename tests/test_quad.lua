@@ -294,3 +294,39 @@ function TestQuadCircle:test_cauchy_coefficient()
     end
   end
 end
+
+TestQuadLongPath = {}
+
+-- A path of many points along the given contour: exp(-x t^2/2 + i k t) along a wavy
+-- polyline through 20001 points from -7 to 7 equals, by Cauchy's theorem, the integral
+-- over [-7, 7], which is sqrt(2 pi/x) e^{-k^2/(2x)} (the Gaussian's Fourier transform,
+-- Abramowitz & Stegun 7.4.6, from memory) up to tails below e^{-x 49/2} ~ 5e-22 at x = 2.
+-- The runs of segments go to C in one call: 15 evaluations a segment (they are short),
+-- the estimate honest. Then the same path with rays at both ends (the ray pieces go
+-- piece by piece): the integral over the whole line, the same value.
+function TestQuadLongPath:test_many_points_along_the_given_path()
+  local n = 20001
+  local pts = {}
+  for j = 0, n - 1 do
+    local s = -7 + 14 * j / (n - 1)
+    pts[#pts + 1] = C(s, 0.3 * math.sin(3 * s) * math.sin(pi * s / 7))
+  end
+  local k = 1.5
+  local J = steep.integral { var = t, exponent = -x * t ^ 2 / 2 + I * k * t,
+    contour = steep.path(pts), large = x }
+  local want = math.sqrt(2 * pi / 2) * math.exp(-k * k / 4)
+  local v, e, info = J:quad { x = 2, along = "given" }
+  lu.assertEquals(info.status, "ok")
+  honest(v, e, want, "20000 segments")
+  H.close(v, want, 1e-12, "20000 segments")
+  lu.assertTrue(info.evals >= 15 * (n - 1) and info.evals <= 16 * (n - 1),
+    "one 15-point rule per segment: " .. info.evals .. " evaluations")
+  local ends = { steep.inf(pi) }
+  for j = 1, n do ends[#ends + 1] = pts[j] end
+  ends[#ends + 1] = steep.inf(0)
+  local J2 = steep.integral { var = t, exponent = -x * t ^ 2 / 2 + I * k * t,
+    contour = steep.path(ends), large = x }
+  local v2, e2, info2 = J2:quad { x = 2, along = "given" }
+  lu.assertEquals(info2.status, "ok")
+  honest(v2, e2, want, "20000 segments and two rays")
+end

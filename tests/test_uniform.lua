@@ -1,7 +1,6 @@
 -- Tests of the uniform forms: the saddle with a nearby pole of the amplitude (through the
--- Faddeeva function) as the pole crosses the steepest path, and steep.airy (Ai and Ai'
--- by steepest-path quadrature) against GSL on the real axis and against identities of
--- the Airy functions at complex points.
+-- Faddeeva function) as the pole crosses the steepest path, and two saddles together
+-- (the Airy-type form; the Airy functions themselves are tested in test_airy.lua).
 local lu = require "luaunit"
 local H = require "helpers"
 local gsl = require "gslref"
@@ -114,61 +113,6 @@ function TestUniformPole:test_second_pole_inside_first_circle()
 end
 
 TestUniformAiry = {}
-
--- steep.airy on the real axis against gsl_sf_airy_Ai_e and gsl_sf_airy_Ai_deriv_e, x from
--- -5 to 5 in steps of 1/4 (no zero of Ai or Ai' on that grid; the nearest, Ai'(-1.0188) = 0,
--- leaves |Ai'(-1)| = 0.010): 1e-10 relative, a real value, and an honest error estimate.
-function TestUniformAiry:test_real_axis_against_gsl()
-  for k = -20, 20 do
-    local xv = k / 4
-    local ai, aip, e, ep = steep.airy(xv)
-    local want, want_d = gsl.airy_Ai(xv), gsl.airy_Ai_deriv(xv)
-    H.close(ai, want, 1e-10, "Ai(" .. xv .. ")")
-    H.close(aip, want_d, 1e-10, "Ai'(" .. xv .. ")")
-    lu.assertTrue(math.abs(ai:im()) <= 1e-14 * math.abs(want), "Ai real at " .. xv)
-    lu.assertTrue(cabs(ai - want) <= 10 * e + 1e-15 * math.abs(want), "Ai error estimate at " .. xv)
-    lu.assertTrue(cabs(aip - want_d) <= 10 * ep + 1e-15 * math.abs(want_d),
-      "Ai' error estimate at " .. xv)
-  end
-end
-
--- At complex points, with omega = e^{2 pi i/3}:
---   the connection formula Ai(z) + omega Ai(omega z) + omega^2 Ai(omega^2 z) = 0
---   (DLMF 9.2.12, from memory; at z = 0 it reads Ai(0) (1 + omega + omega^2) = 0), and its
---   derivative Ai'(z) + omega^2 Ai'(omega z) + omega Ai'(omega^2 z) = 0;
---   the Wronskian Ai(z) d/dz[Ai(z e^{-2 pi i/3})] - Ai'(z) Ai(z e^{-2 pi i/3}) = e^{i pi/6}/(2 pi)
---   (DLMF 9.2.8, from memory; checked by hand at z = 0 with Ai(0) Ai'(0) = -1/(2 sqrt(3) pi));
---   the Airy equation Ai'' = z Ai, with Ai'' by a central difference of Ai' (step 1e-3
---   along 1 + i: truncation ~ 1e-7 relative, so a loose 1e-5).
--- Sums are compared with the size of their largest term (1e-11).
-function TestUniformAiry:test_complex_identities()
-  local w = steep.exp(2 * pi * I / 3)
-  local wbar = steep.exp(-2 * pi * I / 3)
-  for _, z in ipairs({ 1 + I, -2 + 0.5 * I, 3 - 2 * I, -1 - 3 * I, 0.5 * I, -4 + 0.1 * I }) do
-    local msg = "z = " .. tostring(z)
-    local a0, d0 = steep.airy(z)
-    local a1, d1 = steep.airy(w * z)
-    local a2, d2 = steep.airy(w * w * z)
-    local s = a0 + w * a1 + w * w * a2
-    local size = math.max(cabs(a0), cabs(a1), cabs(a2))
-    lu.assertTrue(cabs(s) <= 1e-11 * size, string.format("%s: Ai connection formula: |sum| = "
-      .. "%.3g, largest term %.3g", msg, cabs(s), size))
-    local sd = d0 + w * w * d1 + w * d2
-    local sized = math.max(cabs(d0), cabs(d1), cabs(d2))
-    lu.assertTrue(cabs(sd) <= 1e-11 * sized, string.format("%s: Ai' connection formula: |sum| "
-      .. "= %.3g, largest term %.3g", msg, cabs(sd), sized))
-    local b, bd = steep.airy(wbar * z)
-    local wr = a0 * wbar * bd - d0 * b
-    local sizew = cabs(a0 * bd) + cabs(d0 * b)
-    H.close(wr, steep.exp(I * pi / 6) / (2 * pi), 1e-11 * math.max(1, sizew * 2 * pi),
-      msg .. ": Wronskian")
-    local h = 1e-3 * (1 + I) / math.sqrt(2)
-    local _, dp = steep.airy(z + h)
-    local _, dm = steep.airy(z - h)
-    local second = (dp - dm) / (2 * h)
-    H.close(second, z * a0, 1e-5, msg .. ": Ai'' = z Ai", 1e-5 * (cabs(d0) + cabs(a0)))
-  end
-end
 
 -- Airy's integral (1/2 pi) int exp(i (t^3/3 + x t)) dt (DLMF 9.5.4) with its two saddles
 -- +-sqrt(-x) 2e-2 to 2e-4 apart: J:expand decomposes the pair and expands it by the

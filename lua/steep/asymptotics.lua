@@ -25,13 +25,13 @@ local function raw_count(order, m, symmetric)
   local per = symmetric and m or 1
   if order == "optimal" then return math.min(120, 250 - m) end
   -- (three omitted terms: the error estimate reads how the series goes on)
-  return math.min(per * (order + 4) + m, 250 - m)
+  return per * (order + 4) + m
 end
 
 local function check_order(order, fname)
   if order == "optimal" then return order end
-  if type(order) ~= "number" or math.tointeger(order) == nil or order < 1 or order > 100 then
-    error(format("%s: option 'order' must be a whole number of terms from 1 to 100 or "
+  if type(order) ~= "number" or math.tointeger(order) == nil or order < 1 or order > 200 then
+    error(format("%s: option 'order' must be a whole number of terms from 1 to 200 or "
       .. "\"optimal\", got %s", fname, tostring(order)), 3)
   end
   return math.tointeger(order)
@@ -63,10 +63,10 @@ local function saddle_contribution(J, params, L, j, rays, order, plan)
     end
   end
   local nraw = raw_count(order, m, symmetric)
-  local a, F0 = expand.saddle_series(J, params, s.at, m, nraw)
-  local terms, powers = expand.saddle_terms(a, F0, m, c, nraw)
+  local a, F0, _, _, _, aerr = expand.saddle_series(J, params, s.at, m, nraw, L)
+  local terms, powers, _, terr = expand.saddle_terms(a, F0, m, c, nraw, aerr)
   local scale = exp_c(F0)
-  local value, err, used = expand.truncate(terms, order, scale, cabs(F0))
+  local value, err, used = expand.truncate(terms, order, scale, cabs(F0), terr)
   local kind = m == 2 and "saddle" or format("saddle of order %d", m)
   if at_endpoint then kind = kind .. " at an endpoint" end
   local tl, omitted = {}, {}
@@ -77,16 +77,16 @@ local function saddle_contribution(J, params, L, j, rays, order, plan)
     dominance = cparts(F0) }
 end
 
-local function endpoint_contribution(J, params, piece, order)
+local function endpoint_contribution(J, params, piece, order, L)
   local nraw = raw_count(order, 1, false)
-  local b, Fa, beta = expand.endpoint_series(J, params, piece.at, nraw)
+  local b, Fa, beta, berr = expand.endpoint_series(J, params, piece.at, nraw, nil, L)
   if not b then
     error(format("the endpoint %s is a saddle of the exponent: not handled as an endpoint",
       tostring(piece.at)), 0)
   end
-  local terms = expand.endpoint_terms(b, beta, nraw)
+  local terms, _, terr = expand.endpoint_terms(b, beta, nraw, berr)
   local scale = exp_c(Fa) * piece.weight
-  local value, err, used = expand.truncate(terms, order, scale, cabs(Fa))
+  local value, err, used = expand.truncate(terms, order, scale, cabs(Fa), terr)
   local tl, omitted = {}, {}
   for k = 1, used do tl[k] = terms[k] * scale end
   for k = used + 1, math.min(#terms, used + 3) do omitted[#omitted + 1] = terms[k] * scale end
@@ -195,7 +195,7 @@ local function contributions_of(J, params, L, plan, order)
             s.source, tostring(piece.at)), 0)
         end
       end
-      contributions[#contributions + 1] = endpoint_contribution(J, params, piece, order)
+      contributions[#contributions + 1] = endpoint_contribution(J, params, piece, order, L)
     end
   end
   -- two simple saddles close together: the Airy-type uniform form for the pair
@@ -460,8 +460,8 @@ function M.homogeneous(J, params)
   return true
 end
 
---- series(J, params, opts) -> list of contributions with coefficients c_k and
--- :value(lambda, nterms). Saddles: e^{lambda phi0} sum_k c_k lambda^(-(n_k+1)/m)
+--- series(J, params, opts) -> list of contributions with coefficients c_k, an estimate of
+-- each one's absolute error (errors[k]) and :value(lambda, nterms). Saddles: e^{lambda phi0} sum_k c_k lambda^(-(n_k+1)/m)
 -- (for a simple saddle passed through: e^{lambda phi0} lambda^(-1/2) sum c_k lambda^-k);
 -- endpoints: e^{lambda phi(a)} sum_k c_k lambda^(-k-1).
 function M.series(J, params, opts)
@@ -494,14 +494,16 @@ function M.series(J, params, opts)
       table.insert(rays[piece.index], piece)
     else
       local nraw = order + 1
-      local b, phia, beta = expand.endpoint_series(J, p1, piece.at, nraw)
-      local coefs, powers = {}, {}
+      local b, phia, beta, berr = expand.endpoint_series(J, p1, piece.at, nraw, nil, L)
+      local terms, _, terr = expand.endpoint_terms(b, beta, nraw, berr)
+      local coefs, powers, errors = {}, {}, {}
       for k = 0, order - 1 do
-        coefs[k + 1] = b[k] * expand.gamma(k + (beta or 0) + 1) * piece.weight
+        coefs[k + 1] = terms[k + 1] * piece.weight
+        errors[k + 1] = terr[k + 1] * abs(piece.weight)
         powers[k + 1] = k + 1 + (beta or 0)
       end
       out[#out + 1] = { kind = "endpoint", at = piece.at, phi = phia, coefficients = coefs,
-        powers = powers }
+        powers = powers, errors = errors }
     end
   end
   for j, list in pairs(rays) do
@@ -512,15 +514,16 @@ function M.series(J, params, opts)
     for _, piece in ipairs(list) do c[piece.ray] = c[piece.ray] + piece.weight end
     local symmetric = m == 2 and c[1] == -c[2]
     local nraw = raw_count(order, m, symmetric)
-    local a, phi0 = expand.saddle_series(J, p1, s.at, m, nraw)
-    local terms, raw_powers = expand.saddle_terms(a, phi0, m, c, nraw)
-    local coefs, powers = {}, {}
+    local a, phi0, _, _, how, aerr = expand.saddle_series(J, p1, s.at, m, nraw, L)
+    local terms, raw_powers, _, terr = expand.saddle_terms(a, phi0, m, c, nraw, aerr)
+    local coefs, powers, errors = {}, {}, {}
     for k = 1, math.min(order, #terms) do
       coefs[k] = terms[k]
+      errors[k] = terr[k]
       powers[k] = (raw_powers[k] + 1) / m
     end
     out[#out + 1] = { kind = "saddle", at = s.at, order = m, phi = phi0,
-      coefficients = coefs, powers = powers }
+      coefficients = coefs, powers = powers, errors = errors, method = how }
   end
   local mt = { __index = {
     value = function(c, lambda, nterms)

@@ -7,38 +7,26 @@
 --   G = p0 + q0 u + (u^2 - zeta) H0(u),   H0' = p1 + q1 u + (u^2 - zeta) H1(u), ...
 -- and, integrating by parts, I = e^A sum_k (p_k I0 + q_k I1) with the model integrals
 --   I0 = integral over Gamma of e^{zeta u - u^3/3} du,   I1 = the same with u,
--- Airy functions of zeta on the contour Gamma that the decomposition gives (computed by the
--- project's own steepest-path quadrature). The form is continuous as zeta -> 0, where the
--- plain expansion of each saddle blows up.
+-- over the contour Gamma of the model that the pair's rays map to: from one of the
+-- model's valleys (about the directions 0, 2pi/3, -2pi/3) to another. Each such integral
+-- is an Airy function (DLMF 9.5.4 with t = -u, and u -> e^{+-2pi i/3} u for the other
+-- pairs of valleys), computed in C (ext/airy.c) with its error estimate. The form is
+-- continuous as zeta -> 0, where the plain expansion of each saddle blows up.
 
 local core = require "steep.core"
 local complex = require "steep.complex"
-local expr = require "steep.expr"
 local landscape = require "steep.landscape"
-local contour_m = require "steep.contour"
 
 local cnew, cparts = complex.new, complex.parts
 local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
 local format, pi, abs, huge = string.format, math.pi, math.abs, math.huge
+local airy, model_valley = core.cmath.airy, core.cmath.airy_valley
 
 local M = {}
 
 M.ZETA_RADIUS = 4   -- |zeta| below which two saddles are treated together
 
 local function csqrt(z) return complex.apply("sqrt", z) end
-
--- The model integrals e^{z u - u^3/3} and u e^{...} (built once).
-local model_J, model_J1
-local function models()
-  if not model_J then
-    local integral = require "steep.integral"
-    local u, z = expr.symbol("var", "u"), expr.symbol("param", "z")
-    local dummy = contour_m.line(contour_m.inf(math.pi), contour_m.inf(0))
-    model_J = integral.new { var = u, exponent = z * u - u ^ 3 / 3, contour = dummy }
-    model_J1 = integral.new { var = u, exponent = z * u - u ^ 3 / 3, amplitude = u, contour = dummy }
-  end
-  return model_J, model_J1
-end
 
 --- The saddle pair's map: A, zeta, v (= u of t1), t'(+-v); nil when no cube root fits.
 local function cubic_map(s1, s2)
@@ -87,50 +75,81 @@ local function reduce(c, n, zeta)
   return p, q, dh, n - 2
 end
 
--- The model contour: each ray of the pair (weight c) matched to the model's ray at the
--- corresponding saddle by its direction through the map, and the valleys they end in.
-local function model_contour(J, params, L, pair, map)
-  local MJ = models()
-  local ML = MJ:_landscape({ z = map.zeta }, nil, true)
-  local boundary = {}
+-- The model's contour: each ray of the pair (weight w) is matched to the model's descent
+-- ray leaving the corresponding saddle u0 = +-v in the direction the map gives it
+-- (du = dt - arg t'(u0)), whose valley ext/airy.c finds by tracing the model's path. On a
+-- Stokes line of the model that path runs into the other saddle, and goes on along one of
+-- that saddle's descent directions: the one on the side where the pair's own traced ray
+-- passed the other saddle (its nearest point, mapped by t'(u) there). Returns the valleys
+-- (0, 1, 2) the model contour starts and ends in, or nil when they are not one pair.
+local function other_side(map, side, piece, pair)
+  local u1 = side == 1 and -map.v or map.v
+  local t1 = pair[side == 1 and 2 or 1].saddle.at
+  local tp1 = side == 1 and map.tb or map.ta
+  local best, near = huge, nil
+  for _, p in ipairs(piece.points) do
+    local d = cabs(p - t1)
+    if d < best then best, near = d, p end
+  end
+  if not near or best == 0 then return nil end
+  local du = (near - t1) / tp1
+  local alpha = (pi - carg(-2 * u1)) / 2
+  for _, a in ipairs({ alpha, alpha + pi }) do
+    local dr = cparts(du * expi(-a))
+    if dr > 0 then return model_valley(map.zeta, u1, a) end
+  end
+  return nil
+end
+
+local function model_ends(map, pair)
+  local boundary = { [0] = 0, 0, 0 }
   for side, entry in ipairs(pair) do
     local u0 = side == 1 and map.v or -map.v
     local tp = side == 1 and map.ta or map.tb
-    -- the model's saddle at u0 (or the single order-3 saddle when zeta ~ 0)
-    local best, mj = huge, nil
-    for j, s in ipairs(ML.saddles) do
-      local d = cabs(s.at - u0)
-      if d < best then best, mj = d, j end
-    end
-    if not mj then return nil end
-    local mpaths = ML.paths[mj]
     for _, piece in ipairs(entry.rays) do
       if piece.weight ~= 0 then
-        local dt = carg(piece.points[2] - entry.saddle.at)
-        local du = dt - carg(tp)
-        local bb, mk = huge, nil
-        for k, mp in ipairs(mpaths.descent) do
-          local d = abs(landscape.norm_angle(carg(mp.points[2] - ML.saddles[mj].at) - du))
-          if d < bb then bb, mk = d, k end
-        end
-        if bb > pi / 3 then return nil end
-        local label = mpaths.descent[mk].ends
-        local vk = label:match("^valley (%d+)$")
-        if not vk then return nil end
-        local v = ML.valleys[tonumber(vk)]
-        local mid = v.type == "edge" and v.from or 0.5 * (v.from + v.to)
-        boundary[mid] = (boundary[mid] or 0) + piece.weight
+        local du = carg(piece.points[2] - entry.saddle.at) - carg(tp)
+        local k, why = model_valley(map.zeta, u0, du)
+        if not k and why == "saddle" then k = other_side(map, side, piece, pair) end
+        if not k then return nil end
+        boundary[k] = boundary[k] + piece.weight
       end
     end
   end
   local from, to
-  for angle, n in pairs(boundary) do
-    if n == -1 and not from then from = angle
-    elseif n == 1 and not to then to = angle
+  for k = 0, 2 do
+    local n = boundary[k]
+    if n == -1 and not from then from = k
+    elseif n == 1 and not to then to = k
     elseif n ~= 0 then return nil end
   end
   if not (from and to) then return nil end
-  return contour_m.path { contour_m.inf(from), complex.new(0, 0), contour_m.inf(to) }
+  return from, to
+end
+
+-- The model integrals from valley a to valley b, I0 = int e^{zeta u - u^3/3} du and I1
+-- (the same with u), and their errors: from valley 2 (direction -2pi/3) to valley 1
+-- (2pi/3) I0 = 2 pi i Ai(zeta) (DLMF 9.5.4 with t = -u); substituting u = omega^{+-1} w
+-- (omega = e^{2 pi i/3}) turns the other two pairs into I0 = 2 pi i omega Ai(omega zeta)
+-- (0 -> 2) and 2 pi i omega^-1 Ai(omega^-1 zeta) (1 -> 0); I1 = dI0/dzeta; a reversed
+-- pair changes the sign. The rotated argument is rounded (relative 2^-52): that moves Ai
+-- by |Ai'| |d zeta|, counted in the errors.
+local OMEGA = complex.new(-0.5, math.sqrt(3) / 2)
+local OMEGA_BAR = complex.new(-0.5, -math.sqrt(3) / 2)
+local ROUTES = {   -- [from][to] = factor of I0, factor of I1, rotation of the argument
+  [2] = { [1] = { 1, 1, 1 } }, [0] = { [2] = { OMEGA, OMEGA_BAR, OMEGA } },
+  [1] = { [0] = { OMEGA_BAR, OMEGA, OMEGA_BAR } } }
+local function model_integrals(zeta, from, to)
+  local sign = 1
+  local route = ROUTES[from] and ROUTES[from][to]
+  if not route then route, sign = ROUTES[to][from], -1 end
+  local arg = route[3] * zeta
+  local ai, aip, e_ai, e_aip, status = airy(arg)
+  if status ~= "ok" then return nil end
+  local two_pi_i = complex.new(0, 2 * pi * sign)
+  local shift = 4.5e-16 * cabs(arg)
+  return two_pi_i * route[1] * ai, two_pi_i * route[2] * aip,
+    2 * pi * (e_ai + cabs(aip) * shift), 2 * pi * (e_aip + cabs(arg * ai) * shift)
 end
 
 --- contribution(J, params, L, pair, order) -> contribution table or nil
@@ -139,15 +158,12 @@ function M.contribution(J, params, L, pair, order)
   local s1, s2 = pair[1].saddle, pair[2].saddle
   local map = cubic_map(s1, s2)
   if not map or cabs(map.zeta) > M.ZETA_RADIUS then return nil end
-  local C = model_contour(J, params, L, pair, map)
-  if not C then return nil end
-  local MJ, MJ1 = models()
-  MJ.contour, MJ1.contour = C, C
-  MJ._lcache, MJ1._lcache = nil, nil
-  local I0, e0 = MJ:quad { z = map.zeta }
-  local I1, e1 = MJ1:quad { z = map.zeta }
+  local from, to = model_ends(map, pair)
+  if not from then return nil end
+  local I0, I1, e0, e1 = model_integrals(map.zeta, from, to)
+  if not I0 then return nil end
   local nterms = order == "optimal" and 6 or order
-  local n = 2 * nterms + 16
+  local n = 2 * nterms + 22
   local c
   local vm = cabs(map.v)
   for _, rho in ipairs({ 2 * vm + 1, 2 * vm + 0.6, 1.5 * vm + 0.3 }) do
@@ -163,20 +179,29 @@ function M.contribution(J, params, L, pair, order)
   end
   if not c then return nil end
   local scale = complex.apply("exp", map.A)
+  -- the circle's coefficients carry rounding of the size of G on it
+  local gsize, used_rho = 0, 2 * vm + 1
+  for k = 0, n - 1 do gsize = math.max(gsize, cabs(c[k]) * used_rho ^ k) end
   local terms, value = {}, cnew(0, 0)
   local cur, len = c, n
   local pq = {}
-  for k = 1, nterms + 1 do
+  local sizes = 0   -- the sizes the terms' rounding scales with (p I0 and q I1 may cancel)
+  for k = 1, nterms + 3 do
     if len < 4 then break end
     local p, q, dh, nlen = reduce(cur, len, map.zeta)
     pq[k] = { p = p, q = q }
     terms[k] = (p * I0 + q * I1) * scale
+    if k <= nterms then sizes = sizes + (cabs(p * I0) + cabs(q * I1)) * cabs(scale) end
     cur, len = dh, nlen
   end
   local used = math.min(nterms, #terms)
   for k = 1, used do value = value + terms[k] end
-  local err = terms[used + 1] and cabs(terms[used + 1]) or huge
+  -- the series' remainder as for plain contributions, the model integrals' own errors,
+  -- and the rounding of e^A and of the sums (as expand.truncate's floor)
+  local err = require("steep.expand").remainder(terms, used)
   err = err + cabs(pq[1].p * scale) * e0 + cabs(pq[1].q * scale) * e1
+    + (128 + cabs(map.A)) * 2.220446049250313e-16 * sizes
+    + 64 * 2.220446049250313e-16 * gsize * (cabs(I0) + cabs(I1)) * cabs(scale)
   return { kind = "two saddles together (uniform, Airy type)", at = s1.at, partner = s2.at,
     order = 2, F = map.A, value = value, error = err, terms = { table.unpack(terms, 1, used) },
     used = used, dominance = cparts(map.A), zeta = map.zeta, weights = { 1 },

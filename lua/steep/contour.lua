@@ -8,6 +8,7 @@
 --   {kind = "arc", center = c, radius = r, from = th0, to = th1}   (a circle: 0 -> 2pi)
 -- Consecutive pieces join end to start; contours concatenate with `..`.
 
+local core = require "steep.core"
 local complex = require "steep.complex"
 
 local cnew, cparts, is_complex = complex.new, complex.parts, complex.is
@@ -217,8 +218,12 @@ function methods.reverse(c)
   return new(pieces, c.closed)
 end
 
---- c:finite_points(): the finite vertices (for the problem's scale).
+--- c:finite_points(): the finite vertices (for the problem's scale), each once where one
+-- piece ends and the next starts. The list is kept with the contour and shared by every
+-- caller: read it, do not change it.
+local finite_kept = setmetatable({}, { __mode = "k" })
 function methods.finite_points(c)
+  if finite_kept[c] then return finite_kept[c] end
   local out = {}
   for _, p in ipairs(c.pieces) do
     if p.kind == "arc" then
@@ -227,11 +232,73 @@ function methods.finite_points(c)
       out[#out + 1] = p.center + cnew(0, p.radius)
       out[#out + 1] = p.center - cnew(0, p.radius)
     else
-      if p.a then out[#out + 1] = p.a end
+      if p.a and out[#out] ~= p.a then out[#out + 1] = p.a end
       if p.b then out[#out + 1] = p.b end
     end
   end
+  finite_kept[c] = out
   return out
+end
+
+-- The end of a ray from a in direction th at |t| = R, or one unit of length past a if that
+-- is farther: |a + s dir| = R  ->  s = -Re(conj(a) dir) + sqrt(...).
+local function ray_end(a, th, R)
+  local dir = cnew(cos(th), sin(th))
+  local ar, ai = cparts(a)
+  local proj = ar * cos(th) + ai * sin(th)
+  local a2 = ar * ar + ai * ai
+  local s = -proj + math.sqrt(math.max(0, proj * proj - a2 + R * R))
+  return a + math.max(s, 1) * dir
+end
+
+--- c:polyline(R) -> steep.cvec: the contour as a polyline for geometry (distances to
+-- it, which side of it a point lies): its vertices only, segments being straight; each
+-- ray out to |t| = R (at least one unit of length past its start); each arc in 64
+-- pieces per quarter turn. One point per vertex, in C memory: a path of many points
+-- costs 16 bytes a point here, where c:sample makes N Lua values per segment. Kept for
+-- the last radius asked (contours are immutable). Also returns the runs of consecutive
+-- segments: a list of {first =, last =, from =, to =} (pieces first..last, points
+-- from..to of the polyline), for quadrature of a run in one call.
+local polylines = setmetatable({}, { __mode = "k" })
+function methods.polyline(c, R)
+  if type(R) ~= "number" or not (R > 0) or R == math.huge then
+    error(format("bad argument #1 to 'polyline' (positive finite radius expected, got %s)",
+      tostring(R)), 2)
+  end
+  local kept = polylines[c]
+  if kept and kept.radius == R then return kept.points, kept.runs end
+  local pts, runs = {}, {}
+  local function add(z)
+    local last = pts[#pts]
+    if not last or last ~= z then pts[#pts + 1] = z end
+  end
+  for i, p in ipairs(c.pieces) do
+    if p.kind == "segment" then
+      add(p.a)
+      local run = runs[#runs]
+      if run and run.last == i - 1 and run.to == #pts then
+        run.last = i
+      else
+        runs[#runs + 1] = { first = i, last = i, from = #pts }
+        run = runs[#runs]
+      end
+      pts[#pts + 1] = p.b
+      run.to = #pts
+    elseif p.kind == "ray_out" then
+      add(p.a)
+      pts[#pts + 1] = ray_end(p.a, p.angle, R)
+    elseif p.kind == "ray_in" then
+      add(ray_end(p.b, p.angle, R))
+      pts[#pts + 1] = p.b
+    else
+      local m = math.max(4, math.ceil(math.abs(p.to - p.from) / (pi / 2) * 64))
+      add(arc_point(p, p.from))
+      for k = 1, m do pts[#pts + 1] = arc_point(p, p.from + (p.to - p.from) * k / m) end
+    end
+  end
+  local v = core.cvec(pts)
+  polylines[c] = { radius = R, points = v, runs = runs }
+  return v, runs
 end
 
 --- c:sample{radius = R, n = N}: a polyline through the contour: each segment in N
@@ -257,23 +324,14 @@ function methods.sample(c, opts)
     local last = pts[#pts]
     if not last or (z - last):abs() > 1e-14 * math.max(1, z:abs()) then pts[#pts + 1] = z end
   end
-  local function ray_end(a, th)
-    local dir = cnew(cos(th), sin(th))
-    -- |a + s dir| = R  ->  s = -Re(conj(a) dir) + sqrt(...)
-    local ar, ai = cparts(a)
-    local proj = ar * cos(th) + ai * sin(th)
-    local a2 = ar * ar + ai * ai
-    local s = -proj + math.sqrt(math.max(0, proj * proj - a2 + R * R))
-    return a + math.max(s, 1) * dir
-  end
   for _, p in ipairs(c.pieces) do
     if p.kind == "segment" then
       for k = 0, n do add(p.a + (p.b - p.a) * (k / n)) end
     elseif p.kind == "ray_out" then
-      local e = ray_end(p.a, p.angle)
+      local e = ray_end(p.a, p.angle, R)
       for k = 0, n do add(p.a + (e - p.a) * (k / n)) end
     elseif p.kind == "ray_in" then
-      local e = ray_end(p.b, p.angle)
+      local e = ray_end(p.b, p.angle, R)
       for k = 0, n do add(e + (p.b - e) * (k / n)) end
     else
       local m = math.max(4, math.ceil(math.abs(p.to - p.from) / (pi / 2) * n))

@@ -26,6 +26,7 @@ local landscape = require "steep.landscape"
 local cnew, cparts = complex.new, complex.parts
 local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
 local format, pi, abs, exp, log, huge = string.format, math.pi, math.abs, math.exp, math.log, math.huge
+local floor = math.floor
 local series = core.series
 
 local M = {}
@@ -57,6 +58,22 @@ local function gamma(x)
 end
 M.gamma = gamma
 
+--- gamma_times(c, x) -> c Gamma(x) for a number or complex value c and x > 0, without
+-- overflowing where Gamma(x) alone would (x > 171) but the product does not (the
+-- coefficients of a saddle's series fall like R^-n while Gamma((n+1)/m) grows): Gamma
+-- of x shifted into [20, 21), then the factors of the recurrence Gamma(x+1) = x Gamma(x)
+-- multiplied into c one by one. Relative rounding below (x + 32) u (u = 2^-53); also
+-- returned.
+local function gamma_times(c, x)
+  if x < 160 then return c * gamma(x), (math.abs(log(gamma(x))) + 32) * 1.1102230246251565e-16 end
+  local K = floor(x - 20)
+  local x0 = x - K
+  local v = c * gamma(x0)
+  for j = 0, K - 1 do v = v * (x0 + j) end
+  return v, (x + 32) * 1.1102230246251565e-16
+end
+M.gamma_times = gamma_times
+
 -- A series of length n from a list of coefficients (complex values).
 local function ser(list, n)
   local t = {}
@@ -64,11 +81,12 @@ local function ser(list, n)
   return series(t)
 end
 
---- circle_coefficients(J, params, t0, F0, m, s, n, rho [, N]) -> c, c_half, level or nil:
+--- circle_coefficients(J, params, t0, F0, m, s, n, rho [, N]) -> c, c_half, level, gmax or nil:
 -- the coefficients c[k] = (1/2 pi i) of the integral of G(w) w^(-k-1) over |w| = rho,
 -- k = 0..n-1, by the trapezoidal rule on N points (by default a power of 2, >= 256, >= 4n); c_half[k] the same on every
 -- other point (k < N/2: their difference measures the aliasing error, whose square is
--- that of c), and level(k) the rounding level of c[k]. Inside the disc of convergence
+-- that of c), level(k) the rounding level of c[k] ((4 sqrt(N) + 16) u max|G| / rho^k: the
+-- sum's rounding grows like sqrt(N) u max|G|), and max|G|. Inside the disc of convergence
 -- they are G's Taylor coefficients; a circle that also encloses a simple pole
 -- r/(w - b) of G gives those of G - r/(w - b) instead (the pole's own part has no net
 -- residue: r/(w - b) w^(-k-1) decays like w^(-k-2)).
@@ -83,50 +101,126 @@ function M.circle_coefficients(J, params, t0, F0, m, s, n, rho, N)
   local out, half = C:totable(), C2:totable()
   for k = 0, n - 1 do out[k] = out[k + 1]; half[k] = half[k + 1] end
   out[n], half[n] = nil, nil
-  return out, half, function(k) return 64 * EPS * gmax / rho ^ k end
+  local lev0 = (4 * math.sqrt(N) + 16) * EPS * gmax
+  return out, half, function(k) return lev0 / rho ^ k end, gmax
 end
 
--- The coefficients of G(w) by Cauchy's formula on a circle inside G's disc of
--- convergence (ext/invmap.c explains why: series reversion loses digits geometrically
--- when G converges further out than the map's own series). The trapezoidal rule on
--- |w| = rho gives coefficient k with a rounding error ~ u max|G| / rho^k and an aliasing
--- error ~ (rho/R)^N (R the radius of convergence): the circle should be as large as
--- aliasing allows. A circle is trusted only if
---   * its low-order coefficients agree with the series a (reliable there): a circle past
---     a pole of G would silently add the pole's residue to every coefficient;
---   * the rule on every other point (N/2) agrees to 1e-6 relative, so that the error of
---     the N-point rule, about the square of that (the coefficients decay geometrically),
---     is 1e-12 or less.
--- The radius starts at 0.8 times an estimate of R from the coefficients a and shrinks
--- until both hold (N is doubled once first when only the second fails). Returns the
--- coefficients and how they were obtained.
 -- |u - v| and |u| for complex values u, v (never plain numbers here: they come from C),
 -- on the parts: these comparisons run over every coefficient
 local function dist(u, v) return complex.hypot(u[1] - v[1], u[2] - v[2]) end
 local function mag(u) return complex.hypot(u[1], u[2]) end
 M.dist, M.mag = dist, mag
 
+--- known_radius(J, params, L, t0, F0, m) -> R or nil: the distance from w = 0 to the
+-- nearest singularity of G(w) that the landscape L knows of. G is singular where the
+-- inverse map t(w) reaches another saddle (t'(w) = -P'(w)/F'(t) blows up there) or a
+-- singular point of F or g; such a point p lies at |w| = |F0 - F(p)|^(1/m), with F
+-- continued along the way: a log term c log(t - q) of F adds 2 pi i c per turn about q,
+-- so every saddle (this one too) and singular point is also taken at F(p) +- 2 pi i c.
+-- Some of these may lie on other sheets of t(w) (the true radius is then larger: the
+-- circle's own coefficients say so, below); one the landscape missed makes a circle
+-- past it fail its checks.
+function M.known_radius(J, params, L, t0, F0, m)
+  if not L then return nil end
+  local shifts = { cnew(0, 0) }
+  for _, q in ipairs(L.singularities or {}) do
+    if q.coefficient and cabs(q.coefficient) > 0 then
+      local turn = cnew(0, 2 * pi) * q.coefficient
+      shifts[#shifts + 1], shifts[#shifts + 2] = turn, -turn
+    end
+  end
+  local R = huge
+  local tiny = 1e-12 * (1 + cabs(F0))
+  local function consider(F)
+    for _, shift in ipairs(shifts) do
+      local d = cabs(F0 - F - shift)
+      -- (a point at the saddle's own level maps to w = 0 on another sheet: not ours)
+      if d > tiny then R = math.min(R, d ^ (1 / m)) end
+    end
+  end
+  for _, sd in ipairs(L.saddles or {}) do consider(sd.F) end
+  for _, q in ipairs(L.singularities or {}) do
+    if q.kind ~= "removable" and q.kind ~= "regular" then
+      local ok, F = pcall(J.tape.eval, J.tape, q.at, params)
+      if ok and F and cabs(F) < huge then consider(F) end
+    end
+  end
+  return R < huge and R or nil
+end
+
+-- Rounding-level errors of coefficients a[0..n-1] that came from series reversion
+-- without a circle to check them: (k + 1) 64 u times the natural size at order k, the
+-- largest lower coefficient carried up by the radius R (reversion loses digits like
+-- (R_map/R)^k beyond that when the map's own series converges less far than G's: a
+-- circle is then needed, and used when one can be trusted).
+local function series_errors(a, n, R)
+  local err, size = {}, 0
+  R = (R and R < huge) and R or 1
+  for k = 0, n - 1 do
+    size = math.max(size / R, mag(a[k]))
+    err[k] = (k + 1) * 64 * EPS * size
+  end
+  return err
+end
+
+-- The coefficients of G(w) by Cauchy's formula on a circle inside G's disc of
+-- convergence (ext/invmap.c explains why: series reversion loses digits geometrically
+-- when G converges further out than the map's own series). The trapezoidal rule on
+-- |w| = rho on N points gives coefficient k with a rounding error of about
+-- sqrt(N) u max|G| / rho^k and an aliasing error of about |a_k| (rho/R)^N (R the radius
+-- of convergence). Coefficient k's relative error thus grows like (R/rho)^k: for n
+-- coefficients the circle is sized from the nearest known singularity (known_radius,
+-- else the growth of the series a) at rho = R e^(-4.6/n) (so (R/rho)^n <= 100), within
+-- [0.8 R, 0.99 R] (1000 for n <= 64), and N is a multiple of 64 with (rho/R)^N <= 1e-16 (at least 4n and
+-- 256; at most 16384 but for the doubling below). A circle is trusted only if
+--   * its low-order coefficients agree with the series a (reliable there): a circle past
+--     a pole of G would silently add the pole's residue to every coefficient;
+--   * the rule on every other point (N/2) agrees to 1e-6 relative for k <= N/8.
+-- When not, the radius shrinks by 0.85 (N doubled once first when only the second
+-- failed). When the coefficients fall off faster than R predicts (the known singularity
+-- lies on another sheet), R is taken from their growth instead, at most twice.
+-- Returns the coefficients, how they were obtained, and an estimate of each one's
+-- absolute error: the rounding level (4 sqrt(N) + 16) u max|G| / rho^k plus the aliasing
+-- (the N/2 rule's difference times (rho/R)^(N/2) where that rule has the coefficient,
+-- |c_k| N (rho/R)^N beyond).
+local function circle_points(n, q)
+  local need = math.max(256, 4 * n, math.min(16384, 36.8 / -log(q)))
+  return 64 * math.ceil(need / 64)
+end
+
+local function root_radius(c, from, to, S)
+  local R = huge
+  for k = from, to do
+    local v = mag(c[k])
+    if v > 0 and S > 0 then R = math.min(R, (v / S) ^ (-1 / k)) end
+  end
+  return R
+end
+
 -- `series` is the list a[0..n-1] from the series route, or a function giving its first
 -- k entries (computed only as far as needed).
-local function cauchy_coefficients(J, params, t0, F0, m, s, series, n)
+local function cauchy_coefficients(J, params, t0, F0, m, s, series, n, L)
   local by_reversion = series
   if type(series) == "table" then by_reversion = function() return series end end
   local a = by_reversion(math.min(n, 17))   -- what the checks below read
-  if n <= 6 then return a, "series" end
-  local function all() return n > 17 and by_reversion(n) or a end
-  -- root test on the coefficients relative to the largest of a_0..a_2 (so that an overall
+  local S = math.max(cabs(a[0]), cabs(a[1] or 0), cabs(a[2] or 0))
+  local R = M.known_radius(J, params, L, t0, F0, m)
+  -- root test on the series relative to the largest of a_0..a_2 (so that an overall
   -- scale, as the 1/x of 1/(x + w), does not bias the estimate)
-  local S = math.max(cabs(a[0]), cabs(a[1]), cabs(a[2]))
-  local R = huge
-  for k = 3, math.min(n - 1, 16) do
-    local v = cabs(a[k])
-    if v > 0 and S > 0 then R = math.min(R, (v / S) ^ (-1 / k)) end
+  if not R then R = root_radius(a, 3, math.min(n - 1, 16), S) end
+  local function all()
+    local full = n > 17 and by_reversion(n) or a
+    return full, series_errors(full, n, R)
   end
-  if R == huge then return all(), "series" end
-  local N0 = 256
-  while N0 < 4 * n do N0 = N0 * 2 end
-  local rho, N, doubled = 0.8 * R, N0, false
-  for _ = 1, 12 do
+  if n <= 6 or R == huge then
+    local c, err = all()
+    return c, "series", err
+  end
+  -- (up to 64 coefficients, (R/rho)^n <= 1000 is enough: their last few only size the
+  -- first omitted term)
+  local q = math.min(0.99, math.max(0.8, exp(-(n <= 64 and 6.9 or 4.6) / n)))
+  local rho, N, doubled, regrown = q * R, circle_points(n, q), false, 0
+  for _ = 1, 14 do
     local c, c2, level = M.circle_coefficients(J, params, t0, F0, m, s, n, rho, N)
     local ok_series, ok_alias = c ~= nil, c ~= nil
     if c then
@@ -148,39 +242,97 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, series, n)
         end
       end
     end
-    if ok_series and ok_alias then
-      return c, format("Cauchy integral on |w| = %.4g (%d points)", rho, N)
+    if ok_series and ok_alias and n > 17 and regrown < 2 then
+      -- the growth of the well-determined coefficients (100 times their rounding
+      -- level), from order n/4 on, against R
+      local Rc = huge
+      for k = math.max(3, n // 4), n - 1 do
+        local v = mag(c[k])
+        if v > 100 * level(k) then Rc = math.min(Rc, (v / S) ^ (-1 / k)) end
+      end
+      if Rc < huge and Rc > 1.3 * R then
+        R, regrown = math.min(Rc, 4 * R), regrown + 1
+        rho, N, doubled = q * R, circle_points(n, q), false
+        goto continue
+      end
     end
-    if ok_series and not doubled and N < 8192 then
+    if ok_series and ok_alias then
+      local ratio = rho / R
+      local half_alias = ratio ^ (N / 2)
+      local err = {}
+      for k = 0, n - 1 do
+        local alias
+        if k <= N // 4 then alias = dist(c[k], c2[k]) * half_alias
+        else alias = mag(c[k]) * N * ratio ^ N end
+        err[k] = level(k) + alias
+      end
+      -- level(k) takes the rounding of the N values as independent: it overstates the
+      -- error of high orders by orders of magnitude (the values' errors vary smoothly
+      -- round the circle and alias little). For many coefficients, a second circle
+      -- slightly inside (rho e^(-1/n): its own errors at most e times larger up to order
+      -- n) measures the achieved accuracy instead: 3 times the largest difference of the two
+      -- at k and its three neighbours on each side (the rounding is random from order to
+      -- order, a single difference may fall short), plus what the circles share, the
+      -- rounding of the map's scale s and of F0 carried to order k (8 (k + 1) u |c_k|),
+      -- and the aliasing.
+      if n > 100 then
+        local c3 = M.circle_coefficients(J, params, t0, F0, m, s, n, rho * exp(-1 / n), N)
+        if c3 then
+          local d = {}
+          for k = 0, n - 1 do d[k] = dist(c[k], c3[k]) end
+          for k = 0, n - 1 do
+            local near = 0
+            for j = math.max(0, k - 3), math.min(n - 1, k + 3) do near = math.max(near, d[j]) end
+            err[k] = math.min(err[k], 3 * near + 8 * (k + 1) * EPS * mag(c[k])
+              + (err[k] - level(k)))
+          end
+        end
+      end
+      return c, format("Cauchy integral on |w| = %.4g (%d points)", rho, N), err
+    end
+    if ok_series and not doubled and N <= 16384 then
       N, doubled = 2 * N, true
     else
-      rho, N, doubled = 0.85 * rho, N0, false
+      rho, N, doubled = 0.85 * rho, circle_points(n, q), false
     end
+    ::continue::
   end
-  return all(), "series (no circle could be trusted)"
+  local c, err = all()
+  return c, "series (no circle could be trusted)", err
 end
 
---- saddle_series(J, params, t0, m, n) -> a (list a[0..n-1] as complex, 0-based), F0, s
+--- saddle_series(J, params, t0, m, n [, L]) -> a (list a[0..n-1] as complex, 0-based),
+-- F0, s, alpha, how, err (err[k] an estimate of a[k]'s absolute error)
 -- The coefficients a_n of G(w) about the saddle t0 of order m, with the map oriented so
 -- that w > 0 is the direction of descent ray 1 (the one core.saddle_starts lists first).
-function M.saddle_series(J, params, t0, m, n)
+-- L, the landscape, sizes the Cauchy circle (known_radius).
+function M.saddle_series(J, params, t0, m, n, L)
   if m > M.MAX_SADDLE_ORDER then
     error(format("a saddle of order %d at %s: orders above %d are not supported", m,
       tostring(t0), M.MAX_SADDLE_ORDER), 0)
   end
-  local order = n + m            -- jets of F to order n + m - 1 suffice; one spare
-  if order > core.max_order then
-    error(format("expansion needs jets of order %d (at most %d): ask for fewer terms",
-      order, core.max_order), 0)
+  -- jets of F to order k + m - 1 give k coefficients (one spare): the circle needs the
+  -- first 17 for its checks, all n only if it is not trusted
+  local have, Fc, gc = -1, nil, nil
+  local function jets(k)
+    local order = k + m
+    if order > have then
+      if order > core.max_order then
+        error(format("expansion needs jets of order %d (at most %d) where no Cauchy "
+          .. "circle could be trusted: ask for fewer terms", order, core.max_order), 0)
+      end
+      local Fj, gj = J.tape:jet(t0, order, params)
+      Fc, gc, have = Fj:coefs(), gj:coefs(), order   -- Fc[k + 1] = f_k
+    end
   end
-  local Fj, gj = J.tape:jet(t0, order, params)
-  local Fc, gc = Fj:coefs(), gj:coefs()   -- Fc[k + 1] = f_k (series arithmetic stays in C)
+  jets(math.min(n, 17))
   local F0, fm = Fc[1], Fc[m + 1]
   -- s: |f_m|^(1/m) e^{-i alpha_1}, alpha_1 = (pi - arg f_m)/m the first descent angle
   local alpha = (pi - carg(fm)) / m
   local sm = cabs(fm) ^ (1 / m) * expi(-alpha)
   -- the first n coefficients of G(w) = g(t0 + h(w)) h'(w) by series reversion (O(n^3))
   local function by_reversion(n)
+    jets(n)
     -- r(h) = (F0 - F(t0 + h)) / (-f_m h^m) = sum_k (f_{m+k} / f_m) h^k
     local rs = series(table.move(Fc, m + 1, m + n, 1, {})) * (1 / fm)
     local root = rs ^ (1 / m)     -- principal branch near 1
@@ -194,17 +346,18 @@ function M.saddle_series(J, params, t0, m, n)
     a[n] = nil
     return a
   end
-  -- the circle needs only the first 17 for its checks; all n only if it is not trusted
-  local a, how = cauchy_coefficients(J, params, t0, F0, m, sm, by_reversion, n)
-  return a, F0, sm, alpha, how
+  local a, how, err = cauchy_coefficients(J, params, t0, F0, m, sm, by_reversion, n, L)
+  return a, F0, sm, alpha, how, err
 end
 
 --- Terms of a saddle contribution with ray weights c[1..m] (c_k on descent ray k, whose
 -- angle is alpha_1 + 2 pi (k-1)/m): the n-th term e^{F0} a_n Gamma((n+1)/m)/m
 -- sum_k c_k omega_k^{n+1}. Terms that vanish by the symmetry of the rays are left out.
-function M.saddle_terms(a, F0, m, c, nraw)
+-- With aerr (the coefficients' errors), also each term's error (that of a_n carried
+-- through, plus Gamma's rounding).
+function M.saddle_terms(a, F0, m, c, nraw, aerr)
   local eF0 = complex.new(0, 0) + 1
-  local terms, powers = {}, {}
+  local terms, powers, errors = {}, {}, {}
   for n = 0, nraw - 1 do
     -- sum_k c_k omega_k^(n+1), on the parts
     local fr, fi = 0, 0
@@ -214,13 +367,18 @@ function M.saddle_terms(a, F0, m, c, nraw)
         fr, fi = fr + c[k] * math.cos(angle), fi + c[k] * math.sin(angle)
       end
     end
-    if math.sqrt(fr * fr + fi * fi) > 1e-12 then
-      local coef = a[n] * cnew(fr, fi) * (gamma((n + 1) / m) / m)
-      terms[#terms + 1] = coef
+    local f = math.sqrt(fr * fr + fi * fi)
+    if f > 1e-12 then
+      local coef, rel = gamma_times(a[n] * cnew(fr, fi), (n + 1) / m)
+      terms[#terms + 1] = coef / m
       powers[#powers + 1] = n
+      if aerr then
+        errors[#errors + 1] = cabs(gamma_times(aerr[n] * f, (n + 1) / m)) / m
+          + rel * cabs(coef) / m
+      end
     end
   end
-  return terms, powers, eF0
+  return terms, powers, eF0, aerr and errors or nil
 end
 
 -- The amplitude's algebraic factor at an endpoint a: looks through the products and
@@ -267,11 +425,11 @@ local function algebraic_factor(J, params, a)
   return nil
 end
 
---- endpoint_series(J, params, a, n, dir) -> b (0-based list), F(a), beta, map info
+--- endpoint_series(J, params, a, n [, near, L]) -> b (0-based list), F(a), beta, err
 -- Watson's lemma at a finite endpoint with F'(a) != 0: the coefficients of
--- G(w) = g(a + h(w)) h'(w) (times w^-beta for an algebraic factor (t-a)^beta).
--- dir: a point on the descent path just after a, to fix the branch of the factor.
-function M.endpoint_series(J, params, a, n, near)
+-- G(w) = g(a + h(w)) h'(w) (times w^-beta for an algebraic factor (t-a)^beta), and an
+-- estimate of each one's error. L, the landscape, sizes the Cauchy circle.
+function M.endpoint_series(J, params, a, n, near, L)
   local order = n + 1
   if order > core.max_order then
     error(format("expansion needs jets of order %d (at most %d)", order, core.max_order), 0)
@@ -347,36 +505,48 @@ function M.endpoint_series(J, params, a, n, near)
     local phase = user / ours
     phase = phase / cabs(phase)
     for k = 0, n - 1 do b[k] = G:coef(k) * phase end
-  else
-    for k = 0, n - 1 do b[k] = G:coef(k) end
-    b = cauchy_coefficients(J, params, a, Fa, 1, -f1, b, n)
+    return b, Fa, beta, series_errors(b, n, M.known_radius(J, params, L, a, Fa, 1))
   end
-  return b, Fa, beta
+  for k = 0, n - 1 do b[k] = G:coef(k) end
+  local err
+  b, _, err = cauchy_coefficients(J, params, a, Fa, 1, -f1, b, n, L)
+  return b, Fa, beta, err
 end
 
---- Terms of an endpoint contribution: e^{F(a)} b_n Gamma(n + beta + 1).
-function M.endpoint_terms(b, beta, nraw)
-  local terms, powers = {}, {}
+--- Terms of an endpoint contribution: e^{F(a)} b_n Gamma(n + beta + 1), and with berr
+-- (the coefficients' errors) each term's error.
+function M.endpoint_terms(b, beta, nraw, berr)
+  local terms, powers, errors = {}, {}, {}
   for n = 0, nraw - 1 do
-    terms[#terms + 1] = b[n] * gamma(n + (beta or 0) + 1)
+    local v, rel = gamma_times(b[n], n + (beta or 0) + 1)
+    terms[#terms + 1] = v
     powers[#powers + 1] = n
+    if berr then
+      errors[#errors + 1] = gamma_times(berr[n], n + (beta or 0) + 1) + rel * cabs(v)
+    end
   end
-  return terms, powers
+  return terms, powers, berr and errors or nil
 end
 
 --- Sums terms to `order` terms (a number) or to the smallest term ("optimal"); returns
 -- the sum, the error estimate (size of the first omitted term, or of the smallest one
--- for optimal truncation) and the number of terms used. The estimate is never below the
+-- for optimal truncation, plus the errors of the terms used when term_errors gives
+-- them) and the number of terms used. The estimate is never below the
 -- rounding floor (128 + logsize) u sum |terms used| |scale| (u = 2^-52): Gamma here is good
 -- to about 2e-14 relative, and e^F with |F| = logsize carries |F| u of its own; without
 -- the floor a series that terminates (all further terms zero) would claim no error.
-function M.truncate(terms, order, scale, logsize)
+function M.truncate(terms, order, scale, logsize, term_errors)
   scale = scale or 1
   local n = #terms
   local function floor(used)
     local s = 0
     for k = 1, used do s = s + cabs(terms[k]) end
     return (128 + (logsize or 0)) * 2.220446049250313e-16 * s * cabs(scale)
+  end
+  local function coef_errors(used)
+    local e = 0
+    if term_errors then for k = 1, used do e = e + term_errors[k] end end
+    return e * cabs(scale)
   end
   if order == "optimal" then
     local best, bi = huge, n
@@ -394,12 +564,20 @@ function M.truncate(terms, order, scale, logsize)
       local env = math.sqrt(cabs(before) * cabs(after))
       if best < 0.5 * env then best = env end
     end
-    return s * scale, math.max(best * cabs(scale), floor(bi - 1)), bi - 1
+    -- at the smallest term the remainder is that term times a factor that grows like
+    -- sqrt(pi N/2) off the real axis (Olver's bound for the saddle-point remainder in a
+    -- Stokes sector, DLMF 9.7(iii) for Airy's: the subdominant exponential switching on
+    -- is of the size of the smallest term times that); a real alternating series keeps
+    -- the smallest term (Stieltjes)
+    local factor = M.alternating(terms, bi) and 1.5 or math.max(1.5, math.sqrt(pi * bi / 2))
+    return s * scale, math.max(factor * best * cabs(scale), floor(bi - 1)) + coef_errors(bi - 1),
+      bi - 1
   end
   local used = math.min(order, n)
   local s = cnew(0, 0)
   for k = 1, used do s = s + terms[k] end
-  return s * scale, math.max(M.remainder(terms, used) * cabs(scale), floor(used)), used
+  return s * scale, math.max(M.remainder(terms, used) * cabs(scale), floor(used))
+    + coef_errors(used), used
 end
 
 --- remainder(terms, used) -> an estimate of |sum of the terms after `used`| that bounds it
@@ -425,24 +603,28 @@ function M.remainder(terms, used)
   end
   -- terms of alternating sign (a real series of Stieltjes type, as Watson's lemma gives
   -- for e^x E1(x)): the remainder lies between 0 and the first omitted term (DLMF 2.3
-  -- (iii) for that case); its first two bound it with room
-  if #raw == 3 then
-    local alternating = true
-    for k = 1, 2 do
-      local q = raw[k + 1] / raw[k]
-      local qr, qi = cparts(q)
-      if not (qr < 0 and abs(qi) <= 1e-6 * abs(qr)) then alternating = false end
-    end
-    if alternating then return next3[1] + next3[2] end
-  end
+  -- (iii) for that case); its first two, and half again, bound it with room
+  if #raw == 3 and M.alternating(raw, 1) then return 1.5 * (next3[1] + next3[2]) end
   local sum = 0
   for _, v in ipairs(next3) do sum = sum + v end
   local a, b = next3[#next3 - 1], next3[#next3]
   local r = a and b / a or 1
   if r < 1 then sum = sum + b * math.min(r / (1 - r), 10) end
   -- the ratios of an asymptotic series grow with the index: the geometric rest falls
-  -- short by about the last ratio's share
-  return sum * (1 + math.min(r, 1))
+  -- short by about the last ratio's share; and half again, so that a remainder made of
+  -- terms all of one phase is not met exactly (the calibration's margin)
+  return sum * (1.5 + math.min(r, 1))
+end
+
+--- Do terms[from], terms[from + 1], terms[from + 2] alternate in sign, real to rounding?
+function M.alternating(terms, from)
+  for k = from, from + 1 do
+    local u, v = terms[k], terms[k + 1]
+    if not (u and v) or cabs(u) == 0 then return false end
+    local qr, qi = cparts(v / u)
+    if not (qr < 0 and abs(qi) <= 1e-6 * abs(qr)) then return false end
+  end
+  return true
 end
 
 return M

@@ -115,7 +115,9 @@ steep.circle = contour.circle
 steep.is_contour = contour.is
 steep.integral = integral.new
 
---- steep.airy(z) -> Ai(z), Ai'(z), and their error estimates (complex z)
+--- steep.airy(z) -> Ai(z), Ai'(z), their error estimates and a status (complex z);
+-- steep.airy_bi(z) the same for Bi
 function steep.airy(z) return require("steep.special").airy(z) end
+function steep.airy_bi(z) return require("steep.special").airy_bi(z) end
 
 return steep

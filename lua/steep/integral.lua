@@ -311,8 +311,12 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
       .. "many?): the region was limited to radius " .. format("%.4g", region.radius)
       .. " (four times the contour's scale); give region = {...} to choose"
   end
-  local seeds = {}
-  for _, z in ipairs(J.contour:finite_points()) do seeds[#seeds + 1] = z end
+  -- the contour's finite points seed Newton too; of a path of many points, 64 spread
+  -- along it (the search of the region finds the rest)
+  local seeds, fp = {}, J.contour:finite_points()
+  local stride = math.max(1, #fp // 64)
+  for k = 1, #fp, stride do seeds[#seeds + 1] = fp[k] end
+  if #fp > 0 and seeds[#seeds] ~= fp[#fp] then seeds[#seeds + 1] = fp[#fp] end
   local sing, sinfo, saddles, info
   for round = 1, 3 do
     sing, sinfo = landscape.singularities(J, params, L.region)
@@ -598,12 +602,28 @@ local function quad_circle(J, params, p)
   return prev, cabs(prev), evals, "limit"
 end
 
+-- The stretches of a run of segments (points run.from..run.to of the polyline) whose
+-- segments are all short against the local scale (local_scale, computed in C).
+local function short_stretches(J, params, L, poly, run)
+  local at, widths = {}, {}
+  for k, sd in ipairs(L.saddles) do
+    at[k] = sd.at
+    widths[k] = (sd.width and sd.width < huge) and sd.width or huge
+  end
+  return core.short_stretches(J.tape, params, poly, { first = run.from, last = run.to,
+    center = L.region.center, radius = L.region.radius, saddles = core.cvec(at),
+    widths = core.cvec(widths) })
+end
+
 -- Along the user's contour, piece by piece.
 local function quad_given(J, params, L)
   local total, err, evals, status = cnew(0, 0), 0, 0, "ok"
   local notes = {}
   local R = L.region.radius
-  decompose.check_contour(L, J.contour, J.contour:sample { radius = 8 * R, n = 64 })
+  local poly, runs = J.contour:polyline(8 * R)
+  decompose.check_contour(L, J.contour, poly)
+  local run_at = {}
+  for _, run in ipairs(runs) do run_at[run.first] = run end
   -- an end at infinity outside every valley: the integral diverges there. Said before
   -- integrating where the valleys are exact (read from the expression); said after, from
   -- the value, where they are indicative (found by sampling).
@@ -624,12 +644,43 @@ local function quad_given(J, params, L)
       diverges(p)
     end
   end
-  for _, p in ipairs(J.contour.pieces) do
+  local pieces = J.contour.pieces
+  local i = 1
+  while i <= #pieces do
+    local p = pieces[i]
     local v, e, ev, st
     if p.kind == "segment" then
-      v, e, ev, st = core.quad_polyline(J.tape, params, graded_segment(J, params, L, p.a, p.b),
-        { reltol = QUAD_REL, singular_start = singular_at(L, p.a) ~= nil,
-          singular_end = singular_at(L, p.b) ~= nil })
+      -- a run of consecutive segments goes to C as stretches of the polyline, with no
+      -- Lua value per point: where each segment is short against the local scale at its
+      -- ends (core.short_stretches), one call integrates the stretch segment by segment
+      -- (check_contour has made sure no singular point lies between its ends); a long
+      -- segment is graded as alone
+      local run = run_at[i]
+      st = "ok"
+      local stretches = run.to - run.from > 1 and short_stretches(J, params, L, poly, run) or {}
+      local at = run.from
+      local function add(v1, e1, ev1, st1)
+        v, e, ev = (v or 0) + v1, (e or 0) + e1, (ev or 0) + ev1
+        if st1 ~= "ok" then st = st1 end
+      end
+      local function long_segment(j)   -- the segment from point j to j + 1
+        local q = pieces[run.first + (j - run.from)]
+        add(core.quad_polyline(J.tape, params, graded_segment(J, params, L, q.a, q.b),
+          { reltol = QUAD_REL, singular_start = singular_at(L, q.a) ~= nil,
+            singular_end = singular_at(L, q.b) ~= nil }))
+      end
+      for _, stretch in ipairs(stretches) do
+        for j = at, stretch[1] - 1 do long_segment(j) end
+        local qa = pieces[run.first + (stretch[1] - run.from)].a
+        local qb = pieces[run.first + (stretch[2] - 1 - run.from)].b
+        add(core.quad_polyline(J.tape, params, poly, { reltol = QUAD_REL,
+          first = stretch[1], last = stretch[2],
+          singular_start = singular_at(L, qa) ~= nil, singular_end = singular_at(L, qb) ~= nil,
+          budget = 2000000 + 64 * (stretch[2] - stretch[1]) }))
+        at = stretch[2]
+      end
+      for j = at, run.to - 1 do long_segment(j) end
+      i = run.last
     elseif p.kind == "ray_out" then
       v, e, ev, st = quad_ray(J, params, L, p.a, p.angle, 1, singular_at(L, p.a) ~= nil, notes)
     elseif p.kind == "ray_in" then
@@ -643,6 +694,7 @@ local function quad_given(J, params, L)
     end
     total, err, evals = total + v, err + e, evals + ev
     if st ~= "ok" then status = st end
+    i = i + 1
   end
   return total, err, { status = status, evals = evals, notes = notes, along = "given" }
 end
@@ -785,9 +837,15 @@ function M.quad_with(J, params, L, along)
     end
   end
   for _, s in ipairs(L.saddles) do consider(s.F, s.g) end
-  for _, z in ipairs(J.contour:finite_points()) do
-    local ok, F, g = pcall(J.tape.eval, J.tape, z, params)
-    if ok then consider(F, g) end
+  -- (the contour's finite points in one batch, singular ones giving no finite F; of a
+  -- path of many points, 4096 spread along it and its ends)
+  local fp, pts = J.contour:finite_points(), {}
+  local stride = math.max(1, #fp // 4096)
+  for k = 1, #fp, stride do pts[#pts + 1] = fp[k] end
+  if #fp > 0 and pts[#pts] ~= fp[#fp] then pts[#pts + 1] = fp[#fp] end
+  if #pts > 0 then
+    local Fs, gs = J.tape:eval_many(core.cvec(pts), params)
+    for k = 1, #pts do consider(Fs:get(k), gs and gs:get(k)) end
   end
   e = math.max(e, (4 + Fmax) * 2.2e-16 * cabs(v))
   info.landscape = L

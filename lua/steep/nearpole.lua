@@ -112,7 +112,7 @@ function M.contribution(J, params, L, j, c, near, order, series)
   if not h then return nil end
   local sign = c[1]          -- +1: in along ray 2, out along ray 1 (w increasing)
   local terms = {}
-  for k = 0, nraw / 2 - 1 do terms[#terms + 1] = h[2 * k] * expand.gamma(k + 0.5) end
+  for k = 0, nraw / 2 - 1 do terms[#terms + 1] = expand.gamma_times(h[2 * k], k + 0.5) end
   terms[1] = terms[1] + near.r * pole_integral(near.b)
   local scale = exp_c(F0) * sign
   local value, err, used = expand.truncate(terms, order, scale, cabs(F0))

@@ -64,61 +64,27 @@ local function progress_reporter(total, on_terminal)
   end
 end
 
---- J:sweep{x = {list} | {from =, to =, steps =}, order = N, csv = file, shard = {k, n},
--- progress = true|false, <other params>} -> rows
--- Expansion and quadrature over the range. Each step starts from the previous step's
--- saddles and singularities (continuation: Newton from them, no search of the whole
--- region) and falls back to a full search when it finds fewer of them, or fewer saddles
--- than the argument principle counts in the region. A shard k of n takes the
--- k-th contiguous block of the values, so the CSV pieces concatenate into the whole
--- table (only shard 1 writes the header).
-function M.sweep(J, opts)
-  need_table(opts, "sweep")
-  if not J.large then error("sweep: the integral names no large parameter", 2) end
-  local x = J.large.name
-  local values = routes.parameter_values(opts[x], "sweep")
-  -- options and the other parameters are checked once here (an unknown name or an
-  -- unbound parameter would otherwise fail every row alike)
-  do
-    local probe = copy(opts)
-    probe[x] = values[1]
-    local integral_m = require("steep.integral")
-    local _, o = integral_m.split_options(J, probe, { order = true, csv = true, shard = true,
-      progress = true, continuation = true, region = true, budget = true }, "sweep")
-    if o.region then opts = copy(opts); opts.region = integral_m.check_region(o.region, "sweep", J) end
-  end
-  local order = require("steep.asymptotics").check_order(opts.order or 4, "sweep")
-  local shard = opts.shard
-  local first, last = 1, #values
-  if shard ~= nil then
-    shard = check_shard(shard)
-    first, last = M.shard_range(#values, shard[1], shard[2])
-  end
-  local budget = routes.check_budget(opts.budget, "sweep")
-  local fixed = {}
-  for k, v in pairs(opts) do
-    if k ~= x and k ~= "order" and k ~= "csv" and k ~= "shard" and k ~= "progress"
-        and k ~= "continuation" and k ~= "region" and k ~= "budget" then fixed[k] = v end
-  end
-  local progress = opts.progress
-  if progress ~= nil and type(progress) ~= "boolean" then
-    error("sweep: option 'progress' must be true or false, got " .. type(progress), 2)
-  end
-  if progress == nil then progress = (last - first) >= 20 end
-  local report_progress = progress and progress_reporter(last - first + 1, core.isatty(2))
-  -- the CSV file is opened before the work: a bad name fails now, not after the sweep
-  local writer = opts.csv ~= nil and files.open(opts.csv, "sweep", "csv", 2)
-  local continuation = opts.continuation ~= false
-  local rows = {}
-  local prev
+-- Continuation runs in chains of CHAIN values: at values 1, 1 + CHAIN, 1 + 2 CHAIN, ...
+-- of the list (and at the first of a shard) the landscape is searched afresh. A row then
+-- depends only on its chain, so a sweep split among workers at chain boundaries gives
+-- the rows of one process exactly; a fresh search every CHAIN steps costs a few per cent.
+M.CHAIN = 64
+
+-- The rows of values[i0..i1] (one process): expansion and quadrature at each value, the
+-- landscape continued from the previous step within a chain. on_row(row, i) is called
+-- after each row. Returns the rows and the number the time budget left out (the budget
+-- counts this process's CPU time from the start of the call).
+local function compute_rows(J, values, i0, i1, ctx, on_row)
+  local x, fixed, order, budget = ctx.x, ctx.fixed, ctx.order, ctx.budget
+  local continuation, region = ctx.continuation, ctx.region
+  local rows, prev, skipped = {}, nil, 0
   local clock0 = os.clock()
-  local skipped = 0
-  local ok_loop, loop_err = pcall(function()
-  for i = first, last do
+  for i = i0, i1 do
     local v = values[i]
     local p = copy(fixed)
     p[x] = v
     local row = { x = v }
+    if (i - 1) % M.CHAIN == 0 then prev = nil end
     if budget and os.clock() - clock0 > budget then
       row.failure = format("not computed: the time budget of %g s was used up", budget)
       row.skipped = true
@@ -143,7 +109,7 @@ function M.sweep(J, opts)
           row.landscape = "full search"
         end
       else
-        L = J:_landscape(p, opts.region, false)
+        L = J:_landscape(p, region, false)
       end
       local r = require("steep.asymptotics").expand(J, p, { order = order, landscape = L })
       local q, qe = require("steep.integral").quad_with(J, p, L, "deformed")
@@ -174,15 +140,250 @@ function M.sweep(J, opts)
     rows[#rows + 1] = row
     end
     ::next_value::
-    if report_progress then report_progress(i - first + 1) end
+    if on_row then on_row(row, i) end
   end
+  return rows, skipped
+end
+
+-- Rows travel from a worker to the parent as lines of text, one per row: fields
+-- name=tag:value separated by tabs; numbers in hexadecimal floating point (exact), so
+-- the merged rows equal the worker's bit for bit.
+local function encode_number(v)
+  if math.type(v) == "integer" then return "i:" .. v end
+  if v ~= v then return "n:nan" end
+  if v == math.huge then return "n:inf" elseif v == -math.huge then return "n:-inf" end
+  return "n:" .. format("%a", v)
+end
+
+local function decode_float(s)
+  if s == "nan" then return 0 / 0 elseif s == "inf" then return math.huge
+  elseif s == "-inf" then return -math.huge end
+  return tonumber(s)
+end
+
+local function encode_row(row)
+  local fields = {}
+  for name, v in pairs(row) do
+    local t, text = type(v)
+    if t == "number" then text = encode_number(v)
+    elseif t == "boolean" then text = v and "b:1" or "b:0"
+    elseif t == "string" then
+      text = "s:" .. v:gsub("[\\\t\n\r]", { ["\\"] = "\\\\", ["\t"] = "\\t", ["\n"] = "\\n",
+        ["\r"] = "\\r" })
+    elseif complex.is(v) then
+      local re, im = cparts(v)
+      text = "c:" .. encode_number(re):sub(3) .. "," .. encode_number(im):sub(3)
+    else
+      error("sweep: a row field '" .. tostring(name) .. "' of type " .. t .. " cannot be sent")
+    end
+    fields[#fields + 1] = name .. "=" .. text
+  end
+  table.sort(fields)
+  return table.concat(fields, "\t")
+end
+
+M.encode_row = encode_row
+
+local function decode_row(line)
+  local row = {}
+  for field in line:gmatch("[^\t]+") do
+    local name, tag, text = field:match("^([^=]+)=(%a):(.*)$")
+    if tag == "i" then row[name] = math.tointeger(tonumber(text))
+    elseif tag == "n" then row[name] = decode_float(text)
+    elseif tag == "b" then row[name] = text == "1"
+    elseif tag == "s" then
+      row[name] = text:gsub("\\(.)", { ["\\"] = "\\", t = "\t", n = "\n", r = "\r" })
+    elseif tag == "c" then
+      local re, im = text:match("^([^,]+),(.+)$")
+      row[name] = complex.new(decode_float(re), decode_float(im))
+    else
+      error("sweep: a worker sent an unreadable row: " .. line:sub(1, 80), 0)
+    end
+  end
+  return row
+end
+
+M.decode_row = decode_row
+
+-- The block of values worker w of W takes from i0..i1: whole chains (the first block
+-- may start inside one), contiguous, in order.
+local function worker_ranges(i0, i1, W)
+  local starts = { i0 }
+  local c = (i0 - 1) // M.CHAIN + 1   -- the chain after i0's
+  while c * M.CHAIN + 1 <= i1 do starts[#starts + 1] = c * M.CHAIN + 1; c = c + 1 end
+  local nchains = #starts
+  W = math.min(W, nchains)
+  local ranges = {}
+  for w = 1, W do
+    local a, b = (w - 1) * nchains // W + 1, w * nchains // W
+    ranges[w] = { starts[a], b < nchains and starts[b + 1] - 1 or i1 }
+  end
+  return ranges
+end
+
+-- Runs the ranges in child processes (core.fork), each writing its rows to a file of
+-- its own, line by line; the parent reads them as they come (for progress) and merges
+-- them in order. A worker that fails, or a process that cannot fork, is an error.
+local function run_workers(J, values, ranges, ctx, report_progress)
+  local workers = {}
+  local function cleanup()
+    for _, w in ipairs(workers) do
+      if w.file then w.file:close(); w.file = nil end
+      os.remove(w.name)
+    end
+  end
+  for k, range in ipairs(ranges) do
+    local name = os.tmpname()
+    io.stdout:flush()
+    io.stderr:flush()
+    local pid, why = core.fork()
+    if pid == 0 then
+      -- the child: compute, write, leave (never back into the caller's code)
+      local ok = pcall(function()
+        local f = assert(io.open(name, "w"))
+        compute_rows(J, values, range[1], range[2], ctx, function(row)
+          assert(f:write(encode_row(row), "\n"))
+          f:flush()
+        end)
+        assert(f:close())
+      end)
+      core.child_exit(ok and 0 or 1)
+    end
+    if not pid then
+      for _, w in ipairs(workers) do core.wait(w.pid) end
+      cleanup()
+      error("sweep: cannot start worker " .. k .. " (" .. tostring(why) .. "): give workers = 1", 0)
+    end
+    workers[k] = { pid = pid, name = name, range = range, lines = {}, partial = "" }
+  end
+  local done, finished = 0, 0
+  local function read_new(w)
+    if not w.file then w.file = io.open(w.name, "r") end
+    if not w.file then return end
+    local chunk = w.file:read("a")
+    if chunk and #chunk > 0 then
+      local text = w.partial .. chunk
+      local last_nl = text:match(".*()\n")
+      if last_nl then
+        for line in text:sub(1, last_nl - 1):gmatch("[^\n]+") do
+          w.lines[#w.lines + 1] = line
+          done = done + 1
+        end
+        w.partial = text:sub(last_nl + 1)
+      else
+        w.partial = text
+      end
+    end
+  end
+  while finished < #workers do
+    for _, w in ipairs(workers) do
+      if not w.status then
+        local st, code, cpu = core.wait(w.pid, true)
+        if st ~= "running" then
+          w.status, w.code, w.cpu, finished = st, code, cpu, finished + 1
+        end
+        read_new(w)
+      end
+    end
+    if report_progress then report_progress(done) end
+    if finished < #workers then core.sleep(0.05) end
+  end
+  local rows, cpu = {}, {}
+  for k, w in ipairs(workers) do
+    cpu[k] = w.cpu
+    read_new(w)
+    local expected = w.range[2] - w.range[1] + 1
+    if w.status ~= "exit" or w.code ~= 0 or #w.lines ~= expected then
+      cleanup()
+      error(format("sweep: worker %d (values %d to %d) %s after %d of its %d rows: give "
+        .. "workers = 1 to see the error in this process", k, w.range[1], w.range[2],
+        w.status == "signal" and "was killed by signal " .. tostring(w.code)
+          or "stopped (exit code " .. tostring(w.code) .. ")", #w.lines, expected), 0)
+    end
+    for _, line in ipairs(w.lines) do rows[#rows + 1] = decode_row(line) end
+  end
+  cleanup()
+  return rows, cpu
+end
+
+--- J:sweep{x = {list} | {from =, to =, steps =}, order = N, csv = file, shard = {k, n},
+-- workers = W, progress = true|false, <other params>} -> rows
+-- Expansion and quadrature over the range. Each step starts from the previous step's
+-- saddles and singularities (continuation: Newton from them, no search of the whole
+-- region) and falls back to a full search when it finds fewer of them, or fewer saddles
+-- than the argument principle counts in the region; chains of M.CHAIN values start with
+-- a full search. A shard k of n takes the k-th contiguous block of the values, so the
+-- CSV pieces concatenate into the whole table (only shard 1 writes the header). With W
+-- workers (default: the processors online) the chains go to W child processes and the
+-- rows come back in order, the same as one process computes them.
+function M.sweep(J, opts)
+  need_table(opts, "sweep")
+  if not J.large then error("sweep: the integral names no large parameter", 2) end
+  local x = J.large.name
+  local values = routes.parameter_values(opts[x], "sweep")
+  -- options and the other parameters are checked once here (an unknown name or an
+  -- unbound parameter would otherwise fail every row alike)
+  do
+    local probe = copy(opts)
+    probe[x] = values[1]
+    local integral_m = require("steep.integral")
+    local _, o = integral_m.split_options(J, probe, { order = true, csv = true, shard = true,
+      progress = true, continuation = true, region = true, budget = true, workers = true },
+      "sweep")
+    if o.region then opts = copy(opts); opts.region = integral_m.check_region(o.region, "sweep", J) end
+  end
+  local order = require("steep.asymptotics").check_order(opts.order or 4, "sweep")
+  local shard = opts.shard
+  local first, last = 1, #values
+  if shard ~= nil then
+    shard = check_shard(shard)
+    first, last = M.shard_range(#values, shard[1], shard[2])
+  end
+  local budget = routes.check_budget(opts.budget, "sweep")
+  local workers = opts.workers
+  if workers == nil then workers = core.cpu_count() end
+  if math.type(workers) == "float" and workers == math.floor(workers) then
+    workers = math.tointeger(workers)
+  end
+  if math.type(workers) ~= "integer" or workers < 1 or workers > 1024 then
+    error(format("sweep: option 'workers' must be a whole number from 1 to 1024, got %s",
+      tostring(workers)), 2)
+  end
+  local fixed = {}
+  for k, v in pairs(opts) do
+    if k ~= x and k ~= "order" and k ~= "csv" and k ~= "shard" and k ~= "progress"
+        and k ~= "continuation" and k ~= "region" and k ~= "budget" and k ~= "workers" then
+      fixed[k] = v
+    end
+  end
+  local progress = opts.progress
+  if progress ~= nil and type(progress) ~= "boolean" then
+    error("sweep: option 'progress' must be true or false, got " .. type(progress), 2)
+  end
+  if progress == nil then progress = (last - first) >= 20 end
+  local report_progress = progress and progress_reporter(last - first + 1, core.isatty(2))
+  -- the CSV file is opened before the work: a bad name fails now, not after the sweep
+  local writer = opts.csv ~= nil and files.open(opts.csv, "sweep", "csv", 2)
+  local ctx = { x = x, fixed = fixed, order = order, budget = budget,
+    continuation = opts.continuation ~= false, region = opts.region }
+  local rows, skipped, worker_cpu = nil, 0, nil
+  local ranges = last >= first and worker_ranges(first, last, workers) or {}
+  local ok_loop, loop_err = pcall(function()
+    if #ranges > 1 then
+      rows, worker_cpu = run_workers(J, values, ranges, ctx, report_progress)
+      for _, r in ipairs(rows) do if r.skipped then skipped = skipped + 1 end end
+    else
+      rows, skipped = compute_rows(J, values, first, last, ctx, report_progress and
+        function(_, i) report_progress(i - first + 1) end)
+    end
   end)
   if not ok_loop then
     if writer then writer:discard() end
     error(loop_err, 0)
   end
   local out = { rows = rows, large = x, order = order, integral = J, shard = shard,
-    status = M.status(rows, skipped, budget), first = first, last = last }
+    status = M.status(rows, skipped, budget), first = first, last = last,
+    workers = math.max(1, #ranges), worker_cpu = worker_cpu }
   setmetatable(out, { __index = { report = M.sweep_report, csv = M.sweep_csv } })
   if writer then
     writer:write(out:csv(not shard or shard[1] == 1))

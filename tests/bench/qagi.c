@@ -11,8 +11,15 @@
  * qagi.airy_ai(x)              -> Ai(x), status text (gsl_sf_airy_Ai_e, GSL_PREC_DOUBLE)
  * qagi.airy_ai_scaled(x)       -> Ai(x) exp(2/3 x^(3/2)) (x > 0), status text
  * qagi.now()                   -> seconds of CLOCK_MONOTONIC
+ * qagi.qag_path(n, x, epsrel)  -> value (re, im), evaluations, status text: the integral of
+ *   exp(-x t^2/2 + i t) / (1 + t^2/16) along the polyline through the n points
+ *   t_k = s_k + 0.3 i sin(3 s_k), s_k = -6 + 12 k/(n-1), by gsl_integration_qag (15-point
+ *   rule) on the real and on the imaginary part of each segment, each to epsrel of the
+ *   integral of |f| over that segment (epsabs) — the long-path benchmark of make bench,
+ *   which integrates the same polyline with J:quad{along = "given"}.
  */
 #define _POSIX_C_SOURCE 199309L
+#include <complex.h>
 #include <math.h>
 #include <time.h>
 #include <lua.h>
@@ -49,6 +56,52 @@ static int run(lua_State *L, int whole_line) {
   return 4;
 }
 
+typedef struct { double complex a, d; double x; int part; long evals; } path_ctx;
+
+static double path_f(double u, void *p) {
+  path_ctx *c = p;
+  c->evals++;
+  double complex t = c->a + u * c->d;
+  double complex v = cexp(-c->x * t * t / 2 + I * t) / (1 + t * t / 16) * c->d;
+  return c->part ? cimag(v) : creal(v);
+}
+
+static double complex path_point(long k, long n) {
+  double s = -6 + 12 * (double)k / (double)(n - 1);
+  return s + 0.3 * I * sin(3 * s);
+}
+
+static int l_qag_path(lua_State *L) {
+  lua_Integer n = luaL_checkinteger(L, 1);
+  double x = luaL_checknumber(L, 2), epsrel = luaL_optnumber(L, 3, 1e-13);
+  luaL_argcheck(L, n >= 2 && n <= 100000000, 1, "2 <= n <= 1e8");
+  gsl_integration_workspace *w = gsl_integration_workspace_alloc(100);
+  if (!w) return luaL_error(L, "gsl_integration_workspace_alloc failed");
+  path_ctx c = {0, 0, x, 0, 0};
+  gsl_function f = {path_f, &c};
+  double re = 0, im = 0;
+  int worst = GSL_SUCCESS;
+  for (long k = 0; k + 1 < n; k++) {
+    c.a = path_point(k, n);
+    c.d = path_point(k + 1, n) - c.a;
+    double complex mid = c.a + 0.5 * c.d;
+    double size = cabs(cexp(-x * mid * mid / 2 + I * mid) / (1 + mid * mid / 16) * c.d);
+    for (int part = 0; part < 2; part++) {
+      double r = 0, e = 0;
+      c.part = part;
+      int st = gsl_integration_qag(&f, 0, 1, epsrel * size, 0, 100, GSL_INTEG_GAUSS15, w, &r, &e);
+      if (st != GSL_SUCCESS) worst = st;
+      if (part) im += r; else re += r;
+    }
+  }
+  gsl_integration_workspace_free(w);
+  lua_pushnumber(L, re);
+  lua_pushnumber(L, im);
+  lua_pushinteger(L, c.evals);
+  lua_pushstring(L, gsl_strerror(worst));
+  return 4;
+}
+
 static int l_qagiu(lua_State *L) { return run(L, 0); }
 static int l_qagi(lua_State *L) { return run(L, 1); }
 
@@ -77,7 +130,8 @@ int luaopen_qagi(lua_State *L) {
   gsl_set_error_handler_off();
   static const luaL_Reg funcs[] = {
     {"qagiu", l_qagiu}, {"qagi", l_qagi}, {"airy_ai", l_airy_ai},
-    {"airy_ai_scaled", l_airy_ai_scaled}, {"now", l_now}, {NULL, NULL}};
+    {"airy_ai_scaled", l_airy_ai_scaled}, {"now", l_now}, {"qag_path", l_qag_path},
+    {NULL, NULL}};
   luaL_newlib(L, funcs);
   return 1;
 }

@@ -3,7 +3,8 @@
  * identities that must hold to rounding on seeded random coefficients; quadrature
  * (quad.c) on exact integrals; polyline geometry (geom.c) on figures whose winding and
  * crossing numbers are known; zeros (roots.c) of a polynomial with known roots; steepest
- * paths (path.c) and samples on circles (rings.c) over tapes built by hand. Prints one line
+ * paths (path.c) and samples on circles (rings.c) over tapes built by hand; the Airy
+ * functions (airy.c) in test_airy.c. Prints one line
  * `kernels: N passed, M failed` and exits non-zero on failure.
  */
 #include <limits.h>
@@ -21,18 +22,19 @@
 #include "problem.h"
 #include "rings.h"
 #include "tape.h"
+#include "kernel_check.h"
 
 #define PI 3.14159265358979323846
 
 static int passed, failed;
 static unsigned long long rng_state = 0x9e3779b97f4a7c15ULL;
 
-static double rnd(void) {   /* uniform in [-1, 1) */
+double rnd(void) {   /* uniform in [-1, 1) */
   rng_state = rng_state * 6364136223846793005ULL + 1442695040888963407ULL;
   return (double)(rng_state >> 11) / (double)(1ULL << 52) - 1.0;
 }
 
-static void check(int ok, const char *what) {
+void check(int ok, const char *what) {
   if (ok) passed++;
   else { failed++; printf("FAIL %s (seed state %llu)\n", what, rng_state); }
 }
@@ -314,6 +316,49 @@ static void test_quad(void) {
 }
 
 /* ---- geometry (geom.c) ------------------------------------------------------------ */
+
+static void f_gauss_batch(void *ctx, const cplx *t, size_t m, cplx *f) {
+  for (size_t i = 0; i < m; i++) f[i] = f_gauss(ctx, t[i]);
+}
+
+/* quad_polyline: e^{-t^2} along a wavy polyline of 20001 points from -6 to 6 is, by
+ * Cauchy's theorem, the integral over [-6, 6]: sqrt(pi) erf(6), and erfc(6) ~ 2e-17
+ * (Abramowitz & Stegun 7.1.13, from memory) is below rounding: sqrt(pi). The batched
+ * first pass gives the same numbers as the one-point one, with the same count (15 per
+ * segment, plus bisections); a budget below the first pass is a status. 1/sqrt(t) along
+ * a broken line from 0 to 1 (the first segment singular at 0) is 2. */
+static void test_quad_polyline(void) {
+  enum { NP = 20001 };
+  cplx *pts = malloc(NP * sizeof *pts);
+  void *scratch = malloc(QUAD_POLYLINE_BYTES(NP - 1));
+  for (int k = 0; k < NP; k++) {
+    double x = -6 + 12.0 * k / (NP - 1);
+    pts[k] = x + 0.4 * I * sin(2 * x) * sin(PI * x / 6);
+  }
+  qctx q = {0, 0, {0}};
+  cplx r1, r2;
+  double e1, e2;
+  long n1 = 0, n2 = 0;
+  int s1 = quad_polyline(f_gauss, f_gauss_batch, &q, pts, NP, 0, 1e-13, QUAD_MAX_SUB, 2000000,
+                         0, 0, scratch, &r1, &e1, &n1);
+  int s2 = quad_polyline(f_gauss, NULL, &q, pts, NP, 0, 1e-13, QUAD_MAX_SUB, 2000000, 0, 0,
+                         scratch, &r2, &e2, &n2);
+  check(s1 == QUAD_OK && relerr(r1, sqrt(PI)) <= 1e-13 && e1 >= cabs(r1 - sqrt(PI)) &&
+        e1 <= 1e-11, "quad_polyline: e^{-t^2} along 20000 segments = sqrt(pi), estimate bounds");
+  check(s2 == s1 && r2 == r1 && e2 == e1 && n1 == n2 && n1 >= 15L * (NP - 1),
+        "quad_polyline: batched and one-point first passes agree exactly");
+  long n3 = 0;
+  int s3 = quad_polyline(f_gauss, f_gauss_batch, &q, pts, NP, 0, 1e-13, QUAD_MAX_SUB, 1000, 0, 0,
+                         scratch, &r1, &e1, &n3);
+  check(s3 == QUAD_LIMIT, "quad_polyline: budget below the first pass: status limit");
+  cplx broken[3] = {0, 0.3 + 0.2 * I, 1};
+  long n4 = 0;
+  int s4 = quad_polyline(f_rsqrt, NULL, &q, broken, 3, 0, 1e-12, QUAD_MAX_SUB, 2000000, 1, 0,
+                         scratch, &r1, &e1, &n4);
+  check(s4 == QUAD_OK && relerr(r1, 2) <= 1e-10, "quad_polyline: 1/sqrt(t) from 0 (singular) = 2");
+  free(pts);
+  free(scratch);
+}
 
 static void test_geom(void) {
   enum { NP = 64 };
@@ -813,6 +858,7 @@ static void test_rings(void) {
 int main(void) {
   test_series();
   test_quad();
+  test_quad_polyline();
   test_geom();
   test_roots();
   test_path();
@@ -820,6 +866,7 @@ int main(void) {
   test_invmap_budget();
   test_rings();
   test_dual();
+  test_airy();
   printf("kernels: %d passed, %d failed\n", passed, failed);
   return failed ? 1 : 0;
 }

@@ -6,11 +6,13 @@
  * value.
  * faddeeva_w comes from libcerf (w_of_z), not GSL: it returns the real and imaginary
  * parts of w(z) = exp(-z^2) erfc(-iz) (DLMF 7.2.3) and has no error estimate.
+ * stirling_gamma comes from exact rational arithmetic (GMP), not GSL.
  */
 #include <lua.h>
 #include <lauxlib.h>
 #include <complex.h>
 #include <math.h>
+#include <stdlib.h>
 
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_mode.h>
@@ -25,6 +27,7 @@
 #include <gsl/gsl_randist.h>
 
 #include <cerf.h>
+#include <gmp.h>
 
 static int fail(lua_State *L, const char *fname, int status)
 {
@@ -58,6 +61,13 @@ static int l_airy_Bi(lua_State *L)
   gsl_sf_result r;
   int st = gsl_sf_airy_Bi_e(luaL_checknumber(L, 1), GSL_PREC_DOUBLE, &r);
   return push_result(L, "airy_Bi", st, &r);
+}
+
+static int l_airy_Bi_deriv(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_airy_Bi_deriv_e(luaL_checknumber(L, 1), GSL_PREC_DOUBLE, &r);
+  return push_result(L, "airy_Bi_deriv", st, &r);
 }
 
 static int l_bessel_Jn(lua_State *L)
@@ -200,10 +210,79 @@ static int l_psi(lua_State *L)
   return push_result(L, "psi", st, &r);
 }
 
+/* stirling_gamma(n): {gamma_0, ..., gamma_n} (1-based list) of Stirling's series
+ * Gamma(z) ~ e^{-z} z^z (2 pi/z)^{1/2} sum gamma_k z^-k (DLMF 5.11.3), exact rationals
+ * rounded to doubles: sum gamma_k w^k = exp(A(w)), A(w) = sum_j B_2j/(2j(2j-1)) w^(2j-1)
+ * (DLMF 5.11.1), through E' = A' E: k gamma_k = sum_{m=1}^{k} m a_m gamma_{k-m}; the
+ * Bernoulli numbers by sum_{k=0}^{m} C(m+1, k) B_k = 0 (DLMF 24.5.3). n <= 250. */
+static int l_stirling_gamma(lua_State *L)
+{
+  lua_Integer n = luaL_checkinteger(L, 1);
+  luaL_argcheck(L, n >= 0 && n <= 250, 1, "0 <= n <= 250 expected");
+  int nb = (int)n + 2;
+  mpq_t *B = malloc((size_t)nb * sizeof *B), *a = malloc(((size_t)n + 1) * sizeof *a),
+        *g = malloc(((size_t)n + 1) * sizeof *g);
+  mpq_t t, sum;
+  mpz_t binom;
+  if (!B || !a || !g) { free(B); free(a); free(g); return luaL_error(L, "out of memory"); }
+  mpq_init(t);
+  mpq_init(sum);
+  mpz_init(binom);
+  for (int m = 0; m < nb; m++) {
+    mpq_init(B[m]);
+    if (m == 0) { mpq_set_ui(B[0], 1, 1); continue; }
+    mpq_set_ui(sum, 0, 1);
+    for (int k = 0; k < m; k++) {
+      mpz_bin_uiui(binom, (unsigned long)m + 1, (unsigned long)k);
+      mpq_set_z(t, binom);
+      mpq_mul(t, t, B[k]);
+      mpq_add(sum, sum, t);
+    }
+    mpq_set_si(t, -1, (unsigned long)m + 1);
+    mpq_mul(B[m], sum, t);
+  }
+  for (int m = 0; m <= n; m++) {
+    mpq_init(a[m]);
+    if (m % 2 == 1) {   /* a_m = B_2j / (2j (2j - 1)), m = 2j - 1 */
+      int j = (m + 1) / 2;
+      mpq_set_ui(t, 1, (unsigned long)(2 * j) * (unsigned long)(2 * j - 1));
+      mpq_mul(a[m], B[2 * j], t);
+    }
+  }
+  lua_createtable(L, (int)n + 1, 0);
+  for (int k = 0; k <= n; k++) {
+    mpq_init(g[k]);
+    if (k == 0) mpq_set_ui(g[0], 1, 1);
+    else {
+      mpq_set_ui(sum, 0, 1);
+      for (int m = 1; m <= k; m += 2) {
+        mpq_set_ui(t, (unsigned long)m, 1);
+        mpq_mul(t, t, a[m]);
+        mpq_mul(t, t, g[k - m]);
+        mpq_add(sum, sum, t);
+      }
+      mpq_set_ui(t, 1, (unsigned long)k);
+      mpq_mul(g[k], sum, t);
+    }
+    lua_pushnumber(L, mpq_get_d(g[k]));
+    lua_rawseti(L, -2, k + 1);
+  }
+  for (int m = 0; m < nb; m++) mpq_clear(B[m]);
+  for (int k = 0; k <= n; k++) { mpq_clear(a[k]); mpq_clear(g[k]); }
+  mpq_clear(t);
+  mpq_clear(sum);
+  mpz_clear(binom);
+  free(B);
+  free(a);
+  free(g);
+  return 1;
+}
+
 static const luaL_Reg funcs[] = {
   { "airy_Ai", l_airy_Ai },
   { "airy_Ai_deriv", l_airy_Ai_deriv },
   { "airy_Bi", l_airy_Bi },
+  { "airy_Bi_deriv", l_airy_Bi_deriv },
   { "bessel_Jn", l_bessel_Jn },
   { "bessel_Jnu", l_bessel_Jnu },
   { "bessel_Ynu", l_bessel_Ynu },
@@ -220,6 +299,7 @@ static const luaL_Reg funcs[] = {
   { "cdf_binomial_Q", l_cdf_binomial_Q },
   { "cdf_ugaussian_Q", l_cdf_ugaussian_Q },
   { "gamma_pdf", l_gamma_pdf },
+  { "stirling_gamma", l_stirling_gamma },
   { NULL, NULL }
 };
 
