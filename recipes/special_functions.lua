@@ -93,9 +93,23 @@ function M.analyse(name, params, order)
     agrees = diff <= 3 * (res.error + qe), status = res.status, result = res }
 end
 
+-- Words wrapped to lines of at most `width` columns, continuation lines indented.
+local function wrap(text, width, indent)
+  local lines, cur = {}, ""
+  for word in text:gmatch("%S+") do
+    if cur ~= "" and #cur + 1 + #word > width then
+      lines[#lines + 1] = cur
+      cur = string.rep(" ", indent) .. word
+    else
+      cur = cur == "" and word or (cur .. " " .. word)
+    end
+  end
+  lines[#lines + 1] = cur
+  return table.concat(lines, "\n")
+end
+
 if arg and arg[0] and arg[0]:match("special_functions%.lua$") then
-  print(string.format("%-8s %-16s %-26s %-26s %-10s %s", "name", "parameters", "expansion",
-    "quadrature", "rel.err", "agrees"))
+  local rows, why = {}, {}
   for _, name in ipairs({ "airy", "gamma", "expint", "hankel", "bessel" }) do
     local rep = M.family[name]
     local ps = {}
@@ -103,13 +117,34 @@ if arg and arg[0] and arg[0]:match("special_functions%.lua$") then
     table.sort(ps)
     local ok, r = pcall(M.analyse, name, rep.sample, 4)
     if ok then
-      print(string.format("%-8s %-16s %-26s %-26s %-10.3g %s", name, table.concat(ps, ","),
-        tostring(r.value), tostring(r.quad), (r.value - r.quad):abs() / r.quad:abs(),
-        tostring(r.agrees)))
+      rows[#rows + 1] = { name, table.concat(ps, ","), steep.show(r.value, r.error),
+        string.format("%.2g", r.error), steep.show(r.quad, r.quad_error),
+        string.format("%.3g", (r.value - r.quad):abs() / r.quad:abs()), tostring(r.agrees) }
     else
-      print(string.format("%-8s %-16s expansion failed: %s", name, table.concat(ps, ","), r))
+      -- the expansion failed: say why (below the table), and give quadrature's value
+      local q, qe = rep.integral:quad(rep.sample)
+      local f = rep.prefactor(rep.sample)
+      local fa = steep.is_complex(f) and f:abs() or math.abs(f)
+      rows[#rows + 1] = { name, table.concat(ps, ","), "failed (see below)", "",
+        steep.show(q * f, qe * fa), "", "" }
+      why[#why + 1] = wrap(name .. ": the expansion failed: "
+        .. tostring(r):gsub("^.-expand: ", ""), 100, 4)
     end
   end
+  local head = { "name", "parameters", "expansion", "error", "quadrature", "rel.err", "agrees" }
+  local width = {}
+  for c, h in ipairs(head) do
+    width[c] = #h
+    for _, r in ipairs(rows) do width[c] = math.max(width[c], #r[c]) end
+  end
+  local function line(cells)
+    local out = {}
+    for c, v in ipairs(cells) do out[c] = v .. string.rep(" ", width[c] - #v) end
+    return (table.concat(out, "  "):gsub("%s+$", ""))
+  end
+  print(line(head))
+  for _, r in ipairs(rows) do print(line(r)) end
+  for _, w in ipairs(why) do print(w) end
 end
 
 return M
