@@ -9,13 +9,15 @@
 --   expint   e^x E1(x)  = int_0^inf e^{-x t} / (1 + t) dt                    (DLMF 6.2.2)
 --   hankel   1/Gamma(z) = (1/2 pi i) int_{-inf}^{(0+)} e^t t^{-z} dt         (DLMF 5.9.2)
 --   bessel   J_n(x)     = (1/2 pi) int_{-pi}^{pi} exp(i (x sin t - n t)) dt  (DLMF 10.9.2)
--- (Bessel's exponent is of exponential type in t: quadrature works, but the steepest-descent
--- decomposition is not settled there, and the expansion says so instead of guessing.)
+-- Where an expansion cannot be made (a contour the steepest-descent decomposition does not
+-- settle, say), the table says "failed" and prints the reason below it, with quadrature's
+-- value: the expansion says why instead of guessing.
 --
 -- Use it as a module:
 --     local sf = dofile "recipes/special_functions.lua"
 --     local r = sf.analyse("gamma", { x = 20 }, 6)     -- expansion, quadrature, agreement
 --     sf.add("mine", { var =, exponent =, amplitude =, contour =, large =, prefactor = })
+--     print(sf.table { "gamma", "mine" })              -- the table, as the script prints it
 -- Run: lua5.4 recipes/special_functions.lua (a table of every representation).
 
 local steep = require "steep"
@@ -108,10 +110,13 @@ local function wrap(text, width, indent)
   return table.concat(lines, "\n")
 end
 
-if arg and arg[0] and arg[0]:match("special_functions%.lua$") then
+--- M.table(names) -> text: each representation's sample by expansion and by quadrature,
+-- aligned; an expansion that failed is marked and its reason printed below the table.
+function M.table(names)
   local rows, why = {}, {}
-  for _, name in ipairs({ "airy", "gamma", "expint", "hankel", "bessel" }) do
+  for _, name in ipairs(names) do
     local rep = M.family[name]
+    if not rep then error("special_functions: no representation named " .. tostring(name), 2) end
     local ps = {}
     for k, v in pairs(rep.sample) do ps[#ps + 1] = k .. "=" .. tostring(v) end
     table.sort(ps)
@@ -122,13 +127,14 @@ if arg and arg[0] and arg[0]:match("special_functions%.lua$") then
         string.format("%.3g", (r.value - r.quad):abs() / r.quad:abs()), tostring(r.agrees) }
     else
       -- the expansion failed: say why (below the table), and give quadrature's value
-      local q, qe = rep.integral:quad(rep.sample)
+      local qok, q, qe = pcall(rep.integral.quad, rep.integral, rep.sample)
       local f = rep.prefactor(rep.sample)
       local fa = steep.is_complex(f) and f:abs() or math.abs(f)
       rows[#rows + 1] = { name, table.concat(ps, ","), "failed (see below)", "",
-        steep.show(q * f, qe * fa), "", "" }
+        qok and steep.show(q * f, qe * fa) or "failed", "", "" }
       why[#why + 1] = wrap(name .. ": the expansion failed: "
         .. tostring(r):gsub("^.-expand: ", ""), 100, 4)
+      if not qok then why[#why + 1] = wrap(name .. ": quadrature failed too: " .. tostring(q), 100, 4) end
     end
   end
   local head = { "name", "parameters", "expansion", "error", "quadrature", "rel.err", "agrees" }
@@ -142,9 +148,14 @@ if arg and arg[0] and arg[0]:match("special_functions%.lua$") then
     for c, v in ipairs(cells) do out[c] = v .. string.rep(" ", width[c] - #v) end
     return (table.concat(out, "  "):gsub("%s+$", ""))
   end
-  print(line(head))
-  for _, r in ipairs(rows) do print(line(r)) end
-  for _, w in ipairs(why) do print(w) end
+  local lines = { line(head) }
+  for _, r in ipairs(rows) do lines[#lines + 1] = line(r) end
+  for _, w in ipairs(why) do lines[#lines + 1] = w end
+  return table.concat(lines, "\n")
+end
+
+if arg and arg[0] and arg[0]:match("special_functions%.lua$") then
+  print(M.table { "airy", "gamma", "expint", "hankel", "bessel" })
 end
 
 return M

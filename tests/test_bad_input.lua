@@ -343,7 +343,7 @@ function TestBadInput:test_contours_the_analysis_refuses()
   -- an end at infinity outside every valley: named with its direction and the valleys
   local Jd = steep.integral { var = t, exponent = -x * t ^ 2, contour = steep.path { 0, inf(pi / 2) },
     large = x }
-  local frags = { "finishing end at infinity in direction 1.5708", "outside every valley",
+  local frags = { "finishing end at infinity (the ray from 0 in direction 1.5708)", "outside every valley",
     "diverges", "(-0.7854, 0.7854) (polynomial)", "(2.356, 3.927) (polynomial)" }
   bad(frags, function() return Jd:quad { x = 2 } end)
   bad(frags, function() return Jd:expand { x = 2 } end)
@@ -351,7 +351,7 @@ function TestBadInput:test_contours_the_analysis_refuses()
   bad(frags, function() return Jd:quad { x = 2, along = "given" } end)
   local Js = steep.integral { var = t, exponent = -x * t ^ 2,
     contour = steep.path { inf(-pi / 2), 0, inf(0) }, large = x }
-  bad({ "starting end at infinity in direction -1.5708", "outside every valley" },
+  bad({ "starting end at infinity (the ray from 0 in direction -1.5708)", "outside every valley" },
     function() return Js:quad { x = 2, along = "given" } end)
   -- a pole on the contour, by location and source
   local Jp = steep.integral { var = t, exponent = -x * t ^ 2, amplitude = 1 / (t - 0.5),
@@ -365,9 +365,9 @@ function TestBadInput:test_contours_the_analysis_refuses()
   -- a saddle of order 10 (exponent t^10 on the real line): beyond the supported 8
   local J10 = steep.integral { var = t, exponent = -x * t ^ 10, contour = steep.line(inf(pi), inf(0)),
     large = x }
-  bad({ "expand:", "saddle of order 10", "orders above 8 are not supported" },
+  bad({ "saddle of order 10", "orders above 8 are not supported" },
     function() return J10:expand { x = 2 } end)
-  bad({ "series:", "saddle of order 10", "orders above 8 are not supported" },
+  bad({ "saddle of order 10", "orders above 8 are not supported" },
     function() return J10:series { order = 3 } end)
   -- quadrature of it still works: integral of exp(-2 t^10) = 2^(-1/10) Gamma(1/10)/5 (exact)
   local q = J10:quad { x = 2 }

@@ -8,12 +8,14 @@
 local core = require "steep.core"
 local complex = require "steep.complex"
 local expr = require "steep.expr"
+local infinity = require "steep.infinity"
 
 local cnew, cparts = complex.new, complex.parts
 local format, pi, abs, log, huge = string.format, math.pi, math.abs, math.log, math.huge
 local cos, sin, atan, floor = math.cos, math.sin, math.atan, math.floor
 
 local M = {}
+local essential_sectors
 
 -- |z| and arg z of a number or complex value (the complex case read inline: these run
 -- in most loops of the library)
@@ -167,6 +169,62 @@ function M.zeros(tape, params, spec, region, opts)
   return inside, info
 end
 
+--- poly_roots(c, d) -> list of the d roots of sum_{k<=d} c[k] z^k (complex values), by
+-- the Aberth-Ehrlich iteration (O. Aberth, Math. Comp. 27 (1973) 339-344) on the monic
+-- polynomial, started on a circle of the Fujiwara bound's radius (M. Fujiwara, Tohoku
+-- Math. J. 10 (1916) 167-171: every root has |z| <= 2 max |c_{d-j}/c_d|^(1/j), the last
+-- one halved). Coefficients are divided by the leading one first (no overflow of huge
+-- ones). Returns the roots and the bound.
+function M.poly_roots(c, d)
+  local a = {}
+  for k = 0, d do a[k] = c[k] / c[d] end
+  local bound = 0
+  for j = 1, d do
+    local v = cabs(a[d - j])
+    if v > 0 then
+      local b = (j == d and v / 2 or v) ^ (1 / j)
+      bound = math.max(bound, 2 * b)
+    end
+  end
+  if d == 0 then return {}, 0 end
+  if bound == 0 then
+    local z = {}
+    for k = 1, d do z[k] = cnew(0, 0) end
+    return z, 0
+  end
+  local z = {}
+  for k = 1, d do z[k] = bound * expi(2 * pi * (k - 1) / d + 0.4) end
+  local function eval(x)
+    local p, dp = a[d], cnew(0, 0)
+    for k = d - 1, 0, -1 do dp = dp * x + p; p = p * x + a[k] end
+    return p, dp
+  end
+  for _ = 1, 500 do
+    local moved = 0
+    for k = 1, d do
+      local p, dp = eval(z[k])
+      if cabs(p) == 0 then goto next_root end
+      do
+        local w = p / dp
+        local s = cnew(0, 0)
+        for j = 1, d do
+          if j ~= k then
+            local diff = z[k] - z[j]
+            if cabs(diff) > 0 then s = s + 1 / diff end
+          end
+        end
+        local step = w / (1 - w * s)
+        if not (cabs(step) < huge) then step = w end
+        z[k] = z[k] - step
+        moved = math.max(moved, cabs(step) / math.max(cabs(z[k]), 1e-300 + bound * 1e-15))
+      end
+      ::next_root::
+    end
+    if moved < 1e-15 then break end
+  end
+  return z, bound
+end
+
 ---------------------------------------------------------------------------------------
 -- Singularities.
 ---------------------------------------------------------------------------------------
@@ -199,6 +257,53 @@ local function log_coefficient(tape, params, p, rho)
 end
 
 local function near_integer(x, tol) return abs(x - floor(x + 0.5)) <= tol end
+
+-- At an essential singularity p of the integrand made by a pole of the exponent,
+-- F ~ c (t - p)^(-k): the integrand vanishes as t -> p from the k sectors where
+-- cos(arg c - k phi) < 0, phi = arg(t - p) (valleys at p, as at infinity under t - p = 1/u).
+-- k and c from the Laurent coefficients of F' (single-valued even where F has a log
+-- there) by the trapezoidal rule on a circle: F' ~ -k c (t - p)^(-k-1). Sets s.pole_order,
+-- s.lead, s.sectors ({from, to} angles) when the leading term is clear.
+essential_sectors = function(J, params, s, p, rho)
+  local n, depth = 64, 12
+  local vals = {}
+  for j = 0, n - 1 do
+    local u = expi(2 * pi * j / n)
+    local ok, Fs = pcall(J.tape.jet, J.tape, p + rho * u, 1, params, 1)
+    if not ok then return end
+    vals[j] = Fs:coef(1)
+  end
+  -- b_m = (1/n) sum F'_j u_j^(-m) rho^(-m): the coefficient of (t - p)^m
+  local lead, order, big = nil, nil, 0
+  local coef = {}
+  for m = -depth - 1, 0 do
+    local sum = cnew(0, 0)
+    for j = 0, n - 1 do sum = sum + vals[j] * expi(-2 * pi * j * m / n) end
+    coef[m] = sum / n * rho ^ (-m)
+    big = math.max(big, cabs(coef[m]) * rho ^ m)
+  end
+  for m = -depth - 1, -2 do
+    if cabs(coef[m]) * rho ^ m > 1e-8 * big then order = -m - 1; lead = coef[m]; break end
+  end
+  if not order or order == depth then return end
+  local c = lead / (-order)
+  s.pole_order, s.lead = order, c
+  s.sectors = {}
+  local a = carg(c)
+  for j = 0, order - 1 do
+    local from = (a + pi / 2 + 2 * pi * j) / order
+    s.sectors[#s.sectors + 1] = { from = norm_angle(from), width = pi / order }
+  end
+end
+
+--- The valley sector of an essential singularity s that the direction phi (of t - p)
+-- lies in, or nil.
+function M.essential_sector(s, phi)
+  for k, v in ipairs(s.sectors or {}) do
+    local d = (phi - v.from) % (2 * pi)
+    if d > 0 and d < v.width then return k end
+  end
+end
 
 --- singularities(J, params, region) -> list of {at, kind, order, residue, error, where,
 -- source, coefficient}, info. kind: "pole" (of the integrand, with its residue),
@@ -256,6 +361,7 @@ function M.singularities(J, params, region, opts)
     s.source = table.concat(s.sources, "; ")
     if kinds["denominator:exponent"] or kinds["tan:exponent"] then
       s.kind = "essential"
+      essential_sectors(J, params, s, m.at, rho)
     elseif kinds["log:exponent"] and not (kinds["root:exponent"] or kinds["power:exponent"]) then
       local c = log_coefficient(J.tape, params, m.at, rho)
       s.coefficient = c
@@ -444,7 +550,49 @@ local function polynomial_valleys(J, params, c, R, f, NANG)
   return nil
 end
 
+-- The analysis of the integrand at infinity (lua/steep/infinity.lua) for these parameter
+-- values, kept per integral for the last few parameter sets (false: not decided).
+local function params_key(params)
+  local parts = {}
+  for k, v in pairs(params) do
+    local re, im = cparts(v)
+    parts[#parts + 1] = format("%s=%a,%a", k, re, im)
+  end
+  table.sort(parts)
+  return table.concat(parts, ";")
+end
+M.params_key = params_key
+
+function M.analysis(J, params)
+  local key = params_key(params)
+  J._acache = J._acache or {}
+  for _, e in ipairs(J._acache) do if e.key == key then return e.A or nil, e.why end end
+  local A, why = infinity.analyze(J.exponent, J.amplitude, J.var, params)
+  table.insert(J._acache, 1, { key = key, A = A or false, why = why })
+  J._acache[5] = nil
+  return A, why
+end
+
+--- valleys(J, params, region, opts) -> list, info. From the analysis of the expression
+-- where it decides every direction (exact sectors, edges, and strip families in
+-- info.families, whose instances are added to the list as ends and paths reach them);
+-- otherwise by sampling rings (indicative).
 function M.valleys(J, params, region, opts)
+  local A = M.analysis(J, params)
+  if A then
+    local list, families = {}, {}
+    for _, v in ipairs(A.valleys) do
+      local copy = {}
+      for k, x in pairs(v) do copy[k] = x end
+      if v.type == "strip" then families[#families + 1] = copy else list[#list + 1] = copy end
+    end
+    return list, { growth = A.degree, leading = A.polynomial and A.polynomial[A.degree],
+      families = families, analysis = true }
+  end
+  return M.sampled_valleys(J, params, region, opts)
+end
+
+function M.sampled_valleys(J, params, region, opts)
   local c, R = region.center, region.radius
   -- following a sweep, 72 angles fix the sectors well enough (they move little)
   local NANG = (opts and opts.fast) and 72 or RING_ANGLES
@@ -494,15 +642,21 @@ function M.valley_of(valleys, th, tol)
   tol = tol or 1e-9
   local boundary, edge
   for k, v in ipairs(valleys) do
-    local d = norm_angle(th - v.from)
-    local width = v.to - v.from
-    if v.type == "edge" then
-      if abs(d) <= math.max(tol, 1e-6) then edge = edge or k end
-    elseif d > tol and d < width - tol then
-      return k, false
-    elseif abs(d) <= math.max(tol, 1e-6) or abs(d - width) <= math.max(tol, 1e-6) then
-      boundary = boundary or k
+    if v.type == "strip" then goto next_valley end
+    do
+      local width = v.to - v.from
+      local t2 = math.max(tol, 1e-6)
+      -- the angle past the sector's start, in [0, 2 pi)
+      local d = (th - v.from) % (2 * pi)
+      if v.type == "edge" or v.type == "line" then
+        if d <= t2 or d >= 2 * pi - t2 then edge = edge or k end
+      elseif width >= 2 * pi - tol or (d > tol and d < width - tol) then
+        return k, false
+      elseif d <= t2 or d >= 2 * pi - t2 or abs(d - width) <= t2 then
+        boundary = boundary or k
+      end
     end
+    ::next_valley::
   end
   -- an end on the edge of a sector belongs to that sector: where the integrand still
   -- decays along the edge (an "edge" valley) the end swings into the sector across an
@@ -512,7 +666,99 @@ function M.valley_of(valleys, th, tol)
   return nil
 end
 
+--- The strip instance m of a strip family in L's valley list (added when first met):
+-- its index.
+local function strip_valley(L, family, m)
+  for k, v in ipairs(L.valleys) do
+    if v.family == family and v.m == m then return k end
+  end
+  local w = family.hi - family.lo
+  L.valleys[#L.valleys + 1] = { type = "strip", family = family, m = m,
+    direction = family.direction, from = family.direction, to = family.direction,
+    lo = family.lo + m * family.period, hi = family.lo + m * family.period + w,
+    mid = family.lo + m * family.period + 0.5 * w, exact = true }
+  return #L.valleys
+end
+
+-- The strip family whose direction is th (within tol), if any.
+local function family_at(L, th, tol)
+  for _, f in ipairs(L.strip_families or {}) do
+    if abs(norm_angle(th - f.direction)) <= (tol or 1e-9) then return f end
+  end
+end
+
+--- ray_valley(L, a, th) -> index, boundary: the valley in which the ray from a in
+-- direction th ends (a sector: by th alone; a strip: the one holding the ray's line),
+-- and whether the ray runs along the valley's edge; nil when it ends in none.
+function M.ray_valley(L, a, th, tol)
+  local k, boundary = M.valley_of(L.valleys, th)
+  if k then return k, boundary end
+  if tol then
+    -- (a contour end on the edge of a valley whose edge moved a little: the phase of the
+    -- exponent turned on a Stokes line) the nearest sector edge within tol
+    local best, bk = tol, nil
+    for j, v in ipairs(L.valleys) do
+      if v.type ~= "strip" then
+        for _, e in ipairs({ v.from, v.to }) do
+          local d = abs(norm_angle(th - e))
+          if d <= best then best, bk = d, j end
+        end
+      end
+    end
+    if bk then return bk, true end
+  end
+  local f = family_at(L, th)
+  if not f then return nil end
+  local y = infinity.strip_coords(a, f.direction)
+  local m, inside, edge = infinity.strip_instance(f, y)
+  if inside then return strip_valley(L, f, m), false end
+  if edge then return strip_valley(L, f, m), true end
+  return nil
+end
+
+--- point_valley(L, z, tol) -> index or nil: the valley a far point z of a descent path
+-- has reached: a sector by its direction from the region's center, else the strip whose
+-- direction is nearest and which holds z.
+function M.point_valley(L, z, tol)
+  local th = carg(z - L.region.center)
+  local k = M.valley_of(L.valleys, th, tol)
+  if k and L.valleys[k].type ~= "strip" then return k end
+  local best, bf = huge, nil
+  for _, f in ipairs(L.strip_families or {}) do
+    local d = abs(norm_angle(th - f.direction))
+    if d < best then best, bf = d, f end
+  end
+  if bf and best < pi / 2 then
+    local y, s = infinity.strip_coords(z, bf.direction)
+    if s > 0 then
+      local m, inside = infinity.strip_instance(bf, y)
+      if inside then return strip_valley(L, bf, m) end
+    end
+  end
+  return nil
+end
+
+--- A point deep in valley k, seen from the region (for closing cycles): the middle of a
+-- sector at radius Rref, or far along the middle line of a strip.
+function M.valley_point(L, k, Rref)
+  local v = L.valleys[k]
+  if v.type == "strip" then
+    return (cnew(Rref, v.mid)) * expi(v.direction)
+  end
+  local mid = (v.from == v.to) and v.from or 0.5 * (v.from + v.to)
+  return L.region.center + Rref * expi(mid)
+end
+
 function M.describe_valley(v)
+  if v.type == "strip" then
+    local th = v.direction
+    if abs(th) < 1e-12 then
+      return format("strip %.4g < Im t < %.4g to the right", v.lo, v.hi)
+    elseif abs(abs(th) - pi) < 1e-12 then
+      return format("strip %.4g < Im t < %.4g to the left", -v.hi, -v.lo)
+    end
+    return format("strip toward direction %.4g, offset %.4g..%.4g", th, v.lo, v.hi)
+  end
   if v.from == v.to then
     return format("direction %.4g (%s)", v.from, v.type)
   end
@@ -537,23 +783,92 @@ function M.saddles(J, params, region, singularities, seeds, seeds_only)
         local of_exponent = false
         for _, src in ipairs(s.sources) do if src:find("in the exponent") then of_exponent = true end end
         if of_exponent then poles = false; break end
+      elseif s.kind == "essential" and s.pole_order then
+        poles = poles + s.pole_order + 1   -- F ~ c (t - p)^-k: F' has a pole of order k + 1
       elseif s.kind == "essential" then
-        poles = false   -- the order of F's pole is not tracked: no count
+        poles = false   -- the order of F's pole is not known: no count
         break
       end
     end
   end
-  local zs, info = M.zeros(J.tape, params, { out = 1, deriv = 1 }, region,
-    { poles = poles, seeds = seeds, seeds_only = seeds_only })
-  local out = {}
-  for _, z in ipairs(zs) do
-    local m = z.mult + 1
-    -- the exponent's jet alone: the amplitude may be singular at a saddle
-    local Fs = J.tape:jet(z.at, m + 1, params, 1)
-    local _, gv = J.tape:eval(z.at, params)
-    out[#out + 1] = { at = z.at, order = m, F = Fs:coef(0), F2 = 2 * Fs:coef(2),
-      coef = Fs:coef(m), g = gv or cnew(1, 0) }
+  -- saddles crowd next to singular points (where F' is large and Newton from a grid
+  -- overshoots): seeds on small rings about each one, at fractions of the distance to
+  -- its nearest neighbour
+  local all_seeds = {}
+  for _, z in ipairs(seeds or {}) do all_seeds[#all_seeds + 1] = z end
+  if not seeds_only then
+    for i, s in ipairs(singularities) do
+      local near = region.radius
+      for j, o in ipairs(singularities) do
+        if j ~= i then near = math.min(near, cabs(o.at - s.at)) end
+      end
+      for _, f in ipairs({ 1e-3, 4e-3, 0.015, 0.05, 0.15, 0.4 }) do
+        for k = 0, 7 do all_seeds[#all_seeds + 1] = s.at + f * near * expi(2 * pi * (k + 0.5) / 8) end
+      end
+    end
   end
+  local zs, info = M.zeros(J.tape, params, { out = 1, deriv = 1 }, region,
+    { poles = poles, seeds = all_seeds, seeds_only = seeds_only })
+  local out = {}
+  for _, z in ipairs(zs) do out[#out + 1] = M.saddle_at(J, params, z.at, z.mult) end
+  return out, info
+end
+
+--- A saddle record at the zero z of F' of multiplicity mult (order mult + 1).
+local function saddle_at(J, params, z, mult)
+  local m = mult + 1
+  -- the exponent's jet alone: the amplitude may be singular at a saddle
+  local Fs = J.tape:jet(z, m + 1, params, 1)
+  local _, gv = J.tape:eval(z, params)
+  local coef = Fs:coef(m)
+  return { at = z, order = m, F = Fs:coef(0), F2 = 2 * Fs:coef(2), coef = coef,
+    g = gv or cnew(1, 0), width = cabs(coef) ^ (-1 / m) }
+end
+M.saddle_at = saddle_at
+
+--- polynomial_saddles(J, params, A) -> every saddle of a polynomial exponent (A from
+-- M.analysis): the d - 1 zeros of F' with multiplicity, all of them wherever they lie
+-- (Aberth's iteration, then Newton on the tape with the multiplicity read from the
+-- jet), and info {count, found, status, bound}.
+function M.polynomial_saddles(J, params, A)
+  local c, d = A.polynomial, A.degree
+  local out, info = {}, { count = d - 1, found = 0, evals = 0 }
+  if d < 2 then info.status = "complete"; info.bound = 0; return out, info end
+  local dc = {}
+  for k = 1, d do dc[k - 1] = k * c[k] end
+  local roots, bound = M.poly_roots(dc, d - 1)
+  info.bound = bound
+  -- (all zeros at 0 give no bound: the unit length then tells zeros apart)
+  local scale = bound > 0 and bound or 1
+  local found = {}
+  for _, r in ipairs(roots) do
+    -- polish on the tape (the multiplicity from the jet: clustered roots of a multiple
+    -- zero come out as one); R: a disc that surely holds the root
+    local R = 2 * math.max(cabs(r), scale) + scale
+    local st, root, mult, ev = core.zero(J.tape, params, { out = 1, deriv = 1 }, r, cnew(0, 0),
+      R, 1e-3 * scale, 60)
+    info.evals = info.evals + ev
+    if st ~= "ok" then root = r end
+    -- Aberth's iterates of a zero of multiplicity m are m points that polish to one: the
+    -- multiplicity is how many met there (the jet's own count can fail beyond 8)
+    local dup = false
+    for _, f in ipairs(found) do
+      if cabs(f.at - root) <= 1e-7 * scale then f.mult = f.mult + 1; dup = true; break end
+    end
+    if not dup then found[#found + 1] = { at = root, mult = 1 } end
+  end
+  local total = 0
+  for _, f in ipairs(found) do total = total + f.mult end
+  table.sort(found, function(a, b)
+    local da, db = cabs(a.at), cabs(b.at)
+    if abs(da - db) > 1e-9 * scale then return da < db end
+    return carg(a.at) < carg(b.at)
+  end)
+  for _, f in ipairs(found) do out[#out + 1] = saddle_at(J, params, f.at, f.mult) end
+  info.found = total
+  info.status = total == d - 1 and "complete"
+    or format("mismatch: F' has degree %d, %d zeros found", d - 1, total)
+  info.method = "every zero of the polynomial F'"
   return out, info
 end
 
@@ -576,7 +891,10 @@ local function stop_points(L, skip_saddle, descent)
   end
   for j, s in ipairs(L.saddles) do
     if j ~= skip_saddle then
-      stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, 1e-4 * R, { "saddle", j }
+      -- (a twentieth of its width at most: a path that passes that close to a saddle has
+      -- Im F within about 1e-3 of the saddle's: a connection, to the rounding of F)
+      local r = math.min(1e-4 * R, 0.05 * (s.width or huge))
+      stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, r, { "saddle", j }
     end
   end
   return stops, radii, what
@@ -587,7 +905,30 @@ local function cvec_list(v) return v:totable() end
 -- What a trace ended at, in words the decomposition compares: "valley k", "hill",
 -- "sink k" (a log point where the integrand vanishes), "singularity k", "saddle k",
 -- "edge", "bound", "flat".
+-- A descent path that ends at an essential singularity from inside one of its valley
+-- sectors: "essential j:k" (or nil).
+local function essential_end(L, last)
+  for j, s in ipairs(L.singularities) do
+    if s.kind == "essential" and s.sectors then
+      local d = cabs(last - s.at)
+      local near = huge
+      for i, o in ipairs(L.singularities) do
+        if i ~= j then near = math.min(near, cabs(o.at - s.at)) end
+      end
+      for _, o in ipairs(L.saddles) do near = math.min(near, cabs(o.at - s.at)) end
+      if d < 0.05 * math.min(near, L.region.radius) then
+        local k = M.essential_sector(s, carg(last - s.at))
+        if k then return format("essential %d:%d", j, k) end
+      end
+    end
+  end
+end
+
 local function end_label(L, descent, reason, which, what, last)
+  if descent and (reason == "stop" or reason == "singular" or reason == "low") then
+    local e = essential_end(L, last)
+    if e then return e end
+  end
   if reason == "stop" then
     local w = what[which]
     if w[1] == "singularity" then
@@ -597,9 +938,11 @@ local function end_label(L, descent, reason, which, what, last)
     end
     return "saddle " .. w[2]
   end
-  if reason == "edge" then
+  -- (the coarse continuation ends "low" where the integrand underflows altogether: far
+  -- out in a valley)
+  if reason == "edge" or (reason == "low" and descent) then
     if not descent then return "hill" end
-    local k = M.valley_of(L.valleys, carg(last - L.region.center), 0.02)
+    local k = M.point_valley(L, last, 0.02)
     return k and ("valley " .. k) or "edge"
   end
   if reason == "singular" then
@@ -632,9 +975,12 @@ function M.trace(J, params, L, start, level, descent, opts)
     end
   end
   local ref = opts.ref or cparts(level)
+  -- the length steps start from: the region's, or the start's own (a saddle's width, an
+  -- endpoint's 1/|F'|) where that is smaller
+  local scale = math.min(R / 10, opts.scale or huge)
   local pts, Fs, reason, which, evals = core.trace(J.tape, params, start, level, {
     descent = descent, cutoff = opts.cutoff or 50, ref = ref, center = L.region.center,
-    radius = 1000 * R, scale = R / 10, maxsteps = 6000, maxpts = 6000,
+    radius = 1000 * R, scale = scale, maxsteps = 6000, maxpts = 6000,
     stops = stops, stop_r = radii })
   -- points as a list (quadrature pieces, maps); the traced points and the values of F
   -- followed by continuity along them stay in C (cvecs) for the branch check
@@ -654,7 +1000,7 @@ function M.trace(J, params, L, start, level, descent, opts)
     local far = math.max(8 * R, 2 * cabs(last - L.region.center))
     local tp, _, r2, w2, ev2 = core.trace(J.tape, params, last, Fs:get(#Fs), {
       descent = descent, coarse = true, cutoff = 1e300, ref = -1e300,
-      center = L.region.center, radius = far, scale = R / 10, maxsteps = 3000,
+      center = L.region.center, radius = far, scale = scale, maxsteps = 3000,
       maxpts = 3000, stops = stops, stop_r = radii })
     path.tail = tp
     path.evals = path.evals + ev2
@@ -676,13 +1022,18 @@ end
 -- (the decomposition often needs only the descent paths' ends).
 function M.saddle_paths(J, params, L, j)
   local s = L.saddles[j]
+  if s.order > 8 then
+    error(format("a saddle of order %d at %s: orders above 8 are not supported", s.order,
+      tostring(s.at)), 0)
+  end
   local R = L.region.radius
   local gm = cabs(s.g)
   local ref = cparts(s.F) + (gm > 0 and log(gm) or -30)
   -- the first step off the saddle stays well inside the distance to the nearest other
   -- saddle or singular point (two saddles close together: a longer one lands past the
   -- other saddle, on a path to the wrong valley)
-  local step = R / 10
+  local width = math.min(R / 10, s.width or huge)
+  local step = width
   for k, o in ipairs(L.saddles) do
     if k ~= j then step = math.min(step, cabs(o.at - s.at) / 8) end
   end
@@ -692,7 +1043,8 @@ function M.saddle_paths(J, params, L, j)
     local starts = core.saddle_starts(J.tape, params, s.at, s.F, s.order, s.coef, descent,
       step)
     for k, st in ipairs(starts) do
-      local p = M.trace(J, params, L, st, s.F, descent, { skip_saddle = j, ref = ref })
+      local p = M.trace(J, params, L, st, s.F, descent, { skip_saddle = j, ref = ref,
+        scale = width })
       table.insert(p.points, 1, s.at)
       out[k] = p
     end
