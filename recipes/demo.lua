@@ -30,7 +30,7 @@ print("\n== expansion at x = 6, four terms, against quadrature")
 local r = R:expand { x = 6, order = 4 }
 print(r:report())
 local q, qe = R:quad { x = 6 }
-print(string.format("quadrature: %s (error %.2g)", tostring(q), qe))
+print(string.format("quadrature: %s (error %.2g)", steep.show(q, qe), qe))
 
 print("\n== the rescaled route t = x*s, held at x = 8, followed to x = -8")
 local K = R:rescale { var = s, t = x * s, at = { x = 8 } }
