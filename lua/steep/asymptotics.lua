@@ -361,6 +361,7 @@ function M.expand(J, params, opts)
           { saddle = L.saddles[j2], rays = by_saddle[j2] or {} } }
         local ok, c = pcall(coalesce.contribution, J, params, L, pair, order)
         if ok and c then
+          c.pair = pair   -- (resummation may expand the two saddles apart)
           contributions[#contributions + 1] = c
           handled[j], handled[j2] = true, true
         end
@@ -381,6 +382,9 @@ function M.expand(J, params, opts)
     if r.winding ~= 0 then contributions[#contributions + 1] = residue_contribution(L, r) end
   end
   table.sort(contributions, function(a, b) return a.dominance > b.dominance end)
+  -- beyond optimal truncation (lua/steep/resum.lua): replaces what it improves
+  local resummed = opts.resum and require("steep.resum").apply(J, params, L, contributions,
+    opts.resum)
   local value, err = cnew(0, 0), 0
   for _, c in ipairs(contributions) do
     value = value + c.value
@@ -406,7 +410,7 @@ function M.expand(J, params, opts)
   if #reasons > 0 then status = "suspect: " .. table.concat(reasons, "; ") end
   local result = { value = value, error = err, contributions = contributions,
     order = order, params = params, landscape = L, notes = plan.notes,
-    stokes = plan.stokes or false, integral = J, status = status }
+    stokes = plan.stokes or false, integral = J, status = status, resum = resummed }
   setmetatable(result, { __index = { report = M.report } })
   if opts.verify then M.verify(J, params, result, opts) end
   return result
@@ -481,6 +485,8 @@ function M.report(r, opts)
     if c.terms and c.terms[1] then
       add("     leading term %s%s", fmtc(c.terms[1]), c.note and ("; " .. c.note) or "")
     end
+    local how = r.resum and require("steep.resum").describe(c)
+    if how then add("     %s", how) end
   end
   add("total: %s   estimated error %.3g", fmtc(r.value), r.error)
   if r.check then

@@ -557,9 +557,11 @@ end
 
 --- J:expand{<params>, order = N | "optimal", region = {...}} -> result
 function methods.expand(J, opts)
-  local params, o = M.split_options(J, opts, { order = true, region = true, verify = true },
+  local params, o = M.split_options(J, opts, { order = true, region = true, verify = true,
+    resum = true }, "expand")
+  o.resum = require("steep.resum").check_option(o.resum, "expand", o.order)
+  o.order = require("steep.asymptotics").check_order(o.order or (o.resum and "optimal" or 1),
     "expand")
-  o.order = require("steep.asymptotics").check_order(o.order or 1, "expand")
   if o.region then o.region = check_region(o.region, "expand", J) end
   return require("steep.asymptotics").expand(J, params, o)
 end
