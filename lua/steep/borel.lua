@@ -291,7 +291,7 @@ local NEAR = 80            -- singularities farther than this (in s) do not matt
 -- obstacle within NEAR and sweeps over none on its way from the real axis (turning the
 -- ray across a singularity would change the value). An obstacle on the real axis itself
 -- (within 1e-6 rad: a Stokes line) cannot be avoided: the two lateral rays are returned.
-local function choose_ray(obstacles)
+function M.choose_ray(obstacles)
   local on_line = false
   for _, o in ipairs(obstacles) do
     if o.r < NEAR and abs(o.arg) < 1e-6 then on_line = true end
@@ -399,7 +399,7 @@ function M.sum(spec)
     obstacles[#obstacles + 1] = { r = hypot(s.re, s.im), arg = atan(s.im, s.re) }
   end
   for _, p in ipairs(poles) do obstacles[#obstacles + 1] = p end
-  local rays, lateral, why = choose_ray(obstacles)
+  local rays, lateral, why = M.choose_ray(obstacles)
   if why then notes[#notes + 1] = why end
   -- the sums, class by class and degree by degree
   local total_r, total_i, total_e = 0, 0, 0

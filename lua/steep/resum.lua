@@ -209,10 +209,98 @@ local function by_borel(J, params, L, c)
 end
 
 ---------------------------------------------------------------------------------------
+-- Hyperasymptotics.
+---------------------------------------------------------------------------------------
+
+local hyper = require "steep.hyper"
+
+-- The terms t_r = factor c_r Gamma(r + mu) of a contribution with a single class (a
+-- simple saddle passed through, an endpoint), 0-based, and mu; nil for several classes.
+local function single_class_terms(J, params, c, count)
+  local classes, F0 = classes_of(J, params, c, count)
+  if not classes or #classes ~= 1 then return nil end
+  local cl = classes[1]
+  local f = cnew(cl.fr, cl.fi)
+  local terms = {}
+  for r = 0, cl.count - 1 do
+    terms[r] = f * cnew(cl.cr[r], cl.ci[r]) * expand.gamma(r + cl.mu)
+  end
+  return { terms = terms, count = cl.count, mu = cl.mu, F = F0 }
+end
+
+-- The points a series can resurge from, with their own series: every simple saddle (its
+-- steepest descent path through it, in along ray 2 and out along ray 1) and every simple
+-- pole with a residue (its whole contribution is the one term 2 pi i Res e^{-F}).
+-- Kept in L for the contributions of one expansion.
+local function resurgent_points(J, params, L, count)
+  if L._resurgent then return L._resurgent end
+  local pts = {}
+  for j, s in ipairs(L.saddles) do
+    if s.order == 2 then
+      local ok, sc = pcall(single_class_terms, J, params,
+        { weights = { 1, -1 }, order = 2, at = s.at }, count)
+      if ok and sc then
+        sc.kind, sc.at, sc.index = "saddle", s.at, j
+        sc.what = format("saddle %d at %s", j, tostring(s.at))
+        pts[#pts + 1] = sc
+      end
+    end
+  end
+  for j, s in ipairs(L.singularities) do
+    if s.kind == "pole" and s.order == 1 and s.residue then
+      local ok, F = pcall(J.tape.eval, J.tape, s.at, params)
+      if ok and cabs(F) < huge then
+        pts[#pts + 1] = { kind = "pole", at = s.at, index = j, F = F, mu = 0, count = 1,
+          exact = true, terms = { [0] = cnew(0, 2 * pi) * s.residue * complex.apply("exp", -F) },
+          what = format("pole at %s", tostring(s.at)) }
+      end
+    end
+  end
+  L._resurgent = pts
+  return pts
+end
+
+-- The candidates for a series at F (at the point `at`): every other resurgent point,
+-- with sigma = F - F_m; each saddle's own candidates (for level 2) likewise.
+local function candidates(pts, F, at, R, depth)
+  local list = {}
+  for _, p in ipairs(pts) do
+    if cabs(p.at - at) > 1e-9 * R then
+      local c = setmetatable({ sigma = F - p.F }, { __index = p })
+      if depth > 0 and p.kind == "saddle" then c.cands = candidates(pts, p.F, p.at, R, depth - 1) end
+      list[#list + 1] = c
+    end
+  end
+  return list
+end
+
+local function by_hyper(J, params, L, c)
+  local count = 2 * MAX_DEGREE + 2
+  local n = single_class_terms(J, params, c, count)
+  if not n then return nil, "hyperasymptotics here needs a simple saddle passed through or an endpoint" end
+  local pts = resurgent_points(J, params, L, count)
+  local cands = candidates(pts, n.F, c.at, L.region.radius, 1)
+  local h, why = hyper.sum(n, cands)
+  if not h then return nil, why end
+  local scale = complex.apply("exp", n.F)
+  local value = h.value * scale
+  local err = h.error * cabs(scale) + (16 + cabs(n.F)) * EPS * cabs(value)
+  local adj = {}
+  for _, a in ipairs(h.adjacent) do
+    adj[#adj + 1] = format("%s (singulant %s, Stokes constant %s)", a.what, tostring(a.sigma),
+      tostring(a.K))
+  end
+  local detail = format("hyperasymptotic level %d, %d terms of its own series; adjacent: %s",
+    h.level, h.N0, table.concat(adj, "; "))
+  return { value = value, error = err, method = "hyper", level = h.level, detail = detail,
+    notes = h.notes, adjacent = h.adjacent }
+end
+
+---------------------------------------------------------------------------------------
 -- Applying a method to an expansion.
 ---------------------------------------------------------------------------------------
 
-local METHODS = { borel = by_borel }
+local METHODS = { borel = by_borel, hyper = by_hyper }
 
 --- check_option(v, fname, order) -> true | "hyper" | "borel" | nil: the option `resum`
 -- (which works from the optimally truncated series: any other order is an error).
@@ -259,10 +347,14 @@ local function resum_one(J, params, L, c, how)
     c.resum_note = "a uniform form: not resummed"
     return
   end
-  local tries = how == true and { "borel" } or { how }
+  local tries = how == true and { "borel", "hyper" } or { how }
   local best
-  local why = {}
+  local why, results = {}, {}
   for _, name in ipairs(tries) do
+    -- (with how = true, hyperasymptotics only where Borel-Pade left more than 1e-12)
+    if how == true and name == "hyper" and best and best.error <= 1e-12 * cabs(best.value) then
+      break
+    end
     local ok, r, whynot = pcall(METHODS[name], J, params, L, c)
     if not ok then
       why[#why + 1] = name .. " failed: " .. tostring(r)
@@ -275,9 +367,21 @@ local function resum_one(J, params, L, c, how)
       if diff > 3 * (r.error + c.error) then
         why[#why + 1] = format("%s disagrees with the truncated series by %.3g (estimates "
           .. "%.3g and %.3g): not used", name, diff, r.error, c.error)
-      elseif not best or r.error < best.error then
-        best = r
+      else
+        results[#results + 1] = r
+        if not best or r.error < best.error then best = r end
       end
+    end
+  end
+  -- two methods are two independent estimates of one number: where they disagree beyond
+  -- their estimates, the difference is the honest error
+  if #results == 2 then
+    local a, b = results[1], results[2]
+    local d = cabs(a.value - b.value)
+    if d > a.error + b.error then
+      best.error = d + best.error
+      why[#why + 1] = format("Borel-Pade and hyperasymptotics differ by %.3g, beyond their "
+        .. "estimates: the error is widened to that", d)
     end
   end
   c.method, c.level = "optimal truncation", 0
