@@ -361,7 +361,7 @@ function M.expand(J, params, opts)
           { saddle = L.saddles[j2], rays = by_saddle[j2] or {} } }
         local ok, c = pcall(coalesce.contribution, J, params, L, pair, order)
         if ok and c then
-          c.pair = pair   -- (resummation may expand the two saddles apart)
+          c.pair = opts.resum and pair or nil   -- (resummation may expand them apart)
           contributions[#contributions + 1] = c
           handled[j], handled[j2] = true, true
         end
@@ -628,7 +628,7 @@ function M.check(J, params, values, opts)
     local p = {}
     for k, val in pairs(params) do p[k] = val end
     p[x] = v
-    local r = M.expand(J, p, { order = order, region = opts.region })
+    local r = M.expand(J, p, { order = order, region = opts.region, resum = opts.resum })
     local qopts = { region = opts.region }
     for k, val in pairs(p) do qopts[k] = val end
     local q, qe, qinfo = J:quad(qopts)
@@ -637,7 +637,8 @@ function M.check(J, params, values, opts)
     local ok = diff <= 3 * r.error + 3 * qe
     rows[#rows + 1] = { x = v, expansion = r.value, quad = q, quad_error = qe,
       relative_error = diff / scale, estimated = r.error / scale, agrees = ok,
-      stokes = r.stokes, quad_status = qinfo.status }
+      stokes = r.stokes, quad_status = qinfo.status,
+      method = r.resum and r.resum.method or nil, level = r.resum and r.resum.level or nil }
   end
   -- observed order: slope of log(error) against log|x| (least squares)
   local sx, sy, sxx, sxy, n = 0, 0, 0, 0, 0
@@ -653,13 +654,15 @@ function M.check(J, params, values, opts)
   local all = true
   for _, row in ipairs(rows) do all = all and row.agrees end
   local result = { rows = rows, observed_order = slope, verified = all, order = order,
-    integral = J, large = x }
+    integral = J, large = x, resum = opts.resum }
   return setmetatable(result, { __index = { report = M.check_report } })
 end
 
 function M.check_report(c, opts)
-  local other = require("steep.report").format(opts, c, c.rows,
-    { "x", "expansion", "quad", "quad_error", "relative_error", "estimated", "agrees", "stokes" })
+  local cols = { "x", "expansion", "quad", "quad_error", "relative_error", "estimated", "agrees",
+    "stokes" }
+  if c.resum then cols[#cols + 1] = "method"; cols[#cols + 1] = "level" end
+  local other = require("steep.report").format(opts, c, c.rows, cols)
   if other then return other end
   local lines = {}
   local function add(...) lines[#lines + 1] = format(...) end
@@ -669,7 +672,8 @@ function M.check_report(c, opts)
   for _, r in ipairs(c.rows) do
     add("%-12s %-26s %-26s %-11.3g %-11.3g %s", tostring(r.x), fmtc(r.expansion),
       fmtc(r.quad), r.relative_error, r.estimated,
-      (r.agrees and "" or "DISAGREES") .. (r.stokes and " stokes" or ""))
+      (r.agrees and "" or "DISAGREES") .. (r.stokes and " stokes" or "")
+      .. (r.method and (" " .. r.method) or ""))
   end
   if c.observed_order then
     add("observed order of the error: %.3g (relative error ~ %s^%.3g)", c.observed_order,

@@ -173,7 +173,7 @@ function M.roots(ar, ai, deg)
   local dr, di = {}, {}
   for k = 1, deg do dr[k - 1], di[k - 1] = k * ar[k], k * ai[k] end
   local done = {}
-  for _ = 1, 100 do
+  for _ = 1, 300 do
     local moved = 0
     for k = 1, deg do
       if done[k] then goto next_root end
@@ -204,7 +204,16 @@ function M.roots(ar, ai, deg)
     end
     if moved < 1e-12 then return zr, zi end
   end
-  return nil
+  -- not every root settled (clusters converge slowly): keep those where the polynomial is
+  -- small against the size of its terms
+  local or_, oi = {}, {}
+  for k = 1, deg do
+    local az = hypot(zr[k], zi[k])
+    local pr, pim, pa = horner(ar, ai, deg, zr[k], zi[k], az)
+    if hypot(pr, pim) <= 1e-8 * pa then or_[#or_ + 1], oi[#oi + 1] = zr[k], zi[k] end
+  end
+  if #or_ == 0 then return nil end
+  return or_, oi, true
 end
 
 ---------------------------------------------------------------------------------------

@@ -118,4 +118,10 @@ steep.integral = integral.new
 --- steep.airy(z) -> Ai(z), Ai'(z), and their error estimates (complex z)
 function steep.airy(z) return require("steep.special").airy(z) end
 
+--- steep.stokes_multiplier(singulant [, large]) -> S, sigma: Berry's smoothed Stokes
+-- multiplier (lua/steep/resum.lua says how to use it)
+function steep.stokes_multiplier(singulant, large)
+  return require("steep.resum").stokes_multiplier(singulant, large)
+end
+
 return steep

@@ -590,7 +590,10 @@ function methods.check(J, opts)
   local rest = {}
   for k, v in pairs(opts) do rest[k] = v end
   rest[J.large.name] = values[1]
-  local params, o = M.split_options(J, rest, { order = true, region = true }, "check")
+  local params, o = M.split_options(J, rest, { order = true, region = true, resum = true },
+    "check")
+  o.resum = require("steep.resum").check_option(o.resum, "check", o.order)
+  if o.resum then o.order = "optimal" end
   params[J.large.name] = nil
   if o.region then o.region = check_region(o.region, "check", J) end
   return require("steep.asymptotics").check(J, params, values, o)

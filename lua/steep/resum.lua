@@ -67,8 +67,8 @@ M.erfc = erfc
 function M.stokes_multiplier(singulant, large)
   local sr, si = cparts(singulant)
   if not sr or sr ~= sr or si ~= si then
-    error(format("bad argument #1 to 'stokes_multiplier' (complex singulant expected, got %s)",
-      tostring(singulant)), 2)
+    error(format("bad argument #1 to 'stokes_multiplier' (number or complex singulant "
+      .. "expected, got %s)", sr and "NaN" or type(singulant)), 2)
   end
   if large ~= nil then
     local lr, li = cparts(large)
@@ -333,58 +333,86 @@ local function plain_saddle(J, params, s, rays)
 end
 
 -- One contribution: the method's value replaces the optimally truncated one when its
--- error estimate is smaller and the two agree within their estimates (they estimate the
--- same number; a disagreement means one of them is wrong, and the truncated series is
--- the one with fewer assumptions).
+-- error estimate is smaller and it is confirmed: it agrees with the truncated value
+-- within both estimates, or, where it does not, the other method agrees with it. (They
+-- all estimate one number. Near a Stokes line the truncated series misses the smoothly
+-- switched-on share of the subdominant contribution, which can exceed its smallest
+-- term, so a disagreement with it alone proves nothing; two independent resummations
+-- that agree do.) Where two methods ran and disagree beyond their estimates, the
+-- difference is added to the error.
+local function run(name, J, params, L, c, why)
+  local ok, r, whynot = pcall(METHODS[name], J, params, L, c)
+  if not ok then why[#why + 1] = name .. " failed: " .. tostring(r); return nil end
+  if not r then why[#why + 1] = name .. ": " .. tostring(whynot); return nil end
+  if not (r.error < huge) then why[#why + 1] = name .. ": no error estimate"; return nil end
+  return r
+end
+
 local function resum_one(J, params, L, c, how)
   c.truncated = { value = c.value, error = c.error, used = c.used }
   if c.kind == "pole" then
     c.method, c.level = "exact", 0
     return
   end
-  if not (c.weights or c.kind:match("^endpoint")) or c.kind:match("uniform") then
-    c.method = "optimal truncation"
+  if c.kind:match("uniform") then
+    c.method, c.level = "uniform form", 0
     c.resum_note = "a uniform form: not resummed"
     return
   end
-  local tries = how == true and { "borel", "hyper" } or { how }
-  local best
-  local why, results = {}, {}
-  for _, name in ipairs(tries) do
-    -- (with how = true, hyperasymptotics only where Borel-Pade left more than 1e-12)
-    if how == true and name == "hyper" and best and best.error <= 1e-12 * cabs(best.value) then
-      break
-    end
-    local ok, r, whynot = pcall(METHODS[name], J, params, L, c)
-    if not ok then
-      why[#why + 1] = name .. " failed: " .. tostring(r)
-    elseif not r then
-      why[#why + 1] = name .. ": " .. tostring(whynot)
-    elseif not (r.error < huge) then
-      why[#why + 1] = name .. ": no error estimate"
-    else
-      local diff = cabs(r.value - c.value)
-      if diff > 3 * (r.error + c.error) then
-        why[#why + 1] = format("%s disagrees with the truncated series by %.3g (estimates "
-          .. "%.3g and %.3g): not used", name, diff, r.error, c.error)
-      else
-        results[#results + 1] = r
-        if not best or r.error < best.error then best = r end
-      end
-    end
+  c.method, c.level = "optimal truncation", 0
+  if not (c.weights or c.kind:match("^endpoint")) then return end
+  local why = {}
+  local first = how == true and "borel" or how
+  local other = first == "borel" and "hyper" or "borel"
+  local a = run(first, J, params, L, c, why)
+  local b
+  local function agrees_with_truncation(r)
+    return cabs(r.value - c.value) <= 3 * (r.error + c.error)
   end
-  -- two methods are two independent estimates of one number: where they disagree beyond
-  -- their estimates, the difference is the honest error
-  if #results == 2 then
-    local a, b = results[1], results[2]
+  -- the second method: as a referee where the first disagrees with the truncated series,
+  -- and (how = true) where the first left more than 1e-12 relative
+  if a and not agrees_with_truncation(a) then
+    b = run(other, J, params, L, c, why)
+  elseif how == true and not (a and a.error <= 1e-12 * cabs(a.value)) then
+    b = run(other, J, params, L, c, why)
+  end
+  local best
+  if a and b then
     local d = cabs(a.value - b.value)
-    if d > a.error + b.error then
-      best.error = d + best.error
+    local consistent = d <= a.error + b.error
+    best = (b.error < a.error and how == true) and b or a
+    if consistent then
+      if not agrees_with_truncation(best) then
+        why[#why + 1] = format("the optimally truncated value is %.3g off, beyond its estimate "
+          .. "(near a Stokes line that estimate misses the subdominant share); Borel-Pade and "
+          .. "hyperasymptotics agree", cabs(best.value - c.value))
+      end
+    elseif agrees_with_truncation(a) or agrees_with_truncation(b) then
+      -- the one the truncated series confirms (of two, the smaller estimate where the
+      -- caller let either be chosen), its error widened by their difference
+      local ok_a, ok_b = agrees_with_truncation(a), agrees_with_truncation(b)
+      if ok_a and ok_b then
+        best = (how == true and b.error < a.error) and b or a
+      else
+        best = ok_a and a or b
+      end
+      best.error = best.error + d
       why[#why + 1] = format("Borel-Pade and hyperasymptotics differ by %.3g, beyond their "
         .. "estimates: the error is widened to that", d)
+    else
+      best = nil
+      why[#why + 1] = format("Borel-Pade and hyperasymptotics disagree with each other (by "
+        .. "%.3g) and with the truncated series: neither is used", d)
+    end
+  elseif a then
+    if agrees_with_truncation(a) then
+      best = a
+    else
+      why[#why + 1] = format("%s disagrees with the truncated series by %.3g (estimates %.3g "
+        .. "and %.3g) and no second method could referee: not used", a.method,
+        cabs(a.value - c.value), a.error, c.error)
     end
   end
-  c.method, c.level = "optimal truncation", 0
   if best and best.error < c.error then
     c.value, c.error = best.value, best.error
     c.method, c.level, c.resummed = best.method, best.level, best
@@ -439,6 +467,7 @@ function M.apply(J, params, L, contributions, how)
   for _, c in ipairs(contributions) do
     local split, why
     if c.pair then split, why = split_pair(J, params, L, c, how) end
+    c.pair = nil   -- (the decomposition's pieces: not part of the result)
     if split then
       for _, pc in ipairs(split) do out[#out + 1] = pc end
     else
