@@ -92,7 +92,8 @@ memcheck: deps
 	@$(MAKE) --no-print-directory $(MODULE) tests/c/test_kernels tests/ref/gslref.so tests/embed/host
 	STEEP_KERNEL_TESTS='$(VALGRIND) tests/c/test_kernels' $(VALGRIND) $(LUA) tests/run.lua
 
-# libFuzzer harnesses of the C kernels (tests/fuzz/, no Lua), with ASan and UBSan.
+# libFuzzer harnesses of the C kernels (tests/fuzz/, no Lua) and of the bindings (through
+# a Lua state, fuzz_bindings), with ASan and UBSan.
 # `make fuzz SECONDS=N` runs each for N seconds from the seeds in tests/fuzz/corpus/<h>/;
 # new inputs go to tests/fuzz/bin/corpus/<h>/ (not versioned). A crash, a sanitizer report
 # or an input slower than FUZZ_TIMEOUT seconds fails it; the input is kept in
@@ -101,13 +102,18 @@ FUZZ_CC      = clang
 FUZZ_FLAGS   = -std=c99 -Wall -Wextra -Werror -g -O1 -fsanitize=fuzzer,address,undefined \
                -fno-sanitize-recover=all -fno-omit-frame-pointer
 FUZZ_SRC     = $(sort $(KERNEL_SRC) ext/invmap.c)
-FUZZERS      = tape series paths
+FUZZERS      = tape series paths bindings
 SECONDS     ?= 60
 FUZZ_TIMEOUT = 10
 
 tests/fuzz/bin/fuzz_%: tests/fuzz/fuzz_%.c tests/fuzz/fuzz.h $(FUZZ_SRC) $(HDR)
 	@mkdir -p $(dir $@)
 	$(FUZZ_CC) $(FUZZ_FLAGS) -Iext -o $@ $< $(FUZZ_SRC) -lm
+
+# The bindings' harness links the whole module and Lua, as an embedding host does.
+tests/fuzz/bin/fuzz_bindings: tests/fuzz/fuzz_bindings.c tests/fuzz/fuzz.h $(SRC) $(HDR)
+	@mkdir -p $(dir $@)
+	$(FUZZ_CC) $(FUZZ_FLAGS) $(PKG_CFLAGS) -Iext -o $@ $< $(SRC) $(EMBED_LIBS)
 
 fuzz: deps
 	@$(MAKE) --no-print-directory $(FUZZERS:%=tests/fuzz/bin/fuzz_%)

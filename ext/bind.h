@@ -34,6 +34,18 @@ size_t bind_checkorder(lua_State *L, int arg);
  * Lua error raised afterwards leaks nothing). */
 void *bind_scratch(lua_State *L, size_t bytes);
 
+/* Scratch for `count` elements of `size` bytes, or a Lua error when that exceeds
+ * STEEP_MAX_SCRATCH: the count is checked before it is multiplied. */
+void *bind_array(lua_State *L, size_t count, size_t size);
+
+/* a * b, or a Lua error when the product would exceed STEEP_MAX_SCRATCH (a count of
+ * elements built from two counts). */
+size_t bind_mulcount(lua_State *L, size_t a, size_t b);
+
+/* The length (#, __len honoured) of the table at argument idx as a count of at most
+ * `max` entries, or an argument error naming `what` (a negative length counts as 0). */
+size_t bind_checklen(lua_State *L, int idx, size_t max, const char *what);
+
 /* A buffer of at least `bytes` for the large work arrays of a kernel call, reused from
  * call to call (kept in the registry of the Lua state, which its coroutines share): spares
  * the allocator a fresh block of that size at every call. It is pushed on the stack (so

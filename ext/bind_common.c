@@ -62,13 +62,34 @@ void *bind_scratch(lua_State *L, size_t bytes) {
   return lua_newuserdatauv(L, bytes ? bytes : 1, 0);
 }
 
+void *bind_array(lua_State *L, size_t count, size_t size) {
+  if (size == 0 || count > STEEP_MAX_SCRATCH / size)
+    luaL_error(L, "scratch memory for %I elements of %I bytes exceeds the limit of %I bytes",
+               (lua_Integer)count, (lua_Integer)size, (lua_Integer)STEEP_MAX_SCRATCH);
+  return bind_scratch(L, count * size);
+}
+
+size_t bind_mulcount(lua_State *L, size_t a, size_t b) {
+  if (a != 0 && b > STEEP_MAX_SCRATCH / a)
+    luaL_error(L, "%I times %I elements exceeds the limit of %I", (lua_Integer)a,
+               (lua_Integer)b, (lua_Integer)STEEP_MAX_SCRATCH);
+  return a * b;
+}
+
+size_t bind_checklen(lua_State *L, int idx, size_t max, const char *what) {
+  lua_Integer len = luaL_len(L, idx);
+  if (len > 0 && (lua_Unsigned)len > (lua_Unsigned)max)
+    luaL_argerror(L, idx, lua_pushfstring(L, "a list of %I %s is too long (at most %I)", len,
+                                          what, (lua_Integer)max));
+  return len > 0 ? (size_t)len : 0;
+}
+
 cplx *bind_checkpoints(lua_State *L, int idx, size_t *n) {
   cplx *v = bind_tocvec(L, idx, n);
   if (v) return v;
   luaL_checktype(L, idx, LUA_TTABLE);
-  lua_Integer len = luaL_len(L, idx);
-  *n = len > 0 ? (size_t)len : 0;
-  v = bind_scratch(L, *n * sizeof(cplx));
+  *n = bind_checklen(L, idx, STEEP_MAX_POINTS, "points");
+  v = bind_array(L, *n, sizeof(cplx));
   for (size_t i = 0; i < *n; i++) {
     lua_geti(L, idx, (lua_Integer)i + 1);
     if (!bind_tocomplex(L, -1, &v[i]))

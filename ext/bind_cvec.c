@@ -13,11 +13,13 @@ typedef struct {
 
 #define checkcvec(L, i) ((cvec *)luaL_checkudata(L, i, STEEP_CVEC_MT))
 
-/* Largest vector: 2^28 points (4 GiB); a guard against absurd sizes, not a design limit. */
-#define CVEC_MAX ((size_t)1 << 28)
+/* Largest vector: STEEP_MAX_POINTS (steep.h), a guard against absurd sizes. */
+#define CVEC_MAX STEEP_MAX_POINTS
 
 cplx *bind_newcvec(lua_State *L, size_t n) {
-  if (n > CVEC_MAX) luaL_error(L, "complex vector of %d points is too large", (int)n);
+  if (n > CVEC_MAX)
+    luaL_error(L, "a complex vector of %I points is too large (at most %I)", (lua_Integer)n,
+               (lua_Integer)CVEC_MAX);
   cvec *c = lua_newuserdatauv(L, sizeof(cvec) + n * sizeof(cplx), 0);
   c->n = n;
   luaL_setmetatable(L, STEEP_CVEC_MT);
@@ -34,8 +36,7 @@ cplx *bind_tocvec(lua_State *L, int idx, size_t *n) {
 /* core.cvec{z1, z2, ...} from numbers and complex values. */
 static int cvec_new(lua_State *L) {
   luaL_checktype(L, 1, LUA_TTABLE);
-  lua_Integer len = luaL_len(L, 1);
-  if (len < 0) len = 0;
+  lua_Integer len = (lua_Integer)bind_checklen(L, 1, CVEC_MAX, "points");
   cplx *v = bind_newcvec(L, (size_t)len);
   for (lua_Integer i = 1; i <= len; i++) {
     lua_geti(L, 1, i);

@@ -160,7 +160,7 @@ static int land_trace(lua_State *L) {
   lua_getfield(L, 5, "stops");
   int si = lua_gettop(L);
   const cplx *stops = lua_isnil(L, si) ? NULL : bind_checkpoints(L, si, &ns);
-  double *stop_r = bind_scratch(L, (ns + 1) * sizeof(double));
+  double *stop_r = bind_array(L, ns + 1, sizeof(double));
   lua_getfield(L, 5, "stop_r");
   for (size_t j = 0; j < ns; j++) {
     lua_geti(L, -1, (lua_Integer)j + 1);
@@ -170,7 +170,7 @@ static int land_trace(lua_State *L) {
   o.stops = stops;
   o.stop_r = stop_r;
   o.nstops = ns;
-  cplx *pts = bind_buffer(L, 2 * maxpts * sizeof(cplx)), *Fs = pts + maxpts;
+  cplx *pts = bind_buffer(L, bind_mulcount(L, 2 * maxpts, sizeof(cplx))), *Fs = pts + maxpts;
   int buffer = lua_gettop(L);
   size_t n = 0;
   int which = -1;
@@ -268,8 +268,8 @@ static int land_quad_polyline(lua_State *L) {
   lua_pop(L, 2);
   if (n < 2) return luaL_error(L, "quad_polyline: needs at least 2 points");
   size_t nseg = n - 1;
-  cplx *res = bind_scratch(L, nseg * sizeof(cplx));
-  double *err = bind_scratch(L, nseg * sizeof(double));
+  cplx *res = bind_array(L, nseg, sizeof(cplx));
+  double *err = bind_array(L, nseg, sizeof(double));
   long evals = 0;
   int status = QUAD_OK;
   double size = 0;
@@ -356,7 +356,7 @@ static int push_coefs(lua_State *L, const cplx *G, size_t N, double rho, lua_Int
   if (N % 2) return luaL_error(L, "coefficients need an even number of points (the N/2 rule)");
   double gmax = 0;
   for (size_t j = 0; j < N; j++) gmax = fmax(gmax, cabs(G[j]));
-  cplx *root = bind_scratch(L, N * sizeof(cplx));
+  cplx *root = bind_array(L, N, sizeof(cplx));
   unit_roots(N, root);
   circle_coefs(G, N, 1, rho, (size_t)n, root, bind_newcvec(L, (size_t)n));
   circle_coefs(G, N, 2, rho, (size_t)n, root, bind_newcvec(L, (size_t)n));
@@ -425,13 +425,13 @@ static int land_laurent(lua_State *L) {
   luaL_argcheck(L, rho > 0 && isfinite(rho), 4, "radius must be positive and finite");
   luaL_argcheck(L, N >= 8 && N <= 65536, 5, "number of points must be 8..65536");
   luaL_argcheck(L, depth >= 1 && depth <= 1024, 6, "depth must be 1..1024");
-  cplx *f = bind_scratch(L, (size_t)N * sizeof(cplx));
+  cplx *f = bind_array(L, (size_t)N, sizeof(cplx));
   double vmax = 0;
   for (lua_Integer k = 0; k < N; k++) {
     f[k] = integrand(p, c + rho * cexp(I * (6.283185307179586 * (double)k / (double)N)));
     vmax = fmax(vmax, cabs(f[k]));
   }
-  cplx *root = bind_scratch(L, (size_t)N * sizeof(cplx));
+  cplx *root = bind_array(L, (size_t)N, sizeof(cplx));
   unit_roots((size_t)N, root);
   int halves = N % 2 == 0;
   cplx *out = bind_newcvec(L, (size_t)depth + 2);
@@ -461,7 +461,7 @@ static int land_ring_power(lua_State *L) {
   lua_Integer n = luaL_checkinteger(L, 6);
   luaL_argcheck(L, r2 > 0 && r3 > r2 && isfinite(r3), 5, "radii must satisfy 0 < r2 < r3 < inf");
   luaL_argcheck(L, n >= 4 && n <= 65536, 6, "number of angles must be 4..65536");
-  cplx *work = bind_scratch(L, 3 * (size_t)n * sizeof(cplx));
+  cplx *work = bind_array(L, 3 * (size_t)n, sizeof(cplx));
   double growth;
   cplx lead2, lead3;
   int deg = ring_power(p, c, r2, r3, (int)n, &growth, &lead2, &lead3, work);

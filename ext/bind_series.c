@@ -16,6 +16,8 @@ typedef struct {
 
 #define checkseries(L, i) ((series *)luaL_checkudata(L, i, STEEP_SERIES_MT))
 
+static int finite_c(cplx z) { return isfinite(creal(z)) && isfinite(cimag(z)); }
+
 static series *newseries(lua_State *L, size_t n) {
   series *s = lua_newuserdatauv(L, sizeof(series) + n * sizeof(cplx), 0);
   s->n = n;
@@ -37,6 +39,9 @@ static int series_new(lua_State *L) {
     if (!bind_tocomplex(L, -1, &s->c[k - 1]))
       return luaL_error(L, "bad argument #1 to 'series' (coefficient %I is a %s, "
                         "number or complex expected)", k, luaL_typename(L, -1));
+    if (!finite_c(s->c[k - 1]))
+      return luaL_error(L, "bad argument #1 to 'series' (coefficient %I is not finite: a NaN "
+                        "or an infinity)", k);
     lua_pop(L, 1);
   }
   return 1;
@@ -51,7 +56,9 @@ static const cplx *operand(lua_State *L, int i, size_t n, size_t *len) {
   if (!bind_tocomplex(L, i, &z))
     luaL_error(L, "series arithmetic with a %s (number, complex or series expected)",
                luaL_typename(L, i));
-  cplx *c = bind_scratch(L, n * sizeof(cplx));
+  if (!finite_c(z))
+    luaL_error(L, "series arithmetic with a value that is not finite (a NaN or an infinity)");
+  cplx *c = bind_array(L, n, sizeof(cplx));
   memset(c, 0, n * sizeof(cplx));
   c[0] = z;
   *len = n;
@@ -95,6 +102,7 @@ static int series_unm(lua_State *L) {
 static int series_pow(lua_State *L) {
   series *a = checkseries(L, 1);
   cplx p = bind_checkcomplex(L, 2);
+  if (!finite_c(p)) return luaL_error(L, "series power: the exponent is not finite (a NaN or an infinity)");
   size_t n = a->n;
   int isint = 0;
   lua_Integer m = lua_isinteger(L, 2) ? (isint = 1, lua_tointeger(L, 2)) : 0;
@@ -104,7 +112,7 @@ static int series_pow(lua_State *L) {
   }
   if (isint && (m > 1000000000 || m < -1000000000))
     return luaL_error(L, "series power: exponent %I is too large", m);
-  cplx *work = bind_scratch(L, 2 * n * sizeof(cplx));
+  cplx *work = bind_array(L, 2 * n, sizeof(cplx));
   series *r = newseries(L, n);
   int st = isint ? ser_powi(r->c, a->c, (long)m, n, work) : ser_pow(r->c, a->c, p, n);
   if (st != STEEP_OK)
@@ -145,7 +153,7 @@ enum { F_EXP, F_LOG, F_SQRT, F_SIN, F_COS, F_TAN, F_SINH, F_COSH, F_TANH, F_ATAN
 static int series_fn(lua_State *L, int f, const char *name) {
   series *a = checkseries(L, 1);
   size_t n = a->n;
-  cplx *work = bind_scratch(L, 2 * n * sizeof(cplx));
+  cplx *work = bind_array(L, 2 * n, sizeof(cplx));
   series *r = newseries(L, n);
   int st = STEEP_OK;
   switch (f) {
@@ -185,7 +193,7 @@ static int series_compose(lua_State *L) {
   if (r->c[0] != 0)
     return luaL_argerror(L, 2, "inner series must have a zero constant term");
   size_t n = a->n < r->n ? a->n : r->n;
-  cplx *work = bind_scratch(L, 2 * n * sizeof(cplx));
+  cplx *work = bind_array(L, 2 * n, sizeof(cplx));
   series *out = newseries(L, n);
   ser_compose(out->c, a->c, r->c, n, work);
   return 1;
@@ -197,7 +205,7 @@ static int series_revert(lua_State *L) {
   if (a->c[0] != 0) return luaL_error(L, "series revert: the constant term must be zero");
   if (a->c[1] == 0)
     return luaL_error(L, "series revert: the linear coefficient is zero (not invertible)");
-  cplx *work = bind_scratch(L, a->n * a->n * sizeof(cplx));
+  cplx *work = bind_array(L, bind_mulcount(L, a->n, a->n), sizeof(cplx));
   series *out = newseries(L, a->n);
   ser_revert(out->c, a->c, a->n, work);
   return 1;

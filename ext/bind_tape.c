@@ -129,7 +129,7 @@ static cplx *params_of(lua_State *L, const tape *t, int tidx, int pidx) {
   }
   if (lua_type(L, pidx) != LUA_TTABLE)
     luaL_typeerror(L, pidx, "table of parameter values");
-  cplx *p = bind_scratch(L, t->nparams * sizeof(cplx));
+  cplx *p = bind_array(L, t->nparams, sizeof(cplx));
   lua_getiuservalue(L, tidx, 1);
   for (size_t i = 0; i < t->nparams; i++) {
     lua_rawgeti(L, -1, (lua_Integer)i + 1);
@@ -162,7 +162,7 @@ static int tape_eval_l(lua_State *L) {
   tape *t = checktape(L, 1);
   cplx x = bind_checkcomplex(L, 2);
   cplx *p = read_params(L, t, 3);
-  cplx *work = bind_scratch(L, (t->n + t->nout) * sizeof(cplx));
+  cplx *work = bind_array(L, t->n + t->nout, sizeof(cplx));
   cplx *out = work + t->n;
   tape_eval(t, x, p, out, work);
   luaL_checkstack(L, (int)t->nout, "too many outputs");
@@ -180,19 +180,18 @@ static int tape_eval_many(lua_State *L) {
   cplx *p = read_params(L, t, 3);
   if (!as_cvec) {
     if (lua_type(L, 2) != LUA_TTABLE) return luaL_typeerror(L, 2, "steep.cvec or list of points");
-    lua_Integer len = luaL_len(L, 2);
-    m = len > 0 ? (size_t)len : 0;
-    xs = bind_scratch(L, m * sizeof(cplx));
+    m = bind_checklen(L, 2, STEEP_MAX_POINTS, "points");
+    xs = bind_array(L, m, sizeof(cplx));
     for (size_t i = 0; i < m; i++) {
       lua_geti(L, 2, (lua_Integer)i + 1);
       if (!bind_tocomplex(L, -1, &xs[i]))
-        return luaL_error(L, "bad argument #2 to 'eval_many' (point %d is a %s)", (int)i + 1,
-                          luaL_typename(L, -1));
+        return luaL_argerror(L, 2, lua_pushfstring(L, "point %I is a %s", (lua_Integer)i + 1,
+                                                   luaL_typename(L, -1)));
       lua_pop(L, 1);
     }
   }
-  cplx *work = bind_scratch(L, t->n * TAPE_BLOCK * sizeof(cplx));
-  cplx *out = bind_scratch(L, (t->nout * m + 1) * sizeof(cplx));
+  cplx *work = bind_array(L, bind_mulcount(L, t->n, TAPE_BLOCK), sizeof(cplx));
+  cplx *out = bind_array(L, bind_mulcount(L, t->nout, m) + 1, sizeof(cplx));
   tape_eval_batch(t, xs, m, p, out, work);
   luaL_checkstack(L, (int)t->nout + 2, "too many outputs");
   for (size_t o = 0; o < t->nout; o++) {
@@ -229,8 +228,8 @@ static int tape_jet_l(lua_State *L) {
   cplx *p = read_params(L, t, 4);
   size_t n = order + 1, upto = 0;
   for (lua_Integer o = 0; o < k; o++) if ((size_t)t->out[o] > upto) upto = (size_t)t->out[o];
-  cplx *work = bind_scratch(L, t->n * n * sizeof(cplx));
-  cplx *scratch = bind_scratch(L, 4 * n * sizeof(cplx));
+  cplx *work = bind_array(L, bind_mulcount(L, t->n, n), sizeof(cplx));
+  cplx *scratch = bind_array(L, 4 * n, sizeof(cplx));
   long bad = -1;
   int st = tape_jet_upto(t, x, p, order, work, scratch, &bad, upto);
   if (st != STEEP_OK) {

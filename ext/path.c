@@ -105,7 +105,8 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
       return PATH_HIGH;
     }
     if (cabs(t - o->center) > o->radius) return PATH_EDGE;
-    if (!accepted || cabs(dF) * o->scale <= 1e-14 * (1 + cabs(F))) return PATH_FLAT;
+    /* F no longer changes over a step (F' vanished where no saddle was listed) */
+    if (!accepted || cabs(dF) * (cabs(t) + o->scale) <= 1e-13 * (1 + cabs(F))) return PATH_FLAT;
     if (*n >= maxpts) return PATH_BOUND;
   }
   return PATH_BOUND;

@@ -18,6 +18,13 @@ typedef double complex cplx;
 #define STEEP_MAX_TAPE   100000
 #define STEEP_MAX_PARAMS 256
 
+/* Largest list or vector of points (2^24, 256 MiB of complex values) and largest block
+ * of scratch memory a binding asks for (1 GiB). Guards against absurd or lying sizes (a
+ * table whose __len returns 2^60): every count is checked against them before it is
+ * multiplied into a size, so no size can wrap round. */
+#define STEEP_MAX_POINTS  ((size_t)1 << 24)
+#define STEEP_MAX_SCRATCH ((size_t)1 << 30)
+
 /* Statuses returned by numerical kernels (misuse is reported by the binding as a
  * Lua error before a kernel is called; a kernel that falls short says why). */
 enum steep_status {

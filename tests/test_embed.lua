@@ -3,7 +3,8 @@
 -- x = 5 and 7, first in sequence, then two lua_States in two threads at once (several
 -- rounds). Its output is checked here; every threaded result must equal the sequential
 -- one to the last bit (the module keeps no state outside its lua_State). make asan runs
--- the sanitized build of the host (STEEP_EMBED_HOST).
+-- the sanitized build of the host (STEEP_EMBED_HOST). The host also installs its own GSL
+-- error handler first and checks that loading steep left it in force.
 local lu = require "luaunit"
 local H = require "helpers"
 local gsl = require "gslref"
@@ -55,4 +56,7 @@ function TestEmbed:test_host()
   local runs, same = out:match("threads: (%d+) runs, (%d+) identical")
   lu.assertEquals(tonumber(runs), 8, "threaded runs")
   lu.assertEquals(tonumber(same), 8, "threaded runs identical to the sequential ones")
+  -- the host installed its own GSL error handler before loading steep: still in force
+  -- after the analyses, and called on a GSL error (gsl_sf_log_e(-1), a domain error)
+  lu.assertStrContains(out, "gsl handler: kept, 1 calls")
 end

@@ -219,12 +219,18 @@ function TestLandscapeSaddles:test_infinitely_many_saddles_in_a_region()
       lu.assertEquals(s.order, 2, msg .. ": order")
       H.close(s.F2, 2, 1e-12, msg .. ": F'' at " .. tostring(z))
     end
-    -- the valleys of e^(e^t) are strips, found by sampling: each says so
+    -- the valleys of e^(e^t - 2t) are strips to the right: Re(e^t) = e^(Re t) cos(Im t)
+    -- -> -infinity where cos(Im t) < 0, Im t in (pi/2, 3pi/2) + 2 pi k (exact); to the
+    -- left -2t grows: no sector
     for _, v in ipairs(L.valleys) do
-      lu.assertTrue(v.type == "numerical" or v.type == "exponential",
-        msg .. ": valley type " .. tostring(v.type))
-      lu.assertNotNil(v.note, msg .. ": valley note")
+      lu.assertEquals(v.type, "strip", msg .. ": no sector valleys, only strips reached")
     end
+    lu.assertEquals(#L.strip_families, 1, msg .. ": one strip family")
+    local f = L.strip_families[1]
+    H.close(f.direction, 0, 1e-12, msg .. ": strips to the right", 1e-12)
+    H.close(f.period, 2 * pi, 1e-12, msg .. ": period")
+    H.close(math.cos(f.lo + math.pi / 2), -1, 1e-12, msg .. ": strip starts where cos(Im t) = 0")
+    lu.assertTrue(math.cos(0.5 * (f.lo + f.hi)) < -0.999, msg .. ": decay inside the strip")
   end
 end
 

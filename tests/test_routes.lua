@@ -559,6 +559,118 @@ function TestRoutesSweep:test_csv_and_shards()
   if not ok then error(err, 0) end
 end
 
+-- Shards partition every list: for N = 1..500 values and n = 1..N shards, the blocks of
+-- shards 1..n are contiguous, in order, and cover 1..N exactly once (exact integers;
+-- the blocks were computed in floating point once, and 649 (N, n) pairs with N <= 200
+-- lost a value at a block edge).
+function TestRoutesSweep:test_shards_partition_every_list()
+  local shard_range = require("steep.sweep").shard_range
+  for N = 1, 500 do
+    for n = 1, N do
+      local next_first = 1
+      for k = 1, n do
+        local first, last = shard_range(N, k, n)
+        if first ~= next_first or last < first - 1 then
+          lu.fail(string.format("N = %d, n = %d: shard %d is %d..%d, expected to start at %d",
+            N, n, k, first, last, next_first))
+        end
+        next_first = last + 1
+      end
+      if next_first ~= N + 1 then
+        lu.fail(string.format("N = %d, n = %d: the shards end at %d", N, n, next_first - 1))
+      end
+    end
+  end
+  -- through J:sweep: 15 values in 11 shards, every value computed exactly once
+  local J = steep.integral { var = t, exponent = -x * t ^ 2, contour = REAL_LINE, large = x }
+  local values = {}
+  for k = 1, 15 do values[k] = 1 + k / 4 end
+  local seen = {}
+  for k = 1, 11 do
+    local sw = J:sweep { x = values, order = 1, shard = { k, 11 }, progress = false }
+    for _, row in ipairs(sw.rows) do
+      lu.assertNil(seen[row.x], "value " .. row.x .. " in two shards")
+      seen[row.x] = k
+      -- int exp(-x t^2) dt = sqrt(pi/x) (exact)
+      H.close(row.quad, math.sqrt(pi / row.x), 1e-12, "shard row x = " .. row.x)
+    end
+  end
+  for _, v in ipairs(values) do lu.assertNotNil(seen[v], "value " .. v .. " in no shard") end
+end
+
+-- Failed rows: the status says "incomplete" with the count (a failed allocation used to
+-- leave "complete"), and the CSV leaves their fields empty (agrees was written "nil").
+function TestRoutesSweep:test_failed_rows()
+  local J = steep.integral { var = t, exponent = -x * t ^ 2, contour = REAL_LINE, large = x }
+  local ok = J:sweep { x = { 2, 3 }, order = 1, progress = false }
+  lu.assertEquals(ok.status, "complete")
+  -- the landscape step of x = 3 fails as a failed allocation does in Lua
+  local landscape_method = J._landscape
+  J._landscape = function(self, p, ...)
+    if p.x == 3 then error("not enough memory", 0) end
+    return landscape_method(self, p, ...)
+  end
+  local sw = J:sweep { x = { 2, 3, 4 }, order = 1, progress = false }
+  J._landscape = nil
+  lu.assertEquals(sw.rows[2].failure, "not enough memory")
+  lu.assertEquals(sw.status, "incomplete: 1 of 3 rows failed (first at 3: not enough memory)")
+  lu.assertStrContains(sw:report(), "status: incomplete: 1 of 3 rows failed")
+  -- x = 0 and -1: the ends of the real line in no valley (the integral diverges)
+  local bad_rows = J:sweep { x = { 2, 0, -1 }, order = 1, progress = false }
+  lu.assertStrContains(bad_rows.status, "incomplete: 2 of 3 rows failed (first at 0:")
+  local lines = {}
+  for l in bad_rows:csv():gmatch("([^\n]*)\n") do lines[#lines + 1] = l end
+  local header = csv_fields(lines[1])
+  local col = {}
+  for k, name in ipairs(header) do col[name] = k end
+  lu.assertEquals(csv_fields(lines[2])[col.agrees], "true")
+  lu.assertEquals(csv_fields(lines[2])[col.stokes], "false")
+  for i = 3, 4 do
+    local f = csv_fields(lines[i])
+    lu.assertEquals(#f, #header, lines[i])
+    lu.assertEquals(f[col.agrees], "", "a failed row's agrees field is empty: " .. lines[i])
+    lu.assertEquals(f[col.stokes], "", "a failed row's stokes field is empty")
+    lu.assertStrContains(f[col.failure], "outside every valley")
+  end
+  -- the time budget: rows left out are counted apart from failed ones
+  local b = J:sweep { x = { from = 2, to = 4, steps = 400 }, order = 1, budget = 1e-3, progress = false }
+  lu.assertStrContains(b.status, "rows not computed (time budget of 0.001 s reached)")
+end
+
+-- Progress with stderr going to a file (a log): lines, no carriage returns, a last line
+-- with the count. A separate lua5.4 runs the sweep (its stderr redirected).
+function TestRoutesSweep:test_progress_in_a_log()
+  local root = debug.getinfo(1, "S").source:match("^@(.*)/tests/test_routes%.lua$") or "."
+  local script, log = os.tmpname(), os.tmpname()
+  local f = assert(io.open(script, "w"))
+  f:write(string.format([[
+package.path = %q .. "/lua/?.lua;" .. %q .. "/lua/?/init.lua;" .. package.path
+package.cpath = %q
+local steep = require "steep"
+local t, x = steep.var "t", steep.param "x"
+local J = steep.integral { var = t, exponent = -x * t ^ 2,
+  contour = steep.line(steep.inf(math.pi), steep.inf(0)), large = x }
+local sw = J:sweep { x = { from = 1, to = 3, steps = 24 }, order = 1, progress = true }
+print(#sw.rows, sw.status)
+]], root, root, package.cpath))
+  f:close()
+  local lua = arg and arg[-1] or "lua5.4"
+  local p = assert(io.popen(string.format("%s %s 2>%s", lua, script, log)))
+  local out = p:read("a")
+  p:close()
+  local g = assert(io.open(log))
+  local err = g:read("a")
+  g:close()
+  os.remove(script)
+  os.remove(log)
+  lu.assertEquals(out, "25\tcomplete\n")
+  lu.assertNil(err:find("\r", 1, true), "no carriage return in the log: " .. err)
+  lu.assertStrContains(err, "sweep: 25/25 values done in ")
+  for line in err:gmatch("([^\n]*)\n") do
+    lu.assertTrue(line:match("^sweep: %d+/25 values") ~= nil, "a progress line: " .. line)
+  end
+end
+
 ---------------------------------------------------------------------------------------
 
 TestRoutesBadInput = {}
@@ -586,6 +698,8 @@ function TestRoutesBadInput:test_sweep_shard()
   local J = family(P)
   H.raises({ "sweep", "option 'shard' must be {k, n}" }, J.sweep, J,
     { x = { 3, 4 }, shard = { 3, 2 } })
+  H.raises({ "sweep", "option 'shard' must be {k, n}", "got {inf, inf}" }, J.sweep, J,
+    { x = { 3, 4 }, shard = { math.huge, math.huge } })
 end
 
 -- exp(-x A t^2/2 + i B t)/(t - P) along the real line with x = e^(i theta), theta from

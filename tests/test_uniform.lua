@@ -215,7 +215,11 @@ function TestUniformCoalescence:test_through_coalescence()
       -0.003, -0.01, -0.1 }) do
     local r = J:expand { x = 10, a = av, order = 3 }
     local q, qe = J:quad { x = 10, a = av }
-    lu.assertStrContains(r.contributions[1].kind, av == 0 and "order 3" or "Airy type",
+    -- (the quartic term also makes a third saddle, near t = -10 x, which the real line
+    -- passes through: a plain contribution of its own)
+    local kinds = {}
+    for _, c in ipairs(r.contributions) do kinds[#kinds + 1] = c.kind end
+    lu.assertStrContains(table.concat(kinds, "; "), av == 0 and "order 3" or "Airy type",
       "a = " .. av)
     local d = (r.value - q):abs()
     lu.assertTrue(d <= 3 * (r.error + qe), string.format("a = %g: |expansion - quad| = %.3g, "

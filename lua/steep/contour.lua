@@ -17,7 +17,10 @@ local M = {}
 
 local Inf = { __name = "steep.inf" }
 Inf.__index = Inf
-Inf.__tostring = function(p) return format("inf(%.6g)", p.angle) end
+Inf.__tostring = function(p)
+  if p.through then return format("inf(%.6g, %s)", p.angle, tostring(p.through)) end
+  return format("inf(%.6g)", p.angle)
+end
 
 local Contour = { __name = "steep.contour" }
 local methods = {}
@@ -35,13 +38,25 @@ local function norm_angle(th)
 end
 M.norm_angle = norm_angle
 
---- steep.inf(angle): the point at infinity in direction `angle` (radians).
-function M.inf(angle)
+--- steep.inf(angle [, through]): the point at infinity reached by the ray in direction
+-- `angle` (radians). Where the integrand's valleys are strips (exponents with exp, sinh,
+-- cosh of the variable) the end also depends on the line the ray runs along: `through`
+-- names a point of it, and a contour then runs along the ray from that point (a path's
+-- end without `through` runs along the ray from its neighbouring point).
+function M.inf(angle, through)
   if type(angle) ~= "number" or angle ~= angle or angle == math.huge or angle == -math.huge then
     error(format("bad argument #1 to 'inf' (finite angle in radians expected, got %s)",
       tostring(angle)), 2)
   end
-  return setmetatable({ angle = norm_angle(angle) }, Inf)
+  if through ~= nil then
+    local re, im = cparts(through)
+    if not re or re ~= re or im ~= im or math.abs(re) == math.huge or math.abs(im) == math.huge then
+      error(format("bad argument #2 to 'inf' (finite point expected, got %s)",
+        re and tostring(through) or type(through)), 2)
+    end
+    through = cnew(re, im)
+  end
+  return setmetatable({ angle = norm_angle(angle), through = through }, Inf)
 end
 
 local function to_point(v, fname, argn, allow_inf)
@@ -66,24 +81,42 @@ local function new(pieces, closed)
   return setmetatable({ pieces = pieces, closed = closed or false }, Contour)
 end
 
-local function piece_from(p1, p2, fname)
+-- The pieces from p1 to p2 (appended to `out`): a segment, or a ray and, when the end at
+-- infinity names the point its ray runs from, the segment between that point and the
+-- other one.
+local function pieces_from(p1, p2, fname, out)
   if is_inf(p1) and is_inf(p2) then
     error(format("bad argument to '%s' (both ends at infinity: put a finite point between "
       .. "them, e.g. steep.path{steep.inf(a), 0, steep.inf(b)})", fname), 3)
   elseif is_inf(p1) then
-    return { kind = "ray_in", angle = p1.angle, b = p2 }
+    local from = p1.through or p2
+    out[#out + 1] = { kind = "ray_in", angle = p1.angle, b = from }
+    if from ~= p2 then out[#out + 1] = { kind = "segment", a = from, b = p2 } end
   elseif is_inf(p2) then
-    return { kind = "ray_out", a = p1, angle = p2.angle }
+    local to = p2.through or p1
+    if to ~= p1 then out[#out + 1] = { kind = "segment", a = p1, b = to } end
+    out[#out + 1] = { kind = "ray_out", a = to, angle = p2.angle }
+  else
+    if p1 == p2 then error(format("bad argument to '%s' (a segment of zero length at %s)",
+        fname, tostring(p1)), 3) end
+    out[#out + 1] = { kind = "segment", a = p1, b = p2 }
   end
-  if p1 == p2 then error(format("bad argument to '%s' (a segment of zero length at %s)",
-      fname, tostring(p1)), 3) end
-  return { kind = "segment", a = p1, b = p2 }
+  return out
 end
 
 --- steep.line(a, b): from a to b; either may be steep.inf(angle). A line between two
 -- opposite infinities passes through 0.
 function M.line(a, b)
   a, b = to_point(a, "line", 1, true), to_point(b, "line", 2, true)
+  if is_inf(a) and is_inf(b) and (a.through or b.through) then
+    -- two ends that name the lines of their rays: along one ray in, across, out along
+    -- the other (e.g. from inf - i pi to inf + i pi, each along its horizontal line)
+    local ta, tb = a.through or cnew(0, 0), b.through or cnew(0, 0)
+    local pieces = { { kind = "ray_in", angle = a.angle, b = ta } }
+    if ta ~= tb then pieces[#pieces + 1] = { kind = "segment", a = ta, b = tb } end
+    pieces[#pieces + 1] = { kind = "ray_out", a = tb, angle = b.angle }
+    return new(pieces)
+  end
   if is_inf(a) and is_inf(b) then
     local d = norm_angle(b.angle - a.angle)
     if math.abs(math.abs(d) - pi) > 1e-12 then
@@ -93,7 +126,7 @@ function M.line(a, b)
     return new({ { kind = "ray_in", angle = a.angle, b = cnew(0, 0) },
       { kind = "ray_out", a = cnew(0, 0), angle = b.angle } })
   end
-  return new({ piece_from(a, b, "line") })
+  return new(pieces_from(a, b, "line", {}))
 end
 
 --- steep.path{p1, ..., pk}: polyline; first and last may be steep.inf(angle).
@@ -107,7 +140,7 @@ function M.path(points)
   for k = 1, n do pts[k] = to_point(points[k], "path", 1, k == 1 or k == n) end
   if is_inf(pts[1]) and is_inf(pts[n]) and n == 2 then return M.line(pts[1], pts[2]) end
   local pieces = {}
-  for k = 1, n - 1 do pieces[k] = piece_from(pts[k], pts[k + 1], "path") end
+  for k = 1, n - 1 do pieces_from(pts[k], pts[k + 1], "path", pieces) end
   return new(pieces)
 end
 
@@ -126,13 +159,13 @@ local function arc_point(p, th) return p.center + p.radius * cnew(cos(th), sin(t
 -- The start and end of a piece: a complex point or a steep.inf.
 local function piece_start(p)
   if p.kind == "segment" or p.kind == "ray_out" then return p.a end
-  if p.kind == "ray_in" then return M.inf(p.angle) end
+  if p.kind == "ray_in" then return M.inf(p.angle, p.b) end
   return arc_point(p, p.from)
 end
 
 local function piece_end(p)
   if p.kind == "segment" or p.kind == "ray_in" then return p.b end
-  if p.kind == "ray_out" then return M.inf(p.angle) end
+  if p.kind == "ray_out" then return M.inf(p.angle, p.a) end
   return arc_point(p, p.to)
 end
 
@@ -257,7 +290,10 @@ Contour.__tostring = function(c)
       parts[#parts + 1] = format("arc(center %s, radius %.6g, %.6g..%.6g)", tostring(p.center),
         p.radius, p.from, p.to)
     else
-      parts[#parts + 1] = tostring(piece_start(p)) .. " -> " .. tostring(piece_end(p))
+      -- (a ray's end is shown by its direction; its line is fixed by its finite point)
+      local s = p.kind == "ray_in" and format("inf(%.6g)", p.angle) or tostring(piece_start(p))
+      local e = p.kind == "ray_out" and format("inf(%.6g)", p.angle) or tostring(piece_end(p))
+      parts[#parts + 1] = s .. " -> " .. e
     end
   end
   return "contour[" .. table.concat(parts, ", ") .. "]"

@@ -19,6 +19,7 @@ local core = require "steep.core"
 local complex = require "steep.complex"
 local landscape = require "steep.landscape"
 local contour_m = require "steep.contour"
+local infinity = require "steep.infinity"
 
 local cnew, cparts = complex.new, complex.parts
 local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
@@ -30,16 +31,31 @@ local M = {}
 -- tail.
 local function full(path) return core.cvec_join(path.points, path.tail) end
 
--- The label of a contour end: a finite point ("point <index>"), a sink, or a valley.
-local function contour_end_label(L, e, which)
+--- The valleys in words, for messages: the list and the strip families.
+function M.valleys_text(L)
+  local vs = {}
+  for _, v in ipairs(L.valleys) do
+    if v.type ~= "strip" then vs[#vs + 1] = landscape.describe_valley(v) end
+  end
+  for _, f in ipairs(L.strip_families or {}) do
+    local th = f.direction
+    local where = abs(th) < 1e-12 and "to the right, Im t in"
+      or abs(abs(th) - pi) < 1e-12 and "to the left, -Im t in"
+      or format("toward direction %.4g, offset in", th)
+    vs[#vs + 1] = format("strips %s (%.4g, %.4g) + k*%.4g", where, f.lo, f.hi, f.period)
+  end
+  return #vs > 0 and table.concat(vs, "; ") or "none"
+end
+
+--- The label of a contour end: a finite point (nil), a sink, or a valley; for an end at
+-- infinity the ray that reaches it starts at `from`.
+local function contour_end_label(L, e, which, from)
   if contour_m.is_inf(e) then
-    local k, boundary = landscape.valley_of(L.valleys, e.angle)
+    local k, boundary = landscape.ray_valley(L, from or e.through or cnew(0, 0), e.angle)
     if not k then
-      local vs = {}
-      for _, v in ipairs(L.valleys) do vs[#vs + 1] = landscape.describe_valley(v) end
-      error(format("the contour's %s end at infinity in direction %.6g is outside every "
-        .. "valley: the integral diverges there (valleys: %s)", which, e.angle,
-        #vs > 0 and table.concat(vs, ", ") or "none"), 0)
+      error(format("the contour's %s end at infinity (the ray from %s in direction %.6g) is "
+        .. "outside every valley: the integral diverges there (valleys: %s)", which,
+        tostring(from or e.through or 0), e.angle, M.valleys_text(L)), 0)
     end
     return "valley " .. k, boundary
   end
@@ -78,7 +94,14 @@ end
 -- radially out to radius Rref, then along the arc inside the valley (a steep.cvec).
 local function closure_to_valley(L, z, k, Rref)
   local v = L.valleys[k]
-  local mid = v.type == "edge" and v.from or 0.5 * (v.from + v.to)
+  if v.type == "strip" then
+    -- across to the strip's middle line, then along it to the reference point
+    local y, s = infinity.strip_coords(z - 0, v.direction)
+    local _ = y
+    local on_mid = cnew(s, v.mid) * expi(v.direction)
+    return { { z, on_mid, landscape.valley_point(L, k, Rref) } }
+  end
+  local mid = (v.type == "edge" or v.type == "line") and v.from or 0.5 * (v.from + v.to)
   local c = L.region.center
   local th = carg(z - c)
   -- unwrap th next to the valley's interval
@@ -239,6 +262,37 @@ local function solve_by_ends(L, boundary, fixed, free)
   return out
 end
 
+-- The largest log |g e^F| among the saddles (the level the result is measured against).
+local function top_level(L)
+  local top = -huge
+  for _, s in ipairs(L.saddles) do
+    local gm = cabs(s.g)
+    top = math.max(top, cparts(s.F) + (gm > 0 and math.log(gm) or -huge))
+  end
+  return top
+end
+
+--- An endpoint whose integrand is below what doubles hold, next to the largest saddle
+-- (or where |F| is so large that Im F cannot be followed to the rounding of F): its
+-- steepest path contributes nothing a double can show, and only the valley it ends in
+-- matters. That is read from a straight ray in the steepest descent direction, which
+-- must end in a valley; else nil (trace it).
+function M.negligible_end(J, params, L, point, ref, d1)
+  if not complex.is(d1) or not (cabs(d1) > 0) then return nil end
+  local F = J.tape:eval(point, params)
+  local tiny = ref < top_level(L) - 745 or ref < -745
+  if not (tiny or cabs(F) > 1e13) then return nil end
+  if ref > -745 and ref >= top_level(L) - 745 then return nil end
+  local dir = -complex.new(cparts(d1)):conj()
+  dir = dir / cabs(dir)
+  local far = point + dir * (8 * L.region.radius + 2 * cabs(point - L.region.center))
+  local k = landscape.point_valley(L, far, 0.02)
+  if not k then return nil end
+  local pts = core.cvec { point, far }
+  return { points = { point, far }, traced = pts, F = core.cvec { F, F }, reason = "low",
+    tail = core.cvec {}, ends = "valley " .. k, evals = 0, straight = true }
+end
+
 --- decompose(J, params, L, contour) -> plan
 -- plan.pieces: list of {kind = "saddle" | "endpoint", index (saddle), ray (its descent
 -- ray), weight, points (for quadrature, outward), ends = {from label, to label}};
@@ -302,8 +356,9 @@ function M.decompose_uncached(J, params, L, contour, opts)
   if not contour.closed then
     local s, f = contour:start(), contour:finish()
     local boundary_s, boundary_f
-    start_label, boundary_s = contour_end_label(L, s, "starting")
-    finish_label, boundary_f = contour_end_label(L, f, "finishing")
+    local first, last = contour.pieces[1], contour.pieces[#contour.pieces]
+    start_label, boundary_s = contour_end_label(L, s, "starting", first.b)
+    finish_label, boundary_f = contour_end_label(L, f, "finishing", last.a)
     if boundary_s or boundary_f then
       plan.notes[#plan.notes + 1] = "an end lies on the edge of its valley: the integrand "
         .. "oscillates there without decaying (convergent only conditionally)"
@@ -322,7 +377,10 @@ function M.decompose_uncached(J, params, L, contour, opts)
         local ref = cparts(F)
         local _, g = J.tape:eval(point, params)
         if g and cabs(g) > 0 then ref = ref + math.log(cabs(g)) end
-        local path = landscape.trace(J, params, L, point, F, true, { ref = ref })
+        local d1 = select(2, pcall(function() return J.tape:jet(point, 1, params, 1):coef(1) end))
+        local w = complex.is(d1) and cabs(d1) > 0 and 1 / cabs(d1) or nil
+        local path = M.negligible_end(J, params, L, point, ref, d1)
+          or landscape.trace(J, params, L, point, F, true, { ref = ref, scale = w })
         plan.evals = plan.evals + path.evals
         plan.pieces[#plan.pieces + 1] = { kind = "endpoint", at = point, weight = sign,
           path = path, points = path.points, full = full(path), ends = { "point", path.ends },
@@ -345,6 +403,14 @@ function M.decompose_uncached(J, params, L, contour, opts)
   -- that has one solution then (solve_by_ends). Otherwise, and always for saddles the
   -- contour runs through or starts at, as above.
   L.paths = L.paths or {}
+  for _, s in ipairs(L.saddles) do
+    if s.order > 8 then
+      plan.status = "unsupported"
+      plan.notes[#plan.notes + 1] = format("a saddle of order %d at %s: orders above 8 are "
+        .. "not supported", s.order, tostring(s.at))
+      return plan
+    end
+  end
   local fixed, free = {}, {}   -- saddle index -> weights; list of saddle indices
   for j, s in ipairs(L.saddles) do
     local paths = L.paths[j] or landscape.saddle_paths(J, params, L, j)
@@ -424,7 +490,10 @@ function M.decompose_uncached(J, params, L, contour, opts)
   for _, piece in ipairs(plan.pieces) do
     local level = piece.kind == "saddle" and L.saddles[piece.index].F
       or J.tape:eval(piece.at, params)
-    local k, at, jump = core.branch_jump(J.tape, params, piece.path.traced, piece.path.F, level)
+    local k, at, jump
+    if not piece.path.straight then
+      k, at, jump = core.branch_jump(J.tape, params, piece.path.traced, piece.path.F, level)
+    end
     if k then
       plan.status = "incomplete"
       plan.notes[#plan.notes + 1] = format("a steepest descent path of the %s %s crosses "

@@ -371,7 +371,9 @@ end
 
 ---------------------------------------------------------------------------------------
 -- Derivatives and substitution (both rebuild through the constructors above, so the
--- results are simplified and merged like any other expression).
+-- results are simplified and merged like any other expression). Both go through the
+-- nodes in walk's order, children first, without recursion: an expression nested 2*10^5
+-- deep overflowed Lua's stack when they recursed.
 ---------------------------------------------------------------------------------------
 
 local rebuild2 = { add = add, sub = sub, mul = mul, div = div }
@@ -379,36 +381,36 @@ local rebuild2 = { add = add, sub = sub, mul = mul, div = div }
 --- substitute(e, map): e with every symbol node that is a key of map replaced by the
 -- (expression, number or complex) value.
 function M.substitute(e, map)
+  local root = lift(e, 3)
   local memo = {}
-  local function go(n)
-    if memo[n] then return memo[n] end
+  for _, n in ipairs(walk({ root })) do
     local r
     if map[n] ~= nil then
-      r = lift(map[n], 4)
+      r = lift(map[n], 3)
     elseif n.op == "const" or n.op == "var" or n.op == "param" then
       r = n
     elseif rebuild2[n.op] then
-      r = rebuild2[n.op](go(n.a), go(n.b))
+      r = rebuild2[n.op](memo[n.a], memo[n.b])
     elseif n.op == "neg" then
-      r = neg(go(n.a))
+      r = neg(memo[n.a])
     elseif n.op == "powi" or n.op == "powc" then
-      r = pow(go(n.a), n.k)
+      r = pow(memo[n.a], n.k)
     else
-      r = apply(n.op, go(n.a))
+      r = apply(n.op, memo[n.a])
     end
     memo[n] = r
-    return r
   end
-  return go(lift(e, 3))
+  return memo[root]
 end
 
 --- diff(e, sym): the derivative of e with respect to the symbol sym (chain rule on the
 -- DAG; shared subexpressions are differentiated once).
 function M.diff(e, sym)
+  local root = lift(e, 3)
   local memo = {}
   local zero, one = const(0), const(1)
-  local function d(n)
-    if memo[n] then return memo[n] end
+  local function d(n) return memo[n] end   -- (children come first: already known)
+  for _, n in ipairs(walk({ root })) do
     local op, r = n.op, nil
     if op == "const" or op == "param" or op == "var" then
       r = (n == sym) and one or zero
@@ -436,9 +438,8 @@ function M.diff(e, sym)
       r = mul(f[op](), da)
     end
     memo[n] = r
-    return r
   end
-  return d(lift(e, 3))
+  return memo[root]
 end
 
 M.const = const

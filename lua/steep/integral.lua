@@ -128,9 +128,16 @@ end
 -- the saddle is enclosed, as for t - z log t). With no saddle at all the region stays at
 -- the contour's scale; exponents with infinitely many saddles stop at a bound (and the
 -- landscape says so).
-local function default_region(J, params)
+local function default_region(J, params, poly_saddles)
   local R0 = 1
   for _, z in ipairs(J.contour:finite_points()) do R0 = math.max(R0, 1.5 * cabs(z)) end
+  if poly_saddles then
+    -- a polynomial exponent: its saddles are all known. (A power of 2: neighbouring
+    -- parameter values then share the region, and a sweep's rows do not depend on where
+    -- it started.)
+    for _, s in ipairs(poly_saddles) do R0 = math.max(R0, 1.25 * cabs(s.at)) end
+    return { center = cnew(0, 0), radius = 2 ^ math.ceil(math.log(R0, 2)) }
+  end
   local counts = {}
   local any, first = false, nil
   for k = 0, 11 do
@@ -237,16 +244,66 @@ function methods._landscape(J, params, region, with_paths, cont)
   return L
 end
 
+-- The lengths the problem itself sets: each saddle's width |c|^(-1/m) (c the leading
+-- Taylor coefficient of F - F0, m its order) and each finite end's 1/|F'| (the length
+-- over which Watson's lemma's exponential falls by e). The region must see them: a saddle
+-- of width 1e20 (x = 1e-40 in e^{-x t^2}) is not resolved by a region of radius 4.
+local function needed_radius(J, params, saddles, center, R)
+  local need = 0
+  for _, s in ipairs(saddles) do
+    -- (a saddle found inside the region, narrow next to it, is seen by it already)
+    local w = s.width or 0
+    if w < huge and w > 0.25 * R then need = math.max(need, cabs(s.at - center) + 4 * w) end
+  end
+  if not J.contour.closed then
+    for _, e in ipairs({ J.contour:start(), J.contour:finish() }) do
+      if not contour_m.is_inf(e) then
+        local ok, Fs = pcall(J.tape.jet, J.tape, e, 1, params, 1)
+        local d = ok and cabs(Fs:coef(1)) or 0
+        if d > 0 and d < huge then need = math.max(need, cabs(e - center) + 4 / d) end
+      end
+    end
+  end
+  return need
+end
+
 function methods._landscape_uncached(J, params, region, with_paths, cont)
-  region = region or default_region(J, params)
-  local L = { region = region, params = params, notes = {} }
+  local A = landscape.analysis(J, params)
+  local poly = A and A.polynomial and A.degree >= 2
+  -- (a sweep's continuation passes the previous step's region: not the user's choice)
+  local given = region ~= nil and not (cont and cont.fast)
+  local psaddles, pinfo
+  if poly then psaddles, pinfo = landscape.polynomial_saddles(J, params, A) end
+  if poly and not given then region = nil end   -- the saddles are known: fit them anew
+  region = region or default_region(J, params, psaddles)
+  local L = { region = region, params = params, notes = {}, analysis = A }
+  local function find_saddles(sing, seeds, seeds_only)
+    if poly and not given then return psaddles, pinfo end
+    if poly then
+      -- a region of the user's: the saddles inside it
+      local inside = {}
+      for _, s in ipairs(psaddles) do
+        if cabs(s.at - L.region.center) < L.region.radius then inside[#inside + 1] = s end
+      end
+      return inside, { status = "complete", count = #inside, found = #inside,
+        method = pinfo.method }
+    end
+    return landscape.saddles(J, params, L.region, sing, seeds, seeds_only)
+  end
   if cont and cont.fast then
     -- continuation: the previous step's saddles seed Newton; no search of the region
     local sing = landscape.singularities(J, params, region,
       { fast = true, seeds = cont.sing_seeds or {}, radii = cont.sing_radii })
     L.singularities = sing
-    L.saddles, L.saddle_count = landscape.saddles(J, params, region, sing, cont.seeds, true)
-    L.valleys, L.growth = landscape.valleys(J, params, region, { fast = true })
+    L.saddles, L.saddle_count = find_saddles(sing, cont.seeds, true)
+    local need = not given and needed_radius(J, params, L.saddles, L.region.center, L.region.radius) or 0
+    if need > L.region.radius then
+      L.region = { center = L.region.center, radius = 2 ^ math.ceil(math.log(need, 2)) }
+      region = L.region
+    end
+    local info
+    L.valleys, info = landscape.valleys(J, params, region, { fast = true })
+    L.growth, L.strip_families = info, info.families
     return setmetatable(L, { __index = { report = M.landscape_report } })
   end
   if region.bounded then
@@ -254,13 +311,23 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
       .. "many?): the region was limited to radius " .. format("%.4g", region.radius)
       .. " (four times the contour's scale); give region = {...} to choose"
   end
-  local sing, sinfo = landscape.singularities(J, params, region)
-  L.singularities, L.singularity_info = sing, sinfo
   local seeds = {}
   for _, z in ipairs(J.contour:finite_points()) do seeds[#seeds + 1] = z end
-  local saddles, info = landscape.saddles(J, params, region, sing, seeds)
+  local sing, sinfo, saddles, info
+  for round = 1, 3 do
+    sing, sinfo = landscape.singularities(J, params, L.region)
+    saddles, info = find_saddles(sing, seeds)
+    -- a region chosen here must hold the saddles' and the ends' own scales
+    local need = not given and needed_radius(J, params, saddles, L.region.center, L.region.radius) or 0
+    if need <= L.region.radius or round == 3 then break end
+    L.region = { center = L.region.center, radius = 2 ^ math.ceil(math.log(need, 2)),
+      bounded = L.region.bounded }
+  end
+  L.singularities, L.singularity_info = sing, sinfo
   L.saddles, L.saddle_count = saddles, info
-  L.valleys, L.growth = landscape.valleys(J, params, region)
+  local vinfo
+  L.valleys, vinfo = landscape.valleys(J, params, L.region)
+  L.growth, L.strip_families = vinfo, vinfo.families
   if with_paths then
     L.paths = {}
     for j = 1, #saddles do L.paths[j] = landscape.saddle_paths(J, params, L, j) end
@@ -309,6 +376,7 @@ end
 ---------------------------------------------------------------------------------------
 
 local QUAD_REL = 1e-13
+local noise_tol
 
 -- Is z (nearly) at a singularity where the integrand may blow up integrably or vanish?
 local function singular_at(L, z)
@@ -317,11 +385,36 @@ local function singular_at(L, z)
   end
 end
 
--- A ray from a in direction th, as pieces [0, L0], [L0, 2 L0], ... until the tail is
--- negligible; a ray on the edge of a valley is turned by a small angle into the valley.
-local function quad_ray(J, params, L, a, th, sign, singular_start, notes)
-  local k, boundary = landscape.valley_of(L.valleys, th)
-  if boundary then
+-- The relative tolerance quadrature can reach near z: QUAD_REL, or the rounding of
+-- e^F where |F| is large (its phase carries eps |F| of noise).
+noise_tol = function(J, params, z)
+  local ok, F = pcall(J.tape.eval, J.tape, z, params)
+  local f = ok and cabs(F) or 0
+  if not (f < huge) then f = 0 end
+  return math.max(QUAD_REL, 8 * 2.2e-16 * (f + 1))
+end
+
+-- The length over which the integrand changes near z: the width of the nearest saddle
+-- (its distance plus its width), 1/|F'(z)|, and a tenth of the region, the smallest.
+local function local_scale(J, params, L, z)
+  local s = 0.1 * math.max(L.region.radius, cabs(z - L.region.center))
+  for _, sd in ipairs(L.saddles) do
+    if sd.width and sd.width < huge then s = math.min(s, cabs(z - sd.at) + sd.width) end
+  end
+  local ok, Fs = pcall(J.tape.jet, J.tape, z, 1, params, 1)
+  local d = ok and cabs(Fs:coef(1)) or 0
+  if d > 0 and d < huge then s = math.min(s, math.max(1 / d, 1e-3 * s)) end
+  return s
+end
+
+-- A ray from a in direction th, as pieces [0, L0], [L0, 3 L0], ... (doubling) until the
+-- tail is negligible. Where the pieces shrink geometrically without becoming negligible
+-- (algebraic decay, |integrand| ~ r^kappa: the ratio tends to 2^(kappa + 1)), the rest
+-- is summed as the geometric series, with the change of the ratio as its error. A ray on
+-- the edge of a sector valley is turned by a small angle into the valley.
+local function quad_ray(J, params, L, a, th, sign, singular_start, notes, L0)
+  local k, boundary = landscape.ray_valley(L, a, th)
+  if boundary and L.valleys[k].type ~= "strip" then
     local v = L.valleys[k]
     local inward = (abs(landscape.norm_angle(th - v.from)) < 1e-6) and 1 or -1
     local width = v.to - v.from
@@ -331,39 +424,143 @@ local function quad_ray(J, params, L, a, th, sign, singular_start, notes)
       local d = landscape.norm_angle(carg(s.at - a) - th)
       if d * inward > 0 and abs(d) < abs(tilt) then tilt = 0.5 * d end
     end
+    -- the valley is the sector's only far out: at moderate distances the tilted ray may
+    -- cross a hill of the lower-order terms (i x t^3 under the t^4 that sets the sectors),
+    -- where the integrand grows enormously before it decays; tilt less until the ray
+    -- stays within e^8 of the start's level
+    local function level(z)
+      local ok, F, g = pcall(J.tape.eval, J.tape, z, params)
+      if not ok then return huge end
+      local gm = g and cabs(g) or 1
+      local l = cparts(F) + (gm > 0 and math.log(gm) or -huge)
+      return l == l and l or huge
+    end
+    local start = math.max(level(a), level(a + local_scale(J, params, L, a) * expi(th)))
+    local s0 = local_scale(J, params, L, a)
+    for _ = 1, 40 do
+      local d, worst = expi(th + tilt), -huge
+      for j = 0, 80 do
+        local l = level(a + s0 * 2 ^ (j / 2) * d)
+        worst = math.max(worst, l)
+        if l < start - 60 then break end
+      end
+      if worst <= start + 8 then break end
+      tilt = 0.5 * tilt
+    end
     th = th + tilt
     notes[#notes + 1] = format("the end in direction %.4g lies on the edge of its valley "
       .. "(the integrand oscillates without decaying); its ray was turned by %.3g rad into "
       .. "the valley", th - tilt, tilt)
   end
   local dir = expi(th)
-  local scale = math.max(1, 0.1 * L.region.radius, 0.1 * cabs(a))
   local total, err, evals = cnew(0, 0), 0, 0
-  local s0, len = 0, scale
+  local s0, len = 0, L0 or local_scale(J, params, L, a)
   local status = "ok"
   local small = 0
-  for piece = 1, 200 do
+  local v1, v2   -- the last two pieces
+  for piece = 1, 400 do
     local p0, p1 = a + s0 * dir, a + (s0 + len) * dir
     local v, e, ev, st = core.quad_polyline(J.tape, params, { p0, p1 },
-      { reltol = QUAD_REL, abstol = 0, singular_start = singular_start and piece == 1 })
+      { reltol = noise_tol(J, params, p0), abstol = 0,
+        singular_start = singular_start and piece == 1 })
     evals = evals + ev
     if st ~= "ok" then status = st end
     total, err = total + v, err + e
-    if cabs(v) <= 1e-16 * cabs(total) or cabs(v) == 0 then
+    if cabs(v) <= 1e-17 * cabs(total) or cabs(v) == 0 then
       small = small + 1
       if small >= 2 then break end
     else
       small = 0
+      if v1 and v2 and piece >= 8 then
+        local r1, r0 = v / v1, v1 / v2
+        local q = cabs(r1)
+        if q < 0.97 and cabs(r1 - r0) < 1e-7 * q then
+          -- geometric from here on: sum_{j>=1} v r^j = v r/(1 - r); the ratio still
+          -- drifts like 1/s (the next terms of the power law): twice the change it made
+          -- between the last two pieces bounds that
+          local rest = v * r1 / (1 - r1)
+          local rest0 = v * r0 / (1 - r0)
+          total = total + rest
+          err = err + 2 * cabs(rest - rest0) + 1e-12 * cabs(rest)
+          break
+        end
+      end
     end
-    if piece == 200 then
+    v2, v1 = v1, v
+    if piece == 400 then
       status = "limit"
-      notes[#notes + 1] = format("the ray in direction %.4g did not converge", th)
+      notes[#notes + 1] = format("the ray in direction %.4g from %s did not converge",
+        th, tostring(a))
     end
     s0 = s0 + len
-    len = len * 2
+    if piece > 1 then len = len * 2 end
   end
   if sign < 0 then total = -total end
   return total, err, evals, status
+end
+
+-- Points along the segment a -> b graded toward both ends and toward the largest peak of
+-- |integrand| on it: pieces start at the local scale there and double, so that a peak of
+-- width 1 on a segment of length 1e9 is seen.
+local function graded_segment(J, params, L, a, b)
+  local len = cabs(b - a)
+  local function grade(from, toward, w, out)
+    -- from `from` toward `toward` (excluded), pieces w, w, 2w, 4w, ... up to halfway
+    local d, dist = (toward - from) / cabs(toward - from), cabs(toward - from)
+    local s, step = 0, w
+    while s + step < 0.5 * dist do
+      s = s + step
+      out[#out + 1] = from + s * d
+      if s > w then step = step * 2 end
+    end
+  end
+  local wa, wb = local_scale(J, params, L, a), local_scale(J, params, L, b)
+  if len <= 16 * math.min(wa, wb) then return { a, b } end
+  -- the peak of log |integrand| on a coarse grid, refined by golden sections
+  local n = 64
+  local best, bu = -huge, nil
+  local function level(u)
+    local z = a + (b - a) * u
+    local ok, F, g = pcall(J.tape.eval, J.tape, z, params)
+    if not ok then return -huge end
+    local gm = g and cabs(g) or 1
+    local l = cparts(F) + (gm > 0 and math.log(gm) or -huge)
+    return l == l and l or -huge
+  end
+  for k = 1, n - 1 do
+    local l = level(k / n)
+    if l > best then best, bu = l, k / n end
+  end
+  local pts = { a }
+  local mid
+  if bu and best > math.max(level(0), level(1)) then
+    local lo, hi = bu - 1 / n, bu + 1 / n
+    for _ = 1, 60 do
+      local m1, m2 = lo + 0.382 * (hi - lo), lo + 0.618 * (hi - lo)
+      if level(m1) < level(m2) then lo = m1 else hi = m2 end
+    end
+    mid = a + (b - a) * (0.5 * (lo + hi))
+  end
+  if mid then
+    local wm = local_scale(J, params, L, mid)
+    local left, right = {}, {}
+    grade(a, mid, wa, pts)
+    grade(mid, a, wm, left)
+    for k = #left, 1, -1 do pts[#pts + 1] = left[k] end
+    pts[#pts + 1] = mid
+    grade(mid, b, wm, right)
+    for _, z in ipairs(right) do pts[#pts + 1] = z end
+    local back = {}
+    grade(b, mid, wb, back)
+    for k = #back, 1, -1 do pts[#pts + 1] = back[k] end
+  else
+    grade(a, b, wa, pts)
+    local back = {}
+    grade(b, a, wb, back)
+    for k = #back, 1, -1 do pts[#pts + 1] = back[k] end
+  end
+  pts[#pts + 1] = b
+  return pts
 end
 
 -- A full circle by the trapezoidal rule, doubling the number of points until two
@@ -408,31 +605,31 @@ local function quad_given(J, params, L)
   local R = L.region.radius
   decompose.check_contour(L, J.contour, J.contour:sample { radius = 8 * R, n = 64 })
   -- an end at infinity outside every valley: the integral diverges there. Said before
-  -- integrating where the valleys are exact (polynomial growth); said after, from the
-  -- value, where they are indicative (found by sampling).
+  -- integrating where the valleys are exact (read from the expression); said after, from
+  -- the value, where they are indicative (found by sampling).
   local function diverges(p)
-    local vs = {}
-    for _, v in ipairs(L.valleys) do vs[#vs + 1] = landscape.describe_valley(v) end
-    error(format("quad: the contour's %s end at infinity in direction %.6g is outside every "
-      .. "valley: the integral diverges there (valleys: %s)",
-      p.kind == "ray_in" and "starting" or "finishing", p.angle,
-      #vs > 0 and table.concat(vs, ", ") or "none"), 0)
+    local from = p.kind == "ray_in" and p.b or p.a
+    error(format("quad: the contour's %s end at infinity (the ray from %s in direction %.6g) "
+      .. "is outside every valley: the integral diverges there (valleys: %s)",
+      p.kind == "ray_in" and "starting" or "finishing", tostring(from), p.angle,
+      decompose.valleys_text(L)), 0)
   end
-  local exact = #L.valleys > 0
-  for _, v in ipairs(L.valleys) do
-    if v.type ~= "polynomial" and v.type ~= "edge" then exact = false end
+  local exact = #L.valleys > 0 or #(L.strip_families or {}) > 0
+  for _, v in ipairs(L.valleys) do if not v.exact and v.type ~= "edge" then exact = false end end
+  local function in_valley(p)
+    return landscape.ray_valley(L, p.kind == "ray_in" and p.b or p.a, p.angle) ~= nil
   end
   for _, p in ipairs(J.contour.pieces) do
-    if (p.kind == "ray_in" or p.kind == "ray_out") and exact
-        and not landscape.valley_of(L.valleys, p.angle) then
+    if (p.kind == "ray_in" or p.kind == "ray_out") and exact and not in_valley(p) then
       diverges(p)
     end
   end
   for _, p in ipairs(J.contour.pieces) do
     local v, e, ev, st
     if p.kind == "segment" then
-      v, e, ev, st = core.quad_polyline(J.tape, params, { p.a, p.b }, { reltol = QUAD_REL,
-        singular_start = singular_at(L, p.a) ~= nil, singular_end = singular_at(L, p.b) ~= nil })
+      v, e, ev, st = core.quad_polyline(J.tape, params, graded_segment(J, params, L, p.a, p.b),
+        { reltol = QUAD_REL, singular_start = singular_at(L, p.a) ~= nil,
+          singular_end = singular_at(L, p.b) ~= nil })
     elseif p.kind == "ray_out" then
       v, e, ev, st = quad_ray(J, params, L, p.a, p.angle, 1, singular_at(L, p.a) ~= nil, notes)
     elseif p.kind == "ray_in" then
@@ -440,7 +637,7 @@ local function quad_given(J, params, L)
     else
       v, e, ev, st = quad_circle(J, params, p)
     end
-    if (p.kind == "ray_in" or p.kind == "ray_out") and not landscape.valley_of(L.valleys, p.angle)
+    if (p.kind == "ray_in" or p.kind == "ray_out") and not in_valley(p)
         and not (cabs(v) < huge) then
       diverges(p)
     end
@@ -448,6 +645,28 @@ local function quad_given(J, params, L)
     if st ~= "ok" then status = st end
   end
   return total, err, { status = status, evals = evals, notes = notes, along = "given" }
+end
+
+-- The tail of a descent path that stopped before its integrand became negligible (it
+-- left the tracing region: algebraic decay, or a very wide saddle): the ray from its last
+-- point into the valley it reached (along a strip's own direction; in a sector, along
+-- the path's last direction when that lies in the sector, else the sector's middle).
+local function path_tail(J, params, L, piece, notes)
+  local pts = piece.points
+  local last, before = pts[#pts], pts[#pts - 1]
+  local k = tonumber(piece.ends[2]:match("^valley (%d+)$"))
+  if not k or not before then return nil end
+  local v = L.valleys[k]
+  local th
+  if v.type == "strip" then th = v.direction
+  else
+    th = carg(last - before)
+    if not landscape.valley_of({ v }, th) then
+      th = (v.from == v.to) and v.from or 0.5 * (v.from + v.to)
+    end
+  end
+  local v0, e0, ev, st = quad_ray(J, params, L, last, th, 1, false, notes, cabs(last - before))
+  return v0, e0, ev, st
 end
 
 -- Along the steepest descent decomposition, plus residues.
@@ -461,10 +680,26 @@ local function quad_deformed(J, params, L)
     if #piece.points >= 2 then
       local singular_end = piece.reason == "singular" or piece.reason == "stop"
       local v, e, ev, st = core.quad_polyline(J.tape, params, piece.points,
-        { reltol = QUAD_REL, singular_start = piece.kind == "endpoint" and singular_at(L, piece.at) ~= nil,
+        { reltol = noise_tol(J, params, piece.points[1]),
+          singular_start = piece.kind == "endpoint" and singular_at(L, piece.at) ~= nil,
           singular_end = singular_end })
       info.evals = info.evals + ev
       if st ~= "ok" then info.status = "quadrature " .. st end
+      local why = piece.path and piece.path.reason
+      if why == "edge" or why == "bound" or why == "flat" then
+        -- the path stopped before its integrand was negligible: integrate on to infinity
+        local tv, te, tev, tst = path_tail(J, params, L, piece, info.notes)
+        if tv then
+          v, e = v + tv, e + te
+          info.evals = info.evals + tev
+          if tst ~= "ok" then info.status = "quadrature " .. tst end
+        else
+          info.status = "incomplete tail"
+          info.notes[#info.notes + 1] = format("a steepest path of the %s %s stops (%s) "
+            .. "before its integrand is negligible, away from any valley: its tail is "
+            .. "missing", piece.kind, piece.index or tostring(piece.at), why)
+        end
+      end
       total = total + piece.weight * v
       err = err + abs(piece.weight) * e
       info.pieces[#info.pieces + 1] = { kind = piece.kind, index = piece.index, at = piece.at,
@@ -540,11 +775,19 @@ function M.quad_with(J, params, L, along)
   -- rounding floor: exp(F) inherits the absolute rounding error of F itself, about
   -- eps |F| relative, where |F| is largest among the points that dominate (saddles,
   -- finite contour points); plus a few units in the last place of the result
+  -- (points whose integrand is negligible against the result carry no weight)
   local Fmax = 0
-  for _, s in ipairs(L.saddles) do Fmax = math.max(Fmax, cabs(s.F)) end
+  local level = math.log(math.max(cabs(v), 1e-308)) - 40
+  local function consider(F, g)
+    local gm = g and cabs(g) or 1
+    if cabs(F) < huge and cparts(F) + (gm > 0 and math.log(gm) or -huge) > level then
+      Fmax = math.max(Fmax, cabs(F))
+    end
+  end
+  for _, s in ipairs(L.saddles) do consider(s.F, s.g) end
   for _, z in ipairs(J.contour:finite_points()) do
-    local ok, F = pcall(J.tape.eval, J.tape, z, params)
-    if ok and cabs(F) == cabs(F) and cabs(F) < huge then Fmax = math.max(Fmax, cabs(F)) end
+    local ok, F, g = pcall(J.tape.eval, J.tape, z, params)
+    if ok then consider(F, g) end
   end
   e = math.max(e, (4 + Fmax) * 2.2e-16 * cabs(v))
   info.landscape = L

@@ -8,6 +8,7 @@
 local core = require "steep.core"
 local complex = require "steep.complex"
 local expr = require "steep.expr"
+local infinity = require "steep.infinity"
 
 local cnew, cparts = complex.new, complex.parts
 local format, pi, abs, log, huge = string.format, math.pi, math.abs, math.log, math.huge
@@ -165,6 +166,62 @@ function M.zeros(tape, params, spec, region, opts)
       info.count, info.found)
   end
   return inside, info
+end
+
+--- poly_roots(c, d) -> list of the d roots of sum_{k<=d} c[k] z^k (complex values), by
+-- the Aberth-Ehrlich iteration (O. Aberth, Math. Comp. 27 (1973) 339-344) on the monic
+-- polynomial, started on a circle of the Fujiwara bound's radius (M. Fujiwara, Tohoku
+-- Math. J. 10 (1916) 167-171: every root has |z| <= 2 max |c_{d-j}/c_d|^(1/j), the last
+-- one halved). Coefficients are divided by the leading one first (no overflow of huge
+-- ones). Returns the roots and the bound.
+function M.poly_roots(c, d)
+  local a = {}
+  for k = 0, d do a[k] = c[k] / c[d] end
+  local bound = 0
+  for j = 1, d do
+    local v = cabs(a[d - j])
+    if v > 0 then
+      local b = (j == d and v / 2 or v) ^ (1 / j)
+      bound = math.max(bound, 2 * b)
+    end
+  end
+  if d == 0 then return {}, 0 end
+  if bound == 0 then
+    local z = {}
+    for k = 1, d do z[k] = cnew(0, 0) end
+    return z, 0
+  end
+  local z = {}
+  for k = 1, d do z[k] = bound * expi(2 * pi * (k - 1) / d + 0.4) end
+  local function eval(x)
+    local p, dp = a[d], cnew(0, 0)
+    for k = d - 1, 0, -1 do dp = dp * x + p; p = p * x + a[k] end
+    return p, dp
+  end
+  for _ = 1, 500 do
+    local moved = 0
+    for k = 1, d do
+      local p, dp = eval(z[k])
+      if cabs(p) == 0 then goto next_root end
+      do
+        local w = p / dp
+        local s = cnew(0, 0)
+        for j = 1, d do
+          if j ~= k then
+            local diff = z[k] - z[j]
+            if cabs(diff) > 0 then s = s + 1 / diff end
+          end
+        end
+        local step = w / (1 - w * s)
+        if not (cabs(step) < huge) then step = w end
+        z[k] = z[k] - step
+        moved = math.max(moved, cabs(step) / math.max(cabs(z[k]), 1e-300 + bound * 1e-15))
+      end
+      ::next_root::
+    end
+    if moved < 1e-15 then break end
+  end
+  return z, bound
 end
 
 ---------------------------------------------------------------------------------------
@@ -444,7 +501,49 @@ local function polynomial_valleys(J, params, c, R, f, NANG)
   return nil
 end
 
+-- The analysis of the integrand at infinity (lua/steep/infinity.lua) for these parameter
+-- values, kept per integral for the last few parameter sets (false: not decided).
+local function params_key(params)
+  local parts = {}
+  for k, v in pairs(params) do
+    local re, im = cparts(v)
+    parts[#parts + 1] = format("%s=%a,%a", k, re, im)
+  end
+  table.sort(parts)
+  return table.concat(parts, ";")
+end
+M.params_key = params_key
+
+function M.analysis(J, params)
+  local key = params_key(params)
+  J._acache = J._acache or {}
+  for _, e in ipairs(J._acache) do if e.key == key then return e.A or nil, e.why end end
+  local A, why = infinity.analyze(J.exponent, J.amplitude, J.var, params)
+  table.insert(J._acache, 1, { key = key, A = A or false, why = why })
+  J._acache[5] = nil
+  return A, why
+end
+
+--- valleys(J, params, region, opts) -> list, info. From the analysis of the expression
+-- where it decides every direction (exact sectors, edges, and strip families in
+-- info.families, whose instances are added to the list as ends and paths reach them);
+-- otherwise by sampling rings (indicative).
 function M.valleys(J, params, region, opts)
+  local A = M.analysis(J, params)
+  if A then
+    local list, families = {}, {}
+    for _, v in ipairs(A.valleys) do
+      local copy = {}
+      for k, x in pairs(v) do copy[k] = x end
+      if v.type == "strip" then families[#families + 1] = copy else list[#list + 1] = copy end
+    end
+    return list, { growth = A.degree, leading = A.polynomial and A.polynomial[A.degree],
+      families = families, analysis = true }
+  end
+  return M.sampled_valleys(J, params, region, opts)
+end
+
+function M.sampled_valleys(J, params, region, opts)
   local c, R = region.center, region.radius
   -- following a sweep, 72 angles fix the sectors well enough (they move little)
   local NANG = (opts and opts.fast) and 72 or RING_ANGLES
@@ -494,15 +593,17 @@ function M.valley_of(valleys, th, tol)
   tol = tol or 1e-9
   local boundary, edge
   for k, v in ipairs(valleys) do
+    if v.type == "strip" then goto next_valley end
     local d = norm_angle(th - v.from)
     local width = v.to - v.from
-    if v.type == "edge" then
+    if v.type == "edge" or v.type == "line" then
       if abs(d) <= math.max(tol, 1e-6) then edge = edge or k end
     elseif d > tol and d < width - tol then
       return k, false
     elseif abs(d) <= math.max(tol, 1e-6) or abs(d - width) <= math.max(tol, 1e-6) then
       boundary = boundary or k
     end
+    ::next_valley::
   end
   -- an end on the edge of a sector belongs to that sector: where the integrand still
   -- decays along the edge (an "edge" valley) the end swings into the sector across an
@@ -512,7 +613,85 @@ function M.valley_of(valleys, th, tol)
   return nil
 end
 
+--- The strip instance m of a strip family in L's valley list (added when first met):
+-- its index.
+local function strip_valley(L, family, m)
+  for k, v in ipairs(L.valleys) do
+    if v.family == family and v.m == m then return k end
+  end
+  local w = family.hi - family.lo
+  L.valleys[#L.valleys + 1] = { type = "strip", family = family, m = m,
+    direction = family.direction, from = family.direction, to = family.direction,
+    lo = family.lo + m * family.period, hi = family.lo + m * family.period + w,
+    mid = family.lo + m * family.period + 0.5 * w, exact = true }
+  return #L.valleys
+end
+
+-- The strip family whose direction is th (within tol), if any.
+local function family_at(L, th, tol)
+  for _, f in ipairs(L.strip_families or {}) do
+    if abs(norm_angle(th - f.direction)) <= (tol or 1e-9) then return f end
+  end
+end
+
+--- ray_valley(L, a, th) -> index, boundary: the valley in which the ray from a in
+-- direction th ends (a sector: by th alone; a strip: the one holding the ray's line),
+-- and whether the ray runs along the valley's edge; nil when it ends in none.
+function M.ray_valley(L, a, th)
+  local k, boundary = M.valley_of(L.valleys, th)
+  if k then return k, boundary end
+  local f = family_at(L, th)
+  if not f then return nil end
+  local y = infinity.strip_coords(a, f.direction)
+  local m, inside, edge = infinity.strip_instance(f, y)
+  if inside then return strip_valley(L, f, m), false end
+  if edge then return strip_valley(L, f, m), true end
+  return nil
+end
+
+--- point_valley(L, z, tol) -> index or nil: the valley a far point z of a descent path
+-- has reached: a sector by its direction from the region's center, else the strip whose
+-- direction is nearest and which holds z.
+function M.point_valley(L, z, tol)
+  local th = carg(z - L.region.center)
+  local k = M.valley_of(L.valleys, th, tol)
+  if k and L.valleys[k].type ~= "strip" then return k end
+  local best, bf = huge, nil
+  for _, f in ipairs(L.strip_families or {}) do
+    local d = abs(norm_angle(th - f.direction))
+    if d < best then best, bf = d, f end
+  end
+  if bf and best < pi / 2 then
+    local y, s = infinity.strip_coords(z, bf.direction)
+    if s > 0 then
+      local m, inside = infinity.strip_instance(bf, y)
+      if inside then return strip_valley(L, bf, m) end
+    end
+  end
+  return nil
+end
+
+--- A point deep in valley k, seen from the region (for closing cycles): the middle of a
+-- sector at radius Rref, or far along the middle line of a strip.
+function M.valley_point(L, k, Rref)
+  local v = L.valleys[k]
+  if v.type == "strip" then
+    return (cnew(Rref, v.mid)) * expi(v.direction)
+  end
+  local mid = (v.from == v.to) and v.from or 0.5 * (v.from + v.to)
+  return L.region.center + Rref * expi(mid)
+end
+
 function M.describe_valley(v)
+  if v.type == "strip" then
+    local th = v.direction
+    if abs(th) < 1e-12 then
+      return format("strip %.4g < Im t < %.4g to the right", v.lo, v.hi)
+    elseif abs(abs(th) - pi) < 1e-12 then
+      return format("strip %.4g < Im t < %.4g to the left", -v.hi, -v.lo)
+    end
+    return format("strip toward direction %.4g, offset %.4g..%.4g", th, v.lo, v.hi)
+  end
   if v.from == v.to then
     return format("direction %.4g (%s)", v.from, v.type)
   end
@@ -546,14 +725,65 @@ function M.saddles(J, params, region, singularities, seeds, seeds_only)
   local zs, info = M.zeros(J.tape, params, { out = 1, deriv = 1 }, region,
     { poles = poles, seeds = seeds, seeds_only = seeds_only })
   local out = {}
-  for _, z in ipairs(zs) do
-    local m = z.mult + 1
-    -- the exponent's jet alone: the amplitude may be singular at a saddle
-    local Fs = J.tape:jet(z.at, m + 1, params, 1)
-    local _, gv = J.tape:eval(z.at, params)
-    out[#out + 1] = { at = z.at, order = m, F = Fs:coef(0), F2 = 2 * Fs:coef(2),
-      coef = Fs:coef(m), g = gv or cnew(1, 0) }
+  for _, z in ipairs(zs) do out[#out + 1] = M.saddle_at(J, params, z.at, z.mult) end
+  return out, info
+end
+
+--- A saddle record at the zero z of F' of multiplicity mult (order mult + 1).
+local function saddle_at(J, params, z, mult)
+  local m = mult + 1
+  -- the exponent's jet alone: the amplitude may be singular at a saddle
+  local Fs = J.tape:jet(z, m + 1, params, 1)
+  local _, gv = J.tape:eval(z, params)
+  local coef = Fs:coef(m)
+  return { at = z, order = m, F = Fs:coef(0), F2 = 2 * Fs:coef(2), coef = coef,
+    g = gv or cnew(1, 0), width = cabs(coef) ^ (-1 / m) }
+end
+M.saddle_at = saddle_at
+
+--- polynomial_saddles(J, params, A) -> every saddle of a polynomial exponent (A from
+-- M.analysis): the d - 1 zeros of F' with multiplicity, all of them wherever they lie
+-- (Aberth's iteration, then Newton on the tape with the multiplicity read from the
+-- jet), and info {count, found, status, bound}.
+function M.polynomial_saddles(J, params, A)
+  local c, d = A.polynomial, A.degree
+  local out, info = {}, { count = d - 1, found = 0, evals = 0 }
+  if d < 2 then info.status = "complete"; info.bound = 0; return out, info end
+  local dc = {}
+  for k = 1, d do dc[k - 1] = k * c[k] end
+  local roots, bound = M.poly_roots(dc, d - 1)
+  info.bound = bound
+  -- (all zeros at 0 give no bound: the unit length then tells zeros apart)
+  local scale = bound > 0 and bound or 1
+  local found = {}
+  for _, r in ipairs(roots) do
+    -- polish on the tape (the multiplicity from the jet: clustered roots of a multiple
+    -- zero come out as one); R: a disc that surely holds the root
+    local R = 2 * math.max(cabs(r), scale) + scale
+    local st, root, mult, ev = core.zero(J.tape, params, { out = 1, deriv = 1 }, r, cnew(0, 0),
+      R, 1e-3 * scale, 60)
+    info.evals = info.evals + ev
+    if st ~= "ok" then root = r end
+    -- Aberth's iterates of a zero of multiplicity m are m points that polish to one: the
+    -- multiplicity is how many met there (the jet's own count can fail beyond 8)
+    local dup = false
+    for _, f in ipairs(found) do
+      if cabs(f.at - root) <= 1e-7 * scale then f.mult = f.mult + 1; dup = true; break end
+    end
+    if not dup then found[#found + 1] = { at = root, mult = 1 } end
   end
+  local total = 0
+  for _, f in ipairs(found) do total = total + f.mult end
+  table.sort(found, function(a, b)
+    local da, db = cabs(a.at), cabs(b.at)
+    if abs(da - db) > 1e-9 * scale then return da < db end
+    return carg(a.at) < carg(b.at)
+  end)
+  for _, f in ipairs(found) do out[#out + 1] = saddle_at(J, params, f.at, f.mult) end
+  info.found = total
+  info.status = total == d - 1 and "complete"
+    or format("mismatch: F' has degree %d, %d zeros found", d - 1, total)
+  info.method = "every zero of the polynomial F'"
   return out, info
 end
 
@@ -576,7 +806,10 @@ local function stop_points(L, skip_saddle, descent)
   end
   for j, s in ipairs(L.saddles) do
     if j ~= skip_saddle then
-      stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, 1e-4 * R, { "saddle", j }
+      -- (a twentieth of its width at most: a path that passes that close to a saddle has
+      -- Im F within about 1e-3 of the saddle's: a connection, to the rounding of F)
+      local r = math.min(1e-4 * R, 0.05 * (s.width or huge))
+      stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, r, { "saddle", j }
     end
   end
   return stops, radii, what
@@ -597,9 +830,11 @@ local function end_label(L, descent, reason, which, what, last)
     end
     return "saddle " .. w[2]
   end
-  if reason == "edge" then
+  -- (the coarse continuation ends "low" where the integrand underflows altogether: far
+  -- out in a valley)
+  if reason == "edge" or (reason == "low" and descent) then
     if not descent then return "hill" end
-    local k = M.valley_of(L.valleys, carg(last - L.region.center), 0.02)
+    local k = M.point_valley(L, last, 0.02)
     return k and ("valley " .. k) or "edge"
   end
   if reason == "singular" then
@@ -632,9 +867,12 @@ function M.trace(J, params, L, start, level, descent, opts)
     end
   end
   local ref = opts.ref or cparts(level)
+  -- the length steps start from: the region's, or the start's own (a saddle's width, an
+  -- endpoint's 1/|F'|) where that is smaller
+  local scale = math.min(R / 10, opts.scale or huge)
   local pts, Fs, reason, which, evals = core.trace(J.tape, params, start, level, {
     descent = descent, cutoff = opts.cutoff or 50, ref = ref, center = L.region.center,
-    radius = 1000 * R, scale = R / 10, maxsteps = 6000, maxpts = 6000,
+    radius = 1000 * R, scale = scale, maxsteps = 6000, maxpts = 6000,
     stops = stops, stop_r = radii })
   -- points as a list (quadrature pieces, maps); the traced points and the values of F
   -- followed by continuity along them stay in C (cvecs) for the branch check
@@ -654,7 +892,7 @@ function M.trace(J, params, L, start, level, descent, opts)
     local far = math.max(8 * R, 2 * cabs(last - L.region.center))
     local tp, _, r2, w2, ev2 = core.trace(J.tape, params, last, Fs:get(#Fs), {
       descent = descent, coarse = true, cutoff = 1e300, ref = -1e300,
-      center = L.region.center, radius = far, scale = R / 10, maxsteps = 3000,
+      center = L.region.center, radius = far, scale = scale, maxsteps = 3000,
       maxpts = 3000, stops = stops, stop_r = radii })
     path.tail = tp
     path.evals = path.evals + ev2
@@ -676,13 +914,18 @@ end
 -- (the decomposition often needs only the descent paths' ends).
 function M.saddle_paths(J, params, L, j)
   local s = L.saddles[j]
+  if s.order > 8 then
+    error(format("a saddle of order %d at %s: orders above 8 are not supported", s.order,
+      tostring(s.at)), 0)
+  end
   local R = L.region.radius
   local gm = cabs(s.g)
   local ref = cparts(s.F) + (gm > 0 and log(gm) or -30)
   -- the first step off the saddle stays well inside the distance to the nearest other
   -- saddle or singular point (two saddles close together: a longer one lands past the
   -- other saddle, on a path to the wrong valley)
-  local step = R / 10
+  local width = math.min(R / 10, s.width or huge)
+  local step = width
   for k, o in ipairs(L.saddles) do
     if k ~= j then step = math.min(step, cabs(o.at - s.at) / 8) end
   end
@@ -692,7 +935,8 @@ function M.saddle_paths(J, params, L, j)
     local starts = core.saddle_starts(J.tape, params, s.at, s.F, s.order, s.coef, descent,
       step)
     for k, st in ipairs(starts) do
-      local p = M.trace(J, params, L, st, s.F, descent, { skip_saddle = j, ref = ref })
+      local p = M.trace(J, params, L, st, s.F, descent, { skip_saddle = j, ref = ref,
+        scale = width })
       table.insert(p.points, 1, s.at)
       out[k] = p
     end

@@ -11,9 +11,14 @@
  * lua_States in two threads at the same time, and compares every threaded result with
  * the sequential one bit for bit: the module keeps no state outside its lua_State.
  *
+ * The host installs its own GSL error handler before loading steep, and checks after all
+ * runs that it is still the one in force and still called on a GSL error: an embedded
+ * module must leave the host's process-wide settings as it found them.
+ *
  * Usage: host [root]   (root of the source tree, default "."). Output:
  *   airy <x> quad <re> <im> <error> expand <re> <im> <error>    (sequential runs)
  *   threads: <n> runs, <m> identical to the sequential runs
+ *   gsl handler: kept | replaced, <k> calls
  * Exit status 0 when every run succeeded and every threaded result was identical.
  */
 #define _POSIX_C_SOURCE 200809L
@@ -23,6 +28,16 @@
 #include <lua.h>
 #include <lauxlib.h>
 #include <lualib.h>
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_sf_log.h>
+
+/* The host's own GSL error handler: it counts the errors it is told of (the host runs
+ * GSL only from its main thread, after the threads have finished). */
+static int host_gsl_errors = 0;
+static void host_gsl_handler(const char *reason, const char *file, int line, int gsl_errno) {
+  (void)reason; (void)file; (void)line; (void)gsl_errno;
+  host_gsl_errors++;
+}
 
 int luaopen_steep_core(lua_State *L);
 
@@ -106,6 +121,7 @@ int main(int argc, char **argv) {
   const int nrounds = (int)(sizeof rounds / sizeof rounds[0]);
   job seq[2];
   int status = 0, runs = 0, same = 0;
+  gsl_set_error_handler(host_gsl_handler);
 
   for (int i = 0; i < 2; i++) {
     memset(&seq[i], 0, sizeof seq[i]);
@@ -153,5 +169,14 @@ int main(int argc, char **argv) {
     }
   }
   printf("threads: %d runs, %d identical to the sequential runs\n", runs, same);
+  /* the handler in force is still the host's, and a GSL domain error (log of a negative
+   * number) still reaches it */
+  gsl_error_handler_t *now = gsl_set_error_handler(host_gsl_handler);
+  int before = host_gsl_errors;
+  gsl_sf_result res;
+  int st = gsl_sf_log_e(-1.0, &res);
+  int kept = now == host_gsl_handler && st != GSL_SUCCESS && host_gsl_errors == before + 1;
+  printf("gsl handler: %s, %d calls\n", kept ? "kept" : "replaced", host_gsl_errors - before);
+  if (!kept) status = 1;
   return status;
 }

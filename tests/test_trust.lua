@@ -1,0 +1,116 @@
+-- Corner cases that used to return a confident wrong number: tails cut short, saddles
+-- beyond the search, extreme but finite parameters. Each checks value and error estimate
+-- against an exact or published reference, and that the status does not overstate.
+local lu = require "luaunit"
+local H = require "helpers"
+local gsl = require "gslref"
+local steep = H.steep
+
+local t, x = steep.var "t", steep.param "x"
+local I, pi = steep.I, math.pi
+local REAL_LINE = steep.line(steep.inf(pi), steep.inf(0))
+
+-- |got - want| within the stated error (1x: the estimate must bound the error), and the
+-- stated error small enough to mean something.
+local function within(got, err, want, rtol, msg)
+  local d = (got - want):abs()
+  lu.assertTrue(d <= err, string.format("%s: got %s, want %s: error %.3g exceeds the stated %.3g",
+    msg, tostring(got), tostring(want), d, err))
+  H.close(got, want, rtol, msg)
+end
+
+TestTrustTails = {}
+
+-- integral_0^inf e^{-x t} dt = 1/x (exact): the endpoint's path is 1/x long, far beyond
+-- a region fitted to the contour's finite points.
+function TestTrustTails:test_long_endpoint_path()
+  local J = steep.integral { var = t, exponent = -x * t, contour = steep.line(0, steep.inf(0)),
+    large = x }
+  for _, xv in ipairs({ 1e-3, 1e-6, 1, 1e6 }) do
+    local v, e, info = J:quad { x = xv }
+    within(v, e, 1 / xv, 1e-12, "quad, x = " .. xv)
+    lu.assertEquals(info.status, "ok")
+    local r = J:expand { x = xv, order = 2 }
+    within(r.value, r.error, 1 / xv, 1e-12, "expand, x = " .. xv)
+  end
+end
+
+-- The Gaussian integral sqrt(pi/x) (exact) for x from 1e-40 to 1e308: the saddle's width
+-- x^(-1/2) sets every length.
+function TestTrustTails:test_gaussian_at_extreme_scales()
+  local J = steep.integral { var = t, exponent = -x * t ^ 2, contour = REAL_LINE, large = x }
+  for _, xv in ipairs({ 1e-40, 1e-8, 1e-6, 1, 1e6, 1e300, 1e308 }) do
+    local want = math.sqrt(pi / xv)
+    local v, e, info = J:quad { x = xv }
+    within(v, e, want, 1e-12, "quad, x = " .. xv)
+    lu.assertEquals(info.status, "ok", "quad status, x = " .. xv)
+    local r = J:expand { x = xv, order = 3 }
+    within(r.value, r.error, want, 1e-12, "expand, x = " .. xv)
+    lu.assertEquals(r.status, "estimated", "expand status, x = " .. xv)
+  end
+end
+
+-- integral of (1 + t^2)^(-2) over the real line = pi/2 (exact): algebraic decay, the
+-- descent paths' tails summed to infinity.
+function TestTrustTails:test_algebraic_decay()
+  local J = steep.integral { var = t, exponent = -2 * steep.log(1 + t ^ 2), contour = REAL_LINE }
+  local v, e = J:quad {}
+  within(v, e, pi / 2, 1e-12, "(1+t^2)^-2")
+  -- t^(-x) on [1, inf): 1/(x - 1) (exact), slow decay for x near 1
+  local K = steep.integral { var = t, exponent = -x * steep.log(t), contour = steep.line(1, steep.inf(0)),
+    large = x }
+  for _, xv in ipairs({ 1.5, 2, 3, 5 }) do
+    local q, qe = K:quad { x = xv }
+    within(q, qe, 1 / (xv - 1), 1e-9, "t^-x, x = " .. xv)
+  end
+end
+
+-- e^{-t^2} on [0, 1e9]: sqrt(pi)/2 to rounding (exact; erfc(1e9) underflows). The far end's
+-- integrand is e^{-1e18}: its path carries nothing.
+function TestTrustTails:test_long_segment()
+  local J = steep.integral { var = t, exponent = -t ^ 2, contour = steep.line(0, 1e9) }
+  for _, along in ipairs({ "deformed", "given" }) do
+    local v, e = J:quad { along = along }
+    within(v, e, math.sqrt(pi) / 2, 1e-12, "along " .. along)
+  end
+end
+
+TestTrustSaddles = {}
+
+-- Airy's integral far out on the oscillatory side: the saddles at +-sqrt(-x) lie at +-548,
+-- where no fixed search looks. 2 pi Ai(x) (gsl_sf_airy_Ai).
+function TestTrustSaddles:test_airy_far_saddles()
+  local J = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t), contour = REAL_LINE,
+    large = x }
+  for _, xv in ipairs({ -3e5, -1e4, -50 }) do
+    -- (|F| at the saddles is (2/3)|x|^(3/2), 1.1e8 at x = -3e5: its rounding alone leaves
+    -- about 1e-8 relative in any method, GSL's included: its own error bound is added)
+    local ai, ai_err = gsl.airy_Ai(xv)
+    local want = 2 * pi * ai
+    local slack = 2 * pi * ai_err
+    local L = J:landscape { x = xv }
+    lu.assertEquals(#L.saddles, 2, "both saddles, x = " .. xv)
+    lu.assertEquals(L.saddle_count.status, "complete")
+    local r = J:expand { x = xv, order = 4 }
+    within(r.value, r.error + slack, want, 1e-7, "expand, x = " .. xv)
+    local v, e = J:quad { x = xv }
+    within(v, e + slack, want, 1e-7, "quad, x = " .. xv)
+  end
+end
+
+-- A polynomial exponent has exactly deg - 1 saddles with multiplicity, wherever they are:
+-- t^5/5 - c t has its 4 saddles at the fourth roots of c (exact).
+function TestTrustSaddles:test_polynomial_counts()
+  local c = steep.param "c"
+  local J = steep.integral { var = t, exponent = t ^ 5 / 5 - c * t,
+    contour = steep.path { steep.inf(pi), 0, steep.inf(0) } }
+  for _, cv in ipairs({ 1e-12, 1, 1e8, steep.complex(3e6, -4e6) }) do
+    local L = J:landscape { c = cv }
+    lu.assertEquals(#L.saddles, 4, "four saddles, c = " .. tostring(cv))
+    local r = (cv * steep.complex(1, 0)):abs() ^ 0.25
+    for _, s in ipairs(L.saddles) do
+      H.close(s.at:abs(), r, 1e-10, "|saddle| = |c|^(1/4), c = " .. tostring(cv))
+      H.close(s.at ^ 4, cv, 1e-9, "saddle^4 = c")
+    end
+  end
+end
