@@ -385,3 +385,20 @@ function TestResumInterface:test_check()
   lu.assertStrContains(c:report(), "borel")
   lu.assertStrContains(c:report { format = "csv" }, "method")
 end
+
+-- J:sweep with resum: rows say the method, the CSV gains its two columns.
+function TestResumInterface:test_sweep()
+  local J = expint_integral()
+  local sw = J:sweep { x = { 3, 6 }, resum = true }
+  lu.assertEquals(sw.status, "complete")
+  for _, row in ipairs(sw.rows) do
+    lu.assertEquals(row.method, "borel")
+    lu.assertTrue(row.agrees, "row at x = " .. row.x)
+    H.close(row.expansion, gsl.expint_E1_scaled(row.x), 1e-12,       -- gsl_sf_expint_E1_scaled_e
+      "resummed row at x = " .. row.x)
+  end
+  lu.assertStrContains(sw:csv(), ",method,level")
+  lu.assertStrContains(sw:report(), "resummed")
+  H.raises({ "sweep: option 'resum' starts from the optimally truncated series" }, J.sweep, J,
+    { x = { 3 }, order = 2, resum = true })
+end

@@ -449,7 +449,7 @@ function M.sum(spec)
           count = count + 1
         end
       end
-      if count >= min(4, cl.top - 1) and v[1] == v[1] and v[2] == v[2] and spread <= best then
+      if count >= min(4, cl.top - 1) and v[1] == v[1] and v[2] == v[2] and spread < best then
         best, bn = spread, n
       end
     end

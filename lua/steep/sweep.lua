@@ -64,8 +64,8 @@ local function progress_reporter(total, on_terminal)
   end
 end
 
---- J:sweep{x = {list} | {from =, to =, steps =}, order = N, csv = file, shard = {k, n},
--- progress = true|false, <other params>} -> rows
+--- J:sweep{x = {list} | {from =, to =, steps =}, order = N, resum = true | "borel" | "hyper",
+-- csv = file, shard = {k, n}, progress = true|false, <other params>} -> rows
 -- Expansion and quadrature over the range. Each step starts from the previous step's
 -- saddles and singularities (continuation: Newton from them, no search of the whole
 -- region) and falls back to a full search when it finds fewer of them, or fewer saddles
@@ -84,10 +84,14 @@ function M.sweep(J, opts)
     probe[x] = values[1]
     local integral_m = require("steep.integral")
     local _, o = integral_m.split_options(J, probe, { order = true, csv = true, shard = true,
-      progress = true, continuation = true, region = true, budget = true }, "sweep")
+      progress = true, continuation = true, region = true, budget = true, resum = true },
+      "sweep")
     if o.region then opts = copy(opts); opts.region = integral_m.check_region(o.region, "sweep", J) end
   end
-  local order = require("steep.asymptotics").check_order(opts.order or 4, "sweep")
+  -- beyond optimal truncation (lua/steep/resum.lua): from the optimally truncated series
+  local resum = require("steep.resum").check_option(opts.resum, "sweep", opts.order)
+  local order = require("steep.asymptotics").check_order(opts.order or (resum and "optimal" or 4),
+    "sweep")
   local shard = opts.shard
   local first, last = 1, #values
   if shard ~= nil then
@@ -98,7 +102,9 @@ function M.sweep(J, opts)
   local fixed = {}
   for k, v in pairs(opts) do
     if k ~= x and k ~= "order" and k ~= "csv" and k ~= "shard" and k ~= "progress"
-        and k ~= "continuation" and k ~= "region" and k ~= "budget" then fixed[k] = v end
+        and k ~= "continuation" and k ~= "region" and k ~= "budget" and k ~= "resum" then
+      fixed[k] = v
+    end
   end
   local progress = opts.progress
   if progress ~= nil and type(progress) ~= "boolean" then
@@ -145,13 +151,15 @@ function M.sweep(J, opts)
       else
         L = J:_landscape(p, opts.region, false)
       end
-      local r = require("steep.asymptotics").expand(J, p, { order = order, landscape = L })
+      local r = require("steep.asymptotics").expand(J, p, { order = order, landscape = L,
+        resum = resum })
       local q, qe = require("steep.integral").quad_with(J, p, L, "deformed")
       row.expansion, row.error, row.quad, row.quad_error = r.value, r.error, q, qe
       row.relative_error = cabs(r.value - q) / math.max(cabs(q), 1e-300)
       row.estimated = r.error / math.max(cabs(q), 1e-300)
       row.agrees = cabs(r.value - q) <= 3 * (r.error + qe)
       row.stokes = r.stokes
+      if r.resum then row.method, row.level = r.resum.method, r.resum.level end
       -- which valleys the contour's ends use depends on arg x: record it
       local ends = {}
       if not J.contour.closed then
@@ -182,7 +190,7 @@ function M.sweep(J, opts)
     error(loop_err, 0)
   end
   local out = { rows = rows, large = x, order = order, integral = J, shard = shard,
-    status = M.status(rows, skipped, budget), first = first, last = last }
+    status = M.status(rows, skipped, budget), first = first, last = last, resum = resum }
   setmetatable(out, { __index = { report = M.sweep_report, csv = M.sweep_csv } })
   if writer then
     writer:write(out:csv(not shard or shard[1] == 1))
@@ -244,27 +252,36 @@ local function csv_text(s)
   return '"' .. (s or ""):gsub('"', "'"):gsub("[\r\n]+", " ") .. '"'
 end
 
+-- (with resum, two more columns at the end: the method and the level it reached)
 function M.sweep_csv(sw, header)
   local lines = {}
   if header ~= false then
     lines[1] = sw.large .. "_re," .. sw.large .. "_im,expansion_re,expansion_im,error,"
       .. "quad_re,quad_im,quad_error,relative_error,estimated,agrees,stokes,valleys,failure"
+      .. (sw.resum and ",method,level" or "")
   end
   for _, r in ipairs(sw.rows) do
-    lines[#lines + 1] = table.concat({ csv_complex(r.x), csv_complex(r.expansion),
+    local fields = { csv_complex(r.x), csv_complex(r.expansion),
       csv_real(r.error), csv_complex(r.quad), csv_real(r.quad_error), csv_real(r.relative_error),
       csv_real(r.estimated), csv_bool(r.agrees), csv_bool(r.stokes, r.expansion ~= nil),
-      csv_text(r.valleys), csv_text(r.failure) }, ",")
+      csv_text(r.valleys), csv_text(r.failure) }
+    if sw.resum then
+      fields[#fields + 1] = csv_text(r.method)
+      fields[#fields + 1] = r.level and format("%d", r.level) or ""
+    end
+    lines[#lines + 1] = table.concat(fields, ",")
   end
   return table.concat(lines, "\n") .. "\n"
 end
 
 function M.sweep_report(sw, opts)
-  local other = require("steep.report").format(opts, sw, sw.rows,
-    { "x", "expansion", "error", "quad", "quad_error", "relative_error", "estimated",
-      "agrees", "stokes", "valleys", "landscape", "failure" })
+  local cols = { "x", "expansion", "error", "quad", "quad_error", "relative_error", "estimated",
+    "agrees", "stokes", "valleys", "landscape", "failure" }
+  if sw.resum then cols[#cols + 1] = "method"; cols[#cols + 1] = "level" end
+  local other = require("steep.report").format(opts, sw, sw.rows, cols)
   if other then return other end
-  local lines = { format("sweep of %s, %d terms", tostring(sw.integral), sw.order),
+  local lines = { format("sweep of %s, %s terms%s", tostring(sw.integral), tostring(sw.order),
+      sw.resum and ", resummed" or ""),
     format("%-12s %-26s %-26s %-11s %-11s %s", sw.large, "expansion", "quadrature",
       "rel. error", "estimated", "") }
   for _, r in ipairs(sw.rows) do
@@ -273,7 +290,8 @@ function M.sweep_report(sw, opts)
     else
       lines[#lines + 1] = format("%-12s %-26s %-26s %-11.3g %-11.3g %s", fmtv(r.x),
         fmtv(r.expansion), fmtv(r.quad), r.relative_error, r.estimated,
-        (r.agrees and "" or "DISAGREES") .. (r.stokes and " stokes" or ""))
+        (r.agrees and "" or "DISAGREES") .. (r.stokes and " stokes" or "")
+        .. (r.method and (" " .. r.method) or ""))
     end
   end
   local continued, searched = 0, 0
