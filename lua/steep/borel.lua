@@ -376,10 +376,11 @@ function M.sum(spec)
       cl.approx[n] = P
     end
   end
-  -- poles of the highest approximant of the main class, in s; genuine when the residue
-  -- is not negligible (a pole paired with a nearby zero, from noise, has a tiny one)
+  -- poles of the main class's approximant of degree 20 (or its highest), in s; genuine
+  -- when the residue is not negligible (a pole paired with a nearby zero, from noise, has
+  -- a tiny one)
   local poles = {}
-  local P = main.approx[main.top]
+  local P = main.approx[min(main.top, 20)]
   if P and P.m > 0 then
     local zr, zi = M.roots(P.qr, P.qi, P.m)
     if zr then

@@ -132,7 +132,22 @@ end
 -- halved from 1/16 (to 1/64 at most) until the rule agrees with the one of twice the
 -- step to 1e-15 of the sum of |integrand|; that difference is the quadrature error (plus
 -- rounding).
-function M.terminants(Ms, Z)
+function M.terminants(Ms, Z, cache)
+  if cache then
+    -- (the truncations tried share most of their terminants: compute the new ones only)
+    local key = string.format("%a,%a", cparts(Z))
+    local kept = cache[key] or {}
+    cache[key] = kept
+    local missing = {}
+    for _, m in ipairs(Ms) do if not kept[m] then missing[#missing + 1] = m end end
+    if #missing > 0 then
+      local v, e = M.terminants(missing, Z)
+      for i, m in ipairs(missing) do kept[m] = { v[i], e[i] } end
+    end
+    local vals, errs = {}, {}
+    for i, m in ipairs(Ms) do vals[i], errs[i] = kept[m][1], kept[m][2] end
+    return vals, errs
+  end
   local zr, zi = cparts(Z)
   local rays = borel.choose_ray({ { r = 0, arg = atan(zi, zr) } })
   local vals, errs = {}, {}
@@ -462,7 +477,7 @@ local function level1(n, adj, N0)
       if m > 0 then Ms[#Ms + 1] = m end
     end
     if #Ms < N1 + 1 then return nil end
-    local U, Ue = M.terminants(Ms, c.sigma)
+    local U, Ue = M.terminants(Ms, c.sigma, n.cache)
     local kf = c.K / cnew(0, 2 * pi)
     local kabs = kf:abs()
     for l = 0, N1 - 1 do
@@ -532,6 +547,7 @@ function M.sum(n, cands, opts)
   if not Ks or why then return nil, why end
   -- the terms' accuracy, as far as the late-term fit can tell: no worse than its residual
   n.eps = max(residual, 1e-15)
+  n.cache = {}
   local adj = {}
   local sigma_min = huge
   for j, c in ipairs(cands) do
@@ -558,7 +574,7 @@ function M.sum(n, cands, opts)
     for _, c in ipairs(undetermined) do
       local m0 = N0 + n.mu - c.mu
       if m0 > 0 then
-        local U = M.terminants({ m0 }, c.sigma)
+        local U = M.terminants({ m0 }, c.sigma, n.cache)
         b = b + (c.terms[0] * U[1]):abs() / (2 * pi)
       end
     end
