@@ -317,6 +317,9 @@ function M.report(r, opts)
   add("parameters: %s%s", table.concat(ps, ", "),
     J.large and ("   (large parameter: " .. J.large.name .. ")") or "")
   add("terms per contribution: %s", tostring(r.order))
+  if r.resum then
+    add("resummation (asked: %s): %s", tostring(r.resum.requested), r.resum.method)
+  end
   -- the landscape the decomposition used
   local L = r.landscape
   if L then
