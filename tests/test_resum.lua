@@ -75,6 +75,7 @@ function TestResumExpint:test_hyper_reads_the_pole()
   H.close(a.sigma, -5, 1e-12, "singulant F(0) - F(-1) = -x")
   lu.assertEquals(math.abs(a.K:re()), 1, "Stokes constant +-1")
   lu.assertEquals(a.K:im(), 0, "Stokes constant real")
+  lu.assertTrue(a.connected, "the endpoint's steepest path at the Stokes phase runs through the pole")
 end
 
 ---------------------------------------------------------------------------------------
@@ -153,6 +154,26 @@ function TestResumAiry:test_resummed_against_gsl()
         end
       end
     end
+  end
+end
+
+-- Adjacency from the landscape: for Ai(-x) each saddle's steepest descent path, turned to
+-- the pair's Stokes phase, runs into the other saddle (Berry & Howls 1991, sec. 3); the
+-- late terms give Stokes constant +-1 and level 2 re-expands back through the first saddle.
+function TestResumAiry:test_hyper_adjacency()
+  local J = airy_integral()
+  local r = J:expand { x = -3, resum = "hyper" }
+  lu.assertEquals(#r.contributions, 2)
+  for _, c in ipairs(r.contributions) do
+    lu.assertEquals(c.method, "hyper")
+    lu.assertEquals(c.level, 2, "level 2 reached at x = -3")
+    lu.assertEquals(#c.resummed.adjacent, 1)
+    local a = c.resummed.adjacent[1]
+    lu.assertTrue(a.connected, "connected at the Stokes phase")
+    lu.assertEquals(a.K:abs(), 1, "Stokes constant +-1")
+    -- the singulant F_n - F_m = +-2 i zeta (DLMF 9.7.9's two exponentials)
+    H.close(a.sigma:abs(), 2 * (2 / 3) * 3 ^ 1.5, 1e-12, "|singulant| = 2 zeta")
+    lu.assertStrContains(c.resummed.detail, "reached by the steepest path at the Stokes phase")
   end
 end
 

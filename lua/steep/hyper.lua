@@ -23,14 +23,16 @@
 -- N1 ~ N0 - |sigma_m|, N2 ~ N1 - |sigma_mp|; the error at level k is then about
 -- e^{-(k+1)|sigma|} relative, against e^{-|sigma|} for optimal truncation.
 --
--- Stokes constants: which saddles and poles are adjacent, and with what K, is read from
--- the late terms of the series itself (Dingle's rule: t_r = sum_m K_m A_rm with A_rm the
--- resurgence sum above with tau-powers Gamma(r + mu_n - l - mu_m) sigma_m^-(...)),
--- fitted by least squares over the last ten terms for the candidates the landscape
--- knows whose influence there is measurable, and accepted only when every K is an
--- integer (to 0.1) and the fit then explains those terms (to 1e-4). Late terms that the
--- landscape's saddles and poles do not explain (singulants on other sheets of a
--- logarithm, branch points) stop the method: it says so.
+-- Stokes constants: which saddles and poles are adjacent comes from the landscape (the
+-- caller traces the steepest descent path at each pair's Stokes phase: a candidate it
+-- does not reach has K = 0); the value of K (its sign, its size) is read from the late
+-- terms of the series itself (Dingle's rule: t_r = sum_m K_m A_rm with A_rm the
+-- resurgence sum above with Gamma(r + mu_n - l - mu_m) sigma_m^-(...)), fitted by least
+-- squares over ten late terms for the candidates whose influence there is measurable,
+-- and accepted only when every K is an integer (to 0.1), the only one that fits, and the
+-- fit then explains those terms (to 1e-4). Late terms that the landscape's saddles and
+-- poles do not explain (singulants on other sheets of a logarithm, branch points) stop
+-- the method: it says so.
 --
 -- Terminant integrals: the exp-sinh rule (Takahasi & Mori 1974) along a ray turned away
 -- from the pole v = Z (borel.choose_ray); on a Stokes line (Z on the positive axis) the
@@ -344,6 +346,10 @@ function M.stokes_constants_at(terms, top, mu, cands)
   -- columns, so only their combination can be fitted; its integer split is found below
   local groups = {}
   for j, c in ipairs(cands) do
+    -- (a point the landscape's steepest paths do not reach at the pair's Stokes phase is
+    -- not adjacent: its Stokes constant is 0, and it stays out of the fit)
+    if c.connected == false then Ks[j] = cnew(0, 0); goto next_candidate end
+    do
     local a_top = late_term(top, mu, c)
     local share = a_top:abs() / max(terms[top]:abs(), 1e-300)
     if share >= INFLUENCE and share < huge then
@@ -354,6 +360,8 @@ function M.stokes_constants_at(terms, top, mu, cands)
       end
       if g then g[#g + 1] = j else groups[#groups + 1] = { j } end
     end
+    end
+    ::next_candidate::
   end
   local n = #groups
   if n == 0 then
@@ -622,7 +630,9 @@ function M.sum(n, cands, opts)
     end
   end
   local adjacent = {}
-  for _, c in ipairs(adj) do adjacent[#adjacent + 1] = { what = c.what, K = c.K, sigma = c.sigma } end
+  for _, c in ipairs(adj) do
+    adjacent[#adjacent + 1] = { what = c.what, K = c.K, sigma = c.sigma, connected = c.connected }
+  end
   best.adjacent, best.notes, best.residual = adjacent, notes, residual
   return best
 end

@@ -260,14 +260,66 @@ local function resurgent_points(J, params, L, count)
   return pts
 end
 
+-- Adjacency from the landscape (Berry & Howls 1991, sec. 3): p is adjacent to the point
+-- `at` (a saddle, or an endpoint of the contour) when, with the exponent turned to the
+-- Stokes phase of the pair (e^{i theta} (F - F_p) real and positive), the steepest descent
+-- path from `at` runs into p: it ends at the saddle p, or passes through the pole p.
+-- Returns true or false, or nil where the turned landscape could not be traced. Each
+-- pair is traced once per landscape.
+local function connected(J, params, L, at, F, is_saddle, p)
+  L._connected = L._connected or {}
+  local key = format("%a,%a", cparts(at)) .. format(";%a,%a", cparts(p.at))
+  local known = L._connected[key]
+  if known then return ({ yes = true, no = false })[known] end
+  local ok, result = pcall(function()
+    local landscape = require "steep.landscape"
+    local sigma = F - p.F
+    local th = -atan(select(2, cparts(sigma)), (cparts(sigma)))
+    local turn = cnew(cos(th), sin(th))
+    local Jt = require("steep.integral").new { var = J.var, exponent = turn * J.exponent,
+      amplitude = J.amplitude, contour = J.contour, large = J.large }
+    local Lt = Jt:_landscape(params, L.region, false)
+    local R = L.region.radius
+    local paths = {}
+    if is_saddle then
+      for j, sd in ipairs(Lt.saddles) do
+        if cabs(sd.at - at) <= 1e-8 * R then paths = landscape.saddle_paths(Jt, params, Lt, j).descent end
+      end
+    else
+      local Ft = Jt.tape:eval(at, params)
+      paths = { landscape.trace(Jt, params, Lt, at, Ft, true, { ref = (cparts(Ft)) }) }
+    end
+    if #paths == 0 then return nil end
+    for _, path in ipairs(paths) do
+      if p.kind == "saddle" then
+        local k = path.ends:match("^saddle (%d+)$")
+        if k and cabs(Lt.saddles[tonumber(k)].at - p.at) <= 1e-6 * R then return true end
+      elseif #path.points >= 2 and core.distance(path.points, p.at) <= 1e-3 * R then
+        -- (through the pole, within the chord error of the traced polyline: at the
+        -- Stokes phase the exact path runs through it, and no other point is that close)
+        return true
+      end
+    end
+    return false
+  end)
+  if not ok then result = nil end
+  L._connected[key] = result == true and "yes" or (result == false and "no" or "unknown")
+  return result
+end
+
 -- The candidates for a series at F (at the point `at`): every other resurgent point,
--- with sigma = F - F_m; each saddle's own candidates (for level 2) likewise.
-local function candidates(pts, F, at, R, depth)
+-- with sigma = F - F_m and whether the landscape connects them; each saddle's own
+-- candidates (for level 2) likewise.
+local function candidates(J, params, L, pts, F, at, is_saddle, depth)
+  local R = L.region.radius
   local list = {}
   for _, p in ipairs(pts) do
     if cabs(p.at - at) > 1e-9 * R then
       local c = setmetatable({ sigma = F - p.F }, { __index = p })
-      if depth > 0 and p.kind == "saddle" then c.cands = candidates(pts, p.F, p.at, R, depth - 1) end
+      c.connected = connected(J, params, L, at, F, is_saddle, p)
+      if depth > 0 and p.kind == "saddle" and c.connected ~= false then
+        c.cands = candidates(J, params, L, pts, p.F, p.at, true, depth - 1)
+      end
       list[#list + 1] = c
     end
   end
@@ -279,7 +331,7 @@ local function by_hyper(J, params, L, c)
   local n = single_class_terms(J, params, c, count)
   if not n then return nil, "hyperasymptotics here needs a simple saddle passed through or an endpoint" end
   local pts = resurgent_points(J, params, L, count)
-  local cands = candidates(pts, n.F, c.at, L.region.radius, 1)
+  local cands = candidates(J, params, L, pts, n.F, c.at, c.weights ~= nil, 1)
   local h, why = hyper.sum(n, cands)
   if not h then return nil, why end
   local scale = complex.apply("exp", n.F)
@@ -287,8 +339,9 @@ local function by_hyper(J, params, L, c)
   local err = h.error * cabs(scale) + (16 + cabs(n.F)) * EPS * cabs(value)
   local adj = {}
   for _, a in ipairs(h.adjacent) do
-    adj[#adj + 1] = format("%s (singulant %s, Stokes constant %s)", a.what, tostring(a.sigma),
-      tostring(a.K))
+    adj[#adj + 1] = format("%s (singulant %s, Stokes constant %s%s)", a.what, tostring(a.sigma),
+      tostring(a.K), a.connected and ", reached by the steepest path at the Stokes phase"
+        or ", not traced")
   end
   local detail = format("hyperasymptotic level %d, %d terms of its own series; adjacent: %s",
     h.level, h.N0, table.concat(adj, "; "))
