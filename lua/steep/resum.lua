@@ -10,7 +10,17 @@
 -- singulant sigma = F_n - F_m: the fall from n to m, where the Borel transform of n's
 -- series is singular (Berry & Howls, Proc. R. Soc. A 434 (1991) 657-675).
 --
--- The Stokes multiplier (Berry, Proc. R. Soc. A 422 (1989) 7-21; DLMF 2.11(iv)).
+-- How a value is accepted (M.apply): each saddle or endpoint of the expansion is resummed
+-- by the method asked for (resum = true: Borel-Pade, and hyperasymptotics as well where
+-- that left more than 1e-12); the result replaces the optimally truncated value when its
+-- estimate is smaller and it agrees with that value within both estimates or, failing
+-- that, with the other method (near a Stokes line the truncated series misses the
+-- smoothly switched-on subdominant share). Two methods that disagree widen the error to
+-- their difference. Residues stay exact; the uniform forms stay, except that two saddles
+-- taken together are expanded apart when a method is named (or when that does better).
+--
+-- The Stokes multiplier (Berry, Proc. R. Soc. A 422 (1989) 7-21; DLMF 2.11(iv)) is here
+-- for the decomposition to call on a Stokes line (M.stokes_multiplier).
 
 local complex = require "steep.complex"
 local expand = require "steep.expand"
