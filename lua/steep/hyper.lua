@@ -618,15 +618,20 @@ function M.sum(n, cands, opts)
   if opts.level2 ~= false then
     local N0 = min(top, max(best.N0, round(3 * sigma_min)))
     local v1, fixed1, _, used = level1(n, adj, N0)
-    local v2, fixed2, trunc2 = nil, nil, nil
+    local v2, fixed2, trunc2
     if v1 then v2, fixed2, trunc2 = level2(n, used, N0) end
     if v2 then
       local e = fixed1 + fixed2 + trunc2 + far_bound(N0)
+      -- level 1 estimates the same number: beyond both estimates, the difference counts
+      local d = (v1 + v2 - best.value):abs()
+      if d > e + best.error then e = d end
       if e < best.error then
         best = { value = v1 + v2, error = e, level = 2, N0 = N0, used = used }
       end
     else
-      notes[#notes + 1] = "level 2 not reached: " .. tostring(fixed2 or "no room for it")
+      -- (level2 returns nil and why)
+      notes[#notes + 1] = "level 2 not reached: "
+        .. (v1 and tostring(fixed2) or "no room for the adjacent series at that truncation")
     end
   end
   local adjacent = {}
