@@ -82,6 +82,26 @@ end
 
 TestResumAiry = {}
 
+-- Ai(z) for complex z by its Maclaurin series (DLMF 9.4.1 with f, g of DLMF 9.4.2-3, from
+-- memory), Ai(0) and Ai'(0) from GSL (gsl_sf_airy_Ai_e, gsl_sf_airy_Ai_deriv_e); with a
+-- bound on its rounding error, 64 u times the sum of the terms' sizes (each term carries
+-- the rounding of the products that made it; common practice).
+local function airy_series(z)
+  local a0, ad0 = gsl.airy_Ai(0), gsl.airy_Ai_deriv(0)
+  local f, g = C(0, 0), C(0, 0)
+  local tf, tg = C(1, 0), z
+  local z3 = z * z * z
+  local size = 0
+  for k = 0, 400 do
+    f, g = f + tf, g + tg
+    size = size + math.abs(a0) * tf:abs() + math.abs(ad0) * tg:abs()
+    tf = tf * z3 * (3 * (k + 1 / 3) / ((3 * k + 1) * (3 * k + 2) * (3 * k + 3)))
+    tg = tg * z3 * (3 * (k + 2 / 3) / ((3 * k + 2) * (3 * k + 3) * (3 * k + 4)))
+    if tf:abs() + tg:abs() < 1e-18 * (f:abs() + g:abs()) then break end
+  end
+  return a0 * f + ad0 * g, 64 * 2.2e-16 * size
+end
+
 -- Ai(x) = (1/2 pi) int exp(i (t^3/3 + x t)) dt along the real line (DLMF 9.5.4, from
 -- memory). Optimal truncation of its saddle series, straight from DLMF: for x > 0,
 -- Ai(x) ~ e^{-zeta}/(2 sqrt(pi) x^(1/4)) sum (-1)^k u_k zeta^-k (DLMF 9.7.5); for x < 0,
@@ -212,6 +232,31 @@ function TestResumAiry:test_near_the_stokes_line()
   lu.assertStrContains(r.contributions[1].resum_note, "agree")
 end
 
+-- On the Stokes line itself the decomposition takes the mean of the subdominant saddle's
+-- weights on its two sides (Berry's multiplier 1/2), and the dominant saddle's Borel sum
+-- is the median of its two lateral sums, which is the same smoothing: together they give
+-- Ai there to far better than the truncated series, against Ai's Maclaurin series (DLMF
+-- 9.4.1; the reference above), with the estimate bounding the error.
+function TestResumAiry:test_on_the_stokes_line()
+  local J = airy_integral()
+  local r0 = 4
+  local xv = C(r0 * math.cos(2 * pi / 3), r0 * math.sin(2 * pi / 3))
+  local ref, round = airy_series(xv)
+  ref, round = 2 * pi * ref, 2 * pi * round
+  local opt = J:expand { x = xv, order = "optimal" }
+  local r = J:expand { x = xv, resum = true }
+  local d = bounded(r.value, r.error, ref, round, "Ai on arg x = 2 pi/3, resummed")
+  lu.assertTrue(d < 1e-3 * cabs(opt.value - ref), string.format("resummed %.3g against "
+    .. "truncated %.3g", d, cabs(opt.value - ref)))
+  local seen_mean, seen_median = false, false
+  for _, c in ipairs(r.contributions) do
+    if c.kind:match("mean of its two sides") then seen_mean = true end
+    if c.resummed and c.resummed.detail:match("median of the lateral sums") then seen_median = true end
+  end
+  lu.assertTrue(seen_mean, "the subdominant saddle: the mean of its two sides")
+  lu.assertTrue(seen_median, "the dominant saddle: the median of its lateral Borel sums")
+end
+
 ---------------------------------------------------------------------------------------
 
 TestResumGamma = {}
@@ -256,25 +301,6 @@ end
 
 TestResumStokes = {}
 
--- Ai(z) for complex z by its Maclaurin series (DLMF 9.4.1 with f, g of DLMF 9.4.2-3, from
--- memory), Ai(0) and Ai'(0) from GSL (gsl_sf_airy_Ai_e, gsl_sf_airy_Ai_deriv_e); with a
--- bound on its rounding error, 64 u times the sum of the terms' sizes (each term carries
--- the rounding of the products that made it; common practice).
-local function airy_series(z)
-  local a0, ad0 = gsl.airy_Ai(0), gsl.airy_Ai_deriv(0)
-  local f, g = C(0, 0), C(0, 0)
-  local tf, tg = C(1, 0), z
-  local z3 = z * z * z
-  local size = 0
-  for k = 0, 400 do
-    f, g = f + tf, g + tg
-    size = size + math.abs(a0) * tf:abs() + math.abs(ad0) * tg:abs()
-    tf = tf * z3 * (3 * (k + 1 / 3) / ((3 * k + 1) * (3 * k + 2) * (3 * k + 3)))
-    tg = tg * z3 * (3 * (k + 2 / 3) / ((3 * k + 2) * (3 * k + 3) * (3 * k + 4)))
-    if tf:abs() + tg:abs() < 1e-18 * (f:abs() + g:abs()) then break end
-  end
-  return a0 * f + ad0 * g, 64 * 2.2e-16 * size
-end
 
 -- The exact Stokes multiplier of Ai across arg z = 2 pi/3 (Berry 1989, sec. 4): with
 -- zeta = (2/3) z^(3/2), the dominant series e^{-zeta}/(2 sqrt(pi) z^(1/4)) sum (-1)^k u_k

@@ -174,19 +174,9 @@ function M.local_plan(J, L, plan)
 end
 
 
---- expand(J, params, opts) -> result
-function M.expand(J, params, opts)
-  local order = check_order(opts.order or 1, "expand")
-  local L = opts.landscape or J:_landscape(params, opts.region, false)
-  local plan = decompose.decompose(J, params, L, J.contour)
-  if plan.status ~= "ok" then
-    local lp = M.local_plan(J, L, plan)
-    if lp then plan = lp end
-  end
-  if plan.status ~= "ok" then
-    error("expand: the contour could not be decomposed into steepest descent paths ("
-      .. plan.status .. "): " .. table.concat(plan.notes, "; ") .. failure_detail(L), 0)
-  end
+-- The contributions of a plan's pieces and residues, expanded to `order` (`resum`: keep
+-- the pair of a uniform form, for lua/steep/resum.lua).
+local function contributions_of(J, params, L, plan, order, resum)
   local contributions = {}
   local by_saddle, order_seen = {}, {}
   for _, piece in ipairs(plan.pieces) do
@@ -225,7 +215,7 @@ function M.expand(J, params, opts)
           { saddle = L.saddles[j2], rays = by_saddle[j2] or {} } }
         local ok, c = pcall(coalesce.contribution, J, params, L, pair, order)
         if ok and c then
-          c.pair = opts.resum and pair or nil   -- (resummation may expand them apart)
+          c.pair = resum and pair or nil   -- (resummation may expand them apart)
           contributions[#contributions + 1] = c
           handled[j], handled[j2] = true, true
         end
@@ -245,21 +235,84 @@ function M.expand(J, params, opts)
   for _, r in ipairs(plan.residues) do
     if r.winding ~= 0 then contributions[#contributions + 1] = residue_contribution(L, r) end
   end
+  return contributions
+end
+
+-- On a Stokes line with a genuine jump: the mean of the two sides' contributions (Berry's
+-- multiplier 1/2 on the line), each with half the difference as part of its error (the
+-- unsettled part).
+local function mean_of_sides(plus, minus)
+  local out, used = {}, {}
+  local function key(c) return c.kind .. "@" .. tostring(c.at) end
+  local byk = {}
+  for _, c in ipairs(minus) do byk[key(c)] = c end
+  for _, c in ipairs(plus) do
+    local m = byk[key(c)]
+    if m then used[m] = true end
+    if m and cabs(m.value - c.value) <= 1e-15 * cabs(c.value) then
+      out[#out + 1] = c
+    else
+      local mv, me = m and m.value or cnew(0, 0), m and m.error or 0
+      local d = cabs(c.value - mv)
+      local mc = {}
+      for k, v in pairs(c) do mc[k] = v end
+      mc.value = 0.5 * (c.value + mv)
+      mc.error = 0.5 * (c.error + me) + 0.5 * d
+      mc.unsettled = 0.5 * d
+      mc.kind = c.kind .. " (on a Stokes line: mean of its two sides)"
+      out[#out + 1] = mc
+    end
+  end
+  for _, m in ipairs(minus) do
+    if not used[m] then
+      local mc = {}
+      for k, v in pairs(m) do mc[k] = v end
+      mc.value, mc.error, mc.unsettled = 0.5 * m.value, 0.5 * m.error + 0.5 * cabs(m.value),
+        0.5 * cabs(m.value)
+      mc.kind = m.kind .. " (on a Stokes line: mean of its two sides)"
+      out[#out + 1] = mc
+    end
+  end
+  return out
+end
+
+--- expand(J, params, opts) -> result
+function M.expand(J, params, opts)
+  local order = check_order(opts.order or 1, "expand")
+  local L = opts.landscape or J:_landscape(params, opts.region, false)
+  local plan = decompose.decompose(J, params, L, J.contour)
+  if plan.status ~= "ok" then
+    local lp = M.local_plan(J, L, plan)
+    if lp then plan = lp end
+  end
+  if plan.status ~= "ok" then
+    error("expand: the contour could not be decomposed into steepest descent paths ("
+      .. plan.status .. "): " .. table.concat(plan.notes, "; ") .. failure_detail(L), 0)
+  end
+  local contributions = contributions_of(J, params, L, plan, order, opts.resum)
+  local stokes = type(plan.stokes) == "table" and plan.stokes or nil
+  if stokes and not stokes.settled then
+    contributions = mean_of_sides(contributions, contributions_of(J, params, L, stokes.minus, order))
+  end
   table.sort(contributions, function(a, b) return a.dominance > b.dominance end)
   -- beyond optimal truncation (lua/steep/resum.lua): replaces what it improves
   local resummed = opts.resum and require("steep.resum").apply(J, params, L, contributions,
     opts.resum)
-  local value, err = cnew(0, 0), 0
+  local value, err, unsettled = cnew(0, 0), 0, 0
   for _, c in ipairs(contributions) do
     value = value + c.value
     err = err + c.error
+    unsettled = unsettled + (c.unsettled or 0)
   end
   -- the status says how far to trust the number before any comparison with quadrature
   local status = plan.is_local and "estimated (local method)" or "estimated"
   local reasons = {}
-  if plan.stokes then
+  if plan.stokes == true then
     reasons[#reasons + 1] = "a saddle connection (Stokes line): the weight of a subdominant "
-      .. "saddle is ambiguous there"
+      .. "saddle could not be decided there"
+  elseif stokes and not stokes.settled and unsettled > err - unsettled then
+    reasons[#reasons + 1] = format("on a Stokes line with a genuine jump: the unsettled part "
+      .. "(%.3g) is larger than the rest of the error estimate", unsettled)
   end
   if not (err < cabs(value)) then
     reasons[#reasons + 1] = "the error estimate is not smaller than the value"
@@ -274,7 +327,9 @@ function M.expand(J, params, opts)
   if #reasons > 0 then status = "suspect: " .. table.concat(reasons, "; ") end
   local result = { value = value, error = err, contributions = contributions,
     order = order, params = params, landscape = L, notes = plan.notes,
-    stokes = plan.stokes or false, integral = J, status = status, resum = resummed }
+    stokes = plan.stokes and true or false, integral = J, status = status,
+    stokes_line = stokes and { settled = stokes.settled, unsettled = unsettled } or nil,
+    resum = resummed }
   setmetatable(result, { __index = { report = M.report } })
   if opts.verify then M.verify(J, params, result, opts) end
   return result
@@ -362,7 +417,14 @@ function M.report(r, opts)
   end
   add("status: %s%s", r.status, r.check and "" or
     " (not compared with quadrature: verify = true or J:check does that)")
-  if r.stokes then add("warning: a saddle connection was found (Stokes line): see notes") end
+  if r.stokes_line and r.stokes_line.settled then
+    add("on a Stokes line: the weights are the same on both sides of it (settled)")
+  elseif r.stokes_line then
+    add("on a Stokes line with a genuine jump: mean of both sides, unsettled part %.3g",
+      r.stokes_line.unsettled)
+  elseif r.stokes then
+    add("warning: a saddle connection was found (Stokes line): see notes")
+  end
   for _, n in ipairs(r.notes or {}) do add("note: %s", n) end
   add("caution: an asymptotic approximation; check it (J:check) before it informs any "
     .. "engineering, financial or safety decision")

@@ -297,20 +297,25 @@ local CLEARANCE = 0.2      -- radians between the ray and any singularity near i
 local NEAR = 80            -- singularities farther than this (in s) do not matter
 
 -- The ray for the Laplace integral: the first of RAYS that keeps CLEARANCE from every
--- obstacle within NEAR and sweeps over none on its way from the real axis (turning the
--- ray across a singularity would change the value). An obstacle on the real axis itself
--- (within 1e-6 rad: a Stokes line) cannot be avoided: the two lateral rays are returned.
+-- obstacle within NEAR and sweeps, on its way from the real axis, over none of those
+-- that mark true singularities (o.sweep: turning the ray across one changes the value;
+-- the poles by which a Pade approximant draws the cut of a known singulant only need
+-- clearance). An obstacle of that kind on the real axis itself (within 1e-6 rad: a
+-- Stokes line) cannot be avoided: the two lateral rays are returned.
 function M.choose_ray(obstacles)
   local on_line = false
   for _, o in ipairs(obstacles) do
-    if o.r < NEAR and abs(o.arg) < 1e-6 then on_line = true end
+    if o.r < NEAR and o.sweep ~= false and abs(o.arg) < 1e-6 then on_line = true end
   end
   local function ok(theta, ignore_line)
     for _, o in ipairs(obstacles) do
-      if o.r < NEAR and not (ignore_line and abs(o.arg) < 1e-6) then
-        if abs(angle_between(o.arg, theta)) < CLEARANCE then return false end
+      local on = abs(o.arg) < 1e-6
+      if o.r < NEAR and not (ignore_line and on) then
+        if abs(angle_between(o.arg, theta)) < CLEARANCE and not (ignore_line and on) then
+          return false
+        end
         local lo, hi = min(0, theta), max(0, theta)
-        if o.arg >= lo and o.arg <= hi then return false end
+        if o.sweep ~= false and o.arg >= lo and o.arg <= hi then return false end
       end
     end
     return true
@@ -403,12 +408,19 @@ function M.sum(spec)
       notes[#notes + 1] = "the poles of the Pade approximant could not be located"
     end
   end
-  -- the obstacles: the singulants the landscape knows and the approximant's poles
+  -- the obstacles: the singulants the landscape knows, and the approximant's poles; a
+  -- pole nearer the origin than every known singulant (or any, when none is known) marks
+  -- a singularity the landscape does not know, the others may draw a known one's cut
   local obstacles = {}
+  local nearest_known = huge
   for _, s in ipairs(sing) do
-    obstacles[#obstacles + 1] = { r = hypot(s.re, s.im), arg = atan(s.im, s.re) }
+    local r = hypot(s.re, s.im)
+    obstacles[#obstacles + 1] = { r = r, arg = atan(s.im, s.re) }
+    nearest_known = min(nearest_known, r)
   end
-  for _, p in ipairs(poles) do obstacles[#obstacles + 1] = p end
+  for _, p in ipairs(poles) do
+    obstacles[#obstacles + 1] = { r = p.r, arg = p.arg, sweep = p.r < 0.9 * nearest_known }
+  end
   local rays, lateral, why = M.choose_ray(obstacles)
   if why then notes[#notes + 1] = why end
   -- the sums, class by class and degree by degree

@@ -191,9 +191,11 @@ local function by_borel(J, params, L, c)
   -- e^{F0} carries the rounding of F0 itself
   err = err + (16 + cabs(F0)) * EPS * cabs(value)
   local detail = format("Borel-Pade [%d/%d]", s.degree, s.degree)
-  if s.lateral then
+  if s.lateral and #s.theta == 2 then
     detail = detail .. format(", median of the lateral sums along rays %.2f and %.2f",
       s.theta[1], s.theta[2])
+  elseif s.lateral then
+    detail = detail .. ", along the real axis through a singulant (no clear ray beside it)"
   elseif s.theta[1] ~= 0 then
     detail = detail .. format(", Laplace integral along the ray at angle %.2f", s.theta[1])
   end
@@ -420,6 +422,13 @@ local function resum_one(J, params, L, c, how)
   if c.kind:match("uniform") then
     c.method, c.level = "uniform form", 0
     c.resum_note = "a uniform form: not resummed"
+    return
+  end
+  if c.unsettled then
+    -- on a Stokes line the decomposition took the mean of the two sides' contributions
+    -- (Berry's multiplier 1/2): its series is not one thimble's
+    c.method, c.level = "optimal truncation", 0
+    c.resum_note = "on a Stokes line, the mean of the two sides: not resummed"
     return
   end
   c.method, c.level = "optimal truncation", 0
