@@ -254,6 +254,8 @@ function TestRecipesScripts:test_recipes_run()
     ["demo.lua"] = { "== the integral", "== both routes against quadrature", "Caution",
       "== map of the complex plane written to " },
     ["special_functions.lua"] = { "airy", "gamma", "hankel", "bessel", "rel.err" },
+    ["beyond_optimal.lua"] = { "== e^x E1(x)", "== Gamma(x)/x^x", "resummed", "plot written to",
+      "caution: " },
   }
   local ls = assert(io.popen("ls " .. q(root .. "/recipes")))
   local seen = 0
@@ -284,7 +286,7 @@ function TestRecipesScripts:test_recipes_run()
     end
   end
   ls:close()
-  lu.assertEquals(seen, 6, "recipes found")
+  lu.assertEquals(seen, 7, "recipes found")
   os.execute("rm -rf " .. q(tmpdir))
 end
 
@@ -394,4 +396,54 @@ function TestRecipesVersion:test_newer_api_fails_loudly()
   lu.assertStrContains(out, "this script needs steep 9.0")
   lu.assertStrContains(out, "the installed steep is " .. steep.version)
   lu.assertNil(out:find("Invented example", 1, true), "nothing computed:\n" .. out)
+end
+
+---------------------------------------------------------------------------------------
+
+TestRecipesBeyondOptimal = {}
+
+local bo = require "beyond_optimal"
+
+-- The recipe's table for e^x E1(x) against GSL (gsl_sf_expint_E1_scaled_e): quadrature is
+-- the function, the resummed value beats optimal truncation by 10^4 and more, and its
+-- estimate bounds its error (relative, with quadrature's own).
+function TestRecipesBeyondOptimal:test_expint_rows()
+  local case = bo.cases()[1]
+  lu.assertEquals(case.name, "e^x E1(x)")
+  local rows, text = bo.analyse { integral = case.integral, x = { 5, 3 }, plain = 4 }
+  lu.assertStrContains(text, "resummed")
+  for _, row in ipairs(rows) do
+    local ref = gsl.expint_E1_scaled(row.x)
+    H.close(row.quad, ref, 1e-12, "quadrature at x = " .. row.x)
+    lu.assertTrue(row.resummed <= row.estimate + row.quad_error, "estimate bounds the error")
+    lu.assertTrue(row.resummed <= 1e-4 * row.optimal, "resummation beats optimal truncation")
+    lu.assertTrue(row.optimal > 1e-3, "optimal truncation alone is poor at x = " .. row.x)
+    lu.assertEquals(row.method, "borel")
+  end
+end
+
+-- The SVG writer: one panel per case with its title, four curves each (fixed terms,
+-- optimal, resummed, estimate), a legend; errors mapped on a log scale (1e-2 halfway
+-- between 1e-17 and 1e1 less 8 decades, checked through the two curves' heights).
+function TestRecipesBeyondOptimal:test_plot()
+  local rows = { { x = 1, plain = 1e-2, optimal = 1e-4, resummed = 1e-12, estimate = 1e-11 },
+    { x = 2, plain = 1e-3, optimal = 1e-6, resummed = 0, estimate = 1e-13 } }
+  local svg = bo.plot({ { name = "first & <one>", rows = rows }, { name = "second", rows = rows } })
+  lu.assertStrContains(svg, "<svg xmlns=")
+  lu.assertTrue(svg:match("</svg>%s*$") ~= nil, "closed")
+  lu.assertStrContains(svg, "first &amp; &lt;one&gt;")
+  local n = 0
+  for _ in svg:gmatch("<polyline") do n = n + 1 end
+  lu.assertEquals(n, 8, "four curves in each of two panels")
+  lu.assertStrContains(svg, "optimal truncation")
+  lu.assertStrContains(svg, "errors below 1e-17 are drawn at 1e-17")
+  -- the first panel's plain curve: 1e-2 at x = 1 and 1e-3 at x = 2 are one decade apart,
+  -- the resummed curve's 1e-12 and 0 (drawn at 1e-17) five apart
+  local plain = svg:match('<polyline points="([^"]+)" fill="none" stroke="#8a8a8a"')
+  local y1, y2 = plain:match("[%d.]+,([%d.]+) [%d.]+,([%d.]+)")
+  local decade = tonumber(y2) - tonumber(y1)
+  lu.assertTrue(decade > 0, "a smaller error is drawn lower")
+  local res = svg:match('<polyline points="([^"]+)" fill="none" stroke="#1b7f79" stroke%-width="1.8"')
+  local r1, r2 = res:match("[%d.]+,([%d.]+) [%d.]+,([%d.]+)")
+  H.close(tonumber(r2) - tonumber(r1), 5 * decade, 1e-2, "log scale")
 end

@@ -177,8 +177,9 @@ function M.local_plan(J, L, plan)
 end
 
 
--- The contributions of a plan's pieces and residues, expanded to `order`.
-local function contributions_of(J, params, L, plan, order)
+-- The contributions of a plan's pieces and residues, expanded to `order` (`resum`: keep
+-- the pair of a uniform form, for lua/steep/resum.lua).
+local function contributions_of(J, params, L, plan, order, resum)
   local contributions = {}
   local by_saddle, order_seen = {}, {}
   for _, piece in ipairs(plan.pieces) do
@@ -217,6 +218,7 @@ local function contributions_of(J, params, L, plan, order)
           { saddle = L.saddles[j2], rays = by_saddle[j2] or {} } }
         local ok, c = pcall(coalesce.contribution, J, params, L, pair, order)
         if ok and c then
+          c.pair = resum and pair or nil   -- (resummation may expand them apart)
           contributions[#contributions + 1] = c
           handled[j], handled[j2] = true, true
         end
@@ -290,12 +292,15 @@ function M.expand(J, params, opts)
     error("expand: the contour could not be decomposed into steepest descent paths ("
       .. plan.status .. "): " .. table.concat(plan.notes, "; ") .. failure_detail(L), 0)
   end
-  local contributions = contributions_of(J, params, L, plan, order)
+  local contributions = contributions_of(J, params, L, plan, order, opts.resum)
   local stokes = type(plan.stokes) == "table" and plan.stokes or nil
   if stokes and not stokes.settled then
     contributions = mean_of_sides(contributions, contributions_of(J, params, L, stokes.minus, order))
   end
   table.sort(contributions, function(a, b) return a.dominance > b.dominance end)
+  -- beyond optimal truncation (lua/steep/resum.lua): replaces what it improves
+  local resummed = opts.resum and require("steep.resum").apply(J, params, L, contributions,
+    opts.resum)
   local value, err, unsettled = cnew(0, 0), 0, 0
   for _, c in ipairs(contributions) do
     value = value + c.value
@@ -326,7 +331,8 @@ function M.expand(J, params, opts)
   local result = { value = value, error = err, contributions = contributions,
     order = order, params = params, landscape = L, notes = plan.notes,
     stokes = plan.stokes and true or false, integral = J, status = status,
-    stokes_line = stokes and { settled = stokes.settled, unsettled = unsettled } or nil }
+    stokes_line = stokes and { settled = stokes.settled, unsettled = unsettled } or nil,
+    resum = resummed }
   setmetatable(result, { __index = { report = M.report } })
   if opts.verify then M.verify(J, params, result, opts) end
   return result
@@ -372,6 +378,9 @@ function M.report(r, opts)
   say(table.concat(ps, ", ") .. (J.large and ("   (large parameter: " .. J.large.name .. ")") or ""),
     "parameters: ", 4)
   add("terms per contribution: %s", tostring(r.order))
+  if r.resum then
+    add("resummation (asked: %s): %s", tostring(r.resum.requested), r.resum.method)
+  end
   -- the landscape the decomposition used
   local L = r.landscape
   if L then
@@ -408,6 +417,8 @@ function M.report(r, opts)
       say(format("leading term %s%s", fmtc(c.terms[1], c.error), c.note and ("; " .. c.note) or ""),
         "     ", 5)
     end
+    local how = r.resum and require("steep.resum").describe(c)
+    if how then add("     %s", how) end
   end
   add("total: %s   estimated error %.3g", fmtc(r.value, r.error), r.error)
   if r.check then
@@ -594,7 +605,7 @@ function M.check(J, params, values, opts)
     local p = {}
     for k, val in pairs(params) do p[k] = val end
     p[x] = v
-    local r = M.expand(J, p, { order = order, region = opts.region })
+    local r = M.expand(J, p, { order = order, region = opts.region, resum = opts.resum })
     local qopts = { region = opts.region }
     for k, val in pairs(p) do qopts[k] = val end
     local q, qe, qinfo = J:quad(qopts)
@@ -605,7 +616,8 @@ function M.check(J, params, values, opts)
     local ok = diff <= r.error + qe and qinfo.status == "ok"
     rows[#rows + 1] = { x = v, expansion = r.value, quad = q, quad_error = qe,
       relative_error = diff / scale, estimated = r.error / scale, agrees = ok,
-      ratio = diff / (r.error + qe), stokes = r.stokes, quad_status = qinfo.status }
+      ratio = diff / (r.error + qe), stokes = r.stokes, quad_status = qinfo.status,
+      method = r.resum and r.resum.method or nil, level = r.resum and r.resum.level or nil }
   end
   -- observed order: slope of log(error) against log|x| (least squares)
   local sx, sy, sxx, sxy, n = 0, 0, 0, 0, 0
@@ -621,13 +633,15 @@ function M.check(J, params, values, opts)
   local all = true
   for _, row in ipairs(rows) do all = all and row.agrees end
   local result = { rows = rows, observed_order = slope, verified = all, order = order,
-    integral = J, large = x }
+    integral = J, large = x, resum = opts.resum }
   return setmetatable(result, { __index = { report = M.check_report } })
 end
 
 function M.check_report(c, opts)
-  local other = report_m.format(opts, c, c.rows,
-    { "x", "expansion", "quad", "quad_error", "relative_error", "estimated", "agrees", "stokes" })
+  local cols = { "x", "expansion", "quad", "quad_error", "relative_error", "estimated", "agrees",
+    "stokes" }
+  if c.resum then cols[#cols + 1] = "method"; cols[#cols + 1] = "level" end
+  local other = report_m.format(opts, c, c.rows, cols)
   if other then return other end
   local lines = {}
   local function add(...) lines[#lines + 1] = format(...) end
@@ -643,6 +657,7 @@ function M.check_report(c, opts)
       inaccurate[#inaccurate + 1] = num(r.x)
     end
     if r.stokes then flags[#flags + 1] = "stokes" end
+    if r.method then flags[#flags + 1] = r.method end
     rows[#rows + 1] = { num(r.x), num(r.expansion, r.estimated * scale), num(r.quad, r.quad_error),
       format("%.3g", r.relative_error), format("%.3g", r.estimated), table.concat(flags, " ") }
   end

@@ -136,4 +136,10 @@ function steep.show(v, err, digits)
   return require("steep.report").num(v, err, digits)
 end
 
+--- steep.stokes_multiplier(singulant [, large]) -> S, sigma: Berry's smoothed Stokes
+-- multiplier (lua/steep/resum.lua says how to use it)
+function steep.stokes_multiplier(singulant, large)
+  return require("steep.resum").stokes_multiplier(singulant, large)
+end
+
 return steep

@@ -862,9 +862,11 @@ end
 
 --- J:expand{<params>, order = N | "optimal", region = {...}} -> result
 function methods.expand(J, opts)
-  local params, o = M.split_options(J, opts, { order = true, region = true, verify = true },
+  local params, o = M.split_options(J, opts, { order = true, region = true, verify = true,
+    resum = true }, "expand")
+  o.resum = require("steep.resum").check_option(o.resum, "expand", o.order)
+  o.order = require("steep.asymptotics").check_order(o.order or (o.resum and "optimal" or 1),
     "expand")
-  o.order = require("steep.asymptotics").check_order(o.order or 1, "expand")
   if o.region then o.region = check_region(o.region, "expand", J) end
   return require("steep.asymptotics").expand(J, params, o)
 end
@@ -893,7 +895,10 @@ function methods.check(J, opts)
   local rest = {}
   for k, v in pairs(opts) do rest[k] = v end
   rest[J.large.name] = values[1]
-  local params, o = M.split_options(J, rest, { order = true, region = true }, "check")
+  local params, o = M.split_options(J, rest, { order = true, region = true, resum = true },
+    "check")
+  o.resum = require("steep.resum").check_option(o.resum, "check", o.order)
+  if o.resum then o.order = "optimal" end
   params[J.large.name] = nil
   if o.region then o.region = check_region(o.region, "check", J) end
   return require("steep.asymptotics").check(J, params, values, o)

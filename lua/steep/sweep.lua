@@ -75,7 +75,7 @@ M.CHAIN = 64
 -- after each row. Returns the rows and the number the time budget left out (the budget
 -- counts this process's CPU time from the start of the call).
 local function compute_rows(J, values, i0, i1, ctx, on_row)
-  local x, fixed, order, budget = ctx.x, ctx.fixed, ctx.order, ctx.budget
+  local x, fixed, order, budget, resum = ctx.x, ctx.fixed, ctx.order, ctx.budget, ctx.resum
   local continuation, region = ctx.continuation, ctx.region
   local rows, prev, skipped = {}, nil, 0
   local clock0 = os.clock()
@@ -111,13 +111,15 @@ local function compute_rows(J, values, i0, i1, ctx, on_row)
       else
         L = J:_landscape(p, region, false)
       end
-      local r = require("steep.asymptotics").expand(J, p, { order = order, landscape = L })
+      local r = require("steep.asymptotics").expand(J, p, { order = order, landscape = L,
+        resum = resum })
       local q, qe = require("steep.integral").quad_with(J, p, L, "deformed")
       row.expansion, row.error, row.quad, row.quad_error = r.value, r.error, q, qe
       row.relative_error = cabs(r.value - q) / math.max(cabs(q), 1e-300)
       row.estimated = r.error / math.max(cabs(q), 1e-300)
-      row.agrees = cabs(r.value - q) <= 3 * (r.error + qe)
+      row.agrees = cabs(r.value - q) <= r.error + qe
       row.stokes = r.stokes
+      if r.resum then row.method, row.level = r.resum.method, r.resum.level end
       -- which valleys the contour's ends use depends on arg x: record it
       local ends = {}
       if not J.contour.closed then
@@ -306,7 +308,8 @@ local function run_workers(J, values, ranges, ctx, report_progress)
   return rows, cpu
 end
 
---- J:sweep{x = {list} | {from =, to =, steps =}, order = N, csv = file, shard = {k, n},
+--- J:sweep{x = {list} | {from =, to =, steps =}, order = N, resum = true | "borel" | "hyper",
+-- csv = file, shard = {k, n},
 -- workers = W, progress = true|false, <other params>} -> rows
 -- Expansion and quadrature over the range. Each step starts from the previous step's
 -- saddles and singularities (continuation: Newton from them, no search of the whole
@@ -328,11 +331,14 @@ function M.sweep(J, opts)
     probe[x] = values[1]
     local integral_m = require("steep.integral")
     local _, o = integral_m.split_options(J, probe, { order = true, csv = true, shard = true,
-      progress = true, continuation = true, region = true, budget = true, workers = true },
-      "sweep")
+      progress = true, continuation = true, region = true, budget = true, workers = true,
+      resum = true }, "sweep")
     if o.region then opts = copy(opts); opts.region = integral_m.check_region(o.region, "sweep", J) end
   end
-  local order = require("steep.asymptotics").check_order(opts.order or 4, "sweep")
+  -- beyond optimal truncation (lua/steep/resum.lua): from the optimally truncated series
+  local resum = require("steep.resum").check_option(opts.resum, "sweep", opts.order)
+  local order = require("steep.asymptotics").check_order(opts.order or (resum and "optimal" or 4),
+    "sweep")
   local shard = opts.shard
   local first, last = 1, #values
   if shard ~= nil then
@@ -352,7 +358,8 @@ function M.sweep(J, opts)
   local fixed = {}
   for k, v in pairs(opts) do
     if k ~= x and k ~= "order" and k ~= "csv" and k ~= "shard" and k ~= "progress"
-        and k ~= "continuation" and k ~= "region" and k ~= "budget" and k ~= "workers" then
+        and k ~= "continuation" and k ~= "region" and k ~= "budget" and k ~= "workers"
+        and k ~= "resum" then
       fixed[k] = v
     end
   end
@@ -364,7 +371,7 @@ function M.sweep(J, opts)
   local report_progress = progress and progress_reporter(last - first + 1, core.isatty(2))
   -- the CSV file is opened before the work: a bad name fails now, not after the sweep
   local writer = opts.csv ~= nil and files.open(opts.csv, "sweep", "csv", 2)
-  local ctx = { x = x, fixed = fixed, order = order, budget = budget,
+  local ctx = { x = x, fixed = fixed, order = order, budget = budget, resum = resum,
     continuation = opts.continuation ~= false, region = opts.region }
   local rows, skipped, worker_cpu = nil, 0, nil
   local ranges = last >= first and worker_ranges(first, last, workers) or {}
@@ -383,7 +390,7 @@ function M.sweep(J, opts)
   end
   local out = { rows = rows, large = x, order = order, integral = J, shard = shard,
     status = M.status(rows, skipped, budget), first = first, last = last,
-    workers = math.max(1, #ranges), worker_cpu = worker_cpu }
+    workers = math.max(1, #ranges), worker_cpu = worker_cpu, resum = resum }
   setmetatable(out, { __index = { report = M.sweep_report, csv = M.sweep_csv } })
   if writer then
     writer:write(out:csv(not shard or shard[1] == 1))
@@ -445,29 +452,38 @@ local function csv_text(s)
   return '"' .. (s or ""):gsub('"', "'"):gsub("[\r\n]+", " ") .. '"'
 end
 
+-- (with resum, two more columns at the end: the method and the level it reached)
 function M.sweep_csv(sw, header)
   local lines = {}
   if header ~= false then
     lines[1] = sw.large .. "_re," .. sw.large .. "_im,expansion_re,expansion_im,error,"
       .. "quad_re,quad_im,quad_error,relative_error,estimated,agrees,stokes,valleys,failure"
+      .. (sw.resum and ",method,level" or "")
   end
   for _, r in ipairs(sw.rows) do
-    lines[#lines + 1] = table.concat({ csv_complex(r.x), csv_complex(r.expansion),
+    local fields = { csv_complex(r.x), csv_complex(r.expansion),
       csv_real(r.error), csv_complex(r.quad), csv_real(r.quad_error), csv_real(r.relative_error),
       csv_real(r.estimated), csv_bool(r.agrees), csv_bool(r.stokes, r.expansion ~= nil),
-      csv_text(r.valleys), csv_text(r.failure) }, ",")
+      csv_text(r.valleys), csv_text(r.failure) }
+    if sw.resum then
+      fields[#fields + 1] = csv_text(r.method)
+      fields[#fields + 1] = r.level and format("%d", r.level) or ""
+    end
+    lines[#lines + 1] = table.concat(fields, ",")
   end
   return table.concat(lines, "\n") .. "\n"
 end
 
 function M.sweep_report(sw, opts)
-  local other = require("steep.report").format(opts, sw, sw.rows,
-    { "x", "expansion", "error", "quad", "quad_error", "relative_error", "estimated",
-      "agrees", "stokes", "valleys", "landscape", "failure" })
+  local cols = { "x", "expansion", "error", "quad", "quad_error", "relative_error", "estimated",
+    "agrees", "stokes", "valleys", "landscape", "failure" }
+  if sw.resum then cols[#cols + 1] = "method"; cols[#cols + 1] = "level" end
+  local other = require("steep.report").format(opts, sw, sw.rows, cols)
   if other then return other end
   local report_m = require "steep.report"
   local num, wrap = report_m.num, report_m.wrap
-  local lines = { wrap(format("%s, %s terms", tostring(sw.integral), tostring(sw.order)),
+  local lines = { wrap(format("%s, %s terms%s", tostring(sw.integral), tostring(sw.order),
+      sw.resum and ", resummed" or ""),
     "sweep of ", 4) }
   local columns = { { sw.large }, { "expansion" }, { "quadrature" }, { "rel. error" },
     { "estimated" }, { "" } }
@@ -481,6 +497,7 @@ function M.sweep_report(sw, opts)
       if not r.agrees then flags[#flags + 1] = "DISAGREES" end
       if not (r.estimated < 1) then flags[#flags + 1] = "no accuracy" end
       if r.stokes then flags[#flags + 1] = "stokes" end
+      if r.method then flags[#flags + 1] = r.method end
       cells[i] = { num(r.x, nil, 6), num(r.expansion, r.error, 8), num(r.quad, r.quad_error, 8),
         format("%.3g", r.relative_error), format("%.3g", r.estimated), table.concat(flags, " ") }
     end

@@ -86,6 +86,13 @@ static int l_expint_E1(lua_State *L)
   return push_result(L, "expint_E1", st, &r);
 }
 
+static int l_expint_E1_scaled(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_expint_E1_scaled_e(luaL_checknumber(L, 1), &r);
+  return push_result(L, "expint_E1_scaled", st, &r);
+}
+
 static int l_erfc(lua_State *L)
 {
   gsl_sf_result r;
@@ -111,6 +118,13 @@ static int l_gamma(lua_State *L)
   gsl_sf_result r;
   int st = gsl_sf_gamma_e(luaL_checknumber(L, 1), &r);
   return push_result(L, "gamma", st, &r);
+}
+
+static int l_lngamma(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_lngamma_e(luaL_checknumber(L, 1), &r);
+  return push_result(L, "lngamma", st, &r);
 }
 
 /* lngamma_complex(re, im) -> log|Gamma(z)|, arg Gamma(z) (the phase, in (-pi, pi]),
@@ -292,8 +306,10 @@ static const luaL_Reg funcs[] = {
   { "psi", l_psi },
   { "erfc", l_erfc },
   { "expint_E1", l_expint_E1 },
+  { "expint_E1_scaled", l_expint_E1_scaled },
   { "faddeeva_w", l_faddeeva_w },
   { "gamma", l_gamma },
+  { "lngamma", l_lngamma },
   { "lngamma_complex", l_lngamma_complex },
   { "cdf_gamma_Q", l_cdf_gamma_Q },
   { "cdf_binomial_Q", l_cdf_binomial_Q },
