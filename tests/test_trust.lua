@@ -114,3 +114,79 @@ function TestTrustSaddles:test_polynomial_counts()
     end
   end
 end
+
+TestTrustPoles = {}
+
+-- The residue of a pole of high order made by the exponent: D_20 = [z^20] (1+z)^20
+-- (1-z)^-21 is 2 pi i times the residue at 0 of the coefficient integrand, a pole of order
+-- 21 (exact integer, tests/bigint.lua by the sum of C(n,k) C(n+k,k)).
+function TestTrustPoles:test_high_order_residue()
+  local big = require "bigint"
+  local z, n = steep.var "z", steep.param "n"
+  local J = steep.integral { var = z, exponent = n * steep.log(1 + z) - (n + 1) * steep.log(1 - z)
+    - (n + 1) * steep.log(z), amplitude = 1 / (2 * pi * I), contour = steep.circle(0, 0.3),
+    large = n }
+  for _, N in ipairs({ 20, 50 }) do
+    local s = big.new(0)
+    for k = 0, N do s = s + big.binomial(N, k):mul_big(big.binomial(N + k, k)) end
+    local D = s:tonumber()
+    local L = J:landscape { n = N }
+    local pole
+    for _, sg in ipairs(L.singularities) do
+      if sg.kind == "pole" and sg.at:abs() < 1e-12 then pole = sg end
+    end
+    lu.assertNotNil(pole, "the pole at 0")
+    lu.assertEquals(pole.order, N + 1)
+    local got = pole.residue * 2 * pi * I
+    within(got, 2 * pi * pole.residue_error + 2e-16 * D, steep.complex(D, 0), 1e-10,
+      "2 pi i Res = D_" .. N)
+  end
+end
+
+-- A Bromwich integral whose pole sits exactly at the saddle, and one whose pole of order
+-- a is made by -a log t in the exponent:
+--   (1/2 pi i) integral over Re s = 1/2 of (1-s)^-n e^{-s x} / s ds = Q(n, x),
+--   integral over Re t = 1/2 of e^{x t} t^-a / (t - 1) dt = -2 pi i e^x Q(a, x)
+-- (the upper regularized incomplete gamma function, gsl_sf_gamma_inc_Q; the first from
+-- closing the contour round s = 1, the second round t = 0, exact).
+function TestTrustPoles:test_bromwich()
+  local s, n, a = steep.var "s", steep.param "n", steep.param "a"
+  local up = steep.path { steep.inf(-pi / 2), 0.5, steep.inf(pi / 2) }
+  local J1 = steep.integral { var = s, exponent = -n * steep.log(1 - s) - s * x,
+    amplitude = 1 / (2 * pi * I * s), contour = up, large = n }
+  for _, xv in ipairs({ 20, 20.0001, 25 }) do
+    local q, qerr = gsl.gamma_inc_Q(20, xv)
+    local want = steep.complex(q, 0)
+    local v, e = J1:quad { n = 20, x = xv }
+    within(v, e + qerr, want, 1e-10, "Q(20, " .. xv .. ") by quad")
+    local r = J1:expand { n = 20, x = xv, order = 3 }
+    within(r.value, r.error + qerr, want, 1e-6, "Q(20, " .. xv .. ") by expand")
+  end
+  local J2 = steep.integral { var = t, exponent = x * t - a * steep.log(t), amplitude = 1 / (t - 1),
+    contour = up, large = x }
+  for _, xv in ipairs({ 20, 30, 40 }) do
+    local q, qerr = gsl.gamma_inc_Q(30, xv)
+    local want = steep.complex(0, -2 * pi * math.exp(xv) * q)
+    local v, e = J2:quad { x = xv, a = 30 }
+    within(v, e + 2 * pi * math.exp(xv) * qerr, want, 1e-10, "-2 pi i e^x Q(30, x), quad, x = " .. xv)
+    local r = J2:expand { x = xv, a = 30, order = 3 }
+    within(r.value, r.error + 2 * pi * math.exp(xv) * qerr, want, 1e-6, "expand, x = " .. xv)
+  end
+end
+
+-- A simple pole exactly at the saddle: integral of e^{-x t^2}/t along Im t = c is -i pi for
+-- c > 0 and +i pi for c < 0 (the principal value vanishes by oddness; half the residue
+-- with the side's sign; exact). The uniform form takes b = 0 exactly.
+function TestTrustPoles:test_pole_at_the_saddle()
+  for _, c in ipairs({ 0.5, -0.5 }) do
+    local J = steep.integral { var = t, exponent = -x * t ^ 2, amplitude = 1 / t,
+      contour = steep.line(steep.inf(pi, I * c), steep.inf(0, I * c)), large = x }
+    for _, xv in ipairs({ 1, 10, 100 }) do
+      local want = steep.complex(0, c > 0 and -pi or pi)
+      local r = J:expand { x = xv, order = 3 }
+      within(r.value, r.error, want, 1e-12, string.format("c = %g, x = %g", c, xv))
+      local v, e = J:quad { x = xv }
+      within(v, e, want, 1e-5, string.format("quad, c = %g, x = %g", c, xv))
+    end
+  end
+end

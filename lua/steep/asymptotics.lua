@@ -51,8 +51,16 @@ local function saddle_contribution(J, params, L, j, rays, order, plan)
   end
   local symmetric = (m == 2 and c[1] == -c[2])
   if symmetric and c[1] ~= 0 and L.singularities then
-    local series = table.pack(expand.saddle_series(J, params, s.at, 2, 4))
-    local near = nearpole.find(J, params, L, s, series[3])
+    local ok, a0, F0, sm = pcall(expand.saddle_series, J, params, s.at, 2, 4)
+    if not ok then
+      -- the amplitude is singular at the saddle itself (a pole there): the map from F alone
+      local Fs = J.tape:jet(s.at, 3, params, 1)
+      local f2 = Fs:coef(2)
+      a0, F0 = nil, Fs:coef(0)
+      sm = cabs(f2) ^ 0.5 * landscape.expi(-(pi - landscape.carg(f2)) / 2)
+    end
+    local series = { a0, F0, sm }
+    local near = nearpole.find(J, params, L, s, sm)
     if near then
       local u = nearpole.contribution(J, params, L, j, c, near, order, series)
       if u then

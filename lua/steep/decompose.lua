@@ -26,6 +26,7 @@ local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
 local format, pi, abs, floor, huge = string.format, math.pi, math.abs, math.floor, math.huge
 
 local M = {}
+local saddle_under
 
 -- A path's full polyline (a cvec): the part used for quadrature followed by the coarse
 -- tail.
@@ -112,9 +113,9 @@ local function closure_to_valley(L, z, k, Rref, ref_dir)
     while th < mid - pi do th = th + 2 * pi end
     while th > mid + pi do th = th - 2 * pi end
   else
-    -- unwrap th next to the valley's interval
-    while th < v.from - pi do th = th + 2 * pi end
-    while th > v.to + pi do th = th - 2 * pi end
+    -- the turn of th nearest the valley's middle (an end on the valley's edge at -pi/2
+    -- must meet the valley (pi/2, 3pi/2) at 3pi/2, not go round through 0)
+    th = mid + landscape.norm_angle(th - mid)
   end
   return { { z, c + Rref * expi(th) }, core.cvec_arc(c, Rref, th, mid, 64) }
 end
@@ -301,6 +302,20 @@ function M.negligible_end(J, params, L, point, ref, d1)
   local pts = core.cvec { point, far }
   return { points = { point, far }, traced = pts, F = core.cvec { F, F }, reason = "low",
     tail = core.cvec {}, ends = "valley " .. k, evals = 0, straight = true }
+end
+
+-- The saddle (index) whose rays in the plan start at z, and the direction the
+-- combined path leaves it in (along the ray of positive weight), or nil.
+saddle_under = function(plan, L, z)
+  for _, p in ipairs(plan.pieces) do
+    if p.kind == "saddle" and p.weight > 0 then
+      local s = L.saddles[p.index]
+      if cabs(s.at - z) <= 1e-9 * math.max(s.width or 0, 1e-300) + 1e-13 * math.max(1, cabs(z)) then
+        local d = p.points[2] - s.at
+        return p.index, d / cabs(d), p.ray
+      end
+    end
+  end
 end
 
 ---------------------------------------------------------------------------------------
@@ -765,8 +780,23 @@ function M.decompose_uncached(J, params, L, contour, opts)
     if at_contour_end then goto next_singularity end
     -- its winding number: the turnings of the pieces (a reversed piece turns back)
     local w, ok = 0, true
+    -- a simple pole of the amplitude exactly at a saddle the path runs through: counted
+    -- as if it lay just to the right of the path there (the uniform pole-near-saddle form
+    -- then takes the same side: nearpole.fix_side reads `displaced`)
+    local where, displaced = s.at, nil
+    if s.kind == "pole" then
+      local j, dir, ray = saddle_under(plan, L, s.at)
+      if j then
+        where = s.at + 1e-6 * (L.saddles[j].width or R) * cnew(0, -1) * dir
+        -- (the side as the uniform form reads it: relative to ray 1's direction, w
+        -- increasing; right of the path is left of that when the path leaves by ray 2)
+        displaced = ray == 1 and -1 or 1
+        plan.displaced = plan.displaced or {}
+        plan.displaced[idx] = displaced
+      end
+    end
     for _, item in ipairs(cycle) do
-      local t = core.turning(item[1], s.at)
+      local t = core.turning(item[1], where)
       if t == nil then ok = false; break end
       w = w + item[2] * t
     end

@@ -296,6 +296,49 @@ essential_sectors = function(J, params, s, p, rho)
   end
 end
 
+--- residue(J, params, p, nearest, order) -> residue, error estimate, radius (or nil): the
+-- residue of the integrand at the pole p by the trapezoidal rule on the circle where it is
+-- best conditioned. The rule's rounding is about u max|f| rho on the circle, against a
+-- residue that for a pole of high order (t^-30 e^{x t}, made by -30 log t in the
+-- exponent) may be far smaller than |f| near the pole: the radius minimizing
+-- max|f| rho is found on a geometric grid below 0.9 times the distance to the next
+-- singular point (the circle's own saddle point; for a coefficient integral it is the
+-- saddle of the coefficient's Cauchy integral). Points: enough for the rule on every
+-- other point to agree (their difference is the error estimate, with the rounding).
+function M.residue(J, params, p, nearest, order)
+  local best, brho, bspread = huge, nil, 0
+  for i = 0, 60 do
+    local rho = 0.9 * nearest * 2 ^ (-i / 3)
+    local pts = {}
+    for k = 0, 63 do pts[k + 1] = p + rho * expi(2 * pi * (k + 0.5) / 64) end
+    local Fv, gv = J.tape:eval_many(core.cvec(pts), params)
+    local hi, lo = -huge, huge
+    for k = 1, 64 do
+      local fr = cparts(Fv:get(k))
+      local gm = gv and cabs(gv:get(k)) or 1
+      local l = fr + (gm > 0 and log(gm) or -huge)
+      if l ~= l then l = huge end
+      hi, lo = math.max(hi, l), math.min(lo, l)
+    end
+    local score = hi + log(rho)
+    if score < best then best, brho, bspread = score, rho, hi - lo end
+  end
+  if not brho or not (best < 700) then return nil end
+  -- (the function's variation around the circle sets how many points the rule needs)
+  local N = 256
+  while N < 16 * (order + 4) or N < 8 * math.min(bspread, 1e4) do N = 2 * N end
+  local r, e
+  for _ = 1, 4 do
+    local b, vmax, a = laurent(J.tape, params, p, brho, N, 2)
+    r = b[-1] * brho
+    e = cabs(b[-1] - a[-1]) * brho + 8 * 2.2e-16 * vmax * brho + 1e-15 * cabs(r)
+    if not (cabs(r) < huge) then return nil end
+    if e <= 1e-12 * cabs(r) or N >= 16384 then break end
+    N = 2 * N
+  end
+  return r, e, brho
+end
+
 --- The valley sector of an essential singularity s that the direction phi (of t - p)
 -- lies in, or nil.
 function M.essential_sector(s, phi)
@@ -431,6 +474,14 @@ function M.singularities(J, params, region, opts)
         s.residue_error = cabs(b[-1] - a[-1]) * rho + 1e-15 * cabs(s.residue)
           + 8 * 2.2e-16 * vmax * rho
         if cabs(b[-depth]) > 1e-6 * big then s.kind = "essential"; s.order = nil end
+      end
+      if s.kind == "pole" and s.order then
+        -- the residue again on the circle where it is best conditioned
+        local r, e, rho2 = M.residue(J, params, m.at, nearest, s.order)
+        if r and (not s.residue or e < s.residue_error) then
+          s.residue, s.residue_error, s.residue_radius = r, e, rho2
+          s.residue_unknown = nil
+        end
       end
     end
     if s.kind ~= "regular" and s.kind ~= "zero" and s.kind ~= "removable" then
@@ -1028,7 +1079,8 @@ function M.saddle_paths(J, params, L, j)
   end
   local R = L.region.radius
   local gm = cabs(s.g)
-  local ref = cparts(s.F) + (gm > 0 and log(gm) or -30)
+  -- (an amplitude that vanishes or blows up at the saddle itself: measure from F alone)
+  local ref = cparts(s.F) + ((gm > 0 and gm < huge) and log(gm) or 0)
   -- the first step off the saddle stays well inside the distance to the nearest other
   -- saddle or singular point (two saddles close together: a longer one lands past the
   -- other saddle, on a path to the wrong valley)
@@ -1037,7 +1089,13 @@ function M.saddle_paths(J, params, L, j)
   for k, o in ipairs(L.saddles) do
     if k ~= j then step = math.min(step, cabs(o.at - s.at) / 8) end
   end
-  for _, o in ipairs(L.singularities or {}) do step = math.min(step, cabs(o.at - s.at) / 8) end
+  -- (singular points of the exponent only: an amplitude's pole does not bend the paths,
+  -- and one at the saddle itself would leave no room at all)
+  for _, o in ipairs(L.singularities or {}) do
+    if o.source:find("in the exponent", 1, true) then
+      step = math.min(step, cabs(o.at - s.at) / 8)
+    end
+  end
   local function traced(descent)
     local out = {}
     local starts = core.saddle_starts(J.tape, params, s.at, s.F, s.order, s.coef, descent,

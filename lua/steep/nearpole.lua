@@ -130,7 +130,7 @@ end
 -- The decomposition decided sides with the traced polyline; a pole within its chord error
 -- of the exact path may have been put on the wrong side, so the side is re-decided exactly
 -- from Im b here. If the polyline said otherwise, the winding about the pole changes by the
--- saddle's weight c1 (the pole crossing the path from right to left adds c1).
+-- saddle's weight c1 (the pole crossing the path from right to left takes c1 away).
 function M.fix_side(plan, near, c, rays)
   local ray1, ray2
   for _, piece in ipairs(rays) do
@@ -140,14 +140,21 @@ function M.fix_side(plan, near, c, rays)
   local poly = {}
   for k = #ray2, 2, -1 do poly[#poly + 1] = ray2[k] end
   for k = 1, #ray1 do poly[#poly + 1] = ray1[k] end
-  -- side relative to the polyline: nearest segment's orientation
-  local _, k = core.nearest(poly, near.pole.at)
-  local _, im = cparts((near.pole.at - poly[k]) / (poly[k + 1] - poly[k]))
-  local side_poly = im > 0 and 1 or -1
+  -- side relative to the polyline: nearest segment's orientation (a pole at the saddle
+  -- itself was counted as displaced to one side: decompose says which)
+  local side_poly = plan.displaced and plan.displaced[near.index]
+  if not side_poly then
+    local _, k = core.nearest(poly, near.pole.at)
+    local _, im = cparts((near.pole.at - poly[k]) / (poly[k + 1] - poly[k]))
+    side_poly = im > 0 and 1 or -1
+  end
+  -- (the same convention as pole_integral: Im b >= 0 is the left)
   local _, bi = cparts(near.b)
-  local side_exact = bi > 0 and 1 or -1
+  local side_exact = bi >= 0 and 1 or -1
   if side_poly == side_exact then return end
-  local delta = side_exact > 0 and c[1] or -c[1]
+  -- the cycle is contour - c1 * path: a pole that crosses the path from its right to its
+  -- left crosses -c1 * path from left to right, and the cycle's winding about it falls by c1
+  local delta = side_exact > 0 and -c[1] or c[1]
   for _, r in ipairs(plan.residues) do
     if r.index == near.index then r.winding = r.winding + delta; return end
   end
