@@ -24,7 +24,8 @@ local function exp_c(z) return cexp("exp", complex.new(cparts(z))) end
 local function raw_count(order, m, symmetric)
   local per = symmetric and m or 1
   if order == "optimal" then return math.min(120, 250 - m) end
-  return per * (order + 2) + m
+  -- (three omitted terms: the error estimate reads how the series goes on)
+  return per * (order + 4) + m
 end
 
 local function check_order(order, fname)
@@ -68,10 +69,11 @@ local function saddle_contribution(J, params, L, j, rays, order, plan)
   local value, err, used = expand.truncate(terms, order, scale, cabs(F0), terr)
   local kind = m == 2 and "saddle" or format("saddle of order %d", m)
   if at_endpoint then kind = kind .. " at an endpoint" end
-  local tl = {}
+  local tl, omitted = {}, {}
   for k = 1, used do tl[k] = terms[k] * scale end
+  for k = used + 1, math.min(#terms, used + 3) do omitted[#omitted + 1] = terms[k] * scale end
   return { kind = kind, at = s.at, order = m, weights = c, F = F0, value = value,
-    error = err, terms = tl, powers = powers, used = used,
+    error = err, terms = tl, omitted = omitted, powers = powers, used = used,
     dominance = cparts(F0) }
 end
 
@@ -85,11 +87,12 @@ local function endpoint_contribution(J, params, piece, order, L)
   local terms, _, terr = expand.endpoint_terms(b, beta, nraw, berr)
   local scale = exp_c(Fa) * piece.weight
   local value, err, used = expand.truncate(terms, order, scale, cabs(Fa), terr)
-  local tl = {}
+  local tl, omitted = {}, {}
   for k = 1, used do tl[k] = terms[k] * scale end
+  for k = used + 1, math.min(#terms, used + 3) do omitted[#omitted + 1] = terms[k] * scale end
   return { kind = beta and format("endpoint with factor (t-a)^%g", beta) or "endpoint",
     at = piece.at, weight = piece.weight, F = Fa, value = value, error = err, terms = tl,
-    used = used, dominance = cparts(Fa), beta = beta }
+    omitted = omitted, used = used, dominance = cparts(Fa), beta = beta }
 end
 
 local function residue_contribution(L, r)
@@ -174,19 +177,8 @@ function M.local_plan(J, L, plan)
 end
 
 
---- expand(J, params, opts) -> result
-function M.expand(J, params, opts)
-  local order = check_order(opts.order or 1, "expand")
-  local L = opts.landscape or J:_landscape(params, opts.region, false)
-  local plan = decompose.decompose(J, params, L, J.contour)
-  if plan.status ~= "ok" then
-    local lp = M.local_plan(J, L, plan)
-    if lp then plan = lp end
-  end
-  if plan.status ~= "ok" then
-    error("expand: the contour could not be decomposed into steepest descent paths ("
-      .. plan.status .. "): " .. table.concat(plan.notes, "; ") .. failure_detail(L), 0)
-  end
+-- The contributions of a plan's pieces and residues, expanded to `order`.
+local function contributions_of(J, params, L, plan, order)
   local contributions = {}
   local by_saddle, order_seen = {}, {}
   for _, piece in ipairs(plan.pieces) do
@@ -244,18 +236,81 @@ function M.expand(J, params, opts)
   for _, r in ipairs(plan.residues) do
     if r.winding ~= 0 then contributions[#contributions + 1] = residue_contribution(L, r) end
   end
+  return contributions
+end
+
+-- On a Stokes line with a genuine jump: the mean of the two sides' contributions (Berry's
+-- multiplier 1/2 on the line), each with half the difference as part of its error (the
+-- unsettled part).
+local function mean_of_sides(plus, minus)
+  local out, used = {}, {}
+  local function key(c) return c.kind .. "@" .. tostring(c.at) end
+  local byk = {}
+  for _, c in ipairs(minus) do byk[key(c)] = c end
+  for _, c in ipairs(plus) do
+    local m = byk[key(c)]
+    if m then used[m] = true end
+    if m and cabs(m.value - c.value) <= 1e-15 * cabs(c.value) then
+      out[#out + 1] = c
+    else
+      local mv, me = m and m.value or cnew(0, 0), m and m.error or 0
+      local d = cabs(c.value - mv)
+      local mc = {}
+      for k, v in pairs(c) do mc[k] = v end
+      mc.value = 0.5 * (c.value + mv)
+      mc.error = 0.5 * (c.error + me) + 0.5 * d
+      mc.unsettled = 0.5 * d
+      mc.kind = c.kind .. " (on a Stokes line: mean of its two sides)"
+      out[#out + 1] = mc
+    end
+  end
+  for _, m in ipairs(minus) do
+    if not used[m] then
+      local mc = {}
+      for k, v in pairs(m) do mc[k] = v end
+      mc.value, mc.error, mc.unsettled = 0.5 * m.value, 0.5 * m.error + 0.5 * cabs(m.value),
+        0.5 * cabs(m.value)
+      mc.kind = m.kind .. " (on a Stokes line: mean of its two sides)"
+      out[#out + 1] = mc
+    end
+  end
+  return out
+end
+
+--- expand(J, params, opts) -> result
+function M.expand(J, params, opts)
+  local order = check_order(opts.order or 1, "expand")
+  local L = opts.landscape or J:_landscape(params, opts.region, false)
+  local plan = decompose.decompose(J, params, L, J.contour)
+  if plan.status ~= "ok" then
+    local lp = M.local_plan(J, L, plan)
+    if lp then plan = lp end
+  end
+  if plan.status ~= "ok" then
+    error("expand: the contour could not be decomposed into steepest descent paths ("
+      .. plan.status .. "): " .. table.concat(plan.notes, "; ") .. failure_detail(L), 0)
+  end
+  local contributions = contributions_of(J, params, L, plan, order)
+  local stokes = type(plan.stokes) == "table" and plan.stokes or nil
+  if stokes and not stokes.settled then
+    contributions = mean_of_sides(contributions, contributions_of(J, params, L, stokes.minus, order))
+  end
   table.sort(contributions, function(a, b) return a.dominance > b.dominance end)
-  local value, err = cnew(0, 0), 0
+  local value, err, unsettled = cnew(0, 0), 0, 0
   for _, c in ipairs(contributions) do
     value = value + c.value
     err = err + c.error
+    unsettled = unsettled + (c.unsettled or 0)
   end
   -- the status says how far to trust the number before any comparison with quadrature
   local status = plan.is_local and "estimated (local method)" or "estimated"
   local reasons = {}
-  if plan.stokes then
+  if plan.stokes == true then
     reasons[#reasons + 1] = "a saddle connection (Stokes line): the weight of a subdominant "
-      .. "saddle is ambiguous there"
+      .. "saddle could not be decided there"
+  elseif stokes and not stokes.settled and unsettled > err - unsettled then
+    reasons[#reasons + 1] = format("on a Stokes line with a genuine jump: the unsettled part "
+      .. "(%.3g) is larger than the rest of the error estimate", unsettled)
   end
   if not (err < cabs(value)) then
     reasons[#reasons + 1] = "the error estimate is not smaller than the value"
@@ -270,7 +325,8 @@ function M.expand(J, params, opts)
   if #reasons > 0 then status = "suspect: " .. table.concat(reasons, "; ") end
   local result = { value = value, error = err, contributions = contributions,
     order = order, params = params, landscape = L, notes = plan.notes,
-    stokes = plan.stokes or false, integral = J, status = status }
+    stokes = plan.stokes and true or false, integral = J, status = status,
+    stokes_line = stokes and { settled = stokes.settled, unsettled = unsettled } or nil }
   setmetatable(result, { __index = { report = M.report } })
   if opts.verify then M.verify(J, params, result, opts) end
   return result
@@ -353,7 +409,14 @@ function M.report(r, opts)
   end
   add("status: %s%s", r.status, r.check and "" or
     " (not compared with quadrature: verify = true or J:check does that)")
-  if r.stokes then add("warning: a saddle connection was found (Stokes line): see notes") end
+  if r.stokes_line and r.stokes_line.settled then
+    add("on a Stokes line: the weights are the same on both sides of it (settled)")
+  elseif r.stokes_line then
+    add("on a Stokes line with a genuine jump: mean of both sides, unsettled part %.3g",
+      r.stokes_line.unsettled)
+  elseif r.stokes then
+    add("warning: a saddle connection was found (Stokes line): see notes")
+  end
   for _, n in ipairs(r.notes or {}) do add("note: %s", n) end
   add("caution: an asymptotic approximation; check it (J:check) before it informs any "
     .. "engineering, financial or safety decision")

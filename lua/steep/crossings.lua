@@ -17,6 +17,43 @@ local copy, fmtv, is_real, with_large = routes.copy, routes.fmtv, routes.is_real
 
 local M = {}
 
+-- Each previous saddle's nearest current one (each used once, nearest pairs first).
+local function follow(prev, cur)
+  local pairs_ = {}
+  for i, a in ipairs(prev) do
+    for j, b in ipairs(cur) do pairs_[#pairs_ + 1] = { i, j, cabs(a.at - b.at) } end
+  end
+  table.sort(pairs_, function(u, w) return u[3] < w[3] end)
+  local match, used = {}, {}
+  for _, q in ipairs(pairs_) do
+    if not match[q[1]] and not used[q[2]] then match[q[1]], used[q[2]] = q[2], true end
+  end
+  return match
+end
+
+-- The net weight of each saddle in the held contour's decomposition (a string of its
+-- ray weights), or nil when the decomposition fails.
+local function stokes_weights(J, p, L)
+  local ok, plan = pcall(require("steep.decompose").decompose, J, p, L, J.contour)
+  if not ok or plan.status ~= "ok" then return nil end
+  -- (on the line itself the weights are one side's: not a reference for either side)
+  if plan.stokes then return nil, true end
+  local w = {}
+  for j, s in ipairs(L.saddles) do
+    local r = {}
+    for k = 1, s.order do r[k] = 0 end
+    w[j] = r
+  end
+  for _, piece in ipairs(plan.pieces) do
+    if piece.kind == "saddle" then
+      w[piece.index][piece.ray] = w[piece.index][piece.ray] + piece.weight
+    end
+  end
+  local out = {}
+  for j, r in ipairs(w) do out[j] = table.concat(r, ",") end
+  return out
+end
+
 -- Which side of the held contour z lies on: 1 left (inside the contour closed by a
 -- counter-clockwise arc at large radius from its end back to its start), 0 right.
 local function side_of(poly, closed, z, Rfar)
@@ -59,7 +96,8 @@ function M.crossings(J, opts)
   local region = { center = cnew(0, 0), radius = 20 * scale }
   local poly = J.contour:sample { radius = 40 * scale, n = 64 }
   local events, track = {}, {}
-  local prev_sing, prev_saddles, prev_valleys = nil, nil, nil
+  local prev_sing, prev_saddles, prev_valleys, prev_weights = nil, nil, nil, nil
+  local sad_id, next_id, last_sign = {}, 0, {}
   local factor = J.rescaling and J.rescaling.factor
   local prev_factor
   local function add_event(e) events[#events + 1] = e end
@@ -195,21 +233,65 @@ function M.crossings(J, opts)
           .. "has order %d (saddles merged)", x, fmtv(v), fmtv(sad[i].at), sad[i].order) })
       end
     end
-    if prev_saddles and #prev_saddles == #sad then
-      for i = 1, #sad do
-        for j = i + 1, #sad do
-          local a = select(2, cparts(prev_saddles[i].F - prev_saddles[j].F))
-          local b = select(2, cparts(sad[i].F - sad[j].F))
-          if a * b < 0 then
+    -- Stokes lines: saddles followed from the previous step by position (not by their
+    -- place in the list, which may change); where Im(F_j - F_k) of a followed pair changes
+    -- sign (against its last non-zero sign: a step may sit exactly on the line), the
+    -- contour's decomposition on either side says whether a weight actually switched (the
+    -- lower saddle's jumps by the intersection number times the higher one's weight, so a
+    -- Stokes line often changes nothing)
+    local weights, on_line = stokes_weights(J, p, L)
+    if prev_saddles then
+      local match = follow(prev_saddles, sad)
+      for i, ps in ipairs(prev_saddles) do
+        if match[i] then sad_id[sad[match[i]]] = ps.id end
+      end
+    end
+    local followed = {}
+    for k, s in ipairs(sad) do
+      if not sad_id[s] then next_id = next_id + 1; sad_id[s] = next_id end
+      followed[k] = { at = s.at, F = s.F, id = sad_id[s] }
+    end
+    for i = 1, #sad do
+      for j = i + 1, #sad do
+        local lo, hi = math.min(followed[i].id, followed[j].id), math.max(followed[i].id, followed[j].id)
+        local key = lo .. ":" .. hi
+        local d = select(2, cparts(sad[i].F - sad[j].F))
+        if followed[i].id > followed[j].id then d = -d end
+        local tol = 1e-12 * (1 + cabs(sad[i].F) + cabs(sad[j].F))
+        local b = d > tol and 1 or (d < -tol and -1 or 0)
+        local a = last_sign[key]
+        if b ~= 0 then last_sign[key] = b end
+        if a and b ~= 0 and a ~= b and prev_saddles then
+          local switched, known = {}, prev_weights and weights and true
+          if known then
+            for _, k in ipairs({ i, j }) do
+              local before = prev_weights[followed[k].id]
+              local after = weights[k]
+              if before ~= after then
+                switched[#switched + 1] = format("the saddle at %s: weight %s -> %s",
+                  fmtv(sad[k].at), tostring(before), after)
+              end
+            end
+          end
+          if not known or #switched > 0 then
             add_event({ kind = "stokes", at = v, text = format("between %s = %s and %s, Im F "
-              .. "of saddles %d and %d became equal: a Stokes line (where the subdominant "
-              .. "saddle may switch on or off) was crossed", x, fmtv(values[step - 1]),
-              fmtv(v), i, j) })
+              .. "of the saddles at %s and %s became equal: a Stokes line was crossed; %s",
+              x, fmtv(values[step - 1]), fmtv(v), fmtv(sad[i].at), fmtv(sad[j].at),
+              known and (table.concat(switched, "; ") .. " (the subdominant one switched)")
+              or "the decomposition could not say whether a weight switched") })
           end
         end
       end
     end
-    prev_saddles = sad
+    -- weights by saddle id, for the next steps (kept across a step on the line itself)
+    if weights then
+      local by_id = {}
+      for k, w in ipairs(weights) do by_id[followed[k].id] = w end
+      prev_weights = by_id
+    elseif not on_line then
+      prev_weights = nil
+    end
+    prev_saddles = followed
     -- contour ends and their valleys
     if not J.contour.closed then
       for _, which in ipairs({ "start", "finish" }) do

@@ -49,9 +49,9 @@ end
 
 --- The label of a contour end: a finite point (nil), a sink, or a valley; for an end at
 -- infinity the ray that reaches it starts at `from`.
-local function contour_end_label(L, e, which, from)
+local function contour_end_label(L, e, which, from, tol)
   if contour_m.is_inf(e) then
-    local k, boundary = landscape.ray_valley(L, from or e.through or cnew(0, 0), e.angle)
+    local k, boundary = landscape.ray_valley(L, from or e.through or cnew(0, 0), e.angle, tol)
     if not k then
       error(format("the contour's %s end at infinity (the ray from %s in direction %.6g) is "
         .. "outside every valley: the integral diverges there (valleys: %s)", which,
@@ -92,7 +92,7 @@ end
 
 -- The closure from a far end point z to valley k's reference point, as two polylines:
 -- radially out to radius Rref, then along the arc inside the valley (a steep.cvec).
-local function closure_to_valley(L, z, k, Rref)
+local function closure_to_valley(L, z, k, Rref, ref_dir)
   local v = L.valleys[k]
   if v.type == "strip" then
     -- across to the strip's middle line, then along it to the reference point
@@ -104,9 +104,18 @@ local function closure_to_valley(L, z, k, Rref)
   local mid = (v.type == "edge" or v.type == "line") and v.from or 0.5 * (v.from + v.to)
   local c = L.region.center
   local th = carg(z - c)
-  -- unwrap th next to the valley's interval
-  while th < v.from - pi do th = th + 2 * pi end
-  while th > v.to + pi do th = th - 2 * pi end
+  if ref_dir then
+    -- a valley all around (algebraic decay everywhere): the shorter arc to a reference
+    -- direction chosen where the ends are, so that the cycle does not go round the
+    -- whole plane (that would ask for every finite singular point's residue)
+    mid = ref_dir
+    while th < mid - pi do th = th + 2 * pi end
+    while th > mid + pi do th = th - 2 * pi end
+  else
+    -- unwrap th next to the valley's interval
+    while th < v.from - pi do th = th + 2 * pi end
+    while th > v.to + pi do th = th - 2 * pi end
+  end
   return { { z, c + Rref * expi(th) }, core.cvec_arc(c, Rref, th, mid, 64) }
 end
 
@@ -186,7 +195,8 @@ local function solve_by_ends(L, boundary, fixed, free)
   for _, j in ipairs(free) do
     local d = L.paths[j].descent
     for k = 1, #d do
-      if not (d[k].ends:match("^valley %d+$") or d[k].ends:match("^sink %d+$")) then return nil end
+      if not (d[k].ends:match("^valley %d+$") or d[k].ends:match("^sink %d+$")
+          or d[k].ends:match("^essential ")) then return nil end
     end
     for k = 1, #d - 1 do cols[#cols + 1] = { j = j, k = k, plus = d[#d].ends, minus = d[k].ends } end
   end
@@ -293,6 +303,151 @@ function M.negligible_end(J, params, L, point, ref, d1)
     tail = core.cvec {}, ends = "valley " .. k, evals = 0, straight = true }
 end
 
+---------------------------------------------------------------------------------------
+-- Stokes lines.
+---------------------------------------------------------------------------------------
+
+-- The name of the hidden parameter that turns the exponent's phase (F -> e^{i eps} F).
+local PHASE = "steep_phase__"
+local renumber_rays
+
+-- The integral with exponent e^{i eps} F (the phase a parameter), built once per integral.
+local function turned(J)
+  if not J._turned then
+    local expr = require "steep.expr"
+    local rho = expr.symbol("param", PHASE)
+    local F = J.exponent * rho
+    local K = setmetatable({ exponent = F, tape = expr.compile({ F, J.amplitude }, J.var, 3),
+      _acache = {}, _lcache = {} }, { __index = J })
+    J._turned = K
+  end
+  return J._turned
+end
+
+-- The landscape of e^{i eps} F from L: the same saddles (F' vanishes where it did) with
+-- their values turned, the same singular points, the valleys of the turned exponent.
+local function turned_landscape(K, params, L)
+  local rho = params[PHASE]
+  local Lr = { region = L.region, params = params, notes = {}, singularities = L.singularities,
+    saddle_count = L.saddle_count }
+  Lr.saddles = {}
+  for j, s in ipairs(L.saddles) do
+    Lr.saddles[j] = { at = s.at, order = s.order, F = s.F * rho, F2 = s.F2 * rho,
+      coef = s.coef * rho, g = s.g, width = s.width }
+  end
+  local info
+  Lr.valleys, info = landscape.valleys(K, params, L.region)
+  Lr.growth, Lr.strip_families = info, info.families
+  return Lr
+end
+
+-- The angle of descent ray k (1-based) of a saddle of order m with F - F0 ~ c h^m, as
+-- core.saddle_starts numbers them (and expand.saddle_series orients its map).
+local function ray_angle(c, m, k) return (pi - carg(c) + 2 * pi * (k - 1)) / m end
+
+-- The turned exponent's rays are numbered from arg(e^{i eps} c), which may wrap past pi:
+-- give each piece the number of the original ray it lies along (the expansion orients its
+-- series by the original numbering).
+renumber_rays = function(plan, L, Lr)
+  for _, p in ipairs(plan.pieces) do
+    if p.kind == "saddle" then
+      local s, sr = L.saddles[p.index], Lr.saddles[p.index]
+      local a = ray_angle(sr.coef, sr.order, p.ray)
+      local best, bk = huge, p.ray
+      for k = 1, s.order do
+        local d = abs(landscape.norm_angle(ray_angle(s.coef, s.order, k) - a))
+        if d < best then best, bk = d, k end
+      end
+      p.ray = bk
+    end
+  end
+end
+
+-- Weights per saddle (lists over its rays) from a plan's saddle pieces.
+local function weights_of(plan, L)
+  local w = {}
+  for j, s in ipairs(L.saddles) do
+    w[j] = {}
+    for k = 1, s.order do w[j][k] = 0 end
+  end
+  for _, p in ipairs(plan.pieces) do
+    if p.kind == "saddle" then w[p.index][p.ray] = w[p.index][p.ray] + p.weight end
+  end
+  return w
+end
+
+--- across_stokes_line(J, params, L, contour, notes) -> plan or nil. On a Stokes line two
+-- saddles have equal Im F and a descent path of the higher runs into the lower; the
+-- lower one's weight may jump there by (intersection number) x (the higher one's
+-- weight). Turning the exponent's phase by +-eps keeps the saddles where they are and
+-- separates them; the contour is decomposed on both sides. Equal weights: the
+-- decomposition is settled (the usual case: the higher saddle's weight is 0). Different
+-- weights: a genuine Stokes jump; the plan carries both sides (plan.stokes.minus) and the
+-- expansion takes Berry's multiplier 1/2 on the line (M. V. Berry, Proc. R. Soc. A 422
+-- (1989) 7-21). Either side's paths are an exact deformation of the contour for
+-- quadrature (they end in the same valleys: the turn is far smaller than any sector).
+function M.across_stokes_line(J, params, L, contour, notes)
+  local K = turned(J)
+  for _, eps in ipairs({ 1e-2, 2e-3, 4e-2 }) do
+    local sides = {}
+    for _, sign in ipairs({ 1, -1 }) do
+      local p = {}
+      for k, v in pairs(params) do p[k] = v end
+      p[PHASE] = cnew(math.cos(sign * eps), math.sin(sign * eps))
+      local Lr = turned_landscape(K, p, L)
+      local ok, plan = pcall(M.decompose_uncached, K, p, Lr, contour,
+        { rotated = true, end_tol = 4 * eps })
+      if not ok or plan.stokes or plan.status ~= "ok" then sides = nil; break end
+      renumber_rays(plan, L, Lr)
+      sides[#sides + 1] = { plan = plan, L = Lr, weights = weights_of(plan, Lr) }
+    end
+    if sides then
+      local plus, minus = sides[1], sides[2]
+      local same = true
+      for j = 1, #L.saddles do
+        for k = 1, L.saddles[j].order do
+          if plus.weights[j][k] ~= minus.weights[j][k] then same = false end
+        end
+      end
+      local plan = plus.plan
+      if same then
+        -- the saddles' own paths, where every weighted one ends in a valley (the higher
+        -- saddle's path into the lower one then carries weight 0): truly steepest, and
+        -- symmetric where the problem is
+        local ok, own = pcall(M.decompose_uncached, J, params, L, contour,
+          { weights = plus.weights })
+        if ok and own.status == "ok" then plan = own end
+      end
+      plan.notes = {}
+      for _, n in ipairs(notes) do plan.notes[#plan.notes + 1] = n end
+      if same then
+        plan.notes[#plan.notes + 1] = format("on the Stokes line the weights are the same on "
+          .. "both sides of it (exponent's phase turned by +-%g): the decomposition is "
+          .. "settled", eps)
+        plan.stokes = { settled = true, eps = eps }
+      else
+        local changed = {}
+        for j = 1, #L.saddles do
+          for k = 1, L.saddles[j].order do
+            if plus.weights[j][k] ~= minus.weights[j][k] then
+              changed[#changed + 1] = format("saddle %d ray %d: %+d / %+d", j, k,
+                plus.weights[j][k], minus.weights[j][k])
+            end
+          end
+        end
+        plan.notes[#plan.notes + 1] = format("a genuine Stokes jump: the weights differ on "
+          .. "the two sides of the line (%s); the expansion takes the mean of the two "
+          .. "sides (Berry's multiplier 1/2 on the line)", table.concat(changed, "; "))
+        plan.stokes = { settled = false, eps = eps, minus = minus.plan, plus_weights = plus.weights,
+          minus_weights = minus.weights }
+      end
+      plan.turned = K
+      return plan
+    end
+  end
+  return nil
+end
+
 --- decompose(J, params, L, contour) -> plan
 -- plan.pieces: list of {kind = "saddle" | "endpoint", index (saddle), ray (its descent
 -- ray), weight, points (for quadrature, outward), ends = {from label, to label}};
@@ -357,8 +512,9 @@ function M.decompose_uncached(J, params, L, contour, opts)
     local s, f = contour:start(), contour:finish()
     local boundary_s, boundary_f
     local first, last = contour.pieces[1], contour.pieces[#contour.pieces]
-    start_label, boundary_s = contour_end_label(L, s, "starting", first.b)
-    finish_label, boundary_f = contour_end_label(L, f, "finishing", last.a)
+    local tol = opts and opts.end_tol
+    start_label, boundary_s = contour_end_label(L, s, "starting", first.b, tol)
+    finish_label, boundary_f = contour_end_label(L, f, "finishing", last.a, tol)
     if boundary_s or boundary_f then
       plan.notes[#plan.notes + 1] = "an end lies on the edge of its valley: the integrand "
         .. "oscillates there without decaying (convergent only conditionally)"
@@ -454,6 +610,19 @@ function M.decompose_uncached(J, params, L, contour, opts)
       free[#free + 1] = j
     end
   end
+  -- weights decided elsewhere (on a Stokes line, from its two sides)
+  if opts and opts.weights then
+    for j in ipairs(L.saddles) do fixed[j] = opts.weights[j] end
+    free = {}
+    plan.stokes = nil
+  end
+  -- on a Stokes line: decide the weights on both sides of it
+  if plan.stokes and not (opts and opts.rotated) then
+    local sp = M.across_stokes_line(J, params, L, contour, plan.notes)
+    if sp then return sp end
+    plan.notes[#plan.notes + 1] = "the weights could not be decided on either side of the "
+      .. "Stokes line (turning the exponent's phase did not separate the saddles)"
+  end
   local by_ends = not plan.stokes and not (opts and opts.by_crossings)
     and solve_by_ends(L, boundary, fixed, free)
   if #free > 0 then plan.weights_by = by_ends and "ends" or "crossings" end
@@ -506,7 +675,7 @@ function M.decompose_uncached(J, params, L, contour, opts)
   for _, piece in ipairs(plan.pieces) do
     for _, label in ipairs(piece.ends) do
       if label ~= "point" and not (label:match("^valley") or label:match("^sink")
-          or label:match("^saddle")) then
+          or label:match("^saddle") or label:match("^essential")) then
         plan.status = plan.status == "ok" and "incomplete" or plan.status
         plan.notes[#plan.notes + 1] = format("a steepest descent path of the %s %s ends at "
           .. "'%s', not in a valley or a sink: the deformation is not settled",
@@ -533,11 +702,41 @@ function M.decompose_uncached(J, params, L, contour, opts)
   -- residues: winding of (contour - combination), closed through the valleys
   local Rref = 16 * R
   -- the cycle as polylines with signs (closures as lists of polylines)
+  -- (a valley all around: its reference direction is the mean direction of the ends
+  -- that close into it)
+  local ref_dirs = {}
+  do
+    local sums = {}
+    local function note(z, label)
+      local k = label and tonumber(label:match("^valley (%d+)$"))
+      local v = k and L.valleys[k]
+      if v and v.type ~= "strip" and v.to - v.from >= 2 * pi - 1e-9 then
+        local u = (z - L.region.center) / math.max(cabs(z - L.region.center), 1e-300)
+        sums[k] = sums[k] or { s = cnew(0, 0), first = u }
+        sums[k].s = sums[k].s + u
+      end
+    end
+    if not contour.closed then
+      note(cpts[1], start_label)
+      note(cpts[#cpts], finish_label)
+    end
+    for _, piece in ipairs(plan.pieces) do note(piece.full:get(#piece.full), piece.ends[2]) end
+    for k, s in pairs(sums) do
+      ref_dirs[k] = carg(cabs(s.s) > 1e-6 and s.s or s.first)
+    end
+  end
   local function closure(z, label)
     local k = label:match("^valley (%d+)$")
-    if k then return closure_to_valley(L, z, tonumber(k), Rref) end
+    if k then return closure_to_valley(L, z, tonumber(k), Rref, ref_dirs[tonumber(k)]) end
     local sj = label:match("^sink (%d+)$")
     if sj then return { { z, L.singularities[tonumber(sj)].at } } end
+    -- a path that stopped next to a saddle: into the saddle itself (its own rays start
+    -- there exactly; a gap would leave the winding numbers short of an integer)
+    local dj = label:match("^saddle (%d+)$")
+    if dj then return { { z, L.saddles[tonumber(dj)].at } } end
+    -- into an essential singularity through one of its valley sectors
+    local ej = label:match("^essential (%d+):")
+    if ej then return { { z, L.singularities[tonumber(ej)].at } } end
     return nil
   end
   local cycle = { { cvec, 1 } }
@@ -572,8 +771,9 @@ function M.decompose_uncached(J, params, L, contour, opts)
       w = w + item[2] * t
     end
     local n = floor(w + 0.5)
-    if not ok and s.kind == "sink" then
-      -- a path ends at the sink (the integrand vanishes there): no residue
+    if not ok and (s.kind == "sink" or (s.kind == "essential" and s.sectors)) then
+      -- a path ends at the sink, or at an essential singularity through a valley sector
+      -- (the integrand vanishes there): no residue
     elseif not ok then
       plan.status = "incomplete"
       plan.notes[#plan.notes + 1] = format("a steepest path passes through the %s at %s",

@@ -15,6 +15,7 @@ local format, pi, abs, log, huge = string.format, math.pi, math.abs, math.log, m
 local cos, sin, atan, floor = math.cos, math.sin, math.atan, math.floor
 
 local M = {}
+local essential_sectors
 
 -- |z| and arg z of a number or complex value (the complex case read inline: these run
 -- in most loops of the library)
@@ -257,6 +258,53 @@ end
 
 local function near_integer(x, tol) return abs(x - floor(x + 0.5)) <= tol end
 
+-- At an essential singularity p of the integrand made by a pole of the exponent,
+-- F ~ c (t - p)^(-k): the integrand vanishes as t -> p from the k sectors where
+-- cos(arg c - k phi) < 0, phi = arg(t - p) (valleys at p, as at infinity under t - p = 1/u).
+-- k and c from the Laurent coefficients of F' (single-valued even where F has a log
+-- there) by the trapezoidal rule on a circle: F' ~ -k c (t - p)^(-k-1). Sets s.pole_order,
+-- s.lead, s.sectors ({from, to} angles) when the leading term is clear.
+essential_sectors = function(J, params, s, p, rho)
+  local n, depth = 64, 12
+  local vals = {}
+  for j = 0, n - 1 do
+    local u = expi(2 * pi * j / n)
+    local ok, Fs = pcall(J.tape.jet, J.tape, p + rho * u, 1, params, 1)
+    if not ok then return end
+    vals[j] = Fs:coef(1)
+  end
+  -- b_m = (1/n) sum F'_j u_j^(-m) rho^(-m): the coefficient of (t - p)^m
+  local lead, order, big = nil, nil, 0
+  local coef = {}
+  for m = -depth - 1, 0 do
+    local sum = cnew(0, 0)
+    for j = 0, n - 1 do sum = sum + vals[j] * expi(-2 * pi * j * m / n) end
+    coef[m] = sum / n * rho ^ (-m)
+    big = math.max(big, cabs(coef[m]) * rho ^ m)
+  end
+  for m = -depth - 1, -2 do
+    if cabs(coef[m]) * rho ^ m > 1e-8 * big then order = -m - 1; lead = coef[m]; break end
+  end
+  if not order or order == depth then return end
+  local c = lead / (-order)
+  s.pole_order, s.lead = order, c
+  s.sectors = {}
+  local a = carg(c)
+  for j = 0, order - 1 do
+    local from = (a + pi / 2 + 2 * pi * j) / order
+    s.sectors[#s.sectors + 1] = { from = norm_angle(from), width = pi / order }
+  end
+end
+
+--- The valley sector of an essential singularity s that the direction phi (of t - p)
+-- lies in, or nil.
+function M.essential_sector(s, phi)
+  for k, v in ipairs(s.sectors or {}) do
+    local d = (phi - v.from) % (2 * pi)
+    if d > 0 and d < v.width then return k end
+  end
+end
+
 --- singularities(J, params, region) -> list of {at, kind, order, residue, error, where,
 -- source, coefficient}, info. kind: "pole" (of the integrand, with its residue),
 -- "branch" (branch point), "sink" / "hill" (log point of the exponent where the
@@ -313,6 +361,7 @@ function M.singularities(J, params, region, opts)
     s.source = table.concat(s.sources, "; ")
     if kinds["denominator:exponent"] or kinds["tan:exponent"] then
       s.kind = "essential"
+      essential_sectors(J, params, s, m.at, rho)
     elseif kinds["log:exponent"] and not (kinds["root:exponent"] or kinds["power:exponent"]) then
       local c = log_coefficient(J.tape, params, m.at, rho)
       s.coefficient = c
@@ -594,14 +643,18 @@ function M.valley_of(valleys, th, tol)
   local boundary, edge
   for k, v in ipairs(valleys) do
     if v.type == "strip" then goto next_valley end
-    local d = norm_angle(th - v.from)
-    local width = v.to - v.from
-    if v.type == "edge" or v.type == "line" then
-      if abs(d) <= math.max(tol, 1e-6) then edge = edge or k end
-    elseif d > tol and d < width - tol then
-      return k, false
-    elseif abs(d) <= math.max(tol, 1e-6) or abs(d - width) <= math.max(tol, 1e-6) then
-      boundary = boundary or k
+    do
+      local width = v.to - v.from
+      local t2 = math.max(tol, 1e-6)
+      -- the angle past the sector's start, in [0, 2 pi)
+      local d = (th - v.from) % (2 * pi)
+      if v.type == "edge" or v.type == "line" then
+        if d <= t2 or d >= 2 * pi - t2 then edge = edge or k end
+      elseif width >= 2 * pi - tol or (d > tol and d < width - tol) then
+        return k, false
+      elseif d <= t2 or d >= 2 * pi - t2 or abs(d - width) <= t2 then
+        boundary = boundary or k
+      end
     end
     ::next_valley::
   end
@@ -637,9 +690,23 @@ end
 --- ray_valley(L, a, th) -> index, boundary: the valley in which the ray from a in
 -- direction th ends (a sector: by th alone; a strip: the one holding the ray's line),
 -- and whether the ray runs along the valley's edge; nil when it ends in none.
-function M.ray_valley(L, a, th)
+function M.ray_valley(L, a, th, tol)
   local k, boundary = M.valley_of(L.valleys, th)
   if k then return k, boundary end
+  if tol then
+    -- (a contour end on the edge of a valley whose edge moved a little: the phase of the
+    -- exponent turned on a Stokes line) the nearest sector edge within tol
+    local best, bk = tol, nil
+    for j, v in ipairs(L.valleys) do
+      if v.type ~= "strip" then
+        for _, e in ipairs({ v.from, v.to }) do
+          local d = abs(norm_angle(th - e))
+          if d <= best then best, bk = d, j end
+        end
+      end
+    end
+    if bk then return bk, true end
+  end
   local f = family_at(L, th)
   if not f then return nil end
   local y = infinity.strip_coords(a, f.direction)
@@ -716,14 +783,32 @@ function M.saddles(J, params, region, singularities, seeds, seeds_only)
         local of_exponent = false
         for _, src in ipairs(s.sources) do if src:find("in the exponent") then of_exponent = true end end
         if of_exponent then poles = false; break end
+      elseif s.kind == "essential" and s.pole_order then
+        poles = poles + s.pole_order + 1   -- F ~ c (t - p)^-k: F' has a pole of order k + 1
       elseif s.kind == "essential" then
-        poles = false   -- the order of F's pole is not tracked: no count
+        poles = false   -- the order of F's pole is not known: no count
         break
       end
     end
   end
+  -- saddles crowd next to singular points (where F' is large and Newton from a grid
+  -- overshoots): seeds on small rings about each one, at fractions of the distance to
+  -- its nearest neighbour
+  local all_seeds = {}
+  for _, z in ipairs(seeds or {}) do all_seeds[#all_seeds + 1] = z end
+  if not seeds_only then
+    for i, s in ipairs(singularities) do
+      local near = region.radius
+      for j, o in ipairs(singularities) do
+        if j ~= i then near = math.min(near, cabs(o.at - s.at)) end
+      end
+      for _, f in ipairs({ 1e-3, 4e-3, 0.015, 0.05, 0.15, 0.4 }) do
+        for k = 0, 7 do all_seeds[#all_seeds + 1] = s.at + f * near * expi(2 * pi * (k + 0.5) / 8) end
+      end
+    end
+  end
   local zs, info = M.zeros(J.tape, params, { out = 1, deriv = 1 }, region,
-    { poles = poles, seeds = seeds, seeds_only = seeds_only })
+    { poles = poles, seeds = all_seeds, seeds_only = seeds_only })
   local out = {}
   for _, z in ipairs(zs) do out[#out + 1] = M.saddle_at(J, params, z.at, z.mult) end
   return out, info
@@ -820,7 +905,30 @@ local function cvec_list(v) return v:totable() end
 -- What a trace ended at, in words the decomposition compares: "valley k", "hill",
 -- "sink k" (a log point where the integrand vanishes), "singularity k", "saddle k",
 -- "edge", "bound", "flat".
+-- A descent path that ends at an essential singularity from inside one of its valley
+-- sectors: "essential j:k" (or nil).
+local function essential_end(L, last)
+  for j, s in ipairs(L.singularities) do
+    if s.kind == "essential" and s.sectors then
+      local d = cabs(last - s.at)
+      local near = huge
+      for i, o in ipairs(L.singularities) do
+        if i ~= j then near = math.min(near, cabs(o.at - s.at)) end
+      end
+      for _, o in ipairs(L.saddles) do near = math.min(near, cabs(o.at - s.at)) end
+      if d < 0.05 * math.min(near, L.region.radius) then
+        local k = M.essential_sector(s, carg(last - s.at))
+        if k then return format("essential %d:%d", j, k) end
+      end
+    end
+  end
+end
+
 local function end_label(L, descent, reason, which, what, last)
+  if descent and (reason == "stop" or reason == "singular" or reason == "low") then
+    local e = essential_end(L, last)
+    if e then return e end
+  end
   if reason == "stop" then
     local w = what[which]
     if w[1] == "singularity" then

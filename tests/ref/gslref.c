@@ -21,6 +21,7 @@
 #include <gsl/gsl_sf_erf.h>
 #include <gsl/gsl_sf_expint.h>
 #include <gsl/gsl_sf_gamma.h>
+#include <gsl/gsl_sf_psi.h>
 #include <gsl/gsl_sf_result.h>
 #include <gsl/gsl_cdf.h>
 #include <gsl/gsl_randist.h>
@@ -231,12 +232,64 @@ static int l_stirling_gamma(lua_State *L)
   return 1;
 }
 
+/* Bessel functions of real order nu >= 0 (GSL: gsl_sf_bessel_Jnu_e, _Ynu_e,
+ * _Knu_scaled_e = e^x K_nu(x), _Inu_scaled_e = e^-x I_nu(x)). */
+static int l_bessel_Jnu(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_bessel_Jnu_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
+  return push_result(L, "bessel_Jnu", st, &r);
+}
+
+static int l_bessel_Ynu(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_bessel_Ynu_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
+  return push_result(L, "bessel_Ynu", st, &r);
+}
+
+static int l_bessel_Knu_scaled(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_bessel_Knu_scaled_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
+  return push_result(L, "bessel_Knu_scaled", st, &r);
+}
+
+static int l_bessel_Inu_scaled(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_bessel_Inu_scaled_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
+  return push_result(L, "bessel_Inu_scaled", st, &r);
+}
+
+/* The regularized upper incomplete gamma function Q(a, x) (gsl_sf_gamma_inc_Q_e). */
+static int l_gamma_inc_Q(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_gamma_inc_Q_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
+  return push_result(L, "gamma_inc_Q", st, &r);
+}
+
+/* The digamma function psi(x) (gsl_sf_psi_e). */
+static int l_psi(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_psi_e(luaL_checknumber(L, 1), &r);
+  return push_result(L, "psi", st, &r);
+}
+
 static const luaL_Reg funcs[] = {
   { "airy_Ai", l_airy_Ai },
   { "airy_Ai_deriv", l_airy_Ai_deriv },
   { "airy_Bi", l_airy_Bi },
   { "airy_Bi_deriv", l_airy_Bi_deriv },
   { "bessel_Jn", l_bessel_Jn },
+  { "bessel_Jnu", l_bessel_Jnu },
+  { "bessel_Ynu", l_bessel_Ynu },
+  { "bessel_Knu_scaled", l_bessel_Knu_scaled },
+  { "bessel_Inu_scaled", l_bessel_Inu_scaled },
+  { "gamma_inc_Q", l_gamma_inc_Q },
+  { "psi", l_psi },
   { "erfc", l_erfc },
   { "expint_E1", l_expint_E1 },
   { "faddeeva_w", l_faddeeva_w },

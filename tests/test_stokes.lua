@@ -1,0 +1,166 @@
+-- Stokes lines and real problems: decompositions that settle where a descent path runs into
+-- another saddle, the mean of the two sides where the jump is genuine, and J:crossings
+-- following saddles by position. References: gsl_sf_airy_Ai, Ai's Maclaurin series (DLMF
+-- 9.4.1 with Ai(0), Ai'(0) from DLMF 9.2.3-9.2.4, summed here), gsl_sf_bessel_Jn, and
+-- exact integers by their sums and recurrences.
+local lu = require "luaunit"
+local H = require "helpers"
+local gsl = require "gslref"
+local steep = H.steep
+
+local t, x, z, n = steep.var "t", steep.param "x", steep.var "z", steep.param "n"
+local I, pi, C = steep.I, math.pi, steep.complex
+
+local function within(got, err, want, msg)
+  local d = (got - want):abs()
+  lu.assertTrue(d <= err, string.format("%s: got %s, want %s: error %.3g exceeds the stated %.3g",
+    msg, tostring(got), tostring(want), d, err))
+end
+
+-- Ai(z) by its Maclaurin series (DLMF 9.4.1): Ai = c1 f - c2 g,
+-- f = sum 3^k (1/3)_k z^{3k}/(3k)!, g = sum 3^k (2/3)_k z^{3k+1}/(3k+1)!,
+-- c1 = 3^{-2/3}/Gamma(2/3), c2 = 3^{-1/3}/Gamma(1/3) (DLMF 9.2.3-9.2.4; gsl_sf_gamma).
+local function ai_maclaurin(zv)
+  local c1 = 3 ^ (-2 / 3) / gsl.gamma(2 / 3)
+  local c2 = 3 ^ (-1 / 3) / gsl.gamma(1 / 3)
+  local z3 = zv * zv * zv
+  local tf, tg = C(1, 0), zv * 1
+  local f, g = tf, tg
+  for k = 0, 200 do
+    tf = tf * z3 * (3 * (1 / 3 + k)) / ((3 * k + 1) * (3 * k + 2) * (3 * k + 3))
+    tg = tg * z3 * (3 * (2 / 3 + k)) / ((3 * k + 2) * (3 * k + 3) * (3 * k + 4))
+    f, g = f + tf, g + tg
+    if tf:abs() + tg:abs() < 1e-18 * (f:abs() + g:abs()) then break end
+  end
+  return c1 * f - c2 * g
+end
+
+TestStokesAiry = {}
+
+-- Airy's integral on the real line: for x > 0 the dominant saddle's descent path runs into
+-- the contributing one (a Stokes line), but the dominant saddle's weight is 0: settled.
+-- 2 pi Ai(x), gsl_sf_airy_Ai.
+function TestStokesAiry:test_real_line_both_signs()
+  local J = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t),
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = x }
+  for _, xv in ipairs({ 2, 4, 8, 16, -2, -4, -8, -16 }) do
+    local msg = "x = " .. xv
+    local r = J:expand { x = xv, order = 4 }
+    lu.assertEquals(r.status, "estimated", msg .. ": " .. r.status)
+    local ai, ai_err = gsl.airy_Ai(xv)
+    within(r.value, r.error + 2 * pi * ai_err, 2 * pi * ai, msg)
+    if xv > 0 then
+      lu.assertTrue(r.stokes_line and r.stokes_line.settled, msg .. ": on a settled Stokes line")
+    end
+  end
+end
+
+-- Complex x on and near the Stokes lines arg x = +-2 pi/3 of Ai (DLMF 9.7: the subdominant
+-- exponential switches on there), with the contour in the middle of the valleys so that
+-- it converges for every x; against the Maclaurin sum.
+function TestStokesAiry:test_complex_x_across_the_line()
+  local J = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t),
+    contour = steep.path { steep.inf(5 * pi / 6), 0, steep.inf(pi / 6) }, large = x }
+  for _, r0 in ipairs({ 4, 6 }) do
+    for _, base in ipairs({ 2 * pi / 3, -2 * pi / 3 }) do
+      for _, d in ipairs({ -0.2, -0.02, 0, 0.02, 0.2 }) do
+        local xv = r0 * C(math.cos(base + d), math.sin(base + d))
+        local msg = string.format("x = %s (arg %.4g)", tostring(xv), base + d)
+        local res = J:expand { x = xv, order = 4 }
+        lu.assertStrContains(res.status, "estimated", msg)
+        within(res.value, res.error, 2 * pi * ai_maclaurin(xv), msg)
+        if d == 0 then
+          lu.assertNotNil(res.stokes_line, msg .. ": on the line")
+        end
+      end
+    end
+  end
+end
+
+-- J:crossings follows the saddles by position: x from 4 to 1 on the real line crosses no
+-- Stokes line that matters; on the circle |x| = 4 through arg x = 2pi/3 and -2pi/3 exactly
+-- one event each, where the subdominant saddle's weight switches (DLMF 9.7).
+function TestStokesAiry:test_crossings()
+  local J = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t),
+    contour = steep.path { steep.inf(5 * pi / 6), 0, steep.inf(pi / 6) }, large = x }
+  local c = J:crossings { x = { from = 4, to = 1, steps = 12 } }
+  for _, e in ipairs(c.events) do lu.assertNotEquals(e.kind, "stokes", e.text) end
+  local pts = {}
+  for k = 0, 60 do
+    local th = pi / 3 + (2 * pi - 2 * pi / 3) * k / 60   -- pi/3 .. 5 pi/3, through 2pi/3 and 4pi/3
+    pts[#pts + 1] = 4 * C(math.cos(th), math.sin(th))
+  end
+  local e = J:crossings { x = pts }
+  local stokes = {}
+  for _, ev in ipairs(e.events) do if ev.kind == "stokes" then stokes[#stokes + 1] = ev end end
+  lu.assertEquals(#stokes, 2, "two Stokes events:\n" .. e:report())
+  local args = {}
+  for _, ev in ipairs(stokes) do
+    local a = ev.at:arg()
+    if a < 0 then a = a + 2 * pi end
+    args[#args + 1] = a
+  end
+  table.sort(args)
+  -- (reported at the first value past the line: steps of 0.07 rad)
+  lu.assertTrue(math.abs(args[1] - 2 * pi / 3) < 0.08, "first at arg 2pi/3: " .. args[1])
+  lu.assertTrue(math.abs(args[2] - 4 * pi / 3) < 0.08, "second at arg 4pi/3: " .. args[2])
+end
+
+TestStokesCoefficients = {}
+
+-- Central Delannoy numbers D_n = [z^n] (1+z)^n (1-z)^(-n-1) = sum_k C(n,k) C(n+k,k)
+-- (the sum, exact in integers; here in double precision, 1e-15 relative): both saddles
+-- real, a connection between them, settled.
+function TestStokesCoefficients:test_delannoy()
+  local J = steep.integral { var = z, exponent = n * steep.log(1 + z) - (n + 1) * steep.log(1 - z)
+    - (n + 1) * steep.log(z), amplitude = 1 / (2 * pi * I), contour = steep.circle(0, 0.3),
+    large = n }
+  for _, N in ipairs({ 10, 20, 50, 100 }) do
+    local s, c1 = 0, 1
+    for k = 0, N do
+      local c2 = 1
+      for j = 1, k do c2 = c2 * (N + j) / j end
+      s = s + c1 * c2
+      c1 = c1 * (N - k) / (k + 1)
+    end
+    local r = J:expand { n = N, order = 4 }
+    lu.assertStrContains(r.status, "estimated", "n = " .. N)
+    within(r.value, r.error, C(s, 0), "D_" .. N .. " expansion")
+    local q, qe = J:quad { n = N }
+    within(q, qe + 1e-14 * s, C(s, 0), "D_" .. N .. " quadrature")
+  end
+end
+
+-- Central trinomial coefficients T_n = [z^n] (1 + z + z^2)^n, by the recurrence
+-- n T_n = (2n - 1) T_{n-1} + 3 (n - 1) T_{n-2}, T_0 = T_1 = 1 (exact; checked against
+-- T_2..T_4 = 3, 7, 19).
+function TestStokesCoefficients:test_trinomial()
+  local T = { [0] = 1, [1] = 1 }
+  for k = 2, 100 do T[k] = ((2 * k - 1) * T[k - 1] + 3 * (k - 1) * T[k - 2]) / k end
+  lu.assertEquals(T[4], 19)
+  local J = steep.integral { var = z, exponent = n * steep.log(1 + z + z ^ 2) - (n + 1) * steep.log(z),
+    amplitude = 1 / (2 * pi * I), contour = steep.circle(0, 0.5), large = n }
+  for _, N in ipairs({ 10, 20, 50, 100 }) do
+    local r = J:expand { n = N, order = 4 }
+    within(r.value, r.error, C(T[N], 0), "T_" .. N)
+  end
+end
+
+-- Bessel's integral on the unit circle, J_n(x) = (1/2 pi i) of exp((x/2)(z - 1/z)) z^(-n-1)
+-- (DLMF 10.12.1): at x = n/2 both real saddles (one next to the essential singularity at 0)
+-- are found, one contributes; at x = 2n two complex saddles. gsl_sf_bessel_Jn.
+function TestStokesCoefficients:test_bessel_circle()
+  local J = steep.integral { var = z, exponent = (x / 2) * (z - 1 / z) - (n + 1) * steep.log(z),
+    amplitude = 1 / (2 * pi * I), contour = steep.circle(0, 1), large = x }
+  for _, N in ipairs({ 10, 20, 40 }) do
+    for _, xv in ipairs({ N / 2, 2 * N }) do
+      local msg = string.format("J_%d(%g)", N, xv)
+      local L = J:landscape { n = N, x = xv }
+      lu.assertEquals(#L.saddles, 2, msg .. ": both saddles")
+      lu.assertEquals(L.saddle_count.status, "complete", msg)
+      local r = J:expand { n = N, x = xv, order = 4 }
+      local ref, ref_err = gsl.bessel_Jn(N, xv)
+      within(r.value, r.error + ref_err, C(ref, 0), msg)
+    end
+  end
+end
