@@ -22,8 +22,11 @@ M.z = steep.var "z"
 local n = steep.param "n"
 M.n = n
 
---- M.large_powers{A =, B =, saddle = z0 (the positive saddle, found if omitted)}
--- -> {series = J:series result, at = function(n) -> value, error scale}
+--- M.large_powers{A =, B =, saddle = z0 (the positive saddle, found if omitted), order = 6}
+-- -> {series = J:series result (one term more than order), at = function(n) -> value,
+-- error estimate}. The estimate is the size of the first term left out (common practice
+-- for an asymptotic series: Flajolet & Sedgewick 2009, VIII), plus the rounding of
+-- e^{n phi}: a relative 4 u (1 + |n phi|) (u = 2^-52).
 function M.large_powers(spec)
   local z = M.z
   local A = spec.A or 1
@@ -40,13 +43,21 @@ function M.large_powers(spec)
   end
   local J = steep.integral { var = z, exponent = n * phi, amplitude = A / z,
     contour = steep.circle(0, r), large = n }
-  local ser = J:series { order = spec.order or 6 }
+  local order = spec.order or 6
+  local ser = J:series { order = order + 1 }
   return {
-    radius = r, integral = J, series = ser,
+    radius = r, integral = J, series = ser, order = order,
     at = function(nv)
-      local s = 0
-      for _, c in ipairs(ser) do s = s + c:value(nv) end
-      return s / (2 * math.pi * steep.I)
+      local s, omitted, size = 0, 0, 0
+      for _, c in ipairs(ser) do
+        local v = c:value(nv, order)
+        s = s + v
+        omitted = omitted + (c:value(nv, order + 1) - v):abs()
+        size = math.max(size, (c.phi * nv):abs())
+      end
+      local value = s / (2 * math.pi * steep.I)
+      local rounding = 4 * 2 ^ -52 * (1 + size) * value:abs()
+      return value, omitted / (2 * math.pi) + rounding
     end,
   }
 end
@@ -83,12 +94,14 @@ if arg and arg[0] and arg[0]:match("coefficients%.lua$") then
   print("Invented example: [z^n] (1 + z + z^2)^n * (1 + z/2)")
   local lp = M.large_powers { A = 1 + z / 2, B = 1 + z + z ^ 2 }
   for _, nv in ipairs({ 10, 50, 200 }) do
-    print(string.format("  n = %-4d  %.12g", nv, lp.at(nv):re()))
+    local v, err = lp.at(nv)
+    print(string.format("  n = %-4d  %s  (error %.2g, %d terms)", nv, steep.show(v, err, 12), err,
+      lp.order))
   end
   print("Invented example: [z^n] exp(e^z - 1) (times n! these are the Bell numbers)")
   for _, row in ipairs(M.nonhomogeneous { P = steep.exp(z) - 1, n = { 10, 20, 40 } }) do
-    print(string.format("  n = %-4d  %.12g  (error %.2g, %s)", row.n, row.value, row.error,
-      row.status))
+    print(string.format("  n = %-4d  %s  (error %.2g, %s)", row.n, steep.show(row.value, row.error, 12),
+      row.error, row.status))
   end
 end
 

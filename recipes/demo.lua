@@ -30,7 +30,7 @@ print("\n== expansion at x = 6, four terms, against quadrature")
 local r = R:expand { x = 6, order = 4 }
 print(r:report())
 local q, qe = R:quad { x = 6 }
-print(string.format("quadrature: %s (error %.2g)", tostring(q), qe))
+print(string.format("quadrature: %s (error %.2g)", steep.show(q, qe), qe))
 
 print("\n== the rescaled route t = x*s, held at x = 8, followed to x = -8")
 local K = R:rescale { var = s, t = x * s, at = { x = 8 } }
@@ -43,10 +43,11 @@ print(R:compare { x = { 8, 6, 4, -4, -6, -8 }, order = 4, rescale = { var = s, t
 print("\n== sweep: error table")
 print(R:sweep { x = { 3, 4, 6, 8, 12, 16, -4, -8, -16 }, order = 4, progress = false }:report())
 
-if R.map then
-  local file = (os.getenv("TMPDIR") or "/tmp") .. "/steep-demo-map.svg"
-  R:map { x = 6, file = file }
-  print("\n== map of the complex plane written to " .. file)
-end
+-- the map goes to the current directory, or to the directory named by STEEP_OUT
+local dir = os.getenv("STEEP_OUT") or "."
+local file = dir .. "/steep-demo-map.svg"
+R:map { x = 6, file = file }
+print("\n== map of the complex plane written to " .. file
+  .. (dir == "." and (" (in " .. (os.getenv("PWD") or "the current directory") .. ")") or ""))
 
 print("\nCaution: asymptotic approximations; validate before they inform any decision.")

@@ -27,10 +27,10 @@ M.J = steep.integral { var = t, exponent = steep.I * x * (t ^ 3 / 3 - a * t),
 --- M.table{x =, a = {values}, order = N} -> rows, text
 function M.table(spec)
   local rows = {}
-  local lines = { string.format("%-8s %-26s %-26s %-10s %-24s %s", "a", "J:expand",
+  local lines = { string.format("%-8s %-18s %-18s %-10s %-24s %s", "a", "J:expand",
     "quadrature", "rel.err", "uniform (Airy) rel.err", "kind") }
   for _, av in ipairs(spec.a) do
-    local q = M.J:quad { x = spec.x, a = av }
+    local q, qe = M.J:quad { x = spec.x, a = av }
     local ok, r = pcall(M.J.expand, M.J, { x = spec.x, a = av, order = spec.order or 3 })
     local ai = steep.airy(-av * spec.x ^ (2 / 3))
     local uniform = 2 * math.pi * spec.x ^ (-1 / 3) * ai
@@ -39,10 +39,11 @@ function M.table(spec)
       expansion = ok and r.value or nil, error = ok and r.error or nil,
       failure = not ok and tostring(r) or nil }
     rows[#rows + 1] = row
-    lines[#lines + 1] = string.format("%-8g %-26s %-26s %-10s %-24.3g %s", av,
-      ok and tostring(r.value) or "failed", tostring(q),
+    -- (values as the reports print them: rounding noise such as 1e-17i dropped)
+    lines[#lines + 1] = string.format("%-8g %-18s %-18s %-10s %-24.3g %s", av,
+      ok and steep.show(r.value, r.error) or "failed", steep.show(q, qe),
       ok and string.format("%.3g", (r.value - q):abs() / q:abs()) or "-",
-      (uniform - q):abs() / q:abs(), kind)
+      (uniform - q):abs() / q:abs(), kind:find("uniform", 1, true) and "pair, uniform" or kind)
   end
   return rows, table.concat(lines, "\n")
 end

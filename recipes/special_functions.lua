@@ -9,13 +9,15 @@
 --   expint   e^x E1(x)  = int_0^inf e^{-x t} / (1 + t) dt                    (DLMF 6.2.2)
 --   hankel   1/Gamma(z) = (1/2 pi i) int_{-inf}^{(0+)} e^t t^{-z} dt         (DLMF 5.9.2)
 --   bessel   J_n(x)     = (1/2 pi) int_{-pi}^{pi} exp(i (x sin t - n t)) dt  (DLMF 10.9.2)
--- (Bessel's exponent is of exponential type in t: quadrature works, but the steepest-descent
--- decomposition is not settled there, and the expansion says so instead of guessing.)
+-- Where an expansion cannot be made (a contour the steepest-descent decomposition does not
+-- settle, say), the table says "failed" and prints the reason below it, with quadrature's
+-- value: the expansion says why instead of guessing.
 --
 -- Use it as a module:
 --     local sf = dofile "recipes/special_functions.lua"
 --     local r = sf.analyse("gamma", { x = 20 }, 6)     -- expansion, quadrature, agreement
 --     sf.add("mine", { var =, exponent =, amplitude =, contour =, large =, prefactor = })
+--     print(sf.table { "gamma", "mine" })              -- the table, as the script prints it
 -- Run: lua5.4 recipes/special_functions.lua (a table of every representation).
 
 local steep = require "steep"
@@ -93,23 +95,67 @@ function M.analyse(name, params, order)
     agrees = diff <= 3 * (res.error + qe), status = res.status, result = res }
 end
 
-if arg and arg[0] and arg[0]:match("special_functions%.lua$") then
-  print(string.format("%-8s %-16s %-26s %-26s %-10s %s", "name", "parameters", "expansion",
-    "quadrature", "rel.err", "agrees"))
-  for _, name in ipairs({ "airy", "gamma", "expint", "hankel", "bessel" }) do
+-- Words wrapped to lines of at most `width` columns, continuation lines indented.
+local function wrap(text, width, indent)
+  local lines, cur = {}, ""
+  for word in text:gmatch("%S+") do
+    if cur ~= "" and #cur + 1 + #word > width then
+      lines[#lines + 1] = cur
+      cur = string.rep(" ", indent) .. word
+    else
+      cur = cur == "" and word or (cur .. " " .. word)
+    end
+  end
+  lines[#lines + 1] = cur
+  return table.concat(lines, "\n")
+end
+
+--- M.table(names) -> text: each representation's sample by expansion and by quadrature,
+-- aligned; an expansion that failed is marked and its reason printed below the table.
+function M.table(names)
+  local rows, why = {}, {}
+  for _, name in ipairs(names) do
     local rep = M.family[name]
+    if not rep then error("special_functions: no representation named " .. tostring(name), 2) end
     local ps = {}
     for k, v in pairs(rep.sample) do ps[#ps + 1] = k .. "=" .. tostring(v) end
     table.sort(ps)
     local ok, r = pcall(M.analyse, name, rep.sample, 4)
     if ok then
-      print(string.format("%-8s %-16s %-26s %-26s %-10.3g %s", name, table.concat(ps, ","),
-        tostring(r.value), tostring(r.quad), (r.value - r.quad):abs() / r.quad:abs(),
-        tostring(r.agrees)))
+      rows[#rows + 1] = { name, table.concat(ps, ","), steep.show(r.value, r.error),
+        string.format("%.2g", r.error), steep.show(r.quad, r.quad_error),
+        string.format("%.3g", (r.value - r.quad):abs() / r.quad:abs()), tostring(r.agrees) }
     else
-      print(string.format("%-8s %-16s expansion failed: %s", name, table.concat(ps, ","), r))
+      -- the expansion failed: say why (below the table), and give quadrature's value
+      local qok, q, qe = pcall(rep.integral.quad, rep.integral, rep.sample)
+      local f = rep.prefactor(rep.sample)
+      local fa = steep.is_complex(f) and f:abs() or math.abs(f)
+      rows[#rows + 1] = { name, table.concat(ps, ","), "failed (see below)", "",
+        qok and steep.show(q * f, qe * fa) or "failed", "", "" }
+      why[#why + 1] = wrap(name .. ": the expansion failed: "
+        .. tostring(r):gsub("^.-expand: ", ""), 100, 4)
+      if not qok then why[#why + 1] = wrap(name .. ": quadrature failed too: " .. tostring(q), 100, 4) end
     end
   end
+  local head = { "name", "parameters", "expansion", "error", "quadrature", "rel.err", "agrees" }
+  local width = {}
+  for c, h in ipairs(head) do
+    width[c] = #h
+    for _, r in ipairs(rows) do width[c] = math.max(width[c], #r[c]) end
+  end
+  local function line(cells)
+    local out = {}
+    for c, v in ipairs(cells) do out[c] = v .. string.rep(" ", width[c] - #v) end
+    return (table.concat(out, "  "):gsub("%s+$", ""))
+  end
+  local lines = { line(head) }
+  for _, r in ipairs(rows) do lines[#lines + 1] = line(r) end
+  for _, w in ipairs(why) do lines[#lines + 1] = w end
+  return table.concat(lines, "\n")
+end
+
+if arg and arg[0] and arg[0]:match("special_functions%.lua$") then
+  print(M.table { "airy", "gamma", "expint", "hankel", "bessel" })
 end
 
 return M

@@ -398,8 +398,20 @@ function TestBadInput:test_series_and_rescaling()
     function() local K = J:rescale { var = x, t = 2 * s }; return K end)
   local msg = bad({ "rescale: cannot evaluate the substitution at the holding values",
     "unbound parameter 'x'", "at = {...}" },
-    function() local K = J:rescale { var = s, t = x * s }; return K end)
+    function() local K = J:rescale { var = s, t = x * s, at = {} }; return K end)
   no_library_location(msg)
+  -- without `at`, only a contour the map leaves unchanged is held by default
+  local Jseg = steep.integral { var = t, exponent = -x * t ^ 2, contour = steep.line(-1, 1), large = x }
+  msg = bad({ "test_bad_input.lua:", "rescale: give the parameter values at which to hold the contour, at = {...}",
+    "the contour is not made of rays from the origin" },
+    function() local K = Jseg:rescale { var = s, t = x * s }; return K end)
+  no_library_location(msg)
+  bad({ "rescale: give the parameter values", "the map moves the origin (s = 0 is t = 1)" },
+    function() local K = J:rescale { var = s, t = x * s + 1 }; return K end)
+  bad({ "rescale: give the parameter values", "dt/ds = i*x is not real and positive" },
+    function() local K = J:rescale { var = s, t = steep.I * x * s }; return K end)
+  bad({ "rescale: option 'at' must be a table of parameter values, got number" },
+    function() local K = J:rescale { var = s, t = x * s, at = 3 }; return K end)
   bad({ "rescale: unknown option 'foo'", "options: var, t, at" },
     function() local K = J:rescale { var = s, t = 2 * s, foo = 1 }; return K end)
   bad({ "bad argument #1 to 'rescale'", "options table expected" },

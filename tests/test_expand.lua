@@ -501,12 +501,13 @@ function TestExpandEndpoint:test_optimal_truncation()
   for n = 0, math.min(8, c.used - 1) do
     H.close(c.terms[n + 1], (-1) ^ n * factorial(n) / X ^ (n + 1), 1e-12, "term " .. n)
   end
-  -- the smallest term: 9!/10^10 = 10!/10^11
-  H.close(r.error, factorial(9) / X ^ 10, 1e-10, "reported error = the smallest term")
+  -- the smallest term 9!/10^10 = 10!/10^11, and half again (the terms alternate: a
+  -- Stieltjes series, whose remainder is below the smallest term; expand.truncate)
+  H.close(r.error, 1.5 * factorial(9) / X ^ 10, 1e-10, "reported error = 1.5 x the smallest term")
   local d = cabs(r.value - ref)
   within(r.value, r.error, ref, ref_err, "e^10 E1(10), optimal")
-  lu.assertTrue(d >= r.error / 3, string.format("actual error %.3g within a factor 3 of the "
-    .. "smallest term %.3g", d, r.error))
+  lu.assertTrue(d >= r.error / 4.5, string.format("actual error %.3g within a factor 3 of the "
+    .. "smallest term %.3g", d, r.error / 1.5))
 end
 
 -- (x = 50..200: the coefficients come from Cauchy's formula on a circle in w, and the

@@ -214,7 +214,7 @@ function TestMap:test_pole()
   lu.assertEquals(count(svg, '<g class="saddle"'), 1)
   lu.assertEquals(count(svg, '<g class="pole"'), 1)
   lu.assertStrContains(svg, "at t = i,")
-  lu.assertStrContains(svg, "pole 1 at t = 0.5i")
+  lu.assertStrContains(svg, "pole P1 at t = 0.5i")
   -- the deformation to Im t = 1 sweeps over the pole once, counter-clockwise
   lu.assertEquals(s.status, "ok")
   lu.assertEquals(s.pieces, 2)
@@ -276,6 +276,50 @@ function TestMap:test_errors()
     J:map { x = 5, file = "/tmp/never.svg", view = { center = 0, radius = -1 } } end)
   H.raises({ "cannot write" }, function()
     J:map { x = 5, file = "/nonexistent-directory/map.svg" } end)
+end
+
+-- Labels are numbered within their kind: a branch point listed before the pole leaves the
+-- pole P1 (it was P2, numbered across kinds), and the residue note names P1 too. The
+-- amplitude sqrt(t + 3i) / (t - i/2): a branch point at -3i (listed first), a simple
+-- pole at i/2; the cut runs left from -3i, clear of the contours.
+function TestMap:test_labels_per_kind()
+  local J = steep.integral { var = t, exponent = -x * (t - I) ^ 2,
+    amplitude = steep.sqrt(t + 3 * I) / (t - I / 2), contour = steep.line(steep.inf(math.pi), steep.inf(0)) }
+  local svg, s = draw(J, { x = 1, view = { center = 0, radius = 4 } })
+  lu.assertEquals(s.status, "ok")
+  lu.assertEquals(s.poles, 1)
+  lu.assertEquals(s.branch_points, 1)
+  lu.assertNotNil(svg:find(">P1</text>", 1, true), ">P1</text>")
+  lu.assertNotNil(svg:find(">B1</text>", 1, true), ">B1</text>")
+  lu.assertNil(svg:find(">P2</text>", 1, true), "the only pole is P1")
+  lu.assertNotNil(svg:find("Res at P1", 1, true), "Res at P1")
+end
+
+-- In modulus shading |g e^F| grows without bound at a pole: a disc of the top colour
+-- marks it (and the legend says so); the exponent shading has none.
+function TestMap:test_modulus_shows_poles()
+  local J = with_pole()
+  local svg = draw(J, { x = 1, shade = "modulus" })
+  lu.assertEquals(count(svg, 'class="pole%-peak"'), 1)
+  lu.assertNotNil(svg:find("at a pole (top of the scale)", 1, true), "at a pole (top of the scale)")
+  local svg2 = draw(J, { x = 1 })
+  lu.assertEquals(count(svg2, 'class="pole%-peak"'), 0)
+end
+
+-- A decomposition that fails leaves one short line under the map; the reasons in full are
+-- in the summary (decomposition_notes). exp(x t^2) on the real line: the ends lie in no
+-- valley for x = 1.
+function TestMap:test_failed_decomposition_short_note()
+  local J = steep.integral { var = t, exponent = x * t ^ 2, contour = steep.line(steep.inf(math.pi), steep.inf(0)) }
+  local svg, s = draw(J, { x = 1 })
+  lu.assertNotEquals(s.status, "ok")
+  lu.assertTrue(#s.decomposition_notes > 0, "the reasons are in the summary")
+  local notes = svg:match('<g id="notes".-</g>')
+  lu.assertStrContains(notes, "deformed contour not drawn: the contour could not be decomposed")
+  for _, reason in ipairs(s.decomposition_notes) do
+    lu.assertNil(notes:find(reason:sub(1, 40), 1, true), "the full reason is not under the map")
+  end
+  lu.assertTrue(count(notes, "<text") <= 3, "a short note: " .. notes)
 end
 
 -- The checker itself rejects what it should (so a pass above means something).

@@ -102,10 +102,23 @@ function TestRecipesCoefficients:test_large_powers()
   local lp = co.large_powers { A = 1 + cz / 2, B = 1 + cz + cz ^ 2 }
   H.close(lp.radius, 1, 1e-14, "the saddle on the positive axis")
   for _, n in ipairs({ 10, 20, 50, 100, 200, 400 }) do
-    local v = lp.at(n)
+    local v, err = lp.at(n)
     local want = trinomial_coefficient(n)
     H.close(v, want, n ^ -6 + 1e-13, "[z^" .. n .. "] (1 + z + z^2)^n (1 + z/2)")
     lu.assertTrue(abs(v:im()) <= 1e-13 * want, "imaginary part at n = " .. n)
+    -- the error estimate bounds the error (the reference carries a relative n u of its own)
+    lu.assertTrue(cabs(v - want) <= err + n * 2 ^ -53 * want, string.format("n = %d: error %.3g, "
+      .. "estimate %.3g", n, cabs(v - want), err))
+    if n <= 100 then   -- (beyond, the rounding allowance dominates the estimate)
+      lu.assertTrue(err <= 3 * cabs(v - want), "the estimate is not loose at n = " .. n)
+    end
+  end
+  -- fewer terms: the estimate still bounds the error
+  local lp2 = co.large_powers { A = 1 + cz / 2, B = 1 + cz + cz ^ 2, order = 2 }
+  for _, n in ipairs({ 10, 100, 400 }) do
+    local v, err = lp2.at(n)
+    local want = trinomial_coefficient(n)
+    lu.assertTrue(cabs(v - want) <= err, "2 terms, n = " .. n)
   end
   local lead
   for _, c in ipairs(lp.series) do
@@ -220,7 +233,8 @@ local steep_cpath = (os.getenv("STEEP_CPATH") or "lua/?.so"):gsub("^([^/])", roo
 local function run_script(file, tmpdir)
   local cmd = string.format("cd %s && env -u LUA_INIT -u LUA_INIT_5_4 LUA_PATH=%s LUA_CPATH=%s "
     .. "%s lua5.4 %s 2>&1", q(root), q(root .. "/lua/?.lua;" .. root .. "/lua/?/init.lua;;"),
-    q(steep_cpath .. ";;"), tmpdir and ("TMPDIR=" .. q(tmpdir)) or "", q(file))
+    q(steep_cpath .. ";;"), tmpdir and ("TMPDIR=" .. q(tmpdir) .. " STEEP_OUT=" .. q(tmpdir)) or "",
+    q(file))
   local p = assert(io.popen(cmd))
   local out = p:read("a")
   local ok, how, code = p:close()
@@ -237,8 +251,9 @@ function TestRecipesScripts:test_recipes_run()
     ["coefficients.lua"] = { "(1 + z + z^2)^n", "n = 200", "Bell numbers", "n = 40" },
     ["merging_points.lua"] = { "Invented sweep", "uniform (Airy) rel.err", "\n0.02 " },
     ["saddlepoint.lua"] = { "Invented example", "P(tail >= threshold)", "caution: " },
-    ["demo.lua"] = { "== the integral", "== both routes against quadrature", "Caution" },
-    ["special_functions.lua"] = { "airy", "gamma", "hankel", "bessel" },
+    ["demo.lua"] = { "== the integral", "== both routes against quadrature", "Caution",
+      "== map of the complex plane written to " },
+    ["special_functions.lua"] = { "airy", "gamma", "hankel", "bessel", "rel.err" },
   }
   local ls = assert(io.popen("ls " .. q(root .. "/recipes")))
   local seen = 0
@@ -253,6 +268,13 @@ function TestRecipesScripts:test_recipes_run()
           tostring(code), out))
       end
       for _, frag in ipairs(frags) do lu.assertStrContains(out, frag) end
+      if f == "demo.lua" then
+        -- the map went where STEEP_OUT says, and the demo said so
+        lu.assertStrContains(out, "written to " .. tmpdir .. "/steep-demo-map.svg")
+        local svg = io.open(tmpdir .. "/steep-demo-map.svg")
+        lu.assertNotNil(svg, "the demo's map in STEEP_OUT")
+        if svg then svg:close() end
+      end
       if f == "saddlepoint.lua" then
         -- the printed tail at x = 2 (n = 20) against the exact gamma tail
         local p = tonumber(out:match("\n2%s+(%S+)"))
@@ -303,6 +325,25 @@ function TestRecipesSpecialFunctions:test_family_against_references()
   ref = gsl.bessel_Jn(2, 30)
   H.close(r.quad, ref, 1e-10, "J_2(30) by quadrature")
   lu.assertTrue((r.value - ref):abs() <= r.error, "J_2(30) expansion within its estimate")
+end
+
+-- The recipe's table: a representation whose expansion fails shows "failed" in its row,
+-- quadrature's value (or its failure) beside it, and the reason below the table (it was in
+-- the source's comments only). exp(-4 t^2) / (t - 1/2) over [0, 1]: the pole at 1/2 lies
+-- on the contour.
+function TestRecipesSpecialFunctions:test_table_says_why()
+  local sf = require "special_functions"
+  local steep = require "steep"
+  local t, x = steep.var "t", steep.param "x"
+  sf.add("stuck", { var = t, exponent = -x * t ^ 2, amplitude = 1 / (t - 0.5),
+    contour = steep.line(0, 1), large = x, sample = { x = 4 } })
+  local ok = pcall(sf.analyse, "stuck", { x = 4 }, 2)
+  lu.assertFalse(ok, "the expansion of the case fails")
+  local text = sf.table { "gamma", "stuck" }
+  lu.assertStrContains(text, "failed (see below)")
+  lu.assertStrContains(text, "stuck: the expansion failed: ")
+  for line in text:gmatch("[^\n]+") do lu.assertTrue(#line <= 100, "within 100 columns: " .. line) end
+  lu.assertStrContains(text, "479001600")   -- 12! by quadrature (exact)
 end
 
 TestRecipesVersion = {}

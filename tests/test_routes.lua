@@ -146,6 +146,26 @@ function TestRoutesFamily:test_rescale()
   end
 end
 
+-- Without `at`: the real line is two rays from the origin, which t = x s (x > 0) maps onto
+-- themselves, so the contour is held as given and the rescaling says for which x (the
+-- same integral as above for x > 0: K = J by the closed form). t = x^2 s holds for every
+-- real x other than 0; t = x s + 1 moves the origin and needs `at`.
+function TestRoutesFamily:test_rescale_default_holding()
+  local J = family(P)
+  local K = J:rescale { var = s, t = x * s }
+  lu.assertStrContains(K.rescaling.holds, "held as given for x > 0")
+  lu.assertEquals(K.rescaling.at.x, 1)
+  lu.assertEquals(tostring(K.contour), tostring(J.contour))
+  for _, xv in ipairs({ 2.5, 7 }) do
+    H.close(K:quad { x = xv }, exact(xv, P), 1e-10, "K(" .. xv .. ") = J, held by default")
+  end
+  local K2 = J:rescale { var = s, t = x ^ 2 * s }
+  lu.assertStrContains(K2.rescaling.holds, "for every real x other than 0")
+  H.close(K2:quad { x = -3 }, exact(-3, P), 1e-10, "t = x^2 s keeps the orientation at x = -3")
+  H.raises({ "rescale: give the parameter values", "moves the origin" }, J.rescale, J,
+    { var = s, t = x * s + 1 })
+end
+
 -- Along x = 4 -> -4 (16 values, 0 not among them) the rescaled integral meets x = 0:
 -- dt/ds = x changes sign (a "rescaling" event) and the pole of K at P/x goes out towards
 -- infinity above the contour and comes back below it (a "side change"): both between the

@@ -219,6 +219,54 @@ function TestSaddlepointLattice:test_binomial_tail()
   end
 end
 
+-- The lattice tail's error estimate (p/n plus the difference between the first and
+-- second continuity corrections; p/4 + p/n at the top of a bounded support) bounds the
+-- error against exact tails: binomial by gsl_cdf_binomial_Q, and the sum of n
+-- Poisson(lambda) variables, Poisson(n lambda), whose tail is summed here term by term
+-- (P(X = j + 1) = P(X = j) mu / (j + 1), exact recurrence, in logarithms).
+local function poisson_tail(mu, k)
+  local lt = -mu
+  for j = 1, k do lt = lt + math.log(mu) - math.log(j) end
+  local sum, term = 0, lt
+  for j = k, k + 4000 do
+    sum = sum + math.exp(term)
+    term = term + math.log(mu) - math.log(j + 1)
+  end
+  return sum
+end
+
+function TestSaddlepointLattice:test_error_estimate_bounds()
+  local checked = 0
+  for _, p in ipairs({ 0.05, 0.3, 0.5, 0.9 }) do
+    local d = bernoulli(p)
+    for _, n in ipairs({ 1, 5, 20, 100 }) do
+      for k = 1, n do
+        local r = d:tail { n = n, k = k }
+        if r.p then
+          local exact = gsl.cdf_binomial_Q(k - 1, p, n)
+          lu.assertTrue(abs(r.p - exact) <= r.error, string.format("binomial n = %d, p = %g, "
+            .. "k = %d: %.6g against %.6g, estimate %.3g", n, p, k, r.p, exact, r.error))
+          checked = checked + 1
+        end
+      end
+    end
+  end
+  for _, lambda in ipairs({ 0.2, 1, 3 }) do
+    local d = sp.distribution { K = lambda * (steep.exp(s) - 1), s = s, lattice = true,
+      name = "Poisson(" .. lambda .. ")" }
+    for _, n in ipairs({ 1, 5, 20 }) do
+      for k = 1, math.floor(4 * n * lambda) + 8 do
+        local r = d:tail { n = n, k = k }
+        local exact = poisson_tail(n * lambda, k)
+        lu.assertTrue(abs(r.p - exact) <= r.error, string.format("Poisson n = %d, lambda = %g, "
+          .. "k = %d: %.6g against %.6g, estimate %.3g", n, lambda, k, r.p, exact, r.error))
+        checked = checked + 1
+      end
+    end
+  end
+  lu.assertTrue(checked > 300, "tails checked: " .. checked)
+end
+
 -- For p = 1/2 the law is symmetric (K(s) - s/2 is even) and so is the formula: w, u and
 -- the saddlepoint change sign between k and n + 1 - k, so P(S >= k) + P(S >= n + 1 - k) = 1
 -- exactly (in exact arithmetic).

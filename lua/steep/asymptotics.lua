@@ -333,58 +333,62 @@ function M.expand(J, params, opts)
 end
 
 --- Compares an expansion with quadrature: result.check, and the status "verified" only
--- when they agree within three times the two error estimates together.
+-- when they agree within the two error estimates together (as stated: 1x).
 function M.verify(J, params, result, opts)
   local qopts = { region = opts.region }
   for k, v in pairs(params) do qopts[k] = v end
   local q, qe, info = J:quad(qopts)
   local diff = cabs(result.value - q)
-  local ok = diff <= 3 * (result.error + qe) and info.status == "ok"
+  local ok = diff <= result.error + qe and info.status == "ok"
   result.check = { quad = q, quad_error = qe, difference = diff, quad_status = info.status,
-    verdict = ok and "verified: agrees within the error estimates"
-      or "NOT verified: expansion and quadrature disagree beyond their estimates" }
+    verdict = ok and format("verified: agrees within the two error estimates (the difference "
+      .. "is %.2g of their sum)", diff / (result.error + qe))
+      or format("NOT verified: expansion and quadrature differ by %.3g times their error "
+      .. "estimates%s", diff / (result.error + qe),
+      info.status == "ok" and "" or " (quadrature: " .. info.status .. ")") }
   result.status = ok and "verified against quadrature" or
     ("suspect: disagrees with quadrature by " .. format("%.3g", diff))
   return result
 end
 
-local function fmtc(z)
-  local re, im = cparts(z)
-  if im == 0 then return format("%.10g", re) end
-  return format("%.10g%+.10gi", re, im)
-end
+local report_m = require "steep.report"
+local num, wrap = report_m.num, report_m.wrap
 
---- result:report{format = "text" | "json" | "csv"} -> text
+local function fmtc(z, err) return num(z, err) end
+
+--- result:report{format = "text" | "json" | "csv"} -> text, lines within 100 columns
 function M.report(r, opts)
-  local other = require("steep.report").format(opts, r, r.contributions,
+  local other = report_m.format(opts, r, r.contributions,
     { "kind", "at", "value", "error", "used", "weight" })
   if other then return other end
   local lines = {}
   local function add(...) lines[#lines + 1] = format(...) end
+  local function say(text, first, indent) lines[#lines + 1] = wrap(text, first, indent) end
   local J = r.integral
-  add("integral: %s", tostring(J))
+  say(tostring(J), "integral: ", 4)
   local ps = {}
-  for k, v in pairs(r.params) do ps[#ps + 1] = k .. " = " .. tostring(v) end
+  for k, v in pairs(r.params) do ps[#ps + 1] = k .. " = " .. num(v) end
   table.sort(ps)
-  add("parameters: %s%s", table.concat(ps, ", "),
-    J.large and ("   (large parameter: " .. J.large.name .. ")") or "")
+  say(table.concat(ps, ", ") .. (J.large and ("   (large parameter: " .. J.large.name .. ")") or ""),
+    "parameters: ", 4)
   add("terms per contribution: %s", tostring(r.order))
   -- the landscape the decomposition used
   local L = r.landscape
   if L then
     add("landscape (region: center %s, radius %.4g):", fmtc(L.region.center), L.region.radius)
     for j, sd in ipairs(L.saddles) do
-      add("  saddle %d at %s, order %d, F = %s", j, fmtc(sd.at), sd.order, fmtc(sd.F))
+      say(format("saddle %d at %s = %s, order %d, F = %s", j, J.var.name, fmtc(sd.at), sd.order,
+        fmtc(sd.F)), "  ", 4)
     end
     for _, sg in ipairs(L.singularities) do
-      add("  %s at %s (%s)", sg.kind, fmtc(sg.at), sg.source)
+      say(format("%s at %s = %s (%s)", sg.kind, J.var.name, fmtc(sg.at), sg.source), "  ", 4)
     end
     local vs = {}
     for _, v in ipairs(L.valleys or {}) do vs[#vs + 1] = landscape.describe_valley(v) end
-    add("  valleys: %s", #vs > 0 and table.concat(vs, ", ") or "none found")
+    say(#vs > 0 and table.concat(vs, ", ") or "none found", "  valleys: ", 4)
   end
-  add("contributions (most dominant first; a saddle counts when the contour crosses its "
-    .. "steepest ascent paths, weights below; a pole when the deformation sweeps over it):")
+  say("(most dominant first; a saddle counts when the contour crosses its steepest ascent "
+    .. "paths, weights below; a pole when the deformation sweeps over it)", "contributions ", 2)
   for i, c in ipairs(r.contributions) do
     local why = ""
     if c.weights then
@@ -396,30 +400,33 @@ function M.report(r, opts)
     elseif c.weight then
       why = format("endpoint weight %+d", c.weight)
     end
-    add("  %d. %-28s at %-24s value %-30s error %.3g (%d terms) %s", i, c.kind, fmtc(c.at),
-      fmtc(c.value), c.error, c.used, why)
+    say(format("%s at %s%s", c.kind, fmtc(c.at), why ~= "" and (": " .. why) or ""),
+      format("  %d. ", i), 5)
+    say(format("value %s, error %.3g, %d term%s", fmtc(c.value, c.error), c.error, c.used,
+      c.used == 1 and "" or "s"), "     ", 5)
     if c.terms and c.terms[1] then
-      add("     leading term %s%s", fmtc(c.terms[1]), c.note and ("; " .. c.note) or "")
+      say(format("leading term %s%s", fmtc(c.terms[1], c.error), c.note and ("; " .. c.note) or ""),
+        "     ", 5)
     end
   end
-  add("total: %s   estimated error %.3g", fmtc(r.value), r.error)
+  add("total: %s   estimated error %.3g", fmtc(r.value, r.error), r.error)
   if r.check then
-    add("quadrature: %s (error %.2g); difference %.3g -> %s", fmtc(r.check.quad),
-      r.check.quad_error, r.check.difference, r.check.verdict)
+    say(format("%s (error %.2g); difference %.3g -> %s", fmtc(r.check.quad, r.check.quad_error),
+      r.check.quad_error, r.check.difference, r.check.verdict), "quadrature: ", 4)
   end
-  add("status: %s%s", r.status, r.check and "" or
-    " (not compared with quadrature: verify = true or J:check does that)")
+  say(r.status .. (r.check and "" or
+    " (not compared with quadrature: verify = true or J:check does that)"), "status: ", 4)
   if r.stokes_line and r.stokes_line.settled then
-    add("on a Stokes line: the weights are the same on both sides of it (settled)")
+    say("the weights are the same on both sides of it (settled)", "on a Stokes line: ", 4)
   elseif r.stokes_line then
-    add("on a Stokes line with a genuine jump: mean of both sides, unsettled part %.3g",
-      r.stokes_line.unsettled)
+    say(format("mean of both sides, unsettled part %.3g", r.stokes_line.unsettled),
+      "on a Stokes line with a genuine jump: ", 4)
   elseif r.stokes then
     add("warning: a saddle connection was found (Stokes line): see notes")
   end
-  for _, n in ipairs(r.notes or {}) do add("note: %s", n) end
-  add("caution: an asymptotic approximation; check it (J:check) before it informs any "
-    .. "engineering, financial or safety decision")
+  for _, n in ipairs(r.notes or {}) do say(n, "note: ", 4) end
+  say("an asymptotic approximation; check it (J:check) before it informs any engineering, "
+    .. "financial or safety decision", "caution: ", 4)
   return table.concat(lines, "\n")
 end
 
@@ -536,7 +543,42 @@ function M.series(J, params, opts)
     end } }
   for _, c in ipairs(out) do setmetatable(c, mt) end
   table.sort(out, function(a, b) return cparts(a.phi) > cparts(b.phi) end)
-  return out
+  -- the list of contributions, with the common result interface
+  out.large, out.integral, out.order = x, J, order
+  return setmetatable(out, { __index = { report = M.series_report } })
+end
+
+--- series:report{format = "text" | "json" | "csv"}: each contribution's standard form
+-- and its coefficients (CSV: one row per coefficient).
+function M.series_report(sr, opts)
+  local rows = {}
+  for i, c in ipairs(sr) do
+    for k, v in ipairs(c.coefficients) do
+      rows[#rows + 1] = { contribution = i, kind = c.kind, at = c.at, phi = c.phi, k = k - 1,
+        power = c.powers[k], coefficient = v }
+    end
+  end
+  local list = {}
+  for i, c in ipairs(sr) do list[i] = c end
+  local other = report_m.format(opts, { contributions = list, large = sr.large, order = sr.order,
+    integral = sr.integral }, rows, { "contribution", "kind", "at", "phi", "k", "power", "coefficient" })
+  if other then return other end
+  local x = sr.large
+  local lines = { wrap(tostring(sr.integral), "standard form of ", 4),
+    wrap(format("each contribution is e^{%s phi} sum_k c_k %s^(-p_k), %d terms", x, x, sr.order),
+      "", 4) }
+  for i, c in ipairs(sr) do
+    lines[#lines + 1] = wrap(format("%s at %s, phi = %s%s", c.kind, num(c.at), num(c.phi),
+      c.order and c.order > 2 and format(" (order %d)", c.order) or ""), format("%d. ", i), 3)
+    local t = {}
+    for k, v in ipairs(c.coefficients) do
+      t[#t + 1] = { tostring(k - 1), format("%.6g", c.powers[k]), num(v, nil, 15) }
+    end
+    lines[#lines + 1] = report_m.table({ { "k", right = true }, { "p_k", right = true },
+      { "c_k" } }, t, nil, 3)
+  end
+  if #sr == 0 then lines[#lines + 1] = "no contributions" end
+  return table.concat(lines, "\n")
 end
 
 ---------------------------------------------------------------------------------------
@@ -558,10 +600,12 @@ function M.check(J, params, values, opts)
     local q, qe, qinfo = J:quad(qopts)
     local diff = cabs(r.value - q)
     local scale = math.max(cabs(q), 1e-300)
-    local ok = diff <= 3 * r.error + 3 * qe
+    -- agreement means within the two estimates as stated (1x), with quadrature that
+    -- reached its tolerance
+    local ok = diff <= r.error + qe and qinfo.status == "ok"
     rows[#rows + 1] = { x = v, expansion = r.value, quad = q, quad_error = qe,
       relative_error = diff / scale, estimated = r.error / scale, agrees = ok,
-      stokes = r.stokes, quad_status = qinfo.status }
+      ratio = diff / (r.error + qe), stokes = r.stokes, quad_status = qinfo.status }
   end
   -- observed order: slope of log(error) against log|x| (least squares)
   local sx, sy, sxx, sxy, n = 0, 0, 0, 0, 0
@@ -582,29 +626,48 @@ function M.check(J, params, values, opts)
 end
 
 function M.check_report(c, opts)
-  local other = require("steep.report").format(opts, c, c.rows,
+  local other = report_m.format(opts, c, c.rows,
     { "x", "expansion", "quad", "quad_error", "relative_error", "estimated", "agrees", "stokes" })
   if other then return other end
   local lines = {}
   local function add(...) lines[#lines + 1] = format(...) end
-  add("check of %s", tostring(c.integral))
-  add("%-12s %-26s %-26s %-11s %-11s %s", c.large or "x", "expansion", "quadrature",
-    "rel. error", "estimated", "")
+  lines[#lines + 1] = wrap(tostring(c.integral), "check of ", 4)
+  local rows, inaccurate = {}, {}
   for _, r in ipairs(c.rows) do
-    add("%-12s %-26s %-26s %-11.3g %-11.3g %s", tostring(r.x), fmtc(r.expansion),
-      fmtc(r.quad), r.relative_error, r.estimated,
-      (r.agrees and "" or "DISAGREES") .. (r.stokes and " stokes" or ""))
+    local scale = cabs(r.quad)
+    local flags = {}
+    if not r.agrees then flags[#flags + 1] = "DISAGREES" end
+    -- an estimate as large as the value: agreement within it says nothing
+    if not (r.estimated < 1) then
+      flags[#flags + 1] = "no accuracy"
+      inaccurate[#inaccurate + 1] = num(r.x)
+    end
+    if r.stokes then flags[#flags + 1] = "stokes" end
+    rows[#rows + 1] = { num(r.x), num(r.expansion, r.estimated * scale), num(r.quad, r.quad_error),
+      format("%.3g", r.relative_error), format("%.3g", r.estimated), table.concat(flags, " ") }
   end
+  lines[#lines + 1] = report_m.table({ { c.large or "x" }, { "expansion" }, { "quadrature" },
+    { "rel. error" }, { "estimated" }, { "" } }, rows)
   if c.observed_order then
     add("observed order of the error: %.3g (relative error ~ %s^%.3g)", c.observed_order,
       c.large or "x", c.observed_order)
   end
   if c.verified then
-    add("verified: the expansion with %s terms agrees with quadrature within its error "
-      .. "estimate at every point", tostring(c.order))
+    local worst = 0
+    for _, r in ipairs(c.rows) do worst = math.max(worst, r.ratio or 0) end
+    lines[#lines + 1] = wrap(format("the expansion with %s terms agrees with quadrature within "
+      .. "its error estimate (as stated, 1x) at every point; the largest difference is %.2g "
+      .. "of the two estimates together", tostring(c.order), worst), "verified: ", 4)
+    if #inaccurate > 0 then
+      lines[#lines + 1] = wrap(format("at %s %s the estimated error is not smaller than the value: "
+        .. "agreement within it carries no accuracy (marked \"no accuracy\")",
+        c.large or "x", table.concat(inaccurate, ", ")), "but: ", 4)
+    end
   else
-    add("NOT verified: the expansion and quadrature disagree by more than the error "
-      .. "estimates where marked")
+    local worst = 0
+    for _, r in ipairs(c.rows) do worst = math.max(worst, r.ratio or 0) end
+    lines[#lines + 1] = wrap(format("the expansion and quadrature disagree by more than the "
+      .. "error estimates where marked (up to %.3g times them)", worst), "NOT verified: ", 4)
   end
   return table.concat(lines, "\n")
 end

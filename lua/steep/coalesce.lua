@@ -164,7 +164,7 @@ function M.contribution(J, params, L, pair, order)
   local I0, I1, e0, e1 = model_integrals(map.zeta, from, to)
   if not I0 then return nil end
   local nterms = order == "optimal" and 6 or order
-  local n = 2 * nterms + 16
+  local n = 2 * nterms + 22
   local c
   local vm = cabs(map.v)
   for _, rho in ipairs({ 2 * vm + 1, 2 * vm + 0.6, 1.5 * vm + 0.3 }) do
@@ -180,27 +180,35 @@ function M.contribution(J, params, L, pair, order)
   end
   if not c then return nil end
   local scale = complex.apply("exp", map.A)
+  -- the circle's coefficients carry rounding of the size of G on it
+  local gsize, used_rho = 0, 2 * vm + 1
+  for k = 0, n - 1 do gsize = math.max(gsize, cabs(c[k]) * used_rho ^ k) end
   local terms, value = {}, cnew(0, 0)
   local cur, len = c, n
   local pq = {}
-  for k = 1, nterms + 1 do
+  local sizes = 0   -- the sizes the terms' rounding scales with (p I0 and q I1 may cancel)
+  for k = 1, nterms + 3 do
     if len < 4 then break end
     local p, q, dh, nlen = reduce(cur, len, map.zeta)
     pq[k] = { p = p, q = q }
     terms[k] = (p * I0 + q * I1) * scale
+    if k <= nterms then sizes = sizes + (cabs(p * I0) + cabs(q * I1)) * cabs(scale) end
     cur, len = dh, nlen
   end
   local used = math.min(nterms, #terms)
   for k = 1, used do value = value + terms[k] end
-  local err = terms[used + 1] and cabs(terms[used + 1]) or huge
+  -- the series' remainder as for plain contributions, the model integrals' own errors,
+  -- and the rounding of e^A and of the sums (as expand.truncate's floor)
+  local err = require("steep.expand").remainder(terms, used)
   err = err + cabs(pq[1].p * scale) * e0 + cabs(pq[1].q * scale) * e1
-  -- the saddles' F carry rounding (a few units of |F| each): A = (F1 + F2)/2 inherits it,
-  -- and zeta = v^2 with v^3 = (3/4)(F1 - F2) inherits it divided by |v| (saddles close
-  -- together leave zeta less well determined); dI0/dzeta = I1, dI1/dzeta = zeta I0
+    + (128 + cabs(map.A)) * 2.220446049250313e-16 * sizes
+    + 64 * 2.220446049250313e-16 * gsize * (cabs(I0) + cabs(I1)) * cabs(scale)
+  -- the saddles' F carry rounding (a few units of |F| each): zeta = v^2 with
+  -- v^3 = (3/4)(F1 - F2) inherits it divided by |v| (saddles close together leave zeta
+  -- less well determined); dI0/dzeta = I1, dI1/dzeta = zeta I0
   local Fsize = cabs(s1.F) + cabs(s2.F)
-  local dA = 4 * EPS * Fsize
   local dzeta = 4 * EPS * (Fsize / math.max(cabs(map.v), 1e-300) + cabs(map.zeta))
-  err = err + cabs(value) * dA + dzeta * (cabs(pq[1].p * scale) * cabs(I1)
+  err = err + 4 * EPS * Fsize * cabs(value) + dzeta * (cabs(pq[1].p * scale) * cabs(I1)
     + cabs(pq[1].q * scale) * cabs(map.zeta * I0))
   return { kind = "two saddles together (uniform, Airy type)", at = s1.at, partner = s2.at,
     order = 2, F = map.A, value = value, error = err, terms = { table.unpack(terms, 1, used) },

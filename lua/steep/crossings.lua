@@ -321,18 +321,23 @@ function M.crossings(J, opts)
 end
 
 function M.crossings_report(c, opts)
-  local other = require("steep.report").format(opts, { events = c.events, large = c.large,
-    values = c.values }, c.events, { "kind", "at", "position", "term", "before", "after", "text" })
+  local report_m = require "steep.report"
+  local other = report_m.format(opts, { events = c.events, large = c.large,
+    values = c.values, status = c.status }, c.events,
+    { "kind", "at", "position", "term", "before", "after", "text" })
   if other then return other end
-  local lines = { format("crossing check of %s along %s = %s .. %s (%d values)",
-    tostring(c.integral), c.large, fmtv(c.values[1]), fmtv(c.values[#c.values]), #c.values) }
+  local wrap = report_m.wrap
+  local lines = { wrap(format("%s along %s = %s .. %s (%d values)", tostring(c.integral), c.large,
+    fmtv(c.values[1]), fmtv(c.values[#c.values]), #c.values), "crossing check of ", 4) }
   if #c.events == 0 then
-    lines[#lines + 1] = format("no events%s: no singularity changed side of the contour, no "
+    lines[#lines + 1] = wrap(format("no events%s: no singularity changed side of the contour, no "
       .. "saddles merged, no Stokes line was crossed", c.status == "complete" and ""
-      or " over the values followed")
+      or " over the values followed"), "", 4)
   end
-  for i, e in ipairs(c.events) do lines[#lines + 1] = format("%d. [%s] %s", i, e.kind, e.text) end
-  if c.status ~= "complete" then lines[#lines + 1] = "status: " .. c.status end
+  for i, e in ipairs(c.events) do
+    lines[#lines + 1] = wrap(e.text, format("%d. [%s] ", i, e.kind), 4)
+  end
+  if c.status ~= "complete" then lines[#lines + 1] = wrap(c.status, "status: ", 4) end
   return table.concat(lines, "\n")
 end
 

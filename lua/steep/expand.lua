@@ -564,7 +564,14 @@ function M.truncate(terms, order, scale, logsize, term_errors)
       local env = math.sqrt(cabs(before) * cabs(after))
       if best < 0.5 * env then best = env end
     end
-    return s * scale, math.max(best * cabs(scale), floor(bi - 1)) + coef_errors(bi - 1), bi - 1
+    -- at the smallest term the remainder is that term times a factor that grows like
+    -- sqrt(pi N/2) off the real axis (Olver's bound for the saddle-point remainder in a
+    -- Stokes sector, DLMF 9.7(iii) for Airy's: the subdominant exponential switching on
+    -- is of the size of the smallest term times that); a real alternating series keeps
+    -- the smallest term (Stieltjes)
+    local factor = M.alternating(terms, bi) and 1.5 or math.max(1.5, math.sqrt(pi * bi / 2))
+    return s * scale, math.max(factor * best * cabs(scale), floor(bi - 1)) + coef_errors(bi - 1),
+      bi - 1
   end
   local used = math.min(order, n)
   local s = cnew(0, 0)
@@ -596,24 +603,28 @@ function M.remainder(terms, used)
   end
   -- terms of alternating sign (a real series of Stieltjes type, as Watson's lemma gives
   -- for e^x E1(x)): the remainder lies between 0 and the first omitted term (DLMF 2.3
-  -- (iii) for that case); its first two bound it with room
-  if #raw == 3 then
-    local alternating = true
-    for k = 1, 2 do
-      local q = raw[k + 1] / raw[k]
-      local qr, qi = cparts(q)
-      if not (qr < 0 and abs(qi) <= 1e-6 * abs(qr)) then alternating = false end
-    end
-    if alternating then return next3[1] + next3[2] end
-  end
+  -- (iii) for that case); its first two, and half again, bound it with room
+  if #raw == 3 and M.alternating(raw, 1) then return 1.5 * (next3[1] + next3[2]) end
   local sum = 0
   for _, v in ipairs(next3) do sum = sum + v end
   local a, b = next3[#next3 - 1], next3[#next3]
   local r = a and b / a or 1
   if r < 1 then sum = sum + b * math.min(r / (1 - r), 10) end
   -- the ratios of an asymptotic series grow with the index: the geometric rest falls
-  -- short by about the last ratio's share
-  return sum * (1 + math.min(r, 1))
+  -- short by about the last ratio's share; and half again, so that a remainder made of
+  -- terms all of one phase is not met exactly (the calibration's margin)
+  return sum * (1.5 + math.min(r, 1))
+end
+
+--- Do terms[from], terms[from + 1], terms[from + 2] alternate in sign, real to rounding?
+function M.alternating(terms, from)
+  for k = from, from + 1 do
+    local u, v = terms[k], terms[k + 1]
+    if not (u and v) or cabs(u) == 0 then return false end
+    local qr, qi = cparts(v / u)
+    if not (qr < 0 and abs(qi) <= 1e-6 * abs(qr)) then return false end
+  end
+  return true
 end
 
 return M

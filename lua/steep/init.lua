@@ -120,4 +120,20 @@ steep.integral = integral.new
 function steep.airy(z) return require("steep.special").airy(z) end
 function steep.airy_bi(z) return require("steep.special").airy_bi(z) end
 
+--- steep.show(v [, err [, digits]]) -> text: a number or complex value as the reports print
+-- it: `digits` significant digits (10), and a part below the value's rounding (1e-13 of
+-- its size, or a hundredth of its error estimate err) shown as 0, never as -0.
+function steep.show(v, err, digits)
+  if not complex.parts(v) then
+    error("bad argument #1 to 'show' (number or complex value expected, got " .. type(v) .. ")", 2)
+  end
+  if err ~= nil and type(err) ~= "number" then
+    error("bad argument #2 to 'show' (error estimate expected, got " .. type(err) .. ")", 2)
+  end
+  if digits ~= nil and (math.tointeger(digits) == nil or digits < 1 or digits > 17) then
+    error("bad argument #3 to 'show' (a whole number of digits from 1 to 17 expected)", 2)
+  end
+  return require("steep.report").num(v, err, digits)
+end
+
 return steep

@@ -276,7 +276,7 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
   if poly then psaddles, pinfo = landscape.polynomial_saddles(J, params, A) end
   if poly and not given then region = nil end   -- the saddles are known: fit them anew
   region = region or default_region(J, params, psaddles)
-  local L = { region = region, params = params, notes = {}, analysis = A }
+  local L = { region = region, params = params, notes = {}, analysis = A, var = J.var.name }
   local function find_saddles(sing, seeds, seeds_only)
     if poly and not given then return psaddles, pinfo end
     if poly then
@@ -340,24 +340,28 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
 end
 
 function M.landscape_report(L, opts)
-  local other = require("steep.report").format(opts, { region = L.region, saddles = L.saddles,
+  local report_m = require "steep.report"
+  local other = report_m.format(opts, { region = L.region, saddles = L.saddles,
     singularities = L.singularities, valleys = L.valleys, notes = L.notes,
-    saddle_count = L.saddle_count })
+    saddle_count = L.saddle_count, var = L.var })
   if other then return other end
+  local num, wrap = report_m.num, report_m.wrap
+  local var = L.var or "t"
   local lines = {}
   local function add(...) lines[#lines + 1] = format(...) end
-  add("region: center %s, radius %.4g", tostring(L.region.center), L.region.radius)
+  add("region: center %s, radius %.4g", num(L.region.center), L.region.radius)
   add("saddles (%s):", L.saddle_count.status)
   for j, s in ipairs(L.saddles) do
-    add("  %d. t = %-28s order %d   F = %s   F'' = %s", j, tostring(s.at), s.order,
-      tostring(s.F), tostring(s.F2))
+    lines[#lines + 1] = wrap(format("%s = %s, order %d, F = %s, F'' = %s", var, num(s.at), s.order,
+      num(s.F), num(s.F2)), format("  %d. ", j), 6)
   end
   add("singularities:")
   if #L.singularities == 0 then add("  none found") end
   for j, s in ipairs(L.singularities) do
-    local extra = s.residue and ("   residue " .. tostring(s.residue)) or ""
-    if s.order then extra = format("   order %d", s.order) .. extra end
-    add("  %d. %-9s at %s%s   (%s)", j, s.kind, tostring(s.at), extra, s.source)
+    local extra = s.residue and (", residue " .. num(s.residue, s.residue_error)) or ""
+    if s.order then extra = format(", order %d", s.order) .. extra end
+    lines[#lines + 1] = wrap(format("%s at %s = %s%s (%s)", s.kind, var, num(s.at), extra, s.source),
+      format("  %d. ", j), 6)
   end
   add("valleys at infinity:")
   for k, v in ipairs(L.valleys) do add("  %d. %s", k, landscape.describe_valley(v)) end
@@ -367,11 +371,11 @@ function M.landscape_report(L, opts)
       local d, a = {}, {}
       for _, q in ipairs(p.descent) do d[#d + 1] = q.ends end
       for _, q in ipairs(p.ascent) do a[#a + 1] = q.ends end
-      add("  saddle %d: descent to %s; ascent to %s", j, table.concat(d, ", "),
-        table.concat(a, ", "))
+      lines[#lines + 1] = wrap(format("descent to %s; ascent to %s", table.concat(d, ", "),
+        table.concat(a, ", ")), format("  saddle %d: ", j), 4)
     end
   end
-  for _, n in ipairs(L.notes) do add("note: %s", n) end
+  for _, n in ipairs(L.notes) do lines[#lines + 1] = wrap(n, "note: ", 4) end
   return table.concat(lines, "\n")
 end
 

@@ -190,7 +190,8 @@ function draw_map(J, params, o, region, view, W, N, shade, nlevels, writer)
   local ctx = { J = J, L = L, plan = plan, params = params, var = J.var.name, N = N,
     shade = shade, nlevels = nlevels,
     vc = view.center, vr = view.radius, X0 = ML, Y0 = MT, P = P, cw = P / N,
-    body = {}, arrows = {}, labels = {}, marks = {}, looped = {}, present = {}, notes = notes }
+    body = {}, arrows = {}, labels = {}, marks = {}, looped = {}, present = {}, notes = notes,
+    sing_label = draw.singularity_labels(L) }
   ctx.vcx, ctx.vcy = cparts(view.center)
   ctx.out = function(s) ctx.body[#ctx.body + 1] = s end
   local vcx, vcy, vr = ctx.vcx, ctx.vcy, ctx.vr
@@ -208,7 +209,7 @@ function draw_map(J, params, o, region, view, W, N, shade, nlevels, writer)
     status = plan.status, saddles = 0, poles = 0, branch_points = 0, sinks = 0, hills = 0,
     essential = 0, valleys = 0, descent_paths = 0, ascent_paths = 0, pieces = 0,
     residues = 0, cuts = 0, arrows = 0, cells = N * N, rects = 0, level_lines = 0,
-    shade = shade, notes = notes }
+    shade = shade, notes = notes, decomposition_notes = plan.notes or {} }
   for _, s in ipairs(L.saddles) do
     if ctx.in_view(s.at) then ctx.marks[#ctx.marks + 1] = { ctx.tf(s.at) } end
   end

@@ -354,6 +354,19 @@ local function marker(kind, x, y)
 end
 
 local LETTER = { pole = "P", branch = "B", sink = "K", hill = "H", essential = "E" }
+
+--- The label of each singularity of the landscape, numbered within its kind (the first
+-- pole is P1 whatever comes before it in the landscape's list): label[j] for
+-- L.singularities[j].
+function M.singularity_labels(L)
+  local count, label = {}, {}
+  for j, s in ipairs(L.singularities) do
+    local letter = LETTER[s.kind] or "X"
+    count[letter] = (count[letter] or 0) + 1
+    label[j] = letter .. count[letter]
+  end
+  return label
+end
 local COUNT = { pole = "poles", branch = "branch_points", sink = "sinks", hill = "hills",
   essential = "essential" }
 
@@ -367,13 +380,13 @@ local function draw_markers(ctx)
       summary[COUNT[s.kind]] = summary[COUNT[s.kind]] + 1
       ctx.present[s.kind] = true
       local x, y = ctx.tf(s.at)
-      local desc = format("%s %d at %s = %s%s (%s)", s.kind, j, var, cnum(s.at),
+      local desc = format("%s %s at %s = %s%s (%s)", s.kind, ctx.sing_label[j], var, cnum(s.at),
         s.order and format(", order %d", s.order) or "", s.source)
       if s.residue then desc = desc .. ", residue " .. cnum(s.residue) end
       out(format('<g class="%s" id="%s-%d"><title>%s</title>%s</g>', s.kind, s.kind, j,
         esc(desc), marker(s.kind, x, y)))
       local off = ctx.looped[j] and 17 or 9
-      ctx.labels[#ctx.labels + 1] = { x + off, y - off, LETTER[s.kind] .. j, anchor = "start" }
+      ctx.labels[#ctx.labels + 1] = { x + off, y - off, ctx.sing_label[j], anchor = "start" }
     end
   end
   for j, s in ipairs(L.saddles) do

@@ -147,6 +147,7 @@ local function height_grid(ctx)
   local Fv, gv = J.tape:eval_many(core.cvec(nodes), params)
   local Ft, gt = Fv:totable(), gv and gv:totable()
   local modulus = ctx.shade == "modulus"
+
   local H, samples = {}, {}
   for j = 0, N do
     local row = {}
@@ -246,6 +247,18 @@ local function draw_shading(ctx)
         ctx.X0 + i * cw, y, (i2 - i) * cw, cw, ctx.palette[bands[i]]))
       ctx.summary.rects = ctx.summary.rects + 1
       i = i2
+    end
+  end
+  -- |g e^F| grows without bound at a pole, above any clipping: in modulus shading each
+  -- pole in view is a disc of the top colour (on a coarse grid it would show as a cell or
+  -- two of moderate colour, under its marker)
+  if ctx.shade == "modulus" then
+    for _, s in ipairs(ctx.L.singularities) do
+      if s.kind == "pole" and ctx.in_view(s.at) then
+        local x, y = ctx.tf(s.at)
+        out(format('<circle class="pole-peak" cx="%.1f" cy="%.1f" r="19" fill="%s" '
+          .. 'fill-opacity="0.9"/>', x, y, ctx.palette[BANDS - 1]))
+      end
     end
   end
   out("</g>")

@@ -55,6 +55,12 @@ local function draw_legend(ctx, LY)
   for _, kind in ipairs({ "pole", "branch", "sink", "hill", "essential" }) do
     if ctx.present[kind] then entry(symbol(kind), names[kind]) end
   end
+  if ctx.shade == "modulus" and ctx.present.pole then
+    entry(function(x, y)
+      return format('<circle cx="%.1f" cy="%.1f" r="8" fill="%s" fill-opacity="0.9"/>', x + 17, y,
+        ctx.palette[BANDS - 1])
+    end, "|g e^F| \u{2192} \u{221e} at a pole (top of the scale)")
+  end
   if ctx.summary.residues > 0 then
     entry(function(x, y)
       return format('<circle cx="%.1f" cy="%.1f" r="7" fill="none" stroke="%s" '
@@ -138,13 +144,15 @@ local function draw_legend(ctx, LY)
       end
     end
     for _, r in ipairs(plan.residues) do
-      parts[#parts + 1] = format("%s%s2\u{3c0}i\u{b7}Res at P%d", r.winding > 0 and "+" or "\u{2212}",
-        abs(r.winding) > 1 and (abs(r.winding) .. "\u{b7}") or "", r.index)
+      parts[#parts + 1] = format("%s%s2\u{3c0}i\u{b7}Res at %s", r.winding > 0 and "+" or "\u{2212}",
+        abs(r.winding) > 1 and (abs(r.winding) .. "\u{b7}") or "", ctx.sing_label[r.index])
     end
     notes[#notes + 1] = "deformed contour: " .. (#parts > 0 and concat(parts, ", ") or "empty")
   else
-    notes[#notes + 1] = "deformed contour not drawn (" .. plan.status .. "): "
-      .. concat(plan.notes or {}, "; ")
+    -- one short line here; the reasons in full are in the summary (decomposition_notes)
+    -- and in J:expand's error message
+    notes[#notes + 1] = "deformed contour not drawn: the contour could not be decomposed ("
+      .. plan.status .. "); the summary's decomposition_notes and J:expand say why"
   end
   for _, n in ipairs(ctx.notes or {}) do notes[#notes + 1] = "note: " .. n end
   for _, n in ipairs(ctx.L.notes or {}) do notes[#notes + 1] = "note: " .. n end

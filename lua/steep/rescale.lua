@@ -40,11 +40,87 @@ local function map_contour(C, c, d)
   return contour_m.new(pieces, C.closed)
 end
 
+-- Is the contour made of rays from the origin (and lines through it, which are two such
+-- rays)? Then t = c s with c real and positive maps it onto itself, orientation kept.
+local function rays_from_origin(C)
+  if C.closed then return false end
+  for _, p in ipairs(C.pieces) do
+    if p.kind == "ray_out" then
+      if cabs(p.a) ~= 0 then return false end
+    elseif p.kind == "ray_in" then
+      if cabs(p.b) ~= 0 then return false end
+    else
+      return false
+    end
+  end
+  return true
+end
+
+local SAMPLES = { 0.25, 1, 4, 16 }
+
+-- Without holding values: the values of the parameters for which the map leaves the
+-- contour as it is, so that holding it needs no choice. Returns the holding values and a
+-- sentence saying for which values of the large parameter they hold, or nil and why not.
+local function default_holding(J, T, dT, s)
+  if not rays_from_origin(J.contour) then
+    return nil, "the contour is not made of rays from the origin, so the map moves it"
+  end
+  local x = J.large and J.large.name
+  for _, name in ipairs(T:symbols()) do
+    if name ~= s.name and name ~= x then
+      return nil, format("the substitution depends on the parameter '%s'", name)
+    end
+  end
+  local function c_and_d(xv)
+    local b = { [s.name] = 0 }
+    if x then b[x] = xv end
+    local ok1, c = pcall(dT.value, dT, b)
+    local ok2, d = pcall(T.value, T, b)
+    if ok1 and ok2 then return c, d end
+  end
+  -- real and positive, with no shift, at every sample value of one sign
+  local shifted
+  local function holds_for(sign)
+    for _, v in ipairs(SAMPLES) do
+      local c, d = c_and_d(sign * v)
+      if not c then return false end
+      if cabs(d) ~= 0 then shifted = d; return false end
+      local cr, ci = cparts(c)
+      if not (cr > 0 and cr < huge and abs(ci) <= 1e-14 * cr) then return false end
+    end
+    return true
+  end
+  local pos, neg = holds_for(1), holds_for(-1)
+  local cs = tostring(expr.substitute(dT, { [s] = 0 }))
+  if shifted and not (pos or neg) then
+    return nil, format("the map moves the origin (%s = 0 is t = %s)", s.name, tostring(shifted))
+  end
+  local words
+  if not x or not T:depends_on(expr.symbol("param", x)) then
+    if not pos then return nil, format("dt/d%s = %s is not real and positive", s.name, cs) end
+    return {}, format("the contour is held as given: its rays from the origin are unchanged by "
+      .. "t = %s (dt/d%s = %s, real and positive)", tostring(T), s.name, cs)
+  end
+  if pos and neg then words = "every real " .. x .. " other than 0"
+  elseif pos then words = x .. " > 0"
+  elseif neg then words = x .. " < 0"
+  else
+    return nil, format("dt/d%s = %s is not real and positive at %s = +-0.25, +-1, +-4, +-16",
+      s.name, cs, x)
+  end
+  return { [x] = pos and 1 or -1 }, format("the contour is held as given for %s: its rays from "
+    .. "the origin are unchanged by t = %s where dt/d%s = %s is real and positive (checked at "
+    .. "%s = %s0.25, 1, 4, 16)", words, tostring(T), s.name, cs, x,
+    pos and neg and "+-" or (pos and "" or "-"))
+end
+
 --- J:rescale{var = s, t = <expression in s and parameters>, at = {<params>}}
 -- -> K, the same integral in s: exponent F(t(s)), amplitude g(t(s)) t'(s), and the
 -- contour mapped at the parameter values `at` (held there: that is the contour a
 -- rescaled formula derived at those values assumes). K.rescaling describes the map and
--- K.homogeneity says whether K's exponent is P(x) psi(s).
+-- K.homogeneity says whether K's exponent is P(x) psi(s). Without `at`, a contour the
+-- map leaves unchanged (rays from the origin, for t = c s with c real and positive) is
+-- held as given, and K.rescaling.holds says for which values of the large parameter.
 function M.rescale(J, opts)
   if type(opts) ~= "table" then error("bad argument #1 to 'rescale' (options table expected)", 2) end
   for k in pairs(opts) do
@@ -69,8 +145,19 @@ function M.rescale(J, opts)
         .. "the new variable %s nor a parameter", name, s.name), 2)
     end
   end
-  local at = opts.at or {}
   local dT = expr.diff(T, s)
+  local at, holds = opts.at, nil
+  if at == nil then
+    local why
+    at, holds = default_holding(J, T, dT, s)
+    if not at then
+      why = holds
+      error(format("rescale: give the parameter values at which to hold the contour, "
+        .. "at = {...}: %s", why), 2)
+    end
+  elseif type(at) ~= "table" then
+    error("rescale: option 'at' must be a table of parameter values, got " .. type(at), 2)
+  end
   local Fs = expr.substitute(J.exponent, { [J.var] = T })
   local gs = expr.substitute(expr.lift(J.amplitude), { [J.var] = T }) * dT
   -- affine in s? t'' = 0 at a few points
@@ -103,7 +190,8 @@ function M.rescale(J, opts)
   local K = require("steep.integral").new {
     var = s, exponent = Fs, amplitude = gs, contour = map_contour(J.contour, c, d),
     large = J.large }
-  K.rescaling = { from = J, t = T, var = s, at = copy(at), factor = dT, shift = T - dT * s }
+  K.rescaling = { from = J, t = T, var = s, at = copy(at), factor = dT, shift = T - dT * s,
+    holds = holds }
   K.homogeneity = M.homogeneity(K, at)
   return K
 end
@@ -235,7 +323,11 @@ function M.suggest(J, opts)
       fits[#fits + 1] = { saddle = i, exponent = slope, spread = resid, track = tr }
     end
   end
-  if #fits == 0 then return { text = "no saddle could be followed over the range" } end
+  local function result(r)
+    r.large, r.integral, r.range = x, J, { from = a, to = b }
+    return setmetatable(r, { __index = { report = M.suggest_report } })
+  end
+  if #fits == 0 then return result { fits = {}, text = "no saddle could be followed over the range" } end
   table.sort(fits, function(u, v) return u.spread < v.spread end)
   local best = fits[1]
   local aexp = best.exponent
@@ -246,11 +338,37 @@ function M.suggest(J, opts)
   end
   local s = expr.symbol("var", "s")
   local tsub = (expr.symbol("param", x) ^ aexp) * s
-  return { exponent = aexp, fitted = best.exponent, fraction = frac, fits = fits,
+  return result { exponent = aexp, fitted = best.exponent, fraction = frac, fits = fits,
     t = tsub, var = s,
     text = format("the saddles move like %s^%.4g (fitted %.4g, spread %.2g in log|t0|): "
       .. "try t = %s, i.e. J:rescale{var = steep.var \"s\", t = %s}", x, aexp,
       best.exponent, best.spread, tostring(tsub), tostring(tsub)) }
+end
+
+--- suggestion:report{format = "text" | "json" | "csv"}: the proposal and the power law
+-- fitted to each saddle followed (CSV: one row per saddle).
+function M.suggest_report(sg, opts)
+  local report_m = require "steep.report"
+  local rows = {}
+  for _, f in ipairs(sg.fits) do
+    rows[#rows + 1] = { saddle = f.saddle, exponent = f.exponent, spread = f.spread,
+      first = f.track[1].at, last = f.track[#f.track].at }
+  end
+  local other = report_m.format(opts, sg, rows, { "saddle", "exponent", "spread", "first", "last" })
+  if other then return other end
+  local lines = { report_m.wrap(tostring(sg.integral), "suggested rescaling for ", 4),
+    format("%s from %s to %s", sg.large, report_m.num(sg.range.from), report_m.num(sg.range.to)) }
+  if #rows > 0 then
+    local t = {}
+    for _, r in ipairs(rows) do
+      t[#t + 1] = { tostring(r.saddle), format("%.4g", r.exponent), format("%.2g", r.spread),
+        report_m.num(r.first, nil, 6), report_m.num(r.last, nil, 6) }
+    end
+    lines[#lines + 1] = report_m.table({ { "saddle", right = true }, { "|t0| ~ x^a: a" },
+      { "spread" }, { "at first" }, { "at last" } }, t)
+  end
+  lines[#lines + 1] = report_m.wrap(sg.text, "", 2)
+  return table.concat(lines, "\n")
 end
 
 ---------------------------------------------------------------------------------------
@@ -400,6 +518,30 @@ function M.compare(J, opts)
     if row.unrescaled and not row.unrescaled_ok then
       row.notes[#row.notes + 1] = "the unrescaled expansion disagrees with quadrature"
     end
+    if row.rescaled and not row.rescaled_ok then
+      row.notes[#row.notes + 1] = "the rescaled route on the held contour disagrees with quadrature"
+    end
+    -- an error estimate as large as the value: agreement within it says nothing
+    local function accurate(val, err) return val ~= nil and (err or 0) < cabs(val) end
+    row.unrescaled_accurate = accurate(row.unrescaled, row.unrescaled_error)
+    row.rescaled_accurate = accurate(row.rescaled, row.rescaled_error)
+    row.corrected_accurate = accurate(row.corrected, row.corrected_error)
+    row.formula_accurate = accurate(row.formula, row.formula_error)
+    -- every route that gave a value misses quadrature, beyond its estimate or within an
+    -- estimate that carries no accuracy: the routes are wrong together
+    local any, good = false, false
+    for _, k in ipairs({ "unrescaled", "rescaled", "corrected" }) do
+      if row[k] then
+        any = true
+        if row[k .. "_ok"] and row[k .. "_accurate"] then good = true end
+      end
+    end
+    row.all_routes_fail = any and not good
+    if row.all_routes_fail then
+      row.notes[#row.notes + 1] = "no route is accurate here: each misses quadrature beyond its "
+        .. "error estimate or has an estimate as large as its value (the expansions fail at "
+        .. "this value)"
+    end
     rows[#rows + 1] = row
   end
   local out = { rows = rows, crossings = cross, rescaled = K, large = x, order = order,
@@ -408,31 +550,58 @@ function M.compare(J, opts)
 end
 
 function M.compare_report(c, opts)
-  local other = require("steep.report").format(opts, c, c.rows,
-    { "x", "unrescaled", "unrescaled_error", "rescaled", "formula", "correction", "corrected",
-      "quad", "quad_error", "unrescaled_ok", "corrected_ok", "formula_ok" })
+  local report_m = require "steep.report"
+  local other = report_m.format(opts, c, c.rows,
+    { "x", "unrescaled", "unrescaled_error", "rescaled", "rescaled_error", "formula",
+      "formula_error", "correction", "corrected", "corrected_error", "quad", "quad_error",
+      "unrescaled_ok", "rescaled_ok", "corrected_ok", "formula_ok", "all_routes_fail" })
   if other then return other end
+  local num, wrap = report_m.num, report_m.wrap
   local lines = {}
-  local function add(...) lines[#lines + 1] = format(...) end
-  add("routes for %s", tostring(c.integral))
-  add("rescaled: %s = %s; %s", c.integral.var.name, tostring(c.rescaled.rescaling.t),
+  lines[#lines + 1] = wrap(tostring(c.integral), "routes for ", 4)
+  lines[#lines + 1] = wrap(format("%s = %s; %s", c.integral.var.name, tostring(c.rescaled.rescaling.t),
     c.rescaled.homogeneity.ok and c.rescaled.homogeneity.text or
-    ("not homogeneous: " .. tostring(c.rescaled.homogeneity.why)))
-  add("%-10s %-24s %-24s %-24s %-24s %s", c.large, "unrescaled", "formula+correction",
-    "rescaled (held)", "quadrature", "flags")
+    ("not homogeneous: " .. tostring(c.rescaled.homogeneity.why))), "rescaled: ", 4)
+  local x0 = c.rows[1] and num(c.rows[1].x, nil, 6) or "?"
+  local routes = {
+    { "unrescaled", "unrescaled", "U" },
+    { "rescaled, held contour", "rescaled", "H" },
+    { "formula from " .. c.large .. " = " .. x0, "formula", "f" },
+    { "formula + crossing terms", "corrected", "R" },
+  }
+  local columns = { { c.large }, { "route" }, { "value" }, { "estimate" }, { "flags" } }
+  local groups = {}
   for _, r in ipairs(c.rows) do
-    local flags = {}
-    if r.unrescaled_ok == false then flags[#flags + 1] = "U" end
-    if r.corrected_ok == false then flags[#flags + 1] = "R" end
-    if r.formula_ok == false then flags[#flags + 1] = "f" end
-    add("%-10s %-24s %-24s %-24s %-24s %s", fmtv(r.x), r.unrescaled and fmtv(r.unrescaled) or "-",
-      r.corrected and fmtv(r.corrected) or "-", r.rescaled and fmtv(r.rescaled) or "-",
-      fmtv(r.quad), table.concat(flags, ","))
-    for _, n in ipairs(r.notes) do add("           note: %s", n) end
+    local t = {}
+    for _, route in ipairs(routes) do
+      local v, e = r[route[2]], r[route[2] .. "_error"]
+      if v ~= nil then
+        local flags = {}
+        if r[route[2] .. "_ok"] == false then flags[#flags + 1] = route[3] end
+        if r[route[2] .. "_accurate"] == false then flags[#flags + 1] = route[3] .. "?" end
+        t[#t + 1] = { route[1], num(v, e), e and format("%.2g", e) or "-", table.concat(flags, " ") }
+      else
+        t[#t + 1] = { route[1], "failed (see notes)", "", route[3] }
+      end
+    end
+    t[#t + 1] = { "quadrature", num(r.quad, r.quad_error), format("%.2g", r.quad_error), "" }
+    for k, cells in ipairs(t) do table.insert(cells, 1, k == 1 and num(r.x) or "") end
+    groups[#groups + 1] = t
   end
-  add("flags: U unrescaled disagrees with quadrature; R corrected rescaled formula disagrees; "
-    .. "f the uncorrected formula derived at the first value disagrees")
-  add("%s", c.crossings:report())
+  -- one table, its columns as wide as the widest cell of any value; notes after each value
+  local all = {}
+  for _, t in ipairs(groups) do for _, cells in ipairs(t) do all[#all + 1] = cells end end
+  local widths = report_m.widths(columns, all)
+  lines[#lines + 1] = report_m.table(columns, {}, nil, 0, widths)
+  for i, r in ipairs(c.rows) do
+    lines[#lines + 1] = report_m.table(columns, groups[i], nil, 0, widths, true)
+    for _, n in ipairs(r.notes) do lines[#lines + 1] = wrap(n, "  note: ", 8) end
+  end
+  lines[#lines + 1] = wrap("U, H, f, R: the route (unrescaled; rescaled on the held contour; the "
+    .. "formula derived at the first value; that formula with the crossing terms) disagrees with "
+    .. "quadrature beyond the estimates; a letter with ? marks an estimate as large as the "
+    .. "value (agreement within it carries no accuracy)", "flags: ", 4)
+  lines[#lines + 1] = c.crossings:report()
   return table.concat(lines, "\n")
 end
 

@@ -26,11 +26,8 @@ function M.is_real(v)
   return im == 0
 end
 
-function M.fmtv(v)
-  local re, im = cparts(v)
-  if im == 0 then return format("%.6g", re) end
-  return format("%.6g%+.6gi", re, im)
-end
+-- A value in a message or report, 6 significant digits, rounding noise shown as 0.
+function M.fmtv(v, err) return require("steep.report").num(v, err, 6) end
 
 --- An optional time budget in seconds (CPU time, os.clock) for long analyses.
 function M.check_budget(b, fname)

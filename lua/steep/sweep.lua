@@ -484,17 +484,29 @@ function M.sweep_report(sw, opts)
     { "x", "expansion", "error", "quad", "quad_error", "relative_error", "estimated",
       "agrees", "stokes", "valleys", "landscape", "failure" })
   if other then return other end
-  local lines = { format("sweep of %s, %d terms", tostring(sw.integral), sw.order),
-    format("%-12s %-26s %-26s %-11s %-11s %s", sw.large, "expansion", "quadrature",
-      "rel. error", "estimated", "") }
-  for _, r in ipairs(sw.rows) do
+  local report_m = require "steep.report"
+  local num, wrap = report_m.num, report_m.wrap
+  local lines = { wrap(format("%s, %s terms", tostring(sw.integral), tostring(sw.order)),
+    "sweep of ", 4) }
+  local columns = { { sw.large }, { "expansion" }, { "quadrature" }, { "rel. error" },
+    { "estimated" }, { "" } }
+  local cells, failed = {}, {}
+  for i, r in ipairs(sw.rows) do
     if r.failure then
-      lines[#lines + 1] = format("%-12s failed: %s", fmtv(r.x), r.failure)
+      cells[i] = { num(r.x, nil, 6), "failed (below)" }
+      failed[#failed + 1] = r
     else
-      lines[#lines + 1] = format("%-12s %-26s %-26s %-11.3g %-11.3g %s", fmtv(r.x),
-        fmtv(r.expansion), fmtv(r.quad), r.relative_error, r.estimated,
-        (r.agrees and "" or "DISAGREES") .. (r.stokes and " stokes" or ""))
+      local flags = {}
+      if not r.agrees then flags[#flags + 1] = "DISAGREES" end
+      if not (r.estimated < 1) then flags[#flags + 1] = "no accuracy" end
+      if r.stokes then flags[#flags + 1] = "stokes" end
+      cells[i] = { num(r.x, nil, 6), num(r.expansion, r.error, 8), num(r.quad, r.quad_error, 8),
+        format("%.3g", r.relative_error), format("%.3g", r.estimated), table.concat(flags, " ") }
     end
+  end
+  lines[#lines + 1] = report_m.table(columns, cells)
+  for _, r in ipairs(failed) do
+    lines[#lines + 1] = wrap(r.failure, format("%s = %s failed: ", sw.large, num(r.x, nil, 6)), 4)
   end
   local continued, searched = 0, 0
   for _, r in ipairs(sw.rows) do

@@ -164,6 +164,52 @@ static int l_gamma_pdf(lua_State *L)
   return push_cdf(L, "gamma_pdf", gsl_ran_gamma_pdf(x, a, b));
 }
 
+/* Bessel functions of real order nu >= 0 (GSL: gsl_sf_bessel_Jnu_e, _Ynu_e,
+ * _Knu_scaled_e = e^x K_nu(x), _Inu_scaled_e = e^-x I_nu(x)). */
+static int l_bessel_Jnu(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_bessel_Jnu_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
+  return push_result(L, "bessel_Jnu", st, &r);
+}
+
+static int l_bessel_Ynu(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_bessel_Ynu_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
+  return push_result(L, "bessel_Ynu", st, &r);
+}
+
+static int l_bessel_Knu_scaled(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_bessel_Knu_scaled_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
+  return push_result(L, "bessel_Knu_scaled", st, &r);
+}
+
+static int l_bessel_Inu_scaled(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_bessel_Inu_scaled_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
+  return push_result(L, "bessel_Inu_scaled", st, &r);
+}
+
+/* The regularized upper incomplete gamma function Q(a, x) (gsl_sf_gamma_inc_Q_e). */
+static int l_gamma_inc_Q(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_gamma_inc_Q_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
+  return push_result(L, "gamma_inc_Q", st, &r);
+}
+
+/* The digamma function psi(x) (gsl_sf_psi_e). */
+static int l_psi(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_psi_e(luaL_checknumber(L, 1), &r);
+  return push_result(L, "psi", st, &r);
+}
+
 /* stirling_gamma(n): {gamma_0, ..., gamma_n} (1-based list) of Stirling's series
  * Gamma(z) ~ e^{-z} z^z (2 pi/z)^{1/2} sum gamma_k z^-k (DLMF 5.11.3), exact rationals
  * rounded to doubles: sum gamma_k w^k = exp(A(w)), A(w) = sum_j B_2j/(2j(2j-1)) w^(2j-1)
@@ -230,52 +276,6 @@ static int l_stirling_gamma(lua_State *L)
   free(a);
   free(g);
   return 1;
-}
-
-/* Bessel functions of real order nu >= 0 (GSL: gsl_sf_bessel_Jnu_e, _Ynu_e,
- * _Knu_scaled_e = e^x K_nu(x), _Inu_scaled_e = e^-x I_nu(x)). */
-static int l_bessel_Jnu(lua_State *L)
-{
-  gsl_sf_result r;
-  int st = gsl_sf_bessel_Jnu_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
-  return push_result(L, "bessel_Jnu", st, &r);
-}
-
-static int l_bessel_Ynu(lua_State *L)
-{
-  gsl_sf_result r;
-  int st = gsl_sf_bessel_Ynu_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
-  return push_result(L, "bessel_Ynu", st, &r);
-}
-
-static int l_bessel_Knu_scaled(lua_State *L)
-{
-  gsl_sf_result r;
-  int st = gsl_sf_bessel_Knu_scaled_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
-  return push_result(L, "bessel_Knu_scaled", st, &r);
-}
-
-static int l_bessel_Inu_scaled(lua_State *L)
-{
-  gsl_sf_result r;
-  int st = gsl_sf_bessel_Inu_scaled_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
-  return push_result(L, "bessel_Inu_scaled", st, &r);
-}
-
-/* The regularized upper incomplete gamma function Q(a, x) (gsl_sf_gamma_inc_Q_e). */
-static int l_gamma_inc_Q(lua_State *L)
-{
-  gsl_sf_result r;
-  int st = gsl_sf_gamma_inc_Q_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
-  return push_result(L, "gamma_inc_Q", st, &r);
-}
-
-/* The digamma function psi(x) (gsl_sf_psi_e). */
-static int l_psi(lua_State *L)
-{
-  gsl_sf_result r;
-  int st = gsl_sf_psi_e(luaL_checknumber(L, 1), &r);
-  return push_result(L, "psi", st, &r);
 }
 
 static const luaL_Reg funcs[] = {
