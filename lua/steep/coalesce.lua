@@ -21,6 +21,7 @@ local cnew, cparts = complex.new, complex.parts
 local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
 local format, pi, abs, huge = string.format, math.pi, math.abs, math.huge
 local airy, model_valley = core.cmath.airy, core.cmath.airy_valley
+local EPS = 2.220446049250313e-16
 
 local M = {}
 
@@ -202,6 +203,13 @@ function M.contribution(J, params, L, pair, order)
   err = err + cabs(pq[1].p * scale) * e0 + cabs(pq[1].q * scale) * e1
     + (128 + cabs(map.A)) * 2.220446049250313e-16 * sizes
     + 64 * 2.220446049250313e-16 * gsize * (cabs(I0) + cabs(I1)) * cabs(scale)
+  -- the saddles' F carry rounding (a few units of |F| each): zeta = v^2 with
+  -- v^3 = (3/4)(F1 - F2) inherits it divided by |v| (saddles close together leave zeta
+  -- less well determined); dI0/dzeta = I1, dI1/dzeta = zeta I0
+  local Fsize = cabs(s1.F) + cabs(s2.F)
+  local dzeta = 4 * EPS * (Fsize / math.max(cabs(map.v), 1e-300) + cabs(map.zeta))
+  err = err + 4 * EPS * Fsize * cabs(value) + dzeta * (cabs(pq[1].p * scale) * cabs(I1)
+    + cabs(pq[1].q * scale) * cabs(map.zeta * I0))
   return { kind = "two saddles together (uniform, Airy type)", at = s1.at, partner = s2.at,
     order = 2, F = map.A, value = value, error = err, terms = { table.unpack(terms, 1, used) },
     used = used, dominance = cparts(map.A), zeta = map.zeta, weights = { 1 },

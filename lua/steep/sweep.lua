@@ -73,12 +73,12 @@ M.CHAIN = 64
 -- The rows of values[i0..i1] (one process): expansion and quadrature at each value, the
 -- landscape continued from the previous step within a chain. on_row(row, i) is called
 -- after each row. Returns the rows and the number the time budget left out (the budget
--- counts this process's CPU time from the start of the call).
-local function compute_rows(J, values, i0, i1, ctx, on_row)
+-- counts this process's CPU time from clock0, by default the start of the call).
+local function compute_rows(J, values, i0, i1, ctx, on_row, clock0)
   local x, fixed, order, budget, resum = ctx.x, ctx.fixed, ctx.order, ctx.budget, ctx.resum
   local continuation, region = ctx.continuation, ctx.region
   local rows, prev, skipped = {}, nil, 0
-  local clock0 = os.clock()
+  clock0 = clock0 or os.clock()
   for i = i0, i1 do
     local v = values[i]
     local p = copy(fixed)
@@ -207,26 +207,23 @@ end
 
 M.decode_row = decode_row
 
--- The block of values worker w of W takes from i0..i1: whole chains (the first block
--- may start inside one), contiguous, in order.
-local function worker_ranges(i0, i1, W)
-  local starts = { i0 }
-  local c = (i0 - 1) // M.CHAIN + 1   -- the chain after i0's
-  while c * M.CHAIN + 1 <= i1 do starts[#starts + 1] = c * M.CHAIN + 1; c = c + 1 end
-  local nchains = #starts
-  W = math.min(W, nchains)
-  local ranges = {}
-  for w = 1, W do
-    local a, b = (w - 1) * nchains // W + 1, w * nchains // W
-    ranges[w] = { starts[a], b < nchains and starts[b + 1] - 1 or i1 }
+-- The chains of i0..i1 (the first may start inside one): a list of {first, last}.
+local function chains_of(i0, i1)
+  local list, a = {}, i0
+  while a <= i1 do
+    local b = math.min(i1, ((a - 1) // M.CHAIN + 1) * M.CHAIN)
+    list[#list + 1] = { a, b }
+    a = b + 1
   end
-  return ranges
+  return list
 end
 
--- Runs the ranges in child processes (core.fork), each writing its rows to a file of
--- its own, line by line; the parent reads them as they come (for progress) and merges
--- them in order. A worker that fails, or a process that cannot fork, is an error.
-local function run_workers(J, values, ranges, ctx, report_progress)
+-- Runs the chains on W child processes (core.fork), chain c on worker (c - 1) % W + 1 (so
+-- that a cost that changes along the values is shared out evenly), each writing its rows
+-- to a file of its own, line by line; the parent reads them as they come (for progress)
+-- and puts the chains back in order. A worker that fails, or a process that cannot fork,
+-- is an error. Returns the rows and each worker's CPU seconds.
+local function run_workers(J, values, chains, W, ctx, report_progress)
   local workers = {}
   local function cleanup()
     for _, w in ipairs(workers) do
@@ -234,7 +231,9 @@ local function run_workers(J, values, ranges, ctx, report_progress)
       os.remove(w.name)
     end
   end
-  for k, range in ipairs(ranges) do
+  for k = 1, W do
+    local mine = {}
+    for c = k, #chains, W do mine[#mine + 1] = c end
     local name = os.tmpname()
     io.stdout:flush()
     io.stderr:flush()
@@ -243,10 +242,13 @@ local function run_workers(J, values, ranges, ctx, report_progress)
       -- the child: compute, write, leave (never back into the caller's code)
       local ok = pcall(function()
         local f = assert(io.open(name, "w"))
-        compute_rows(J, values, range[1], range[2], ctx, function(row)
-          assert(f:write(encode_row(row), "\n"))
-          f:flush()
-        end)
+        local clock0 = os.clock()
+        for _, c in ipairs(mine) do
+          compute_rows(J, values, chains[c][1], chains[c][2], ctx, function(row)
+            assert(f:write(encode_row(row), "\n"))
+            f:flush()
+          end, clock0)
+        end
         assert(f:close())
       end)
       core.child_exit(ok and 0 or 1)
@@ -256,7 +258,10 @@ local function run_workers(J, values, ranges, ctx, report_progress)
       cleanup()
       error("sweep: cannot start worker " .. k .. " (" .. tostring(why) .. "): give workers = 1", 0)
     end
-    workers[k] = { pid = pid, name = name, range = range, lines = {}, partial = "" }
+    local expected = 0
+    for _, c in ipairs(mine) do expected = expected + chains[c][2] - chains[c][1] + 1 end
+    workers[k] = { pid = pid, name = name, chains = mine, expected = expected, lines = {},
+      partial = "" }
   end
   local done, finished = 0, 0
   local function read_new(w)
@@ -290,21 +295,34 @@ local function run_workers(J, values, ranges, ctx, report_progress)
     if report_progress then report_progress(done) end
     if finished < #workers then core.sleep(0.05) end
   end
-  local rows, cpu = {}, {}
+  local by_chain, cpu = {}, {}
   for k, w in ipairs(workers) do
     cpu[k] = w.cpu
     read_new(w)
-    local expected = w.range[2] - w.range[1] + 1
-    if w.status ~= "exit" or w.code ~= 0 or #w.lines ~= expected then
+    if w.status ~= "exit" or w.code ~= 0 or #w.lines ~= w.expected then
       cleanup()
-      error(format("sweep: worker %d (values %d to %d) %s after %d of its %d rows: give "
-        .. "workers = 1 to see the error in this process", k, w.range[1], w.range[2],
+      local first = chains[w.chains[1]]
+      error(format("sweep: worker %d (values %d to %d%s) %s after %d of its %d rows: give "
+        .. "workers = 1 to see the error in this process", k, first[1], first[2],
+        #w.chains > 1 and format(" and %d more chains", #w.chains - 1) or "",
         w.status == "signal" and "was killed by signal " .. tostring(w.code)
-          or "stopped (exit code " .. tostring(w.code) .. ")", #w.lines, expected), 0)
+          or "stopped (exit code " .. tostring(w.code) .. ")", #w.lines, w.expected), 0)
     end
-    for _, line in ipairs(w.lines) do rows[#rows + 1] = decode_row(line) end
+    local at = 0
+    for _, c in ipairs(w.chains) do
+      local rows = {}
+      for _ = chains[c][1], chains[c][2] do
+        at = at + 1
+        rows[#rows + 1] = decode_row(w.lines[at])
+      end
+      by_chain[c] = rows
+    end
   end
   cleanup()
+  local rows = {}
+  for c = 1, #chains do
+    for _, r in ipairs(by_chain[c]) do rows[#rows + 1] = r end
+  end
   return rows, cpu
 end
 
@@ -317,8 +335,8 @@ end
 -- than the argument principle counts in the region; chains of M.CHAIN values start with
 -- a full search. A shard k of n takes the k-th contiguous block of the values, so the
 -- CSV pieces concatenate into the whole table (only shard 1 writes the header). With W
--- workers (default: the processors online) the chains go to W child processes and the
--- rows come back in order, the same as one process computes them.
+-- workers (default: the processors online) the chains go to W child processes in turn
+-- and the rows come back in order, the same as one process computes them.
 function M.sweep(J, opts)
   need_table(opts, "sweep")
   if not J.large then error("sweep: the integral names no large parameter", 2) end
@@ -374,10 +392,11 @@ function M.sweep(J, opts)
   local ctx = { x = x, fixed = fixed, order = order, budget = budget, resum = resum,
     continuation = opts.continuation ~= false, region = opts.region }
   local rows, skipped, worker_cpu = nil, 0, nil
-  local ranges = last >= first and worker_ranges(first, last, workers) or {}
+  local chains = last >= first and chains_of(first, last) or {}
+  local W = math.min(workers, #chains)
   local ok_loop, loop_err = pcall(function()
-    if #ranges > 1 then
-      rows, worker_cpu = run_workers(J, values, ranges, ctx, report_progress)
+    if W > 1 then
+      rows, worker_cpu = run_workers(J, values, chains, W, ctx, report_progress)
       for _, r in ipairs(rows) do if r.skipped then skipped = skipped + 1 end end
     else
       rows, skipped = compute_rows(J, values, first, last, ctx, report_progress and
@@ -390,7 +409,7 @@ function M.sweep(J, opts)
   end
   local out = { rows = rows, large = x, order = order, integral = J, shard = shard,
     status = M.status(rows, skipped, budget), first = first, last = last,
-    workers = math.max(1, #ranges), worker_cpu = worker_cpu, resum = resum }
+    workers = math.max(1, W), worker_cpu = worker_cpu, resum = resum }
   setmetatable(out, { __index = { report = M.sweep_report, csv = M.sweep_csv } })
   if writer then
     writer:write(out:csv(not shard or shard[1] == 1))
