@@ -344,14 +344,32 @@ end
 local function turned_landscape(K, params, L)
   local rho = params[PHASE]
   local Lr = { region = L.region, params = params, notes = {}, singularities = L.singularities,
-    saddle_count = L.saddle_count }
+    saddle_count = L.saddle_count, analysis = L.analysis }
   Lr.saddles = {}
   for j, s in ipairs(L.saddles) do
     Lr.saddles[j] = { at = s.at, order = s.order, F = s.F * rho, F2 = s.F2 * rho,
       coef = s.coef * rho, g = s.g, width = s.width }
   end
+  local A = L.analysis
+  if A and A.polynomial and A.degree >= 1 and #(L.strip_families or {}) == 0 then
+    -- a polynomial exponent: every sector and edge turns by -arg(rho)/degree (they are
+    -- where Re(c_d e^{i d theta}) changes sign)
+    local shift = -carg(rho) / A.degree
+    Lr.valleys = {}
+    for k, v in ipairs(L.valleys) do
+      local c = {}
+      for key, val in pairs(v) do c[key] = val end
+      c.from, c.to = v.from + shift, v.to + shift
+      Lr.valleys[k] = c
+    end
+    Lr.growth, Lr.strip_families = L.growth, {}
+    return Lr
+  end
+  -- (the original integral's analysis with F scaled: the same walks of the expression)
+  local base = {}
+  for k, v in pairs(params) do if k ~= PHASE then base[k] = v end end
   local info
-  Lr.valleys, info = landscape.valleys(K, params, L.region)
+  Lr.valleys, info = landscape.valleys(getmetatable(K).__index, base, L.region, { rho = rho })
   Lr.growth, Lr.strip_families = info, info.families
   return Lr
 end

@@ -140,8 +140,14 @@ M.compare = compare
 -- grows along the ray)?
 local function exp_grows(g) return g.ek[1] ~= nil and g.ek[1][2] > 0 end
 
+-- The decisions a walk of the expression took that depend on the direction (which terms
+-- dominate, whether a remainder stays below them), logged while `log` is set: the walk's
+-- result holds at any other direction where every logged decision comes out the same
+-- (M.analyze replays them instead of walking again).
+local log
+
 -- The terms of largest growth (the dominant group) and their growth.
-local function dominant(list, th)
+local function dominant_raw(list, th)
   local best, group = nil, {}
   for _, t in ipairs(list.terms) do
     local g = growth(t, th)
@@ -152,11 +158,33 @@ local function dominant(list, th)
   return group, best
 end
 
+local function dominant(list, th)
+  local group, best = dominant_raw(list, th)
+  if log then log[#log + 1] = { kind = "dominant", list = list, group = group } end
+  return group, best
+end
+
 -- Is the remainder of a list below the growth g (so that it cannot change terms of
 -- that growth)?
 local function rest_below(list, g, th)
   if not list.rest then return true end
-  return compare(growth(list.rest, th), g) < 0
+  local below = compare(growth(list.rest, th), g) < 0
+  if log then log[#log + 1] = { kind = "rest", list = list, below = below } end
+  return below
+end
+
+-- Do the logged decisions come out the same at direction th?
+local function same_decisions(decisions, th)
+  for _, d in ipairs(decisions) do
+    local group, best = dominant_raw(d.list, th)
+    if d.kind == "dominant" then
+      if #group ~= #d.group then return false end
+      for i = 1, #group do if group[i] ~= d.group[i] then return false end end
+    elseif best then
+      if (compare(growth(d.list.rest, th), best) < 0) ~= d.below then return false end
+    end
+  end
+  return true
 end
 
 ---------------------------------------------------------------------------------------
@@ -600,20 +628,37 @@ local function critical_angles(H, th, out)
   local _ = th
 end
 
---- analyze(F, g, var, params) -> analysis or nil, reason. The analysis has
+--- analyze(F, g, var, params [, rho]) -> analysis or nil, reason, for the exponent F (times
+-- the constant rho when given: F turned in phase on a Stokes line). The analysis has
 -- .H(th) (the integrand's log along a ray), .valleys (sectors, edges and strip families,
 -- like landscape.valleys), .polynomial (coefficients of F when F is a polynomial),
 -- .degree, .exponential (true when exponential terms are present).
-function M.analyze(F, g, var, params)
-  local expr = require "steep.expr"
-  local function H_at(th)
+function M.analyze(F, g, var, params, rho)
+  local function walk(th)
     local Fl = M.list(F, var, params, th)
     if not Fl then return nil end
+    -- (the exponent turned by a constant factor: the same terms, scaled)
+    if rho then Fl = scale(Fl, rho) end
     if g == nil or g == 1 then return Fl end
     local gl = M.list(g, var, params, th)
     if not gl then return nil end
     if #gl.terms == 0 and not gl.rest then return nil end   -- g = 0
     return add(Fl, log_of(gl, th), th, 1)
+  end
+  -- walks with their decision logs: a walk is reused at every direction where its
+  -- decisions hold (most exponents need one or two walks, not one per direction)
+  local walks = {}
+  local function H_at(th)
+    for _, w in ipairs(walks) do
+      if same_decisions(w.decisions, th) then return w.H end
+    end
+    log = {}
+    local ok, H = pcall(walk, th)
+    local decisions = log
+    log = nil
+    if not ok then error(H, 0) end
+    walks[#walks + 1] = { H = H, decisions = decisions }
+    return H
   end
   local out = { H = H_at }
   -- candidate angles: a coarse grid, then the critical angles of the terms found there
@@ -621,9 +666,11 @@ function M.analyze(F, g, var, params)
   for j = 0, 71 do angles[#angles + 1] = norm_angle(-pi + (j + 0.5) * 2 * pi / 72) end
   local crit = {}
   local any_known, exponential = false, false
+  local seen = {}
   for _, th in ipairs(angles) do
     local H = H_at(th)
-    if H then
+    if H and not seen[H] then
+      seen[H] = true
       any_known = true
       critical_angles(H, th, crit)
       for _, t in ipairs(H.terms) do if #t.E > 0 then exponential = true end end

@@ -614,11 +614,12 @@ local function params_key(params)
 end
 M.params_key = params_key
 
-function M.analysis(J, params)
+function M.analysis(J, params, rho)
   local key = params_key(params)
+  if rho then key = key .. format(";rho=%a,%a", cparts(rho)) end
   J._acache = J._acache or {}
   for _, e in ipairs(J._acache) do if e.key == key then return e.A or nil, e.why end end
-  local A, why = infinity.analyze(J.exponent, J.amplitude, J.var, params)
+  local A, why = infinity.analyze(J.exponent, J.amplitude, J.var, params, rho)
   table.insert(J._acache, 1, { key = key, A = A or false, why = why })
   J._acache[5] = nil
   return A, why
@@ -629,7 +630,8 @@ end
 -- info.families, whose instances are added to the list as ends and paths reach them);
 -- otherwise by sampling rings (indicative).
 function M.valleys(J, params, region, opts)
-  local A = M.analysis(J, params)
+  -- (opts.rho: the valleys of the exponent turned by the factor rho)
+  local A = M.analysis(J, params, opts and opts.rho)
   if A then
     local list, families = {}, {}
     for _, v in ipairs(A.valleys) do
