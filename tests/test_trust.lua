@@ -190,3 +190,87 @@ function TestTrustPoles:test_pole_at_the_saddle()
     end
   end
 end
+
+TestTrustEndpoints = {}
+
+-- An end where the integrand is not integrable: t^(-3/2) e^{-2t} on [0, inf) diverges at 0.
+-- Refused by expand and quad; the continued value Gamma(-1/2) 2^(1/2) = -2 sqrt(2 pi)
+-- (Gamma(-1/2) = -2 sqrt(pi), DLMF 5.5.1 from Gamma(1/2) = sqrt(pi)) only when asked for.
+function TestTrustEndpoints:test_divergent_end()
+  local J = steep.integral { var = t, exponent = -2 * t, amplitude = t ^ (-1.5),
+    contour = steep.line(0, steep.inf(0)) }
+  H.raises({ "not integrable", "(t - 0)^-1.5" }, J.expand, J, { order = 3 })
+  H.raises({ "not integrable", "diverges" }, J.quad, J, {})
+  local r = J:expand { order = 3, finite_part = true }
+  within(r.value, r.error + 1e-15, steep.complex(-2 * math.sqrt(2 * pi), 0), 1e-13, "finite part")
+  lu.assertStrContains(r.status, "Hadamard")
+  H.raises({ "finite_part", "true or false" }, J.expand, J, { order = 3, finite_part = 1 })
+end
+
+-- Watson's lemma with log factors (Wong 1989, ch. I):
+--   integral_0^inf t^(s-1) log t e^{-x t} dt = Gamma(s) x^-s (psi(s) - log x),
+--   integral_0^inf t^(s-1) log^2 t e^{-x t} dt = Gamma(s) x^-s ((psi(s) - log x)^2 + psi'(s))
+-- (derivatives of Gamma(s) x^-s in s, DLMF 5.2.2; gsl_sf_gamma, gsl_sf_psi, gsl_sf_psi_1).
+function TestTrustEndpoints:test_log_factors()
+  local J1 = steep.integral { var = t, exponent = -x * t, amplitude = t ^ (-0.5) * steep.log(t),
+    contour = steep.line(0, steep.inf(0)), large = x }
+  local J2 = steep.integral { var = t, exponent = -x * t, amplitude = t ^ 0.5 * steep.log(t) ^ 2,
+    contour = steep.line(0, steep.inf(0)), large = x }
+  for _, xv in ipairs({ 5, 20 }) do
+    local s1 = 0.5
+    local want1 = gsl.gamma(s1) * xv ^ -s1 * (gsl.psi(s1) - math.log(xv))
+    local r1 = J1:expand { x = xv, order = 3 }
+    within(r1.value, r1.error, steep.complex(want1, 0), 1e-12, "t^-1/2 log t, x = " .. xv)
+    local q1, e1 = J1:quad { x = xv }
+    within(q1, e1, steep.complex(want1, 0), 1e-12, "quad, x = " .. xv)
+    local s2 = 1.5
+    local d = gsl.psi(s2) - math.log(xv)
+    local want2 = gsl.gamma(s2) * xv ^ -s2 * (d * d + gsl.psi_1(s2))
+    local r2 = J2:expand { x = xv, order = 3 }
+    within(r2.value, r2.error, steep.complex(want2, 0), 1e-12, "t^1/2 log^2 t, x = " .. xv)
+  end
+  -- a log factor with a regular rest: e^{-x t} log t/(1 + t), against the project's own
+  -- quadrature (1e-13) as the reference
+  local J3 = steep.integral { var = t, exponent = -x * t, amplitude = steep.log(t) / (1 + t),
+    contour = steep.line(0, steep.inf(0)), large = x }
+  for _, xv in ipairs({ 5, 20, 80 }) do
+    local q, e = J3:quad { x = xv }
+    for _, order in ipairs({ 2, 4, 6 }) do
+      local r = J3:expand { x = xv, order = order }
+      within(r.value, r.error + e, q, 1, string.format("log t/(1+t), x = %g, order %d", xv, order))
+    end
+  end
+end
+
+-- Oscillation on top of decay converges: exp(x (i sin 10t - t^2/100)) over the real line at
+-- x = 1 is sqrt(100 pi) J_0(1) (Jacobi-Anger, DLMF 10.12.1, and the Gaussian's Fourier
+-- transform: the terms n != 0 carry e^{-2500 n^2}); gsl_sf_bessel_Jn.
+function TestTrustEndpoints:test_bounded_oscillation()
+  local J = steep.integral { var = t, exponent = x * (I * steep.sin(10 * t) - t ^ 2 / 100),
+    contour = REAL_LINE, large = x }
+  local want = math.sqrt(100 * pi) * gsl.bessel_Jn(0, 1)
+  local v, e, info = J:quad { x = 1 }
+  within(v, e, steep.complex(want, 0), 1e-12, "quad")
+  lu.assertEquals(info.status, "ok")
+  local L = J:landscape { x = 1 }
+  local lines = 0
+  for _, vl in ipairs(L.valleys) do if vl.type == "line" then lines = lines + 1 end end
+  lu.assertEquals(lines, 2, "both horizontal ends converge")
+end
+
+-- Degenerate input gets the exact value or a plain reason.
+function TestTrustEndpoints:test_degenerate_input()
+  local J0 = steep.integral { var = t, exponent = -t ^ 2, amplitude = 0, contour = REAL_LINE }
+  local r = J0:expand { order = 2 }
+  lu.assertEquals(r.value, steep.complex(0, 0))
+  lu.assertEquals(r.error, 0)
+  lu.assertStrContains(r.status, "amplitude is identically zero")
+  local Jc = steep.integral { var = t, exponent = 1 + t - t, contour = steep.line(0, 1) }
+  H.raises({ "does not change with t" }, Jc.expand, Jc, { order = 2 })
+  H.close(Jc:quad {}, math.exp(1), 1e-13, "e times 1 (exact)")
+  local Js = steep.integral { var = t, exponent = -t ^ 2, contour = steep.line(0, 1e-16) }
+  H.raises({ "both ends of the contour lie at the saddle" }, Js.expand, Js, { order = 2 })
+  H.close(Js:quad {}, 1e-16, 1e-12, "the integral over [0, 1e-16] of e^{-t^2} (exact to 1e-32)")
+  H.raises({ "too far out to compute with" }, steep.integral,
+    { var = t, exponent = -t ^ 2, contour = steep.line(-1e308, 1e308) })
+end

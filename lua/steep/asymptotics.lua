@@ -85,9 +85,10 @@ local function saddle_contribution(J, params, L, j, rays, order, plan)
     dominance = cparts(F0) }
 end
 
-local function endpoint_contribution(J, params, piece, order, L)
+local function endpoint_contribution(J, params, piece, order, L, opts)
   local nraw = raw_count(order, 1, false)
-  local b, Fa, beta, berr = expand.endpoint_series(J, params, piece.at, nraw, nil, L)
+  local b, Fa, beta, berr, logs = expand.endpoint_series(J, params, piece.at, nraw, nil, L,
+    opts)
   if not b then
     error(format("the endpoint %s is a saddle of the exponent: not handled as an endpoint",
       tostring(piece.at)), 0)
@@ -98,9 +99,12 @@ local function endpoint_contribution(J, params, piece, order, L)
   local tl, omitted = {}, {}
   for k = 1, used do tl[k] = terms[k] * scale end
   for k = used + 1, math.min(#terms, used + 3) do omitted[#omitted + 1] = terms[k] * scale end
-  return { kind = beta and format("endpoint with factor (t-a)^%g", beta) or "endpoint",
-    at = piece.at, weight = piece.weight, F = Fa, value = value, error = err, terms = tl,
-    omitted = omitted, used = used, dominance = cparts(Fa), beta = beta }
+  local kind = beta and format("endpoint with factor (t-a)^%g", beta) or "endpoint"
+  if logs then kind = kind .. (beta and " and a log" or " with a log factor") end
+  if beta and beta <= -1 then kind = kind .. " (Hadamard's finite part)" end
+  return { kind = kind, at = piece.at, weight = piece.weight, F = Fa, value = value, error = err,
+    terms = tl, omitted = omitted, used = used, dominance = cparts(Fa), beta = beta,
+    finite_part = beta and beta <= -1 or nil }
 end
 
 local function residue_contribution(L, r)
@@ -187,7 +191,7 @@ end
 
 -- The contributions of a plan's pieces and residues, expanded to `order` (`resum`: keep
 -- the pair of a uniform form, for lua/steep/resum.lua).
-local function contributions_of(J, params, L, plan, order, resum)
+local function contributions_of(J, params, L, plan, order, resum, opts)
   local contributions = {}
   local by_saddle, order_seen = {}, {}
   for _, piece in ipairs(plan.pieces) do
@@ -204,7 +208,7 @@ local function contributions_of(J, params, L, plan, order, resum)
             s.source, tostring(piece.at)), 0)
         end
       end
-      contributions[#contributions + 1] = endpoint_contribution(J, params, piece, order, L)
+      contributions[#contributions + 1] = endpoint_contribution(J, params, piece, order, L, opts)
     end
   end
   -- two simple saddles close together: the Airy-type uniform form for the pair
@@ -290,8 +294,27 @@ end
 --- expand(J, params, opts) -> result
 function M.expand(J, params, opts)
   local order = check_order(opts.order or 1, "expand")
+  if J.zero_amplitude then
+    local result = { value = cnew(0, 0), error = 0, contributions = {}, order = order,
+      params = params, notes = { "the amplitude is identically zero" }, stokes = false,
+      integral = J, status = "exact: the amplitude is identically zero" }
+    return setmetatable(result, { __index = { report = M.report } })
+  end
+  local dF = expr.diff(J.exponent, J.var)
+  if dF.op == "const" and dF.re == 0 and dF.im == 0 then
+    error("expand: the exponent " .. tostring(J.exponent) .. " does not change with "
+      .. J.var.name .. " (its derivative is identically 0: no saddle, no endpoint expansion); "
+      .. "the integral is a plain one (use J:quad)", 0)
+  end
   local L = opts.landscape or J:_landscape(params, opts.region, false)
-  local plan = decompose.decompose(J, params, L, J.contour)
+  local plan
+  if opts.finite_part then
+    -- (a divergent end allowed for Hadamard's finite part: a plan of its own, not kept
+    -- with the landscape for quadrature to reuse)
+    plan = decompose.decompose_uncached(J, params, L, J.contour, { finite_part = true })
+  else
+    plan = decompose.decompose(J, params, L, J.contour)
+  end
   if plan.status ~= "ok" then
     local lp = M.local_plan(J, L, plan)
     if lp then plan = lp end
@@ -300,10 +323,10 @@ function M.expand(J, params, opts)
     error("expand: the contour could not be decomposed into steepest descent paths ("
       .. plan.status .. "): " .. table.concat(plan.notes, "; ") .. failure_detail(L), 0)
   end
-  local contributions = contributions_of(J, params, L, plan, order, opts.resum)
+  local contributions = contributions_of(J, params, L, plan, order, opts.resum, opts)
   local stokes = type(plan.stokes) == "table" and plan.stokes or nil
   if stokes and not stokes.settled then
-    contributions = mean_of_sides(contributions, contributions_of(J, params, L, stokes.minus, order))
+    contributions = mean_of_sides(contributions, contributions_of(J, params, L, stokes.minus, order, nil, opts))
   end
   table.sort(contributions, function(a, b) return a.dominance > b.dominance end)
   -- beyond optimal truncation (lua/steep/resum.lua): replaces what it improves
@@ -317,6 +340,11 @@ function M.expand(J, params, opts)
   end
   -- the status says how far to trust the number before any comparison with quadrature
   local status = plan.is_local and "estimated (local method)" or "estimated"
+  for _, c in ipairs(contributions) do
+    if c.finite_part then
+      status = "estimated (Hadamard's finite part: the integral itself diverges)"
+    end
+  end
   local reasons = {}
   if plan.stokes == true then
     reasons[#reasons + 1] = "a saddle connection (Stokes line): the weight of a subdominant "
@@ -520,7 +548,11 @@ function M.series(J, params, opts)
       table.insert(rays[piece.index], piece)
     else
       local nraw = order + 1
-      local b, phia, beta, berr = expand.endpoint_series(J, p1, piece.at, nraw, nil, L)
+      local b, phia, beta, berr, logs = expand.endpoint_series(J, p1, piece.at, nraw, nil, L)
+      if logs then
+        error("series: a log factor at the endpoint " .. tostring(piece.at) .. " makes terms in "
+          .. "log of the large parameter: not the standard form (J:expand handles it)", 0)
+      end
       local terms, _, terr = expand.endpoint_terms(b, beta, nraw, berr)
       local coefs, powers, errors = {}, {}, {}
       for k = 0, order - 1 do

@@ -67,7 +67,7 @@ local function contour_end_label(L, e, which, from, tol)
 end
 
 --- Checks that no singularity lies on the contour (except integrable ones at its ends).
-function M.check_contour(L, contour, pts)
+function M.check_contour(L, contour, pts, J, params, finite_part)
   local R = L.region.radius
   for _, s in ipairs(L.singularities) do
     local d = core.distance(pts, s.at)
@@ -86,6 +86,15 @@ function M.check_contour(L, contour, pts)
       if not (integrable_end or harmless) then
         error(format("a %s of the integrand lies on the contour at %s (%s)", s.kind,
           tostring(s.at), s.source), 0)
+      end
+      -- a branch point of the amplitude at an end: its power must be integrable
+      if at_end and s.kind == "branch" and J and not finite_part then
+        local fac = require("steep.expand").endpoint_factors(J, params, s.at)
+        if fac and fac.pbase and fac.beta <= -1 then
+          error(format("the integrand behaves like (t - %s)^%g at the contour's end %s: not "
+            .. "integrable there (a power <= -1); the integral diverges", tostring(s.at),
+            fac.beta, tostring(s.at)), 0)
+        end
       end
     end
   end
@@ -527,7 +536,7 @@ function M.decompose_uncached(J, params, L, contour, opts)
   local plan = { pieces = {}, residues = {}, notes = {}, status = "ok", evals = 0 }
   local Rfar = 8 * R
   local cpts, cvec = sampled(contour, Rfar)
-  M.check_contour(L, contour, cpts)
+  M.check_contour(L, contour, cpts, J, params, opts and opts.finite_part)
 
   -- boundary of the contour
   -- label -> multiplicity in (boundary of the contour) - (boundary of the combination),
@@ -559,8 +568,20 @@ function M.decompose_uncached(J, params, L, contour, opts)
       if label then
         bump(label, sign == 1 and -1 or 1)
       elseif sj then
-        local near = sign == 1 and cpts[2] or cpts[#cpts - 1]
-        endpoint_saddle[sj] = { sign = sign, direction = carg(near - point) }
+        if endpoint_saddle[sj] then
+          error(format("both ends of the contour lie at the saddle at %s (within %.2g): the "
+            .. "contour is too short to expand about it; integrate it with "
+            .. "J:quad{along = \"given\"}", tostring(L.saddles[sj].at), 1e-8 * R), 0)
+        end
+        -- (the direction the contour leaves the saddle in, from its first or last piece:
+        -- a piece may be shorter than the sampling resolution)
+        local p = sign == 1 and contour.pieces[1] or contour.pieces[#contour.pieces]
+        local dir
+        if p.kind == "segment" then dir = sign == 1 and carg(p.b - p.a) or carg(p.a - p.b)
+        elseif p.kind == "ray_out" then dir = p.angle
+        elseif p.kind == "ray_in" then dir = p.angle
+        else dir = carg((sign == 1 and cpts[2] or cpts[#cpts - 1]) - point) end
+        endpoint_saddle[sj] = { sign = sign, direction = dir }
       else
         local F = J.tape:eval(point, params)
         local ref = cparts(F)
@@ -721,7 +742,11 @@ function M.decompose_uncached(J, params, L, contour, opts)
   -- the combination must have the same ends as the contour
   local missing = {}
   for label, n in pairs(boundary) do
-    if n ~= 0 then missing[#missing + 1] = format("%s (%+d)", label, n) end
+    if n ~= 0 then
+      local k = tonumber(label:match("^valley (%d+)$"))
+      local words = k and landscape.describe_valley(L.valleys[k]) or label
+      missing[#missing + 1] = format("%s (%+d)", words, n)
+    end
   end
   if #missing > 0 then
     table.sort(missing)

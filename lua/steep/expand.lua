@@ -65,7 +65,7 @@ M.gamma = gamma
 -- multiplied into c one by one. Relative rounding below (x + 32) u (u = 2^-53); also
 -- returned.
 local function gamma_times(c, x)
-  if x < 160 then return c * gamma(x), (math.abs(log(gamma(x))) + 32) * 1.1102230246251565e-16 end
+  if x < 160 then return c * gamma(x), (math.abs(log(math.abs(gamma(x)))) + 32) * 1.1102230246251565e-16 end
   local K = floor(x - 20)
   local x0 = x - K
   local v = c * gamma(x0)
@@ -381,12 +381,13 @@ function M.saddle_terms(a, F0, m, c, nraw, aerr)
   return terms, powers, eF0, aerr and errors or nil
 end
 
--- The amplitude's algebraic factor at an endpoint a: looks through the products and
+-- The amplitude's singular factors at an endpoint a: looks through the products and
 -- quotients of the amplitude for a factor base^beta (powc with a real exponent),
--- sqrt(base), or sqrt(base)^k (= base^(k/2) for principal branches), whose base vanishes
--- at a; a factor of a denominator counts with -beta. Returns beta, base expression and
--- the rest of the amplitude (an expression regular at a, or a number), or nil.
-local function algebraic_factor(J, params, a)
+-- sqrt(base), or sqrt(base)^k (= base^(k/2) for principal branches), and for a factor
+-- log(base) or log(base)^m (m = 1, 2), whose base vanishes at a; a factor of a denominator
+-- counts with -beta. Returns {beta, pbase, lbase, m, rest} (rest: the other factors, an
+-- expression regular at a, or a number), or nil.
+local function endpoint_factors(J, params, a)
   local expr = require "steep.expr"
   local g = J.amplitude
   if not expr.is(g) then return nil end
@@ -397,48 +398,95 @@ local function algebraic_factor(J, params, a)
     else factors[#factors + 1], signs[#factors + 1] = n, sign end
   end
   collect(g, 1)
+  local bind = setmetatable({ [J.var.name] = a }, { __index = params })
+  local function vanishes(base)
+    if not (base and base:depends_on(J.var)) then return false end
+    local v = base:value(bind)
+    return cabs(v) <= 1e-12 * math.max(1, cabs(a))
+  end
+  local out, used = { beta = 0, m = 0 }, {}
   for i, f in ipairs(factors) do
-    local beta, base
+    local beta, base, lbase, m
     if f.op == "powc" or f.op == "powi" then
       local br, bi = cparts(f.k)
       if bi == 0 and f.a.op == "sqrt" then
         beta, base = br / 2, f.a.a
       elseif bi == 0 and f.op == "powc" then
         beta, base = br, f.a
+      elseif f.op == "powi" and f.a.op == "log" and signs[i] > 0 and f.k >= 1 and f.k <= 2 then
+        lbase, m = f.a.a, f.k
       end
     elseif f.op == "sqrt" then
       beta, base = 0.5, f.a
+    elseif f.op == "log" and signs[i] > 0 then
+      lbase, m = f.a, 1
     end
-    if base and base:depends_on(J.var) then
-      local v = base:value(setmetatable({ [J.var.name] = a }, { __index = params }))
-      if cabs(v) <= 1e-12 * math.max(1, cabs(a)) then
-        local rest = 1
-        for j, h in ipairs(factors) do
-          if j ~= i then
-            if signs[j] > 0 then rest = rest * h else rest = rest / h end
-          end
-        end
-        return signs[i] * beta, base, rest
-      end
+    if beta and not out.pbase and vanishes(base) then
+      out.beta, out.pbase = signs[i] * beta, base
+      used[i] = true
+    elseif lbase and not out.lbase and vanishes(lbase) then
+      out.lbase, out.m = lbase, m
+      used[i] = true
     end
   end
-  return nil
+  if not (out.pbase or out.lbase) then return nil end
+  local rest = 1
+  for j, h in ipairs(factors) do
+    if not used[j] then
+      if signs[j] > 0 then rest = rest * h else rest = rest / h end
+    end
+  end
+  out.rest = rest
+  return out
 end
+M.endpoint_factors = endpoint_factors
 
---- endpoint_series(J, params, a, n [, near, L]) -> b (0-based list), F(a), beta, err
+-- psi(s) and psi'(s) for real s > 0: the recurrences up to s >= 10, then the asymptotic
+-- series (DLMF 5.11.2 and 5.15.8; error below 1e-16 there).
+local function digamma(s)
+  local acc = 0
+  while s < 10 do acc = acc - 1 / s; s = s + 1 end
+  local s2 = 1 / (s * s)
+  return acc + log(s) - 0.5 / s - s2 * (1 / 12 - s2 * (1 / 120 - s2 * (1 / 252 - s2
+    * (1 / 240 - s2 * (1 / 132 - s2 * 691 / 32760)))))
+end
+local function trigamma(s)
+  local acc = 0
+  while s < 10 do acc = acc + 1 / (s * s); s = s + 1 end
+  local s2 = 1 / (s * s)
+  return acc + 1 / s + 0.5 * s2 + (1 / s) * s2 * (1 / 6 - s2 * (1 / 30 - s2 * (1 / 42
+    - s2 * (1 / 30 - s2 * 5 / 66))))
+end
+M.digamma, M.trigamma = digamma, trigamma
+
+--- endpoint_series(J, params, a, n [, near, L, opts]) -> b (0-based list), F(a), beta, err
 -- Watson's lemma at a finite endpoint with F'(a) != 0: the coefficients of
 -- G(w) = g(a + h(w)) h'(w) (times w^-beta for an algebraic factor (t-a)^beta), and an
 -- estimate of each one's error. L, the landscape, sizes the Cauchy circle.
-function M.endpoint_series(J, params, a, n, near, L)
+-- With a factor log(base)^m (base vanishing at a): log(base) = log w + Lw(w), Lw regular,
+-- and the integral of e^-w w^(s-1) (log w)^j is Gamma^(j)(s) = Gamma(s) D_j(s), D_1 = psi,
+-- D_2 = psi^2 + psi' (DLMF 5.2.2, 5.15.1; Wong, Asymptotic Approximations of Integrals,
+-- 1989, ch. I): the coefficients returned are sum_j C(m,j) [G Lw^(m-j)]_n D_j(n+beta+1),
+-- so that the terms stay b_n Gamma(n + beta + 1). A factor (t-a)^beta with beta <= -1 is
+-- not integrable: refused unless opts.finite_part (Hadamard's finite part: the same
+-- continued sums).
+function M.endpoint_series(J, params, a, n, near, L, opts)
   local order = n + 1
   if order > core.max_order then
     error(format("expansion needs jets of order %d (at most %d)", order, core.max_order), 0)
   end
-  local beta, base, rest = algebraic_factor(J, params, a)
+  local fac = endpoint_factors(J, params, a)
+  local beta = fac and fac.pbase and fac.beta or nil
+  if beta and beta <= -1 and not (opts and opts.finite_part) then
+    error(format("the integrand behaves like (t - %s)^%g at the endpoint %s: not integrable "
+      .. "there (a power <= -1); the integral diverges (expand{finite_part = true} gives "
+      .. "Hadamard's finite part, the value continued in the power)", tostring(a), beta,
+      tostring(a)), 0)
+  end
   local Fj
-  if beta then
-    -- J.tape also computes the amplitude, whose algebraic factor has a branch point at a
-    -- (its jet fails there): the exponent's jet from a tape of its own
+  if fac then
+    -- J.tape also computes the amplitude, which is singular at a (its jet fails there):
+    -- the exponent's jet from a tape of its own
     if not J._exponent_tape then
       J._exponent_tape = require("steep.expr").compile({ J.exponent }, J.var)
     end
@@ -446,29 +494,36 @@ function M.endpoint_series(J, params, a, n, near, L)
   else
     Fj = J.tape:jet(a, order, params)
   end
-  local gj
-  if beta then
-    -- the regular part: rest * (base/(t-a))^beta; its jet from a tape of its own
+  local gj, qb
+  if fac then
+    -- the regular part: rest * (pbase/(t-a))^beta; its jet from a tape of its own, with
+    -- the bases' jets (base = (t - a) q(t): q's coefficients are base's shifted by one)
     local expr = require "steep.expr"
-    local t = J.var
-    local quotient_tape = J._endpoint_tapes and J._endpoint_tapes[base] or nil
+    local key = fac.rest
+    local tapes = J._endpoint_tapes or setmetatable({}, { __mode = "k" })
+    J._endpoint_tapes = tapes
+    local quotient_tape = tapes[fac]
     if not quotient_tape then
-      quotient_tape = expr.compile({ rest, base }, t)
-      J._endpoint_tapes = J._endpoint_tapes or setmetatable({}, { __mode = "k" })
-      J._endpoint_tapes[base] = quotient_tape
+      quotient_tape = expr.compile({ fac.rest, fac.pbase or 1, fac.lbase or 1 }, J.var)
+      tapes[fac] = quotient_tape
     end
-    local rj, bj = quotient_tape:jet(a, order + 1, params)
-    -- base = (t - a) * q(t): q's coefficients are base's shifted down by one
-    local q = {}
-    for k = 0, order - 1 do q[k + 1] = bj:coef(k + 1) end
-    local qs = ser(q, order)
-    if cabs(qs:coef(0)) == 0 then
-      error(format("the amplitude's factor %s vanishes to higher order at the endpoint %s",
-        tostring(base), tostring(a)), 0)
+    local _ = key
+    local rj, pj, lj = quotient_tape:jet(a, order + 1, params)
+    local function shifted(sj, what)
+      local q = {}
+      for k = 0, order - 1 do q[k + 1] = sj:coef(k + 1) end
+      local qs = ser(q, order)
+      if cabs(qs:coef(0)) == 0 then
+        error(format("the amplitude's factor %s vanishes to higher order at the endpoint %s",
+          tostring(what), tostring(a)), 0)
+      end
+      return qs
     end
     local rr = {}
     for k = 0, order - 1 do rr[k + 1] = rj:coef(k) end
-    gj = ser(rr, order) * qs ^ beta
+    gj = ser(rr, order)
+    if fac.pbase then gj = gj * shifted(pj, fac.pbase) ^ beta end
+    if fac.lbase then qb = shifted(lj, fac.lbase) end
   else
     local _, g = J.tape:jet(a, order, params)
     gj = g
@@ -484,26 +539,65 @@ function M.endpoint_series(J, params, a, n, near, L)
   local gh = ser(glist, n + 1):compose(hw)
   local G = gh * hw:deriv()
   local b = {}
-  if beta then
+  if fac then
     -- (t - a)^beta = h(w)^beta = w^beta (h(w)/w)^beta: fold (h/w)^beta into G; the factor
     -- w^beta goes into Gamma(n + beta + 1)
     local hq = {}
     for k = 0, n - 1 do hq[k + 1] = hw:coef(k + 1) end
-    G = G * ser(hq, n) ^ beta
-    -- our principal values may differ from the user's base^beta by exp(2 pi i k beta):
-    -- compare the two a small step down the descent direction from a
+    local hqs = ser(hq, n)
+    if beta then G = G * hqs ^ beta end
+    -- our principal values may differ from the user's by exp(2 pi i k beta) (the power)
+    -- and by 2 pi i k (the log): compare the two a small step down the descent path
     local t1 = a + 1e-6 * math.max(1, cabs(a)) * (-1 / f1) / cabs(1 / f1)
     local F1 = J.tape:eval(t1, params)
     local w1 = Fa - F1
     local bind = setmetatable({ [J.var.name] = t1 }, { __index = params })
-    -- the user's own factor: the amplitude over the regular rest
     local expr = require "steep.expr"
-    local rv = expr.is(rest) and rest:value(bind) or rest
-    local user = J.amplitude:value(bind) / rv
-    local q1 = base:value(bind) / (t1 - a)
-    local ours = ((t1 - a) / w1) ^ beta * w1 ^ beta * q1 ^ beta
-    local phase = user / ours
-    phase = phase / cabs(phase)
+    local phase = 1
+    if beta then
+      -- the user's own power factor: the amplitude over the regular rest and the log
+      local rv = expr.is(fac.rest) and fac.rest:value(bind) or fac.rest
+      local user = J.amplitude:value(bind) / rv
+      if fac.lbase then user = user / complex.apply("log", fac.lbase:value(bind)) ^ fac.m end
+      local q1 = fac.pbase:value(bind) / (t1 - a)
+      local ours = ((t1 - a) / w1) ^ beta * w1 ^ beta * q1 ^ beta
+      phase = user / ours
+      phase = phase / cabs(phase)
+    end
+    if fac.lbase then
+      -- log(base) = log w + Lw(w), Lw = log(h/w) + log(q_b(a + h(w)))
+      local qbh = ser((function()
+        local c = {}
+        for k = 0, n do c[k + 1] = qb:coef(k) end
+        return c
+      end)(), n + 1):compose(hw)
+      local qlist = {}
+      for k = 0, n - 1 do qlist[k + 1] = qbh:coef(k) end
+      local Lw = hqs:log() + ser(qlist, n):log()
+      local user_log = complex.apply("log", fac.lbase:value(bind))
+      local ours_log = complex.apply("log", w1) + Lw:coef(0)
+      -- (Lw's value at w1 to first order; the jump is a multiple of 2 pi i)
+      local jump = user_log - ours_log - Lw:coef(1) * w1
+      local k = math.floor(select(2, cparts(jump)) / (2 * pi) + 0.5)
+      if k ~= 0 then Lw = Lw + cnew(0, 2 * pi * k) end
+      local m, sb = fac.m, beta or 0
+      local parts = { [0] = G }
+      local Lpow = ser({ 1 }, n)
+      for j = m, 0, -1 do
+        -- C(m, j) G Lw^(m - j), with (log w)^j
+        if j < m then Lpow = Lpow * Lw end
+        parts[j] = G * Lpow * (j == 1 and m or 1)
+      end
+      for k2 = 0, n - 1 do
+        local s = k2 + sb + 1
+        local d1 = digamma(s)
+        local v = parts[0]:coef(k2)
+        if m >= 1 then v = v + parts[1]:coef(k2) * d1 end
+        if m >= 2 then v = v + parts[2]:coef(k2) * (d1 * d1 + trigamma(s)) end
+        b[k2] = v * phase
+      end
+      return b, Fa, beta, series_errors(b, n, M.known_radius(J, params, L, a, Fa, 1)), true
+    end
     for k = 0, n - 1 do b[k] = G:coef(k) * phase end
     return b, Fa, beta, series_errors(b, n, M.known_radius(J, params, L, a, Fa, 1))
   end

@@ -53,12 +53,24 @@ function M.new(spec)
     argerror("integral", "field 'contour' must be a contour (steep.line, steep.path, "
       .. "steep.circle), got " .. type(spec.contour))
   end
+  -- (points beyond 1e150 leave no room for the squares and differences every geometric
+  -- step takes: an end that far is an end at infinity)
+  for _, z in ipairs(spec.contour:finite_points()) do
+    if not (cabs(z) <= 1e150) then
+      argerror("integral", format("the contour's point %s is too far out to compute with "
+        .. "(|t| > 1e150): give that end as steep.inf(angle), or rescale the variable",
+        tostring(z)))
+    end
+  end
   local large = spec.large
   if large ~= nil and not (expr.is(large) and large.op == "param") then
     argerror("integral", "field 'large' must be a parameter made by steep.param")
   end
   local J = setmetatable({ var = t, exponent = F, amplitude = g, contour = spec.contour,
     large = large }, Integral)
+  -- an amplitude that is the constant 0: every method returns exactly 0
+  local gr, gi = cparts(expr.is(g) and g.op == "const" and complex.new(g.re, g.im) or g)
+  J.zero_amplitude = gr == 0 and gi == 0
   J.tape = expr.compile({ F, g }, t, 3)
   J.params = J.tape:params()
   J.critical = landscape.critical(F, g, t)
@@ -258,9 +270,16 @@ local function needed_radius(J, params, saddles, center, R)
   if not J.contour.closed then
     for _, e in ipairs({ J.contour:start(), J.contour:finish() }) do
       if not contour_m.is_inf(e) then
-        local ok, Fs = pcall(J.tape.jet, J.tape, e, 1, params, 1)
-        local d = ok and cabs(Fs:coef(1)) or 0
-        if d > 0 and d < huge then need = math.max(need, cabs(e - center) + 4 / d) end
+        -- (the length over which F changes by about 1: 1/|F'|, or 1/sqrt|F''/2| where
+        -- the end sits next to a saddle and F' is small)
+        local ok, Fs = pcall(J.tape.jet, J.tape, e, 2, params, 1)
+        local w = huge
+        if ok then
+          local d1, d2 = cabs(Fs:coef(1)), cabs(Fs:coef(2))
+          if d1 > 0 then w = math.min(w, 1 / d1) end
+          if d2 > 0 then w = math.min(w, 1 / math.sqrt(d2)) end
+        end
+        if w < huge then need = math.max(need, cabs(e - center) + 4 * w) end
       end
     end
   end
@@ -625,7 +644,7 @@ local function quad_given(J, params, L)
   local notes = {}
   local R = L.region.radius
   local poly, runs = J.contour:polyline(8 * R)
-  decompose.check_contour(L, J.contour, poly)
+  decompose.check_contour(L, J.contour, poly, J, params)
   local run_at = {}
   for _, run in ipairs(runs) do run_at[run.first] = run end
   -- an end at infinity outside every valley: the integral diverges there. Said before
@@ -727,7 +746,12 @@ end
 
 -- Along the steepest descent decomposition, plus residues.
 local function quad_deformed(J, params, L)
-  local plan = decompose.decompose(J, params, L, J.contour)
+  local ok, plan = pcall(decompose.decompose, J, params, L, J.contour)
+  if not ok then
+    -- (the decomposition refuses: the caller integrates along the given contour)
+    return nil, nil, { along = "deformed", status = "failed", notes = { tostring(plan) },
+      evals = 0, pieces = {}, residues = {} }
+  end
   local info = { along = "deformed", status = plan.status, notes = plan.notes,
     evals = plan.evals, pieces = {}, residues = {} }
   if plan.status ~= "ok" then return nil, nil, info end
@@ -801,6 +825,10 @@ end
 
 --- The quadrature on a landscape already mapped (sweeps reuse theirs).
 function M.quad_with(J, params, L, along)
+  if J.zero_amplitude then
+    return cnew(0, 0), 0, { status = "ok", evals = 0, along = along, pieces = {}, residues = {},
+      notes = { "exact: the amplitude is identically zero" }, landscape = L, exact = true }
+  end
   local v, e, info
   if along == "given" then
     v, e, info = quad_given(J, params, L)
@@ -863,7 +891,10 @@ end
 --- J:expand{<params>, order = N | "optimal", region = {...}} -> result
 function methods.expand(J, opts)
   local params, o = M.split_options(J, opts, { order = true, region = true, verify = true,
-    resum = true }, "expand")
+    resum = true, finite_part = true }, "expand")
+  if o.finite_part ~= nil and type(o.finite_part) ~= "boolean" then
+    error("expand: option 'finite_part' must be true or false, got " .. type(o.finite_part), 2)
+  end
   o.resum = require("steep.resum").check_option(o.resum, "expand", o.order)
   o.order = require("steep.asymptotics").check_order(o.order or (o.resum and "optimal" or 1),
     "expand")

@@ -224,6 +224,14 @@ static int l_psi(lua_State *L)
   return push_result(L, "psi", st, &r);
 }
 
+/* The trigamma function psi'(x) (gsl_sf_psi_1_e). */
+static int l_psi_1(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_psi_1_e(luaL_checknumber(L, 1), &r);
+  return push_result(L, "psi_1", st, &r);
+}
+
 /* stirling_gamma(n): {gamma_0, ..., gamma_n} (1-based list) of Stirling's series
  * Gamma(z) ~ e^{-z} z^z (2 pi/z)^{1/2} sum gamma_k z^-k (DLMF 5.11.3), exact rationals
  * rounded to doubles: sum gamma_k w^k = exp(A(w)), A(w) = sum_j B_2j/(2j(2j-1)) w^(2j-1)
@@ -304,6 +312,7 @@ static const luaL_Reg funcs[] = {
   { "bessel_Inu_scaled", l_bessel_Inu_scaled },
   { "gamma_inc_Q", l_gamma_inc_Q },
   { "psi", l_psi },
+  { "psi_1", l_psi_1 },
   { "erfc", l_erfc },
   { "expint_E1", l_expint_E1 },
   { "expint_E1_scaled", l_expint_E1_scaled },
