@@ -274,3 +274,31 @@ function TestTrustEndpoints:test_degenerate_input()
   H.raises({ "too far out to compute with" }, steep.integral,
     { var = t, exponent = -t ^ 2, contour = steep.line(-1e308, 1e308) })
 end
+
+TestTrustSweeps = {}
+
+-- A pole that enters the region between two steps of a continued sweep, comes close to
+-- the contour, sits on it, and crosses it: integral of e^{-t^2}/(t - i a) over the real
+-- line = sign(a) i pi w(i |a|) (DLMF 7.7.2 with w(-z) = 2e^{-z^2} - w(z); libcerf's w),
+-- a = 10 - x. Each row must be right or fail (the pole on the contour), never a wrong
+-- number marked as agreeing.
+function TestTrustSweeps:test_pole_entering()
+  local J = steep.integral { var = t, exponent = -t ^ 2, amplitude = 1 / (t - I * (10 - x)),
+    contour = REAL_LINE, large = x }
+  local values = { 0, 5, 8, 9, 9.5, 9.8, 9.95, 10, 10.5, 11 }
+  local sw = J:sweep { x = values, order = 4, workers = 1, progress = false }
+  for i, row in ipairs(sw.rows) do
+    local a = 10 - values[i]
+    if a == 0 then
+      lu.assertNotNil(row.failure, "the pole on the contour: the row fails")
+      lu.assertStrContains(row.failure, "lies on the contour")
+    else
+      lu.assertNil(row.failure, "a = " .. a .. ": " .. tostring(row.failure))
+      local re, im = gsl.faddeeva_w(0, math.abs(a))
+      local want = steep.complex(0, (a > 0 and 1 or -1) * pi) * steep.complex(re, im)
+      within(row.quad, row.quad_error, want, 1e-10, "quadrature, a = " .. a)
+      lu.assertTrue(row.agrees, "a = " .. a .. " agrees")
+      within(row.expansion, row.error, want, 1, "expansion, a = " .. a)
+    end
+  end
+end

@@ -363,8 +363,18 @@ function M.singularities(J, params, region, opts)
     local zs, zi = M.zeros(htape, params, { out = k, deriv = 0 }, region,
       { poles = false, seeds = opts and opts.seeds, seeds_only = opts and opts.fast })
     info.evals = info.evals + zi.evals
+    local found = 0
     for _, z in ipairs(zs) do
       list[#list + 1] = { at = z.at, mult = z.mult, crit = c }
+      found = found + z.mult
+    end
+    if opts and opts.fast then
+      -- following a sweep from the last step's points only: a point that entered the
+      -- region since is counted by the argument principle (zeros less poles of h), and the
+      -- caller searches again
+      local st, count = core.count(htape, params, { out = k, deriv = 0 }, region.center,
+        region.radius, 20000)
+      if st == "ok" and count > found then info.missing = true end
     end
   end
   -- merge the same point found through several subexpressions

@@ -102,9 +102,9 @@ local function compute_rows(J, values, i0, i1, ctx, on_row, clock0)
         row.landscape = "continued"
         -- fewer saddles or singularities than before, or fewer saddles than the argument
         -- principle counts (one entering the region): search the whole region again
-        local sc = L.saddle_count
+        local sc, si = L.saddle_count, L.singularity_info
         if #L.saddles < #prev.saddles or #L.singularities < #prev.singularities
-            or (sc and sc.count and sc.found < sc.count) then
+            or (sc and sc.count and sc.found < sc.count) or (si and si.missing) then
           L = J:_landscape(p, nil, false)
           row.landscape = "full search"
         end
@@ -113,11 +113,15 @@ local function compute_rows(J, values, i0, i1, ctx, on_row, clock0)
       end
       local r = require("steep.asymptotics").expand(J, p, { order = order, landscape = L,
         resum = resum })
-      local q, qe = require("steep.integral").quad_with(J, p, L, "deformed")
+      local q, qe, qinfo = require("steep.integral").quad_with(J, p, L, "deformed")
       row.expansion, row.error, row.quad, row.quad_error = r.value, r.error, q, qe
+      row.quad_status, row.status = qinfo.status, r.status
       row.relative_error = cabs(r.value - q) / math.max(cabs(q), 1e-300)
       row.estimated = r.error / math.max(cabs(q), 1e-300)
-      row.agrees = cabs(r.value - q) <= r.error + qe
+      -- agreement needs both sides trustworthy: quadrature at its tolerance, and an
+      -- expansion that does not call itself suspect
+      row.agrees = cabs(r.value - q) <= r.error + qe and qinfo.status == "ok"
+        and not tostring(r.status):match("^suspect")
       row.stokes = r.stokes
       if r.resum then row.method, row.level = r.resum.method, r.resum.level end
       -- which valleys the contour's ends use depends on arg x: record it
