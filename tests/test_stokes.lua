@@ -164,3 +164,32 @@ function TestStokesCoefficients:test_bessel_circle()
     end
   end
 end
+
+TestStokesRescaling = {}
+
+-- A pole that goes through infinity with the whole rescaled plane: e^{-x^2 t^2}/(t - i) over
+-- the real line is i pi w(i |x|) for either sign of x (u = |x| t and DLMF 7.7.2; libcerf's
+-- w). Rescaled by t = x s (singular at x = 0) the pole sits at s = i/x. J:compare over
+-- x = 3, 1, -1, -3: no route disagrees with quadrature; past x = 0 the formula is derived
+-- afresh instead of being given a residue term that does not apply.
+function TestStokesRescaling:test_compare_through_a_singular_rescaling()
+  local s = steep.var "s"
+  local J = steep.integral { var = t, exponent = -x ^ 2 * t ^ 2, amplitude = 1 / (t - I),
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = x }
+  local cmp = J:compare { x = { 3, 1, -1, -3 }, order = 4, rescale = { var = s, t = x * s } }
+  local report = cmp:report()
+  for _, row in ipairs(cmp.rows) do
+    local msg = "x = " .. row.x .. "\n" .. report
+    local re, im = gsl.faddeeva_w(0, math.abs(row.x))
+    within(row.quad, row.quad_error + 1e-15, C(0, pi) * C(re, im), "quadrature, x = " .. row.x)
+    lu.assertTrue(row.unrescaled_ok, "unrescaled: " .. msg)
+    lu.assertTrue(row.rescaled_ok, "held contour: " .. msg)
+    lu.assertTrue(row.corrected_ok or row.fresh_ok, "a formula route: " .. msg)
+    lu.assertFalse(row.all_routes_fail, msg)
+    if row.x < 0 then
+      lu.assertNil(row.corrected, "no residue term across the singular rescaling")
+      lu.assertEquals(row.fresh_from, -1)
+    end
+  end
+  lu.assertStrContains(report, "derived afresh at x = -1")
+end

@@ -399,24 +399,49 @@ function M.compare(J, opts)
   local cross_opts = copy(fixed)
   cross_opts[x] = values
   local cross = require("steep.crossings").crossings(K, cross_opts)
-  -- the structure of the rescaled formula at the first value
-  local p0 = copy(fixed)
-  p0[x] = values[1]
-  p0.order = order
-  local first = K:expand(p0)
-  local start_poles = {}
-  for _, c in ipairs(first.contributions) do
-    if c.kind == "pole" then start_poles[#start_poles + 1] = { at = c.at, winding = c.weight } end
+  local function index_of(v)
+    for i, vv in ipairs(values) do if vv == v then return i end end
   end
-  -- pole ids at the first value, by position
-  local track0 = cross.track[1] and cross.track[1].singularities or {}
-  for _, sp in ipairs(start_poles) do
-    local best = huge
-    for _, s in ipairs(track0) do
-      local d = cabs(s.at - sp.at)
-      if d < best then best, sp.id = d, s.id end
+  -- the structure of the rescaled formula where it is derived: its pole terms, each
+  -- with the id J:crossings follows it by
+  local function derive(i)
+    local p0 = copy(fixed)
+    p0[x] = values[i]
+    p0.order = order
+    local ok, res = pcall(K.expand, K, p0)
+    if not ok then return nil end
+    local poles = {}
+    for _, c in ipairs(res.contributions) do
+      if c.kind == "pole" then poles[#poles + 1] = { at = c.at, winding = c.weight } end
+    end
+    local track
+    for _, tr in ipairs(cross.track) do if tr.x == values[i] then track = tr end end
+    for _, sp in ipairs(poles) do
+      local best = huge
+      for _, s in ipairs(track and track.singularities or {}) do
+        local d = cabs(s.at - sp.at)
+        if d < best then best, sp.id = d, s.id end
+      end
+    end
+    return { index = i, poles = poles }
+  end
+  -- where the rescaling is singular (dt/ds passes through zero) everything in the
+  -- rescaled plane moves through infinity: a formula cannot be continued past that by
+  -- residues alone; it is derived afresh at the first value beyond
+  local segments = { derive(1) or { index = 1, poles = {} } }
+  for _, e in ipairs(cross.events) do
+    if e.kind == "rescaling" then
+      local i = index_of(e.at)
+      if i then segments[#segments + 1] = derive(i) or { index = i, poles = {} } end
     end
   end
+  local function segment_of(k)
+    local s = segments[1]
+    for _, sg in ipairs(segments) do if sg.index <= k then s = sg end end
+    return s
+  end
+  local singular_steps = {}
+  for _, sg in ipairs(segments) do if sg.index > 1 then singular_steps[sg.index] = true end end
   local c0 = K.rescaling.factor:value(setmetatable({ [K.var.name] = 0 }, { __index = at }))
   local rows = {}
   for k, v in ipairs(values) do
@@ -446,31 +471,34 @@ function M.compare(J, opts)
       for _, c in ipairs(kh.contributions) do
         if c.kind ~= "pole" then saddle_part, serr = saddle_part + c.value, serr + c.error end
       end
-      -- residue terms per pole: the windings the formula had at the first value, and
-      -- those after the crossings so far (combined per pole, so that a term and its
-      -- correction cancel exactly instead of leaving rounding behind)
-      local w_formula, w_now = {}, {}
-      for _, sp in ipairs(start_poles) do
-        if sp.id then
-          w_formula[sp.id] = (w_formula[sp.id] or 0) + sp.winding
-          w_now[sp.id] = (w_now[sp.id] or 0) + sp.winding
-        end
-      end
-      for _, e in ipairs(cross.events) do
-        if e.kind == "side change" and e.id and e.term then
-          local idx_e, idx_v
-          for i, vv in ipairs(values) do
-            if vv == e.at then idx_e = i end
-            if vv == v then idx_v = i end
-          end
-          if idx_e and idx_v and idx_e <= idx_v then
-            w_now[e.id] = (w_now[e.id] or 0) + (e.before == "left" and -1 or 1)
+      -- residue terms per pole: the windings a formula had where it was derived, and
+      -- those after the crossings since (combined per pole, so that a term and its
+      -- correction cancel exactly instead of leaving rounding behind). A crossing at a step
+      -- where the rescaling is singular went through infinity with the whole plane: no
+      -- residue term applies to it, and past it the formula is derived afresh
+      local function windings(seg, upto)
+        local w_formula, w_now = {}, {}
+        for _, sp in ipairs(seg.poles) do
+          if sp.id then
+            w_formula[sp.id] = (w_formula[sp.id] or 0) + sp.winding
+            w_now[sp.id] = (w_now[sp.id] or 0) + sp.winding
           end
         end
+        local crossed_singular = false
+        for _, e in ipairs(cross.events) do
+          if e.kind == "side change" and e.id and e.term then
+            local idx_e = index_of(e.at)
+            if idx_e and idx_e > seg.index and idx_e <= upto then
+              if singular_steps[idx_e] then crossed_singular = true
+              else w_now[e.id] = (w_now[e.id] or 0) + (e.before == "left" and -1 or 1) end
+            end
+          end
+        end
+        return w_formula, w_now, crossed_singular
       end
-      local function with_residues(windings)
+      local function with_residues(ws)
         local val, err = saddle_part, serr
-        for id, w in pairs(windings) do
+        for id, w in pairs(ws) do
           if w ~= 0 then
             local r, re = residue_of(id)
             if r then
@@ -483,6 +511,7 @@ function M.compare(J, opts)
         end
         return val, err
       end
+      local w_formula, w_now = windings(segments[1], k)
       local formula, ferr = with_residues(w_formula)
       local corrected, cerr = with_residues(w_now)
       local corr = corrected - formula
@@ -492,10 +521,26 @@ function M.compare(J, opts)
       local orient = (cparts(ratio) < 0) and -1 or 1
       row.rescaled, row.rescaled_error = orient * kh.value, kh.error
       row.formula = orient * formula
-      row.correction = orient * corr
-      row.corrected = orient * corrected
+      local seg = segment_of(k)
+      if seg.index > 1 then
+        -- past a singular rescaling: the crossing terms do not carry the first formula
+        -- over; the formula derived afresh at the first value beyond, with the crossings
+        -- since then
+        row.notes[#row.notes + 1] = format("the rescaling is singular between %s = %s and "
+          .. "%s: the formula from %s = %s cannot be carried through that by residues (the "
+          .. "poles went through infinity with the plane); it is derived afresh at %s = %s",
+          x, tostring(values[seg.index - 1]), tostring(values[seg.index]), x,
+          tostring(values[1]), x, tostring(values[seg.index]))
+        local _, w_fresh = windings(seg, k)
+        local fresh, frerr = with_residues(w_fresh)
+        row.fresh, row.fresh_error, row.fresh_from = orient * fresh, frerr, values[seg.index]
+        row.corrected, row.correction = nil, nil
+      else
+        row.correction = orient * corr
+        row.corrected = orient * corrected
+      end
       row.formula_error = ferr
-      row.corrected_error = cerr
+      row.corrected_error = row.corrected and cerr or nil
       row.orientation = orient
     else
       row.notes[#row.notes + 1] = "rescaled route failed: " .. tostring(kh)
@@ -509,11 +554,14 @@ function M.compare(J, opts)
     row.rescaled_ok = agrees(row.rescaled, row.rescaled_error)
     row.corrected_ok = agrees(row.corrected, row.corrected_error)
     row.formula_ok = agrees(row.formula, row.formula_error)
+    row.fresh_ok = row.fresh and agrees(row.fresh, row.fresh_error) or nil
     if row.formula and not row.formula_ok and row.corrected_ok then
       row.notes[#row.notes + 1] = "the formula derived at the first value misses a residue "
         .. "after a crossing; with the correction it agrees"
     elseif row.corrected and not row.corrected_ok then
       row.notes[#row.notes + 1] = "the corrected rescaled formula disagrees with quadrature"
+    elseif row.fresh and not row.fresh_ok then
+      row.notes[#row.notes + 1] = "the formula derived afresh disagrees with quadrature"
     end
     if row.unrescaled and not row.unrescaled_ok then
       row.notes[#row.notes + 1] = "the unrescaled expansion disagrees with quadrature"
@@ -527,10 +575,11 @@ function M.compare(J, opts)
     row.rescaled_accurate = accurate(row.rescaled, row.rescaled_error)
     row.corrected_accurate = accurate(row.corrected, row.corrected_error)
     row.formula_accurate = accurate(row.formula, row.formula_error)
+    row.fresh_accurate = row.fresh and accurate(row.fresh, row.fresh_error) or nil
     -- every route that gave a value misses quadrature, beyond its estimate or within an
     -- estimate that carries no accuracy: the routes are wrong together
     local any, good = false, false
-    for _, k in ipairs({ "unrescaled", "rescaled", "corrected" }) do
+    for _, k in ipairs({ "unrescaled", "rescaled", "corrected", "fresh" }) do
       if row[k] then
         any = true
         if row[k .. "_ok"] and row[k .. "_accurate"] then good = true end
@@ -553,7 +602,8 @@ function M.compare_report(c, opts)
   local report_m = require "steep.report"
   local other = report_m.format(opts, c, c.rows,
     { "x", "unrescaled", "unrescaled_error", "rescaled", "rescaled_error", "formula",
-      "formula_error", "correction", "corrected", "corrected_error", "quad", "quad_error",
+      "formula_error", "correction", "corrected", "corrected_error", "fresh", "fresh_error",
+      "fresh_from", "quad", "quad_error",
       "unrescaled_ok", "rescaled_ok", "corrected_ok", "formula_ok", "all_routes_fail" })
   if other then return other end
   local num, wrap = report_m.num, report_m.wrap
@@ -568,6 +618,7 @@ function M.compare_report(c, opts)
     { "rescaled, held contour", "rescaled", "H" },
     { "formula from " .. c.large .. " = " .. x0, "formula", "f" },
     { "formula + crossing terms", "corrected", "R" },
+    { "formula derived afresh", "fresh", "F" },
   }
   local columns = { { c.large }, { "route" }, { "value" }, { "estimate" }, { "flags" } }
   local groups = {}
@@ -579,8 +630,14 @@ function M.compare_report(c, opts)
         local flags = {}
         if r[route[2] .. "_ok"] == false then flags[#flags + 1] = route[3] end
         if r[route[2] .. "_accurate"] == false then flags[#flags + 1] = route[3] .. "?" end
-        t[#t + 1] = { route[1], num(v, e), e and format("%.2g", e) or "-", table.concat(flags, " ") }
-      else
+        local label = route[1]
+        if route[2] == "fresh" then
+          label = "formula from " .. c.large .. " = " .. num(r.fresh_from, nil, 6) .. " (afresh)"
+        end
+        t[#t + 1] = { label, num(v, e), e and format("%.2g", e) or "-", table.concat(flags, " ") }
+      elseif route[2] == "corrected" and r.fresh then
+        t[#t + 1] = { route[1], "not applicable (see notes)", "", "" }
+      elseif route[2] ~= "fresh" then
         t[#t + 1] = { route[1], "failed (see notes)", "", route[3] }
       end
     end
@@ -597,10 +654,11 @@ function M.compare_report(c, opts)
     lines[#lines + 1] = report_m.table(columns, groups[i], nil, 0, widths, true)
     for _, n in ipairs(r.notes) do lines[#lines + 1] = wrap(n, "  note: ", 8) end
   end
-  lines[#lines + 1] = wrap("U, H, f, R: the route (unrescaled; rescaled on the held contour; the "
-    .. "formula derived at the first value; that formula with the crossing terms) disagrees with "
-    .. "quadrature beyond the estimates; a letter with ? marks an estimate as large as the "
-    .. "value (agreement within it carries no accuracy)", "flags: ", 4)
+  lines[#lines + 1] = wrap("U, H, f, R, F: the route (unrescaled; rescaled on the held contour; "
+    .. "the formula derived at the first value; that formula with the crossing terms; the "
+    .. "formula derived afresh past a singular rescaling) disagrees with quadrature beyond the "
+    .. "estimates; a letter with ? marks an estimate as large as the value (agreement within "
+    .. "it carries no accuracy)", "flags: ", 4)
   lines[#lines + 1] = c.crossings:report()
   return table.concat(lines, "\n")
 end
