@@ -191,5 +191,5 @@ function TestStokesRescaling:test_compare_through_a_singular_rescaling()
       lu.assertEquals(row.fresh_from, -1)
     end
   end
-  lu.assertStrContains(report, "derived afresh at x = -1")
+  lu.assertStrContains(report, "formula from x = -1 (afresh)")
 end
