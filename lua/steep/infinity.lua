@@ -465,37 +465,46 @@ end
 -- exponential part: c t^p (log t)^q = c e^{i p th} r^p (log r + i th)^q (|.| e^{-Im p th}),
 -- expanded in powers of log r. Returns a list of {p, j, re, im} sorted by growth.
 local function pure_parts(terms, th)
-  local by = {}
+  -- (real arithmetic on the parts: this runs for every cell of every analysis)
+  local by, out = {}, {}
+  local function put(p, j, re, im)
+    local k = p * 4096 + j
+    local e = by[k]
+    if not e then
+      e = { p = p, j = j, re = 0, im = 0 }
+      by[k] = e
+      out[#out + 1] = e
+    end
+    e.re, e.im = e.re + re, e.im + im
+  end
   for _, t in ipairs(terms) do
-    local base = t.c * expi(t.pr * th) * math.exp(-t.pi * th)
+    local cr, ci = cparts(t.c)
+    local a, m = t.pr * th, math.exp(-t.pi * th)
+    local ca, sa = cos(a) * m, sin(a) * m
+    local br, bi = cr * ca - ci * sa, cr * sa + ci * ca
     local q = t.q
     if q < 0 then
       -- (log r)^q with q < 0: only its leading power (it never decides alone)
-      local k = format("%a:%d", t.pr, q)
-      local e = by[k] or { p = t.pr, j = q, v = cnew(0, 0) }
-      e.v = e.v + base
-      by[k] = e
+      put(t.pr, q, br, bi)
     else
+      -- C(q, j) (i th)^(q - j) (log r)^j
       local binom = 1
       for j = q, 0, -1 do
-        -- C(q, j) (i th)^(q - j) (log r)^j
-        local f = base * binom * (cnew(0, th) ^ (q - j))
-        local k = format("%a:%d", t.pr, j)
-        local e = by[k] or { p = t.pr, j = j, v = cnew(0, 0) }
-        e.v = e.v + f
-        by[k] = e
-        binom = binom * j / (q - j + 1)
+        local n = q - j
+        -- (i th)^n = th^n i^n
+        local mag = binom * th ^ n
+        local pr, pi_ = br * mag, bi * mag
+        local r4 = n % 4
+        if r4 == 1 then pr, pi_ = -pi_, pr elseif r4 == 2 then pr, pi_ = -pr, -pi_
+        elseif r4 == 3 then pr, pi_ = pi_, -pr end
+        put(t.pr, j, pr, pi_)
+        binom = binom * j / (n + 1)
       end
     end
   end
-  local out = {}
-  for _, e in pairs(by) do
-    local re, im = cparts(e.v)
-    out[#out + 1] = { p = e.p, j = e.j, re = re, im = im }
-  end
-  table.sort(out, function(a, b)
-    if a.p ~= b.p then return a.p > b.p end
-    return a.j > b.j
+  table.sort(out, function(u, v)
+    if u.p ~= v.p then return u.p > v.p end
+    return u.j > v.j
   end)
   return out
 end

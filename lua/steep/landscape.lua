@@ -178,6 +178,16 @@ end
 function M.poly_roots(c, d)
   local a = {}
   for k = 0, d do a[k] = c[k] / c[d] end
+  -- (degrees 1 and 2 in closed form, the quadratic without cancellation)
+  if d == 1 then return { -a[0] }, 2 * cabs(a[0]) end
+  if d == 2 then
+    local disc = complex.apply("sqrt", a[1] * a[1] - 4 * a[0])
+    local q = a[1] + disc
+    if cabs(a[1] - disc) > cabs(q) then q = a[1] - disc end
+    q = -0.5 * q
+    local z2 = cabs(q) > 0 and a[0] / q or cnew(0, 0)
+    return { q, z2 }, 2 * math.max(cabs(a[1]), math.sqrt(cabs(a[0])))
+  end
   local bound = 0
   for j = 1, d do
     local v = cabs(a[d - j])
