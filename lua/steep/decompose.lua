@@ -622,13 +622,13 @@ function M.decompose_uncached(J, params, L, contour, opts)
     end
   end
   local fixed, free = {}, {}   -- saddle index -> weights; list of saddle indices
+  local connections = {}
   for j, s in ipairs(L.saddles) do
     local paths = L.paths[j] or landscape.saddle_paths(J, params, L, j)
     L.paths[j] = paths
     for _, p in ipairs(paths.descent) do
       if p.ends:match("^saddle") then
-        plan.notes[#plan.notes + 1] = format("saddle %d: its descent path runs into %s "
-          .. "(a saddle connection: the parameters are on a Stokes line)", j, p.ends)
+        connections[#connections + 1] = format("%d -> %s", j, p.ends:match("%d+"))
         plan.stokes = true
       end
     end
@@ -663,6 +663,14 @@ function M.decompose_uncached(J, params, L, contour, opts)
     else
       free[#free + 1] = j
     end
+  end
+  if #connections > 0 then
+    -- (one note for them all: a lattice of saddles has as many connections as saddles)
+    local shown = table.move(connections, 1, math.min(#connections, 6), 1, {})
+    plan.notes[#plan.notes + 1] = format("%d saddle connection%s (a descent path runs into "
+      .. "another saddle: the parameters are on a Stokes line): saddle %s%s", #connections,
+      #connections > 1 and "s" or "", table.concat(shown, ", saddle "),
+      #connections > #shown and format(" and %d more", #connections - #shown) or "")
   end
   -- weights decided elsewhere (on a Stokes line, from its two sides)
   if opts and opts.weights then
