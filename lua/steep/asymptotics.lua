@@ -345,6 +345,7 @@ function M.expand(J, params, opts)
       status = "estimated (Hadamard's finite part: the integral itself diverges)"
     end
   end
+  if plan.abel then status = status .. " (the integral exists in Abel's sense only: see notes)" end
   local reasons = {}
   if plan.stokes == true then
     reasons[#reasons + 1] = "a saddle connection (Stokes line): the weight of a subdominant "

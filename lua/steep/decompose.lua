@@ -58,7 +58,20 @@ local function contour_end_label(L, e, which, from, tol)
         .. "outside every valley: the integral diverges there (valleys: %s)", which,
         tostring(from or e.through or 0), e.angle, M.valleys_text(L)), 0)
     end
-    return "valley " .. k, boundary
+    -- on a valley's edge the integrand does not decay exponentially: it may not be
+    -- integrable there at all (t^2 e^{i t^3}, e^{i x t}): the value is then the one the
+    -- deformation into the valley continues to (Abel's sense), and the plan says so
+    local abel
+    if boundary and not tol and L.analysis and L.valleys[k].type ~= "strip" then
+      local ok, cl = L.analysis.converges(e.angle)
+      if not ok and cl.class ~= "unknown" then
+        abel = format("the contour's %s end (direction %.6g) runs along the edge of a valley "
+          .. "where the integrand does not decay (|integrand| ~ r^%g): the integral exists "
+          .. "there only in Abel's sense, the value continued by turning the end into the "
+          .. "valley", which, e.angle, cl.kappa or 0)
+      end
+    end
+    return "valley " .. k, boundary, abel
   end
   for j, s in ipairs(L.singularities) do
     if s.kind == "sink" and cabs(s.at - e) <= 1e-9 * L.region.radius then return "sink " .. j end
@@ -555,8 +568,12 @@ function M.decompose_uncached(J, params, L, contour, opts)
     local boundary_s, boundary_f
     local first, last = contour.pieces[1], contour.pieces[#contour.pieces]
     local tol = opts and opts.end_tol
-    start_label, boundary_s = contour_end_label(L, s, "starting", first.b, tol)
-    finish_label, boundary_f = contour_end_label(L, f, "finishing", last.a, tol)
+    local abel_s, abel_f
+    start_label, boundary_s, abel_s = contour_end_label(L, s, "starting", first.b, tol)
+    finish_label, boundary_f, abel_f = contour_end_label(L, f, "finishing", last.a, tol)
+    for _, a in ipairs({ abel_s or false, abel_f or false }) do
+      if a then plan.notes[#plan.notes + 1] = a; plan.abel = true end
+    end
     if boundary_s or boundary_f then
       plan.notes[#plan.notes + 1] = "an end lies on the edge of its valley: the integrand "
         .. "oscillates there without decaying (convergent only conditionally)"

@@ -670,6 +670,34 @@ function M.analyze(F, g, var, params, rho)
     return H
   end
   local out = { H = H_at }
+  --- out.converges(th) -> whether an end along direction th converges, and its class
+  function out.converges(th)
+    local cl = M.classify(H_at(th), th)
+    return convergent(cl), cl
+  end
+  -- a polynomial exponent of degree d (and an amplitude without exponentials): its d
+  -- sectors are where Re(c_d e^{i d theta}) < 0, exact; only the 2d directions between
+  -- them need the full reading (an end along one converges with its sector, Jordan)
+  local poly, d = M.polynomial(F, var, params)
+  if poly then out.polynomial, out.degree = poly, d end
+  if poly and d >= 1 then
+    local gl = (g == nil or g == 1) and { terms = {} } or M.list(g, var, params, 0)
+    local plain = gl ~= nil
+    for _, tm in ipairs(gl and gl.terms or {}) do if #tm.E > 0 then plain = false end end
+    if plain then
+      local c = poly[d] * (rho or 1)
+      local a = carg(c)
+      local valleys = {}
+      for k = 0, d - 1 do
+        local from = norm_angle((pi / 2 - a + 2 * pi * k) / d)
+        valleys[#valleys + 1] = { from = from, to = from + pi / d, type = "polynomial",
+          exact = true }
+      end
+      table.sort(valleys, function(u, v) return u.from < v.from end)
+      out.valleys, out.exponential = valleys, false
+      return out
+    end
+  end
   -- candidate angles: a coarse grid, then the critical angles of the terms found there
   local angles = {}
   for j = 0, 71 do angles[#angles + 1] = norm_angle(-pi + (j + 0.5) * 2 * pi / 72) end
@@ -713,8 +741,6 @@ function M.analyze(F, g, var, params, rho)
   end
   out.cells, out.exponential = cells, exponential
   out.valleys = M.valleys_from_cells(cells, H_at, exponential)
-  local poly, d = M.polynomial(F, var, params)
-  if poly then out.polynomial, out.degree = poly, d end
   return out
 end
 
