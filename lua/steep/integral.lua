@@ -880,6 +880,17 @@ function M.quad_with(J, params, L, along)
     for k = 1, #pts do consider(Fs:get(k), gs and gs:get(k)) end
   end
   e = math.max(e, (4 + Fmax) * 2.2e-16 * cabs(v))
+  -- a value of exactly 0 with no error: say why, or distrust it
+  if cabs(v) == 0 and e == 0 then
+    if info.along == "deformed" and #(info.pieces or {}) == 0 and #(info.residues or {}) == 0 then
+      info.notes[#info.notes + 1] = "the deformed contour has no pieces (no saddle, endpoint or "
+        .. "pole lies between the contour's ends, which share one valley): the integral is 0"
+    else
+      info.status = "underflow"
+      info.notes[#info.notes + 1] = "the integrand underflows (below 1e-308) wherever it was "
+        .. "evaluated: the value is below what doubles hold, not known to be 0"
+    end
+  end
   info.landscape = L
   return v, e, info
 end
