@@ -385,16 +385,22 @@ function M.report(r, opts)
   local L = r.landscape
   if L then
     add("landscape (region: center %s, radius %.4g):", fmtc(L.region.center), L.region.radius)
-    for j, sd in ipairs(L.saddles) do
-      say(format("saddle %d at %s = %s, order %d, F = %s", j, J.var.name, fmtc(sd.at), sd.order,
-        fmtc(sd.F)), "  ", 4)
+    local families = require("steep.periodic").saddle_lines(L, fmtc)
+    if families then
+      -- a periodic F': each saddle family once
+      for k, text in ipairs(families) do say(text, "  ", k == 1 and 4 or 6) end
+    else
+      for j, sd in ipairs(L.saddles) do
+        say(format("saddle %d at %s = %s, order %d, F = %s", j, J.var.name, fmtc(sd.at), sd.order,
+          fmtc(sd.F)), "  ", 4)
+      end
     end
     for _, sg in ipairs(L.singularities) do
       say(format("%s at %s = %s (%s)", sg.kind, J.var.name, fmtc(sg.at), sg.source), "  ", 4)
     end
-    local vs = {}
-    for _, v in ipairs(L.valleys or {}) do vs[#vs + 1] = landscape.describe_valley(v) end
-    say(#vs > 0 and table.concat(vs, ", ") or "none found", "  valleys: ", 4)
+    -- (strip families once each)
+    local vs = require("steep.strips").valley_words(L)
+    say(#vs > 0 and table.concat(vs, "; ") or "none found", "  valleys: ", 4)
   end
   say("(most dominant first; a saddle counts when the contour crosses its steepest ascent "
     .. "paths, weights below; a pole when the deformation sweeps over it)", "contributions ", 2)

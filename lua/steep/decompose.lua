@@ -20,6 +20,8 @@ local complex = require "steep.complex"
 local landscape = require "steep.landscape"
 local contour_m = require "steep.contour"
 local infinity = require "steep.infinity"
+local strips = require "steep.strips"
+local periodic = require "steep.periodic"
 
 local cnew, cparts = complex.new, complex.parts
 local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
@@ -53,7 +55,7 @@ local function contour_end_label(L, e, which, from, tol)
   if contour_m.is_inf(e) then
     local k, boundary = landscape.ray_valley(L, from or e.through or cnew(0, 0), e.angle, tol)
     if not k then
-      error(format("the contour's %s end at infinity (the ray from %s in direction %.6g) is "
+      error(strips.wrong_end(L, which, from or e.through or cnew(0, 0), e.angle) or format("the contour's %s end at infinity (the ray from %s in direction %.6g) is "
         .. "outside every valley: the integral diverges there (valleys: %s)", which,
         tostring(from or e.through or 0), e.angle, M.valleys_text(L)), 0)
     end
@@ -462,6 +464,13 @@ function M.decompose(J, params, L, contour)
   local kept = L._plans[contour]
   if not kept then
     kept = M.decompose_uncached(J, params, L, contour)
+    -- (a periodic family's copy at the edge of the band searched: a copy beyond it may
+    -- be needed, so the plan is not trusted)
+    local edge = kept.status == "ok" and periodic.edge_note(L, kept)
+    if edge then
+      kept.status = "incomplete"
+      kept.notes[#kept.notes + 1] = edge
+    end
     L._plans[contour] = kept
   end
   return M.copy_plan(kept)
@@ -568,13 +577,14 @@ function M.decompose_uncached(J, params, L, contour, opts)
     end
   end
   local fixed, free = {}, {}   -- saddle index -> weights; list of saddle indices
+  local connections = {}       -- (the copies of a periodic family's connection: noted once)
   for j, s in ipairs(L.saddles) do
     local paths = L.paths[j] or landscape.saddle_paths(J, params, L, j)
     L.paths[j] = paths
     for _, p in ipairs(paths.descent) do
       if p.ends:match("^saddle") then
-        plan.notes[#plan.notes + 1] = format("saddle %d: its descent path runs into %s "
-          .. "(a saddle connection: the parameters are on a Stokes line)", j, p.ends)
+        local note = periodic.connection_note(L, j, p.ends, connections)
+        if note then plan.notes[#plan.notes + 1] = note end
         plan.stokes = true
       end
     end

@@ -8,6 +8,8 @@ local expr = require "steep.expr"
 local contour_m = require "steep.contour"
 local landscape = require "steep.landscape"
 local decompose = require "steep.decompose"
+local periodic = require "steep.periodic"
+local strips = require "steep.strips"
 
 local cnew, cparts, is_complex = complex.new, complex.parts, complex.is
 local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
@@ -275,9 +277,22 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
   local psaddles, pinfo
   if poly then psaddles, pinfo = landscape.polynomial_saddles(J, params, A) end
   if poly and not given then region = nil end   -- the saddles are known: fit them anew
+  -- a periodic F' (exp, sinh, cosh of the variable): every saddle family exactly, its
+  -- copies in the band of periods the contour visits (or in the user's region)
+  local per
+  if not poly then
+    local list, info
+    list, info, per = periodic.landscape_saddles(J, params, given and region or nil)
+    if per then
+      psaddles, pinfo = list, info
+      if not given then region = periodic.region_for(J, list) end
+    end
+  end
   region = region or default_region(J, params, psaddles)
-  local L = { region = region, params = params, notes = {}, analysis = A, var = J.var.name }
+  local L = { region = region, params = params, notes = {}, analysis = A, var = J.var.name,
+    periodic = per }
   local function find_saddles(sing, seeds, seeds_only)
+    if per then return psaddles, pinfo end
     if poly and not given then return psaddles, pinfo end
     if poly then
       -- a region of the user's: the saddles inside it
@@ -351,9 +366,16 @@ function M.landscape_report(L, opts)
   local function add(...) lines[#lines + 1] = format(...) end
   add("region: center %s, radius %.4g", num(L.region.center), L.region.radius)
   add("saddles (%s):", L.saddle_count.status)
-  for j, s in ipairs(L.saddles) do
-    lines[#lines + 1] = wrap(format("%s = %s, order %d, F = %s, F'' = %s", var, num(s.at), s.order,
-      num(s.F), num(s.F2)), format("  %d. ", j), 6)
+  local families = periodic.saddle_lines(L, num)
+  if families then
+    -- a periodic F': each family once
+    lines[#lines + 1] = wrap(families[1], "  ", 4)
+    for k = 2, #families do lines[#lines + 1] = wrap(families[k], "  ", 6) end
+  else
+    for j, s in ipairs(L.saddles) do
+      lines[#lines + 1] = wrap(format("%s = %s, order %d, F = %s, F'' = %s", var, num(s.at),
+        s.order, num(s.F), num(s.F2)), format("  %d. ", j), 6)
+    end
   end
   add("singularities:")
   if #L.singularities == 0 then add("  none found") end
@@ -364,15 +386,32 @@ function M.landscape_report(L, opts)
       format("  %d. ", j), 6)
   end
   add("valleys at infinity:")
-  for k, v in ipairs(L.valleys) do add("  %d. %s", k, landscape.describe_valley(v)) end
+  -- (strips: each family once; the instances paths reach are named where they end)
+  local families_of_strips = #(L.strip_families or {}) > 0
+  for k, v in ipairs(L.valleys) do
+    if not (families_of_strips and v.type == "strip") then
+      add("  %d. %s", k, landscape.describe_valley(v))
+    end
+  end
+  for _, f in ipairs(L.strip_families or {}) do
+    lines[#lines + 1] = wrap(strips.describe_family(f, var), "  ", 4)
+  end
   if L.paths then
-    add("steepest paths:")
-    for j, p in pairs(L.paths) do
-      local d, a = {}, {}
-      for _, q in ipairs(p.descent) do d[#d + 1] = q.ends end
-      for _, q in ipairs(p.ascent) do a[#a + 1] = q.ends end
-      lines[#lines + 1] = wrap(format("descent to %s; ascent to %s", table.concat(d, ", "),
-        table.concat(a, ", ")), format("  saddle %d: ", j), 4)
+    add("steepest paths%s:", families and " (one copy of each family)" or "")
+    local function words(label)
+      return families_of_strips and strips.label_words(L, label) or label
+    end
+    for j, p in ipairs(L.paths) do
+      local s = L.saddles[j]
+      if not (families and s.copy ~= 0) then
+        local d, a = {}, {}
+        for _, q in ipairs(p.descent) do d[#d + 1] = words(q.ends) end
+        for _, q in ipairs(p.ascent) do a[#a + 1] = words(q.ends) end
+        local name = families and format("family %d at %s = %s", s.family, var, num(s.at))
+          or format("saddle %d", j)
+        lines[#lines + 1] = wrap(format("descent to %s; ascent to %s", table.concat(d, ", "),
+          table.concat(a, ", ")), format("  %s: ", name), 4)
+      end
     end
   end
   for _, n in ipairs(L.notes) do lines[#lines + 1] = wrap(n, "note: ", 4) end
@@ -633,6 +672,9 @@ local function quad_given(J, params, L)
   -- the value, where they are indicative (found by sampling).
   local function diverges(p)
     local from = p.kind == "ray_in" and p.b or p.a
+    local which = p.kind == "ray_in" and "starting" or "finishing"
+    local words = strips.wrong_end(L, which, from, p.angle)
+    if words then error("quad: " .. words, 0) end
     error(format("quad: the contour's %s end at infinity (the ray from %s in direction %.6g) "
       .. "is outside every valley: the integral diverges there (valleys: %s)",
       p.kind == "ray_in" and "starting" or "finishing", tostring(from), p.angle,

@@ -1,0 +1,115 @@
+-- Exponents whose derivative is periodic (lua/steep/periodic.lua) and strip valleys in
+-- words (lua/steep/strips.lua). References: the saddles of nu (z sinh w - w) are the zeros
+-- of cosh w = 1/z, w = +-acosh(1/z) + 2 pi i k (exact); Re(c e^{a w}) = |c| e^{Re(a w)}
+-- cos(arg c + Im(a w)) gives the strips (exact).
+local lu = require "luaunit"
+local H = require "helpers"
+local steep = H.steep
+local periodic = require "steep.periodic"
+
+local w, nu = steep.var "w", steep.param "nu"
+local I, pi, C = steep.I, math.pi, steep.complex
+
+local function schlaefli(z)
+  return steep.integral { var = w, exponent = nu * (z * steep.sinh(w) - w),
+    amplitude = 1 / (2 * pi * I),
+    contour = steep.line(steep.inf(0, C(0, -pi)), steep.inf(0, C(0, pi))), large = nu }
+end
+
+TestPeriodic = {}
+
+-- F' = nu (z cosh w - 1) = (nu z / 2) u + (nu z / 2) / u - nu with u = e^w (exact).
+function TestPeriodic:test_detect_sinh()
+  local J = schlaefli(0.5)
+  local D = assert(periodic.detect(J, { nu = 20 }))
+  H.close(D.rate, 1, 1e-15, "rate 1")
+  H.close(D.period, C(0, 2 * pi), 1e-15, "period 2 pi i")
+  lu.assertEquals(D.mmin, -1)
+  lu.assertEquals(D.mmax, 1)
+  H.close(D.coef[1], 5, 1e-15, "c_1 = nu z / 2")
+  H.close(D.coef[-1], 5, 1e-15, "c_-1 = nu z / 2")
+  H.close(D.coef[0], -20, 1e-15, "c_0 = -nu")
+end
+
+-- Commensurate rates share the largest common rate; others are not periodic; a power of
+-- the variable times an exponential is not either (exact).
+function TestPeriodic:test_detect_rates()
+  local function J_of(F)
+    return steep.integral { var = w, exponent = F, contour = steep.line(0, 1) }
+  end
+  local D = assert(periodic.detect(J_of(steep.exp(2 * w) + 3 * steep.exp(3 * w)), {}))
+  H.close(D.rate, 1, 1e-14, "rates 2 and 3: common rate 1")
+  lu.assertEquals(D.mmin, 2)
+  lu.assertEquals(D.mmax, 3)
+  local D2 = assert(periodic.detect(J_of(steep.cosh(I * w) - w / 2), {}))
+  H.close(math.abs(D2.period:re()), 2 * pi, 1e-14, "cosh(i w): period 2 pi")
+  lu.assertEquals(D2.period:im(), 0, "along the real axis")
+  lu.assertNil(periodic.detect(J_of(steep.exp(w) + steep.exp(math.sqrt(2) * w)), {}),
+    "rates 1 and sqrt 2")
+  lu.assertNil(periodic.detect(J_of(w * steep.exp(w)), {}), "w e^w")
+  lu.assertNil(periodic.detect(J_of(w ^ 3), {}), "a polynomial")
+end
+
+-- The saddles in the band of the Schlaefli contour (-pi <= Im w <= pi, one period more
+-- on each side): +-acosh(2) + 2 pi i k, k = -1, 0, 1, each exact; two families.
+function TestPeriodic:test_schlaefli_band()
+  local J = schlaefli(0.5)
+  local L = J:landscape { nu = 20 }
+  local a = math.log(2 + math.sqrt(3))          -- acosh 2
+  lu.assertEquals(#L.saddles, 6, "two families, three copies each")
+  lu.assertEquals(#L.periodic.families, 2)
+  for _, sgn in ipairs({ -1, 1 }) do
+    for k = -1, 1 do
+      local want = C(sgn * a, 2 * pi * k)
+      local found = false
+      for _, s in ipairs(L.saddles) do
+        if (s.at - want):abs() <= 1e-13 then found = true end
+      end
+      lu.assertTrue(found, "saddle " .. tostring(want))
+    end
+  end
+  -- the report lists each family once
+  local text = L:report()
+  lu.assertStrContains(text, "2 saddle families, period 6.283185307i")
+  lu.assertNil(text:find("saddle 3", 1, true), "no list of every copy: " .. text)
+end
+
+-- On the Stokes line of real nu and z (the descent path of -acosh(1/z) runs into
+-- +acosh(1/z), in every copy) the expansion notes the connection once, and the result
+-- agrees with GSL's J_nu within its estimate.
+function TestPeriodic:test_connection_noted_once()
+  local ref = require "gslref"
+  local J = schlaefli(1 / math.cosh(1))
+  local r = J:expand { nu = 20, order = 6 }
+  local n = 0
+  for _, note in ipairs(r.notes) do
+    if note:find("saddle connection", 1, true) then n = n + 1 end
+  end
+  lu.assertEquals(n, 1, "one note: " .. table.concat(r.notes, " | "))
+  local want = ref.bessel_Jnu(20, 20 / math.cosh(1))   -- GSL gsl_sf_bessel_Jnu
+  lu.assertTrue((r.value - want):abs() <= r.error,
+    string.format("J_20(20 sech 1): %s vs %.17g, estimate %.3g", tostring(r.value), want, r.error))
+end
+
+-- A contour end in a hill strip: the error names the strip, the valleys on either side
+-- (with the ends to write instead) and all valleys, in three lines; the end it suggests
+-- gives a convergent integral (exact strips: x sinh w to the right is a hill where
+-- cos(Im w) > 0).
+function TestPeriodic:test_wrong_strip_end()
+  local J = steep.integral { var = w, exponent = nu * (2 * steep.sinh(w) - w),
+    contour = steep.path { steep.inf(pi), 0, steep.inf(0) }, large = nu }
+  for _, f in ipairs({ J.expand, J.quad }) do
+    local err = H.raises({ "finishing end at infinity", "hill strip",
+      "-1.571 < Im w < 1.571 to the right",
+      "the strip -4.712 < Im w < -1.571 to the right",
+      "the strip 1.571 < Im w < 4.712 to the right",
+      "steep.inf(0, steep.complex(0, 3.142))" }, f, J, { nu = 20 })
+    local _, lines = err:gsub("\n", "")
+    lu.assertTrue(lines <= 2, "three lines at most: " .. err)
+  end
+  local K = steep.integral { var = w, exponent = nu * (2 * steep.sinh(w) - w),
+    contour = steep.path { steep.inf(pi), 0, steep.inf(0, C(0, 3.142)) }, large = nu }
+  local v, e, info = K:quad { nu = 20 }
+  lu.assertEquals(info.status, "ok")
+  lu.assertTrue(e < 1e-12 * v:abs(), "the suggested end converges")
+end
