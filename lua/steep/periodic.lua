@@ -229,17 +229,18 @@ function M.region_for(J, saddles)
   return { center = cnew(0, 0), radius = 2 ^ math.ceil(math.log(R0, 2)) }
 end
 
---- After a decomposition: a weighted saddle that is the outermost copy of its family in
--- the band means the band may be too narrow (a needed copy beyond it would be missing):
--- the plan is then not trusted. Returns a note or nil.
+--- After a decomposition: a weighted saddle within half a period of the band's edge (more
+-- than half a period beyond the contour) means the band may be too narrow (a needed copy
+-- beyond it would be missing): the plan is then not trusted. Returns a note or nil.
 function M.edge_note(L, plan)
   local per = L.periodic
   if not per or not per.lo then return nil end
+  local half = 0.5 * cabs(per.period)
   for _, piece in ipairs(plan.pieces) do
     if piece.kind == "saddle" and piece.weight ~= 0 then
       local s = L.saddles[piece.index]
-      local g = s.family and per.families[s.family]
-      if g and (s.copy == g.first or s.copy == g.last) then
+      local y = along(per.period, s.at)
+      if y < per.lo + half or y > per.hi - half then
         return format("the decomposition uses a copy of a periodic saddle family at the edge "
           .. "of the band of periods searched (%s): a copy beyond it may be needed", tostring(s.at))
       end
