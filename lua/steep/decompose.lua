@@ -633,8 +633,11 @@ function M.decompose_uncached(J, params, L, contour, opts)
     plan.notes[#plan.notes + 1] = "the weights could not be decided on either side of the "
       .. "Stokes line (turning the exponent's phase did not separate the saddles)"
   end
+  -- (with infinitely many saddles, those of the region are not all of them: a solution
+  -- from their ends alone need not be the right one, while crossing numbers are decided
+  -- saddle by saddle)
   local by_ends = not plan.stokes and not (opts and opts.by_crossings)
-    and solve_by_ends(L, boundary, fixed, free)
+    and not L.region.bounded and solve_by_ends(L, boundary, fixed, free)
   if #free > 0 then plan.weights_by = by_ends and "ends" or "crossings" end
   for _, j in ipairs(free) do
     local weights = by_ends and by_ends[j]
@@ -695,7 +698,17 @@ function M.decompose_uncached(J, params, L, contour, opts)
   end
   if plan.status ~= "ok" then return plan end
 
-  -- the combination must have the same ends as the contour
+  -- the combination must have the same ends as the contour; with infinitely many saddles
+  -- a chain of them cut off by the region ends in strips: each such strip is joined to
+  -- the valley its middle line runs into (a line between two valleys, integrated by
+  -- quadrature: it stands for the saddles beyond the region)
+  if L.region.bounded then
+    for _, link in ipairs(strips.links(L, boundary, J, params, Rfar)) do
+      plan.pieces[#plan.pieces + 1] = link
+      bump(link.ends[1], link.weight)
+      bump(link.ends[2], -link.weight)
+    end
+  end
   local missing = {}
   for label, n in pairs(boundary) do
     if n ~= 0 then missing[#missing + 1] = format("%s (%+d)", label, n) end
@@ -762,6 +775,8 @@ function M.decompose_uncached(J, params, L, contour, opts)
     local poly = piece.full
     cycle[#cycle + 1] = { poly, -piece.weight }
     close(poly:get(#poly), piece.ends[2], -piece.weight)
+    -- (a link starts at infinity too)
+    if piece.kind == "link" then close(poly:get(1), piece.ends[1], piece.weight) end
   end
   for idx, s in ipairs(L.singularities) do
     -- a singular point at a finite end of the contour is an integrable endpoint

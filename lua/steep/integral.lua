@@ -269,6 +269,28 @@ local function needed_radius(J, params, saddles, center, R)
   return need
 end
 
+-- With infinitely many saddles the region is limited. About a closed contour (a
+-- coefficient integral: the chain of saddles its deformation runs through goes round a
+-- hill, and is cut off by the region, the rest joined by lines between valleys) the region
+-- doubles, at most RIM_GROWTH times, while a saddle in its outer half still lies within
+-- e^RIM_DROP of the largest |g e^F| at a saddle, so that the parts beyond it are
+-- negligible against the largest contribution.
+local RIM_DROP, RIM_GROWTH = 20, 3
+local function rim_matters(saddles, region)
+  local top, levels = -huge, {}
+  for k, s in ipairs(saddles) do
+    local gm = cabs(s.g)
+    levels[k] = cparts(s.F) + (gm > 0 and math.log(gm) or -huge)
+    top = math.max(top, levels[k])
+  end
+  for k, s in ipairs(saddles) do
+    if cabs(s.at - region.center) > 0.5 * region.radius and levels[k] > top - RIM_DROP then
+      return true
+    end
+  end
+  return false
+end
+
 function methods._landscape_uncached(J, params, region, with_paths, cont)
   local A = landscape.analysis(J, params)
   local poly = A and A.polynomial and A.degree >= 2
@@ -321,11 +343,6 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
     L.growth, L.strip_families = info, info.families
     return setmetatable(L, { __index = { report = M.landscape_report } })
   end
-  if region.bounded then
-    L.notes[#L.notes + 1] = "the number of saddles keeps growing with the region (infinitely "
-      .. "many?): the region was limited to radius " .. format("%.4g", region.radius)
-      .. " (four times the contour's scale); give region = {...} to choose"
-  end
   -- the contour's finite points seed Newton too; of a path of many points, 64 spread
   -- along it (the search of the region finds the rest)
   local seeds, fp = {}, J.contour:finite_points()
@@ -333,14 +350,28 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
   for k = 1, #fp, stride do seeds[#seeds + 1] = fp[k] end
   if #fp > 0 and seeds[#seeds] ~= fp[#fp] then seeds[#seeds + 1] = fp[#fp] end
   local sing, sinfo, saddles, info
-  for round = 1, 3 do
+  local grown = 0
+  for round = 1, 3 + RIM_GROWTH do
     sing, sinfo = landscape.singularities(J, params, L.region)
     saddles, info = find_saddles(sing, seeds)
     -- a region chosen here must hold the saddles' and the ends' own scales
     local need = not given and needed_radius(J, params, saddles, L.region.center, L.region.radius) or 0
-    if need <= L.region.radius or round == 3 then break end
+    local grow = L.region.bounded and not given and J.contour.closed and grown < RIM_GROWTH
+      and rim_matters(saddles, L.region)
+    if grow then
+      need = math.max(need, 2 * L.region.radius)
+      grown = grown + 1
+    end
+    if need <= L.region.radius or (round >= 3 and not grow) then break end
     L.region = { center = L.region.center, radius = 2 ^ math.ceil(math.log(need, 2)),
       bounded = L.region.bounded }
+  end
+  if L.region.bounded then
+    L.notes[#L.notes + 1] = "the number of saddles keeps growing with the region (infinitely "
+      .. "many?): the region was limited to radius " .. format("%.4g", L.region.radius)
+      .. (J.contour.closed and format(" (the saddles in its outer half lie below e^-%d times "
+      .. "the largest, or it was doubled %d times)", RIM_DROP, RIM_GROWTH)
+      or " (four times the contour's scale)") .. "; give region = {...} to choose"
   end
   L.singularities, L.singularity_info = sing, sinfo
   L.saddles, L.saddle_count = saddles, info
@@ -767,6 +798,15 @@ local function path_tail(J, params, L, piece, notes)
   return v0, e0, ev, st
 end
 
+--- A link between two valleys (strips.links): the line through piece.through along
+-- piece.angle, from the strip at that end to the valley at the other, by quadrature along
+-- its two rays. -> value, error, evaluations, status
+function M.quad_link(J, params, L, piece, notes)
+  local v1, e1, n1, s1 = quad_ray(J, params, L, piece.through, piece.angle, 1, false, notes)
+  local v2, e2, n2, s2 = quad_ray(J, params, L, piece.through, piece.angle + pi, 1, false, notes)
+  return v2 - v1, e1 + e2, n1 + n2, (s1 ~= "ok" and s1) or s2
+end
+
 -- Along the steepest descent decomposition, plus residues.
 local function quad_deformed(J, params, L)
   local plan = decompose.decompose(J, params, L, J.contour)
@@ -775,7 +815,15 @@ local function quad_deformed(J, params, L)
   if plan.status ~= "ok" then return nil, nil, info end
   local total, err = cnew(0, 0), 0
   for _, piece in ipairs(plan.pieces) do
-    if #piece.points >= 2 then
+    if piece.kind == "link" then
+      local v, e, ev, st = M.quad_link(J, params, L, piece, info.notes)
+      info.evals = info.evals + ev
+      if st ~= "ok" then info.status = "quadrature " .. st end
+      total = total + piece.weight * v
+      err = err + abs(piece.weight) * e
+      info.pieces[#info.pieces + 1] = { kind = "link", weight = piece.weight, value = v,
+        error = e, ends = piece.ends, at = piece.through }
+    elseif #piece.points >= 2 then
       local singular_end = piece.reason == "singular" or piece.reason == "stop"
       local v, e, ev, st = core.quad_polyline(J.tape, params, piece.points,
         { reltol = noise_tol(J, params, piece.points[1]),

@@ -126,4 +126,46 @@ function M.wrong_end(L, which, from, th)
   return table.concat(lines, "\n")
 end
 
+--- links(L, boundary, J, params, Rfar) -> list of link pieces: for each strip instance
+-- where the combination's ends and the contour's differ (boundary[label] = c ~= 0: a chain
+-- of saddles cut off by the region), the line along the strip's middle, from the strip to
+-- the valley its other end runs into, with the weight -c that cancels the difference.
+-- Each piece: {kind = "link", weight, ends = {strip label, valley label}, through (the
+-- middle line's point nearest the region's center), angle (the strip's direction),
+-- points, full (polylines out to Rfar)}. No link where the line's other end is in no
+-- valley or passes a singular point.
+function M.links(L, boundary, J, params, Rfar)
+  local core = require "steep.core"
+  local out = {}
+  local labels = {}
+  for label, c in pairs(boundary) do if c ~= 0 then labels[#labels + 1] = label end end
+  table.sort(labels)
+  for _, label in ipairs(labels) do
+    local k = tonumber(label:match("^valley (%d+)$"))
+    local v = k and L.valleys[k]
+    if v and v.type == "strip" then
+      local th = v.direction
+      local u = landscape.expi(th)
+      -- the middle line's point nearest the region's center
+      local c = L.region.center
+      local _, sc = infinity.strip_coords(c, th)
+      local through = cnew(sc, v.mid) * u
+      local j = landscape.ray_valley(L, through, th + pi)
+      local far = Rfar + landscape.cabs(through - c)
+      local pts = { through + far * u, through, through - far * u }
+      local clear = j ~= nil
+      for _, s in ipairs(L.singularities or {}) do
+        if core.distance(pts, s.at) <= 1e-6 * L.region.radius then clear = false end
+      end
+      if clear then
+        out[#out + 1] = { kind = "link", weight = -boundary[label],
+          ends = { label, "valley " .. j }, through = through, angle = th, points = pts,
+          full = core.cvec(pts) }
+      end
+    end
+  end
+  local _ = J and params
+  return out
+end
+
 return M
