@@ -485,13 +485,123 @@ local function local_scale(J, params, L, z)
   return s
 end
 
+-- A ray inside a strip valley: along it the integrand falls off like exp(-c e^{r s}) (s the
+-- distance from a, r the strip family's rate), faster than any power. After the change of
+-- variable s = ell log(1 + exp((pi/2) sinh u)) the integrand vanishes doubly exponentially
+-- as u -> -infinity (s and ds/du do, at the start a) and at least triply as u -> +infinity
+-- (s grows like e^u there), so the trapezoidal rule in u converges geometrically as its
+-- step halves (the double-exponential idea of Takahasi & Mori, Publ. RIMS 9 (1974)
+-- 721-741). ell: the distance along the ray over which F changes by 1 (the integrand by a
+-- factor e), so that the nodes resolve the start and the decay alike. The step halves from
+-- 1/2 until two levels agree to tol; the rule runs right until its terms are negligible.
+-- -> value, error, evaluations, or nil (a value not finite, or no convergence: the caller
+-- integrates piece by piece instead).
+local DE_UMIN, DE_UMAX, DE_LEVELS = -5.5, 12, 8
+
+-- The distance along the ray from a in direction th over which F changes by 1: from
+-- 1/|F'(a)|, doubled or halved (at most 60 times).
+local function change_length(J, params, a, th)
+  local dir = expi(th)
+  local ok0, F0 = pcall(J.tape.eval, J.tape, a, params)
+  if not ok0 then return 1 end
+  local function moved(s)
+    local ok, F = pcall(J.tape.eval, J.tape, a + s * dir, params)
+    local d = ok and cabs(F - F0) or huge
+    return d == d and d or huge
+  end
+  local ok, Fs = pcall(J.tape.jet, J.tape, a, 1, params, 1)
+  local d1 = ok and cabs(Fs:coef(1)) or 0
+  local s = (d1 > 0 and d1 < huge) and 1 / d1 or 1
+  if moved(s) < 1 then
+    for _ = 1, 60 do
+      if moved(2 * s) >= 1 then return 2 * s end
+      s = 2 * s
+    end
+  else
+    for _ = 1, 60 do
+      s = 0.5 * s
+      if moved(s) < 1 then return s end
+    end
+  end
+  return s
+end
+local function quad_strip_ray(J, params, a, th, ell, tol)
+  local dir = expi(th)
+  local function node(u)
+    local x = 0.5 * pi * math.sinh(u)
+    local s, ds
+    if x > 30 then s = x + math.exp(-x); ds = 0.5 * pi * math.cosh(u)
+    else
+      local e = math.exp(x)
+      s = e < 1e-8 and e * (1 - 0.5 * e) or math.log(1 + e)
+      ds = 0.5 * pi * math.cosh(u) * e / (1 + e)
+    end
+    return ell * s, ell * ds
+  end
+  local evals = 0
+  -- the terms of the rule at the nodes u = u0 + k h, k = 0, 1, ..., up to umax (found at
+  -- the first level, where the terms become negligible)
+  local function terms(u0, h, umax)
+    local us, pts, ws = {}, {}, {}
+    local u = u0
+    while u <= (umax or DE_UMAX) + 1e-12 do
+      local s, ds = node(u)
+      us[#us + 1], pts[#pts + 1], ws[#ws + 1] = u, a + s * dir, ds
+      u = u + h
+    end
+    local vals = core.integrand_many(J.tape, params, pts)
+    evals = evals + #pts
+    local sum, abs_sum, last, small = cnew(0, 0), 0, DE_UMAX, 0
+    for k = 1, #pts do
+      local t = vals:get(k) * ws[k]
+      local m = cabs(t)
+      if not (m < huge) then return nil end
+      sum, abs_sum = sum + t, abs_sum + m
+      if not umax and us[k] > 0 and cabs(sum) > 0 then
+        -- (far out the terms die faster than any geometric sequence: two in a row below
+        -- 1e-18 of the sum so far end the rule)
+        if m <= 1e-18 * cabs(sum) then
+          small = small + 1
+          if small >= 2 then last = us[k]; break end
+        else small = 0 end
+      end
+    end
+    return sum * dir, abs_sum, last
+  end
+  local h = 0.5
+  local sum, abs_sum, umax = terms(DE_UMIN, h, nil)
+  if not sum then return nil end
+  local T = h * sum
+  for _ = 1, DE_LEVELS do
+    local s2, a2 = terms(DE_UMIN + 0.5 * h, h, umax)
+    if not s2 then return nil end
+    h = 0.5 * h
+    sum, abs_sum = sum + s2, abs_sum + a2
+    local T2 = h * sum
+    local diff = cabs(T2 - T)
+    local floor = 8 * 2.2e-16 * h * abs_sum
+    T = T2
+    if diff <= tol * cabs(T2) + floor then return T2, diff + floor, evals end
+  end
+  return nil
+end
+
 -- A ray from a in direction th, as pieces [0, L0], [L0, 3 L0], ... (doubling) until the
 -- tail is negligible. Where the pieces shrink geometrically without becoming negligible
 -- (algebraic decay, |integrand| ~ r^kappa: the ratio tends to 2^(kappa + 1)), the rest
 -- is summed as the geometric series, with the change of the ratio as its error. A ray on
--- the edge of a sector valley is turned by a small angle into the valley.
+-- the edge of a sector valley is turned by a small angle into the valley. A ray inside a
+-- strip valley: the double-exponential rule above.
 local function quad_ray(J, params, L, a, th, sign, singular_start, notes, L0)
   local k, boundary = landscape.ray_valley(L, a, th)
+  if k and not boundary and not singular_start and L.valleys[k].type == "strip" then
+    local v, e, ev = quad_strip_ray(J, params, a, th, change_length(J, params, a, th),
+      noise_tol(J, params, a))
+    if v then
+      if sign < 0 then v = -v end
+      return v, e, ev, "ok"
+    end
+  end
   if boundary and L.valleys[k].type ~= "strip" then
     local v = L.valleys[k]
     local inward = (abs(landscape.norm_angle(th - v.from)) < 1e-6) and 1 or -1
