@@ -288,7 +288,7 @@ function TestRecipesScripts:test_recipes_run()
     end
   end
   ls:close()
-  lu.assertEquals(seen, 7, "recipes found")
+  lu.assertEquals(seen, 8, "recipes found")
   os.execute("rm -rf " .. q(tmpdir))
 end
 
