@@ -162,3 +162,75 @@ function TestStripQuadrature:test_off_middle_ray()
       string.format("y = %g: %s vs %s", y, tostring(ry), tostring(r0 - s)))
   end
 end
+
+---------------------------------------------------------------------------------------
+
+TestStripMaps = {}
+
+local function read_svg(J, opts)
+  local base = os.tmpname()
+  local file = base .. ".svg"
+  opts.file = file
+  local _, summary = J:map(opts)
+  local f = assert(io.open(file, "rb"))
+  local s = f:read("a")
+  f:close()
+  os.remove(file)
+  os.remove(base)
+  return s, summary
+end
+
+-- Schlaefli's J: the strips are drawn along the left and right sides of the frame (the
+-- valleys of nu (sinh w / cosh 1 - w): to the right where cos(Im w) < 0, to the left
+-- where cos(Im w) > 0, exact), not as labels at one point of the rim; the colour scale is
+-- symmetric-log (Re F reaches 4e4 in the window, the saddles +-4.8); level lines drawn.
+function TestStripMaps:test_schlaefli_map()
+  local J = schlaefli(1 / math.cosh(1))
+  local svg, summary = read_svg(J, { nu = 20 })
+  lu.assertNotNil(summary.range.symlog, "a symmetric-log scale")
+  lu.assertTrue(summary.level_lines >= 5, "level lines: " .. summary.level_lines)
+  lu.assertStrContains(svg, "symmetric-log scale")
+  -- the strip bands: on the right side x > frame, on the left x < frame
+  local right, left = 0, 0
+  for dir, d in svg:gmatch('class="valley%-strip" data%-direction="([^"]+)" d="([^"]+)"') do
+    local x = tonumber(d:match("^M([%d.]+)"))
+    if math.abs(tonumber(dir)) < 1e-9 then right = right + 1; lu.assertTrue(x > 600, "right side")
+    else left = left + 1; lu.assertTrue(x < 100, "left side") end
+  end
+  -- the window is |Re w|, |Im w| <= 10 or so: three valley strips on each side at least
+  lu.assertTrue(right >= 3 and left >= 3, string.format("strips: %d right, %d left", right, left))
+  -- the colour bar's tick labels do not overlap (0.62 font px a character)
+  local spans = {}
+  for x, text in svg:gmatch('class="colour%-tick" x="([%d.]+)" y="[%d.]+" text%-anchor="middle">([^<]+)<') do
+    local half = 0.5 * 0.62 * 11 * utf8.len(text)
+    for _, sp in ipairs(spans) do
+      lu.assertTrue(tonumber(x) - half >= sp[2] or tonumber(x) + half <= sp[1],
+        "colour bar labels overlap at " .. text)
+    end
+    spans[#spans + 1] = { tonumber(x) - half, tonumber(x) + half }
+  end
+  lu.assertTrue(#spans >= 5, "colour bar ticks: " .. #spans)
+end
+
+-- Tick labels never overlap: a narrow window far from the origin has long labels
+-- (1000.0002 and the like); the step grows until each fits between its neighbours.
+function TestStripMaps:test_ticks_fit()
+  local t = steep.var "t"
+  local J = steep.integral { var = t, exponent = -(t - 1000) ^ 2,
+    contour = steep.line(steep.inf(pi), steep.inf(0)) }
+  for _, view in ipairs({ { center = C(1000, 0), radius = 3e-4 },
+      { center = C(123456.789, 0), radius = 0.05 }, { center = C(0, 0), radius = 7e6 } }) do
+    local svg = read_svg(J, { view = view, width = 400 })
+    local xs = {}
+    for x, text in svg:gmatch('class="tick" x="([%d.]+)" y="[%d.]+" text%-anchor="middle">([^<]+)<') do
+      xs[#xs + 1] = { tonumber(x), utf8.len(text) }
+    end
+    lu.assertTrue(#xs >= 2, "ticks on the x axis")
+    for k = 2, #xs do
+      local gap = xs[k][1] - xs[k - 1][1]
+      local need = 0.5 * 0.62 * 12 * (xs[k][2] + xs[k - 1][2])
+      lu.assertTrue(gap >= need, string.format("labels %d and %d overlap (%g px apart, %g needed)",
+        k - 1, k, gap, need))
+    end
+  end
+end
