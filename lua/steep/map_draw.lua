@@ -522,11 +522,16 @@ local function draw_axes(ctx)
     out(format('<text class="tick" x="%.1f" y="%.1f" text-anchor="middle">%s</text>', x,
       Y0 + P + 28, tick_label(v, step)))
   end
+  -- (the labels of the vertical axis share the left margin with the axis name: a long
+  -- one is set smaller so that it stays on the page)
+  local widest = 0
+  for _, v in ipairs(ys) do widest = max(widest, utf8.len(tick_label(v, ystep))) end
+  local ysize = max(7, min(12, (X0 - 22) / (0.62 * max(1, widest))))
   for _, v in ipairs(ys) do
     local y = Y0 + ((vcy + vr) - v) / (2 * vr) * P
     ticks[#ticks + 1] = format("M%.1f %.1fh6M%.1f %.1fh-6", X0, y, X0 + P, y)
-    out(format('<text class="tick" x="%.1f" y="%.1f" text-anchor="end">%s</text>', X0 - 16,
-      y + 4, tick_label(v, ystep)))
+    out(format('<text class="tick" x="%.1f" y="%.1f" text-anchor="end" font-size="%.1f">%s'
+      .. '</text>', X0 - 16, y + 4, ysize, tick_label(v, ystep)))
   end
   out(format('<path d="%s" stroke="%s" stroke-width="1.1" fill="none"/>', concat(ticks),
     STYLE.frame))
