@@ -234,3 +234,24 @@ function TestStripMaps:test_ticks_fit()
     end
   end
 end
+
+---------------------------------------------------------------------------------------
+
+TestStripRoutes = {}
+
+-- Routes that follow the parameter read the ends in strips by their lines: along nu the
+-- Schlaefli contour's ends stay in the valley strips about Im w = -+pi (exact), so
+-- J:crossings reports no end leaving its valley, and a sweep records the strips.
+function TestStripRoutes:test_crossings_and_sweep_ends()
+  local J = schlaefli(1 / math.cosh(1))
+  local c = J:crossings { nu = { from = 10, to = 20, steps = 3 } }
+  for _, e in ipairs(c.events) do
+    lu.assertNotEquals(e.kind, "end", "no end event: " .. (e.text or ""))
+  end
+  local s = J:sweep { nu = { 10, 20 }, order = 4, workers = 1, progress = false }
+  for _, row in ipairs(s.rows) do
+    lu.assertStrContains(row.valleys, "strip")
+    lu.assertNil(row.valleys:find("none", 1, true), "ends in valleys: " .. row.valleys)
+    lu.assertTrue(row.agrees, "nu = " .. row.x .. ": expansion and quadrature agree")
+  end
+end
