@@ -255,3 +255,19 @@ function TestStripRoutes:test_crossings_and_sweep_ends()
     lu.assertTrue(row.agrees, "nu = " .. row.x .. ": expansion and quadrature agree")
   end
 end
+
+-- The machine-readable landscape report carries each family once too (its copy k = 0,
+-- the copies taken), beside the full list of saddles; the strip families as well.
+function TestPeriodic:test_json_summary()
+  local J = schlaefli(0.5)
+  local L = J:landscape { nu = 20 }
+  local cjson = require "cjson"
+  local d = cjson.decode(L:report { format = "json" })
+  lu.assertEquals(#d.periodic.families, 2)
+  H.close(d.periodic.period.im, 2 * pi, 1e-15, "period")
+  local a = math.log(2 + math.sqrt(3))
+  H.close(math.abs(d.periodic.families[1].at.re), a, 1e-13, "representative +-acosh 2")
+  lu.assertEquals(d.periodic.families[1].copies[1], -1)
+  lu.assertEquals(d.periodic.families[1].copies[2], 1)
+  lu.assertEquals(#d.strip_families, 2)
+end

@@ -389,7 +389,8 @@ function M.landscape_report(L, opts)
   local report_m = require "steep.report"
   local other = report_m.format(opts, { region = L.region, saddles = L.saddles,
     singularities = L.singularities, valleys = L.valleys, notes = L.notes,
-    saddle_count = L.saddle_count, var = L.var })
+    saddle_count = L.saddle_count, var = L.var, strip_families = L.strip_families,
+    periodic = periodic.summary(L) })
   if other then return other end
   local num, wrap = report_m.num, report_m.wrap
   local var = L.var or "t"

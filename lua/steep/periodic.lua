@@ -307,11 +307,22 @@ function M.saddle_lines(L, num)
   return lines
 end
 
---- The saddle's name in a report: "family f, copy k" (periodic) or nil.
-function M.saddle_name(L, j)
-  local s = L.saddles[j]
-  if not (L.periodic and s and s.family) then return nil end
-  return format("family %d copy %d", s.family, s.copy)
+--- The periodic part of a landscape for machine-readable reports: {period, shift, lo, hi,
+-- families = {{at (the copy k = 0), order, copies = {first, last}}}}, or nil.
+function M.summary(L)
+  local per = L.periodic
+  if not per then return nil end
+  local fams = {}
+  for _, g in ipairs(per.families) do
+    local rep
+    for _, s in ipairs(g.members) do if s.copy == 0 then rep = s end end
+    rep = rep or g.members[1]
+    if rep then
+      fams[#fams + 1] = { at = rep.at, order = rep.order, F = rep.F,
+        copies = { g.copies[1], g.copies[#g.copies] } }
+    end
+  end
+  return { period = per.period, shift = per.shift, lo = per.lo, hi = per.hi, families = fams }
 end
 
 return M
