@@ -271,3 +271,36 @@ function TestPeriodic:test_json_summary()
   lu.assertEquals(d.periodic.families[1].copies[2], 1)
   lu.assertEquals(#d.strip_families, 2)
 end
+
+-- Sampling as a cross-check of the exact strips: far out along each family's direction,
+-- log |g e^F| on the middle line of a valley strip lies far below its value at the
+-- region's rim, and on the middle line of the hill strip between two valleys far above
+-- (the strips themselves from the expression, exact; the sampled values from the tape).
+function TestPeriodic:test_strips_cross_checked_by_sampling()
+  local cases = {
+    { schlaefli(0.7), { nu = 15 } },
+    { steep.integral { var = w, exponent = steep.exp(w) - nu * steep.log(w),
+      contour = steep.circle(0, 1), large = nu }, { nu = 30 } },
+  }
+  for _, case in ipairs(cases) do
+    local J, p = case[1], case[2]
+    local L = J:landscape(p)
+    lu.assertTrue(#L.strip_families >= 1, "strip families")
+    for _, f in ipairs(L.strip_families) do
+      local u = steep.complex(math.cos(f.direction), math.sin(f.direction))
+      local function level(offset, s)
+        local z = steep.complex(s, offset) * u
+        local F, g = J.tape:eval(z, p)
+        local gm = g and g:abs() or 1
+        return F:re() + math.log(gm)
+      end
+      for m = -1, 1 do
+        local valley = f.lo + m * f.period + 0.5 * (f.hi - f.lo)
+        local hill = valley + 0.5 * f.period
+        local near, far = level(valley, 4), level(valley, 9)
+        lu.assertTrue(far < near - 50, string.format("valley strip %g: %g -> %g", valley, near, far))
+        lu.assertTrue(level(hill, 9) > level(hill, 4) + 50, "hill strip " .. hill)
+      end
+    end
+  end
+end
