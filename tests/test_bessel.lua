@@ -328,13 +328,13 @@ function TestBessel:test_transition_continuous()
   local lo, hi = 55, 70
   lu.assertStrContains(at(lo).contributions[1].kind, "Airy type", "uniform at nu = 55")
   lu.assertEquals(at(hi).contributions[1].kind, "saddle", "plain at nu = 70")
-  for _ = 1, 18 do
+  for _ = 1, 12 do
     local mid = 0.5 * (lo + hi)
     if at(mid).contributions[1].kind == "saddle" then hi = mid else lo = mid end
   end
   local ra, rb = at(lo), at(hi)
-  lu.assertTrue(hi - lo < 1e-4, "the switching point found")
-  -- (the two sides are 1e-4 apart in nu: their difference is J's own change, from GSL)
+  lu.assertTrue(hi - lo < 0.01, "the switching point found")
+  -- (the two sides are 0.004 apart in nu: their difference is J's own change, from GSL)
   local ga, gae = ref.bessel_Jnu(lo, x)
   local gb, gbe = ref.bessel_Jnu(hi, x)
   local jump = ((ra.value - rb.value) - (ga - gb)):abs()
