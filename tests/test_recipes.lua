@@ -254,6 +254,8 @@ function TestRecipesScripts:test_recipes_run()
     ["demo.lua"] = { "== the integral", "== both routes against quadrature", "Caution",
       "== map of the complex plane written to " },
     ["special_functions.lua"] = { "airy", "gamma", "hankel", "bessel", "rel.err" },
+    ["bessel_large_order.lua"] = { "order nu = 40", "Debye", "Airy", "order 3",
+      "DLMF 10.41.10", "caution: " },
     ["beyond_optimal.lua"] = { "== e^x E1(x)", "== Gamma(x)/x^x", "resummed", "plot written to",
       "caution: " },
   }
@@ -286,7 +288,7 @@ function TestRecipesScripts:test_recipes_run()
     end
   end
   ls:close()
-  lu.assertEquals(seen, 7, "recipes found")
+  lu.assertEquals(seen, 8, "recipes found")
   os.execute("rm -rf " .. q(tmpdir))
 end
 
@@ -446,4 +448,65 @@ function TestRecipesBeyondOptimal:test_plot()
   local res = svg:match('<polyline points="([^"]+)" fill="none" stroke="#1b7f79" stroke%-width="1.8"')
   local r1, r2 = res:match("[%d.]+,([%d.]+) [%d.]+,([%d.]+)")
   H.close(tonumber(r2) - tonumber(r1), 5 * decade, 1e-2, "log scale")
+end
+
+---------------------------------------------------------------------------------------
+
+TestRecipesBesselLargeOrder = {}
+
+-- The recipe's J, Y, H1, H2, I, K of order nu (and nu + 1) at nu z against GSL (gsl_sf_bessel_Jnu,
+-- _Ynu, _Knu_scaled, _Inu_scaled): each expansion within its estimate (and GSL's error),
+-- quadrature to 1e-12, and the forms it names (Debye apart, Airy near nu = x).
+function TestRecipesBesselLargeOrder:test_values_against_gsl()
+  local B = require "bessel_large_order"
+  local function check(name, nv, z, want, gerr, m)
+    local r = B.value(name, nv, z, { m = m })
+    local msg = string.format("%s_{%g+%d}(%g*%g)", name, nv, m or 0, nv, z)
+    lu.assertTrue((r.value - want):abs() <= r.error + gerr, string.format("%s: %s vs %s, "
+      .. "estimate %.3g", msg, tostring(r.value), tostring(want), r.error))
+    lu.assertTrue((r.quad - want):abs() <= 1e-12 * cabs(want) + gerr, msg .. ": quadrature")
+    lu.assertTrue(r.agrees, msg .. ": expansion and quadrature agree")
+    return r
+  end
+  for _, z in ipairs({ 0.6, 1.4 }) do
+    local nv = 30
+    local x = nv * z
+    local j, je = gsl.bessel_Jnu(nv, x)
+    local y, ye = gsl.bessel_Ynu(nv, x)
+    check("J", nv, z, j, je)
+    check("Y", nv, z, y, ye)
+    check("H1", nv, z, steep.complex(j, y), je + ye)
+    check("H2", nv, z, steep.complex(j, -y), je + ye)
+    local ks, kse = gsl.bessel_Knu_scaled(nv, x)
+    local is, ise = gsl.bessel_Inu_scaled(nv, x)
+    check("K", nv, z, ks * math.exp(-x), kse * math.exp(-x))
+    check("I", nv, z, is * math.exp(x), ise * math.exp(x))
+    -- order nu + 1 through the amplitude
+    local j1, j1e = gsl.bessel_Jnu(nv + 1, x)
+    check("J", nv, z, j1, j1e, 1)
+  end
+  -- the transition: nu = 31 at the argument 30 (z = 30/31) takes the uniform form
+  local j, je = gsl.bessel_Jnu(31, 30)
+  local r = check("J", 31, 30 / 31, j, je)
+  lu.assertStrContains(r.form, "Airy type")
+  H.raises({ "no function named Q" }, B.integral, "Q", 0.5)
+end
+
+-- The Debye coefficients as steep's series produces them: c_k/c_0 of J's series = u_k(t),
+-- t = 1/sqrt(1 - z^2) (DLMF 10.19.3 with 10.41.10), and of I's = U_k(p), p = 1/sqrt(1 +
+-- z^2) (DLMF 10.41.3), to 1e-12, each within its stated error.
+function TestRecipesBesselLargeOrder:test_debye_coefficients()
+  local B = require "bessel_large_order"
+  for _, z in ipairs({ 0.3, 0.6, 0.9 }) do
+    local t = 1 / math.sqrt(1 - z * z)
+    local c, e = B.debye(z, 3)
+    for k = 1, 3 do
+      local want = B.u[k](t)
+      H.close(c[k], want, 1e-12, string.format("u_%d(%g)", k, t), 1)
+      lu.assertTrue((c[k] - want):abs() <= e[k] + 1e-15 * abs(want), "within its error")
+    end
+  end
+  local p = 1 / math.sqrt(1 + 2 ^ 2)
+  local c = B.debye(2, 3, "I")
+  for k = 1, 3 do H.close(c[k], B.u[k](p), 1e-12, "U_" .. k .. " for I at z = 2", 1) end
 end

@@ -9,6 +9,7 @@ local expand = require "steep.expand"
 local expr = require "steep.expr"
 local coalesce = require "steep.coalesce"
 local nearpole = require "steep.nearpole"
+local strips = require "steep.strips"
 
 local cnew, cparts = complex.new, complex.parts
 local cabs = landscape.cabs
@@ -115,6 +116,20 @@ local function residue_contribution(L, r)
     residue = s.residue, dominance = log(math.max(cabs(v), 1e-300)) }
 end
 
+-- A link between two valleys (the saddles beyond the region, with infinitely many of
+-- them): no series, its value by quadrature (lua/steep/integral.lua), its error that of
+-- the quadrature.
+local function link_contribution(J, params, L, piece)
+  local notes = {}
+  local v, e = require("steep.integral").quad_link(J, params, L, piece, notes)
+  v, e = piece.weight * v, abs(piece.weight) * e
+  return { kind = "link between valleys (by quadrature)", at = piece.through,
+    weight = piece.weight, value = v, error = e, terms = { v }, used = 1,
+    note = "the saddles beyond the region, summed by quadrature along the line from "
+      .. strips.label_words(L, piece.ends[1]) .. " to " .. strips.label_words(L, piece.ends[2]),
+    dominance = log(math.max(cabs(v), 1e-300)) }
+end
+
 -- Why a decomposition failed, where the landscape can say more: a saddle of an order the
 -- expansions do not support (its paths are not traced reliably either), or zeros of F'
 -- that the argument principle counts but Newton's method did not find (a zero of high
@@ -201,6 +216,8 @@ local function contributions_of(J, params, L, plan, order, resum, opts)
         order_seen[#order_seen + 1] = piece.index
       end
       table.insert(by_saddle[piece.index], piece)
+    elseif piece.kind == "link" then
+      contributions[#contributions + 1] = link_contribution(J, params, L, piece)
     else
       for _, s in ipairs(L.singularities) do
         if cabs(s.at - piece.at) <= 1e-9 * L.region.radius and s.kind == "essential" then
@@ -422,16 +439,22 @@ function M.report(r, opts)
   local L = r.landscape
   if L then
     add("landscape (region: center %s, radius %.4g):", fmtc(L.region.center), L.region.radius)
-    for j, sd in ipairs(L.saddles) do
-      say(format("saddle %d at %s = %s, order %d, F = %s", j, J.var.name, fmtc(sd.at), sd.order,
-        fmtc(sd.F)), "  ", 4)
+    local families = require("steep.periodic").saddle_lines(L, fmtc)
+    if families then
+      -- a periodic F': each saddle family once
+      for k, text in ipairs(families) do say(text, "  ", k == 1 and 4 or 6) end
+    else
+      for j, sd in ipairs(L.saddles) do
+        say(format("saddle %d at %s = %s, order %d, F = %s", j, J.var.name, fmtc(sd.at), sd.order,
+          fmtc(sd.F)), "  ", 4)
+      end
     end
     for _, sg in ipairs(L.singularities) do
       say(format("%s at %s = %s (%s)", sg.kind, J.var.name, fmtc(sg.at), sg.source), "  ", 4)
     end
-    local vs = {}
-    for _, v in ipairs(L.valleys or {}) do vs[#vs + 1] = landscape.describe_valley(v) end
-    say(#vs > 0 and table.concat(vs, ", ") or "none found", "  valleys: ", 4)
+    -- (strip families once each)
+    local vs = strips.valley_words(L)
+    say(#vs > 0 and table.concat(vs, "; ") or "none found", "  valleys: ", 4)
   end
   say("(most dominant first; a saddle counts when the contour crosses its steepest ascent "
     .. "paths, weights below; a pole when the deformation sweeps over it)", "contributions ", 2)
@@ -443,6 +466,8 @@ function M.report(r, opts)
       why = #w > 0 and ("weights " .. table.concat(w, ", ")) or ""
     elseif c.kind == "pole" then
       why = format("winding %+d, residue %s", c.weight, fmtc(c.residue))
+    elseif c.kind:find("^link") then
+      why = format("weight %+d", c.weight)
     elseif c.weight then
       why = format("endpoint weight %+d", c.weight)
     end

@@ -297,7 +297,11 @@ function M.crossings(J, opts)
       for _, which in ipairs({ "start", "finish" }) do
         local e = J.contour[which](J.contour)
         if contour_m.is_inf(e) then
-          local k = landscape.valley_of(L.valleys, e.angle)
+          -- (the ray that reaches the end runs from the point next to it: in a strip valley
+          -- its line decides)
+          local piece = which == "start" and J.contour.pieces[1]
+            or J.contour.pieces[#J.contour.pieces]
+          local k = landscape.ray_valley(L, which == "start" and piece.b or piece.a, e.angle)
           if not k then
             add_event({ kind = "end", at = v, text = format("at %s = %s the contour's %s end "
               .. "(direction %.4g) is in no valley: the integral diverges there unless the "

@@ -20,6 +20,8 @@ local complex = require "steep.complex"
 local landscape = require "steep.landscape"
 local contour_m = require "steep.contour"
 local infinity = require "steep.infinity"
+local strips = require "steep.strips"
+local periodic = require "steep.periodic"
 
 local cnew, cparts = complex.new, complex.parts
 local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
@@ -54,7 +56,7 @@ local function contour_end_label(L, e, which, from, tol)
   if contour_m.is_inf(e) then
     local k, boundary = landscape.ray_valley(L, from or e.through or cnew(0, 0), e.angle, tol)
     if not k then
-      error(format("the contour's %s end at infinity (the ray from %s in direction %.6g) is "
+      error(strips.wrong_end(L, which, from or e.through or cnew(0, 0), e.angle) or format("the contour's %s end at infinity (the ray from %s in direction %.6g) is "
         .. "outside every valley: the integral diverges there (valleys: %s)", which,
         tostring(from or e.through or 0), e.angle, M.valleys_text(L)), 0)
     end
@@ -517,6 +519,13 @@ function M.decompose(J, params, L, contour)
   local kept = L._plans[contour]
   if not kept then
     kept = M.decompose_uncached(J, params, L, contour)
+    -- (a periodic family's copy at the edge of the band searched: a copy beyond it may
+    -- be needed, so the plan is not trusted)
+    local edge = kept.status == "ok" and periodic.edge_note(L, kept)
+    if edge then
+      kept.status = "incomplete"
+      kept.notes[#kept.notes + 1] = edge
+    end
     L._plans[contour] = kept
   end
   return M.copy_plan(kept)
@@ -639,13 +648,14 @@ function M.decompose_uncached(J, params, L, contour, opts)
     end
   end
   local fixed, free = {}, {}   -- saddle index -> weights; list of saddle indices
-  local connections = {}
+  local connections = {}       -- (the copies of a periodic family's connection: noted once)
   for j, s in ipairs(L.saddles) do
     local paths = L.paths[j] or landscape.saddle_paths(J, params, L, j)
     L.paths[j] = paths
     for _, p in ipairs(paths.descent) do
       if p.ends:match("^saddle") then
-        connections[#connections + 1] = format("%d -> %s", j, p.ends:match("%d+"))
+        local note = periodic.connection_note(L, j, p.ends, connections)
+        if note then plan.notes[#plan.notes + 1] = note end
         plan.stokes = true
       end
     end
@@ -681,14 +691,6 @@ function M.decompose_uncached(J, params, L, contour, opts)
       free[#free + 1] = j
     end
   end
-  if #connections > 0 then
-    -- (one note for them all: a lattice of saddles has as many connections as saddles)
-    local shown = table.move(connections, 1, math.min(#connections, 6), 1, {})
-    plan.notes[#plan.notes + 1] = format("%d saddle connection%s (a descent path runs into "
-      .. "another saddle: the parameters are on a Stokes line): saddle %s%s", #connections,
-      #connections > 1 and "s" or "", table.concat(shown, ", saddle "),
-      #connections > #shown and format(" and %d more", #connections - #shown) or "")
-  end
   -- weights decided elsewhere (on a Stokes line, from its two sides)
   if opts and opts.weights then
     for j in ipairs(L.saddles) do fixed[j] = opts.weights[j] end
@@ -702,8 +704,11 @@ function M.decompose_uncached(J, params, L, contour, opts)
     plan.notes[#plan.notes + 1] = "the weights could not be decided on either side of the "
       .. "Stokes line (turning the exponent's phase did not separate the saddles)"
   end
+  -- (with infinitely many saddles, those of the region are not all of them: a solution
+  -- from their ends alone need not be the right one, while crossing numbers are decided
+  -- saddle by saddle)
   local by_ends = not plan.stokes and not (opts and opts.by_crossings)
-    and solve_by_ends(L, boundary, fixed, free)
+    and not L.region.bounded and solve_by_ends(L, boundary, fixed, free)
   if #free > 0 then plan.weights_by = by_ends and "ends" or "crossings" end
   for _, j in ipairs(free) do
     local weights = by_ends and by_ends[j]
@@ -764,7 +769,17 @@ function M.decompose_uncached(J, params, L, contour, opts)
   end
   if plan.status ~= "ok" then return plan end
 
-  -- the combination must have the same ends as the contour
+  -- the combination must have the same ends as the contour; with infinitely many saddles
+  -- a chain of them cut off by the region ends in strips: each such strip is joined to
+  -- the valley its middle line runs into (a line between two valleys, integrated by
+  -- quadrature: it stands for the saddles beyond the region)
+  if L.region.bounded then
+    for _, link in ipairs(strips.links(L, boundary, J, params, Rfar)) do
+      plan.pieces[#plan.pieces + 1] = link
+      bump(link.ends[1], link.weight)
+      bump(link.ends[2], -link.weight)
+    end
+  end
   local missing = {}
   for label, n in pairs(boundary) do
     if n ~= 0 then
@@ -835,6 +850,8 @@ function M.decompose_uncached(J, params, L, contour, opts)
     local poly = piece.full
     cycle[#cycle + 1] = { poly, -piece.weight }
     close(poly:get(#poly), piece.ends[2], -piece.weight)
+    -- (a link starts at infinity too)
+    if piece.kind == "link" then close(poly:get(1), piece.ends[1], piece.weight) end
   end
   for idx, s in ipairs(L.singularities) do
     -- a singular point at a finite end of the contour is an integrable endpoint

@@ -8,6 +8,8 @@ local expr = require "steep.expr"
 local contour_m = require "steep.contour"
 local landscape = require "steep.landscape"
 local decompose = require "steep.decompose"
+local periodic = require "steep.periodic"
+local strips = require "steep.strips"
 
 local cnew, cparts, is_complex = complex.new, complex.parts, complex.is
 local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
@@ -286,6 +288,28 @@ local function needed_radius(J, params, saddles, center, R)
   return need
 end
 
+-- With infinitely many saddles the region is limited. About a closed contour (a
+-- coefficient integral: the chain of saddles its deformation runs through goes round a
+-- hill, and is cut off by the region, the rest joined by lines between valleys) the region
+-- doubles, at most RIM_GROWTH times, while a saddle in its outer half still lies within
+-- e^RIM_DROP of the largest |g e^F| at a saddle, so that the parts beyond it are
+-- negligible against the largest contribution.
+local RIM_DROP, RIM_GROWTH = 20, 3
+local function rim_matters(saddles, region)
+  local top, levels = -huge, {}
+  for k, s in ipairs(saddles) do
+    local gm = cabs(s.g)
+    levels[k] = cparts(s.F) + (gm > 0 and math.log(gm) or -huge)
+    top = math.max(top, levels[k])
+  end
+  for k, s in ipairs(saddles) do
+    if cabs(s.at - region.center) > 0.5 * region.radius and levels[k] > top - RIM_DROP then
+      return true
+    end
+  end
+  return false
+end
+
 function methods._landscape_uncached(J, params, region, with_paths, cont)
   local A = landscape.analysis(J, params)
   local poly = A and A.polynomial and A.degree >= 2
@@ -294,9 +318,22 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
   local psaddles, pinfo
   if poly then psaddles, pinfo = landscape.polynomial_saddles(J, params, A) end
   if poly and not given then region = nil end   -- the saddles are known: fit them anew
+  -- a periodic F' (exp, sinh, cosh of the variable): every saddle family exactly, its
+  -- copies in the band of periods the contour visits (or in the user's region)
+  local per
+  if not poly then
+    local list, info
+    list, info, per = periodic.landscape_saddles(J, params, given and region or nil)
+    if per then
+      psaddles, pinfo = list, info
+      if not given then region = periodic.region_for(J, list) end
+    end
+  end
   region = region or default_region(J, params, psaddles)
-  local L = { region = region, params = params, notes = {}, analysis = A, var = J.var.name }
+  local L = { region = region, params = params, notes = {}, analysis = A, var = J.var.name,
+    periodic = per }
   local function find_saddles(sing, seeds, seeds_only)
+    if per then return psaddles, pinfo end
     if poly and not given then return psaddles, pinfo end
     if poly then
       -- a region of the user's: the saddles inside it
@@ -325,11 +362,6 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
     L.growth, L.strip_families = info, info.families
     return setmetatable(L, { __index = { report = M.landscape_report } })
   end
-  if region.bounded then
-    L.notes[#L.notes + 1] = "the number of saddles keeps growing with the region (infinitely "
-      .. "many?): the region was limited to radius " .. format("%.4g", region.radius)
-      .. " (four times the contour's scale); give region = {...} to choose"
-  end
   -- the contour's finite points seed Newton too; of a path of many points, 64 spread
   -- along it (the search of the region finds the rest)
   local seeds, fp = {}, J.contour:finite_points()
@@ -337,14 +369,28 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
   for k = 1, #fp, stride do seeds[#seeds + 1] = fp[k] end
   if #fp > 0 and seeds[#seeds] ~= fp[#fp] then seeds[#seeds + 1] = fp[#fp] end
   local sing, sinfo, saddles, info
-  for round = 1, 3 do
+  local grown = 0
+  for round = 1, 3 + RIM_GROWTH do
     sing, sinfo = landscape.singularities(J, params, L.region)
     saddles, info = find_saddles(sing, seeds)
     -- a region chosen here must hold the saddles' and the ends' own scales
     local need = not given and needed_radius(J, params, saddles, L.region.center, L.region.radius) or 0
-    if need <= L.region.radius or round == 3 then break end
+    local grow = L.region.bounded and not given and J.contour.closed and grown < RIM_GROWTH
+      and rim_matters(saddles, L.region)
+    if grow then
+      need = math.max(need, 2 * L.region.radius)
+      grown = grown + 1
+    end
+    if need <= L.region.radius or (round >= 3 and not grow) then break end
     L.region = { center = L.region.center, radius = 2 ^ math.ceil(math.log(need, 2)),
       bounded = L.region.bounded }
+  end
+  if L.region.bounded then
+    L.notes[#L.notes + 1] = "the number of saddles keeps growing with the region (infinitely "
+      .. "many?): the region was limited to radius " .. format("%.4g", L.region.radius)
+      .. (J.contour.closed and format(" (the saddles in its outer half lie below e^-%d times "
+      .. "the largest, or it was doubled %d times)", RIM_DROP, RIM_GROWTH)
+      or " (four times the contour's scale)") .. "; give region = {...} to choose"
   end
   L.singularities, L.singularity_info = sing, sinfo
   L.saddles, L.saddle_count = saddles, info
@@ -362,7 +408,8 @@ function M.landscape_report(L, opts)
   local report_m = require "steep.report"
   local other = report_m.format(opts, { region = L.region, saddles = L.saddles,
     singularities = L.singularities, valleys = L.valleys, notes = L.notes,
-    saddle_count = L.saddle_count, var = L.var })
+    saddle_count = L.saddle_count, var = L.var, strip_families = L.strip_families,
+    periodic = periodic.summary(L) })
   if other then return other end
   local num, wrap = report_m.num, report_m.wrap
   local var = L.var or "t"
@@ -370,9 +417,16 @@ function M.landscape_report(L, opts)
   local function add(...) lines[#lines + 1] = format(...) end
   add("region: center %s, radius %.4g", num(L.region.center), L.region.radius)
   add("saddles (%s):", L.saddle_count.status)
-  for j, s in ipairs(L.saddles) do
-    lines[#lines + 1] = wrap(format("%s = %s, order %d, F = %s, F'' = %s", var, num(s.at), s.order,
-      num(s.F), num(s.F2)), format("  %d. ", j), 6)
+  local families = periodic.saddle_lines(L, num)
+  if families then
+    -- a periodic F': each family once
+    lines[#lines + 1] = wrap(families[1], "  ", 4)
+    for k = 2, #families do lines[#lines + 1] = wrap(families[k], "  ", 6) end
+  else
+    for j, s in ipairs(L.saddles) do
+      lines[#lines + 1] = wrap(format("%s = %s, order %d, F = %s, F'' = %s", var, num(s.at),
+        s.order, num(s.F), num(s.F2)), format("  %d. ", j), 6)
+    end
   end
   add("singularities:")
   if #L.singularities == 0 then add("  none found") end
@@ -383,15 +437,32 @@ function M.landscape_report(L, opts)
       format("  %d. ", j), 6)
   end
   add("valleys at infinity:")
-  for k, v in ipairs(L.valleys) do add("  %d. %s", k, landscape.describe_valley(v)) end
+  -- (strips: each family once; the instances paths reach are named where they end)
+  local families_of_strips = #(L.strip_families or {}) > 0
+  for k, v in ipairs(L.valleys) do
+    if not (families_of_strips and v.type == "strip") then
+      add("  %d. %s", k, landscape.describe_valley(v))
+    end
+  end
+  for _, f in ipairs(L.strip_families or {}) do
+    lines[#lines + 1] = wrap(strips.describe_family(f, var), "  ", 4)
+  end
   if L.paths then
-    add("steepest paths:")
-    for j, p in pairs(L.paths) do
-      local d, a = {}, {}
-      for _, q in ipairs(p.descent) do d[#d + 1] = q.ends end
-      for _, q in ipairs(p.ascent) do a[#a + 1] = q.ends end
-      lines[#lines + 1] = wrap(format("descent to %s; ascent to %s", table.concat(d, ", "),
-        table.concat(a, ", ")), format("  saddle %d: ", j), 4)
+    add("steepest paths%s:", families and " (one copy of each family)" or "")
+    local function words(label)
+      return families_of_strips and strips.label_words(L, label) or label
+    end
+    for j, p in ipairs(L.paths) do
+      local s = L.saddles[j]
+      if not (families and s.copy ~= 0) then
+        local d, a = {}, {}
+        for _, q in ipairs(p.descent) do d[#d + 1] = words(q.ends) end
+        for _, q in ipairs(p.ascent) do a[#a + 1] = words(q.ends) end
+        local name = families and format("family %d at %s = %s", s.family, var, num(s.at))
+          or format("saddle %d", j)
+        lines[#lines + 1] = wrap(format("descent to %s; ascent to %s", table.concat(d, ", "),
+          table.concat(a, ", ")), format("  %s: ", name), 4)
+      end
     end
   end
   for _, n in ipairs(L.notes) do lines[#lines + 1] = wrap(n, "note: ", 4) end
@@ -434,13 +505,123 @@ local function local_scale(J, params, L, z)
   return s
 end
 
+-- A ray inside a strip valley: along it the integrand falls off like exp(-c e^{r s}) (s the
+-- distance from a, r the strip family's rate), faster than any power. After the change of
+-- variable s = ell log(1 + exp((pi/2) sinh u)) the integrand vanishes doubly exponentially
+-- as u -> -infinity (s and ds/du do, at the start a) and at least triply as u -> +infinity
+-- (s grows like e^u there), so the trapezoidal rule in u converges geometrically as its
+-- step halves (the double-exponential idea of Takahasi & Mori, Publ. RIMS 9 (1974)
+-- 721-741). ell: the distance along the ray over which F changes by 1 (the integrand by a
+-- factor e), so that the nodes resolve the start and the decay alike. The step halves from
+-- 1/2 until two levels agree to tol; the rule runs right until its terms are negligible.
+-- -> value, error, evaluations, or nil (a value not finite, or no convergence: the caller
+-- integrates piece by piece instead).
+local DE_UMIN, DE_UMAX, DE_LEVELS = -5.5, 12, 8
+
+-- The distance along the ray from a in direction th over which F changes by 1: from
+-- 1/|F'(a)|, doubled or halved (at most 60 times).
+local function change_length(J, params, a, th)
+  local dir = expi(th)
+  local ok0, F0 = pcall(J.tape.eval, J.tape, a, params)
+  if not ok0 then return 1 end
+  local function moved(s)
+    local ok, F = pcall(J.tape.eval, J.tape, a + s * dir, params)
+    local d = ok and cabs(F - F0) or huge
+    return d == d and d or huge
+  end
+  local ok, Fs = pcall(J.tape.jet, J.tape, a, 1, params, 1)
+  local d1 = ok and cabs(Fs:coef(1)) or 0
+  local s = (d1 > 0 and d1 < huge) and 1 / d1 or 1
+  if moved(s) < 1 then
+    for _ = 1, 60 do
+      if moved(2 * s) >= 1 then return 2 * s end
+      s = 2 * s
+    end
+  else
+    for _ = 1, 60 do
+      s = 0.5 * s
+      if moved(s) < 1 then return s end
+    end
+  end
+  return s
+end
+local function quad_strip_ray(J, params, a, th, ell, tol)
+  local dir = expi(th)
+  local function node(u)
+    local x = 0.5 * pi * math.sinh(u)
+    local s, ds
+    if x > 30 then s = x + math.exp(-x); ds = 0.5 * pi * math.cosh(u)
+    else
+      local e = math.exp(x)
+      s = e < 1e-8 and e * (1 - 0.5 * e) or math.log(1 + e)
+      ds = 0.5 * pi * math.cosh(u) * e / (1 + e)
+    end
+    return ell * s, ell * ds
+  end
+  local evals = 0
+  -- the terms of the rule at the nodes u = u0 + k h, k = 0, 1, ..., up to umax (found at
+  -- the first level, where the terms become negligible)
+  local function terms(u0, h, umax)
+    local us, pts, ws = {}, {}, {}
+    local u = u0
+    while u <= (umax or DE_UMAX) + 1e-12 do
+      local s, ds = node(u)
+      us[#us + 1], pts[#pts + 1], ws[#ws + 1] = u, a + s * dir, ds
+      u = u + h
+    end
+    local vals = core.integrand_many(J.tape, params, pts)
+    evals = evals + #pts
+    local sum, abs_sum, last, small = cnew(0, 0), 0, DE_UMAX, 0
+    for k = 1, #pts do
+      local t = vals:get(k) * ws[k]
+      local m = cabs(t)
+      if not (m < huge) then return nil end
+      sum, abs_sum = sum + t, abs_sum + m
+      if not umax and us[k] > 0 and cabs(sum) > 0 then
+        -- (far out the terms die faster than any geometric sequence: two in a row below
+        -- 1e-18 of the sum so far end the rule)
+        if m <= 1e-18 * cabs(sum) then
+          small = small + 1
+          if small >= 2 then last = us[k]; break end
+        else small = 0 end
+      end
+    end
+    return sum * dir, abs_sum, last
+  end
+  local h = 0.5
+  local sum, abs_sum, umax = terms(DE_UMIN, h, nil)
+  if not sum then return nil end
+  local T = h * sum
+  for _ = 1, DE_LEVELS do
+    local s2, a2 = terms(DE_UMIN + 0.5 * h, h, umax)
+    if not s2 then return nil end
+    h = 0.5 * h
+    sum, abs_sum = sum + s2, abs_sum + a2
+    local T2 = h * sum
+    local diff = cabs(T2 - T)
+    local floor = 8 * 2.2e-16 * h * abs_sum
+    T = T2
+    if diff <= tol * cabs(T2) + floor then return T2, diff + floor, evals end
+  end
+  return nil
+end
+
 -- A ray from a in direction th, as pieces [0, L0], [L0, 3 L0], ... (doubling) until the
 -- tail is negligible. Where the pieces shrink geometrically without becoming negligible
 -- (algebraic decay, |integrand| ~ r^kappa: the ratio tends to 2^(kappa + 1)), the rest
 -- is summed as the geometric series, with the change of the ratio as its error. A ray on
--- the edge of a sector valley is turned by a small angle into the valley.
+-- the edge of a sector valley is turned by a small angle into the valley. A ray inside a
+-- strip valley: the double-exponential rule above.
 local function quad_ray(J, params, L, a, th, sign, singular_start, notes, L0)
   local k, boundary = landscape.ray_valley(L, a, th)
+  if k and not boundary and not singular_start and L.valleys[k].type == "strip" then
+    local v, e, ev = quad_strip_ray(J, params, a, th, change_length(J, params, a, th),
+      noise_tol(J, params, a))
+    if v then
+      if sign < 0 then v = -v end
+      return v, e, ev, "ok"
+    end
+  end
   if boundary and L.valleys[k].type ~= "strip" then
     local v = L.valleys[k]
     local inward = (abs(landscape.norm_angle(th - v.from)) < 1e-6) and 1 or -1
@@ -652,6 +833,9 @@ local function quad_given(J, params, L)
   -- the value, where they are indicative (found by sampling).
   local function diverges(p)
     local from = p.kind == "ray_in" and p.b or p.a
+    local which = p.kind == "ray_in" and "starting" or "finishing"
+    local words = strips.wrong_end(L, which, from, p.angle)
+    if words then error("quad: " .. words, 0) end
     error(format("quad: the contour's %s end at infinity (the ray from %s in direction %.6g) "
       .. "is outside every valley: the integral diverges there (valleys: %s)",
       p.kind == "ray_in" and "starting" or "finishing", tostring(from), p.angle,
@@ -744,6 +928,15 @@ local function path_tail(J, params, L, piece, notes)
   return v0, e0, ev, st
 end
 
+--- A link between two valleys (strips.links): the line through piece.through along
+-- piece.angle, from the strip at that end to the valley at the other, by quadrature along
+-- its two rays. -> value, error, evaluations, status
+function M.quad_link(J, params, L, piece, notes)
+  local v1, e1, n1, s1 = quad_ray(J, params, L, piece.through, piece.angle, 1, false, notes)
+  local v2, e2, n2, s2 = quad_ray(J, params, L, piece.through, piece.angle + pi, 1, false, notes)
+  return v2 - v1, e1 + e2, n1 + n2, (s1 ~= "ok" and s1) or s2
+end
+
 -- Along the steepest descent decomposition, plus residues.
 local function quad_deformed(J, params, L)
   local ok, plan = pcall(decompose.decompose, J, params, L, J.contour)
@@ -757,7 +950,15 @@ local function quad_deformed(J, params, L)
   if plan.status ~= "ok" then return nil, nil, info end
   local total, err = cnew(0, 0), 0
   for _, piece in ipairs(plan.pieces) do
-    if #piece.points >= 2 then
+    if piece.kind == "link" then
+      local v, e, ev, st = M.quad_link(J, params, L, piece, info.notes)
+      info.evals = info.evals + ev
+      if st ~= "ok" then info.status = "quadrature " .. st end
+      total = total + piece.weight * v
+      err = err + abs(piece.weight) * e
+      info.pieces[#info.pieces + 1] = { kind = "link", weight = piece.weight, value = v,
+        error = e, ends = piece.ends, at = piece.through }
+    elseif #piece.points >= 2 then
       local singular_end = piece.reason == "singular" or piece.reason == "stop"
       local v, e, ev, st = core.quad_polyline(J.tape, params, piece.points,
         { reltol = noise_tol(J, params, piece.points[1]),

@@ -130,6 +130,82 @@ local function arrowhead(x, y, dx, dy, size, fill, edge, cls)
     by + ny * size * 0.5, bx - nx * size * 0.5, by - ny * size * 0.5, fill, edge)
 end
 
+-- Strip valleys (exponents with exp, sinh, cosh of the variable) on the rim: along each
+-- side of the frame that rays in a family's direction leave through, a wide sea-green
+-- band where the side's points lie in one of the family's valley strips (their offset
+-- across the direction in lo + m period .. hi + m period), the brick rim between them;
+-- the strip instances the decomposition named are labelled V_k at their middle.
+local function draw_strips(ctx)
+  local families = ctx.L.strip_families or {}
+  if #families == 0 then return end
+  local out, X0, Y0, P = ctx.out, ctx.X0, ctx.Y0, ctx.P
+  local vcx, vcy, vr = ctx.vcx, ctx.vcy, ctx.vr
+  local off = 6.5
+  -- the four sides: outward normal, and the plane point and pixel at parameter t in [0, 1]
+  local sides = {
+    { 1, 0, function(t) return vcx + vr, vcy - vr + 2 * vr * t end,
+      function(t) return X0 + P + off, Y0 + P - P * t end },
+    { -1, 0, function(t) return vcx - vr, vcy - vr + 2 * vr * t end,
+      function(t) return X0 - off, Y0 + P - P * t end },
+    { 0, 1, function(t) return vcx - vr + 2 * vr * t, vcy + vr end,
+      function(t) return X0 + P * t, Y0 - off end },
+    { 0, -1, function(t) return vcx - vr + 2 * vr * t, vcy - vr end,
+      function(t) return X0 + P * t, Y0 + P + off end },
+  }
+  local n = 400
+  for _, f in ipairs(families) do
+    ctx.summary.valleys = ctx.summary.valleys + 1
+    local cth, sth = cos(f.direction), sin(f.direction)
+    local w = f.hi - f.lo
+    for _, side in ipairs(sides) do
+      if side[1] * cth + side[2] * sth > 0.5 then
+        local runs, cur = {}, nil
+        for k = 0, n do
+          local t = k / n
+          local x, y = side[3](t)
+          -- the offset across the direction: Im((x + iy) e^{-i th})
+          local yo = y * cth - x * sth
+          local u = (yo - f.lo) % f.period
+          if u > 0 and u < w then
+            if not cur then cur = {}; runs[#runs + 1] = cur end
+            cur[#cur + 1] = { side[4](t) }
+          else
+            cur = nil
+          end
+        end
+        for _, run in ipairs(runs) do
+          if #run >= 2 then
+            out(format('<path class="valley-strip" data-direction="%.6g" d="%s" stroke="%s" '
+              .. 'stroke-width="8"/>', f.direction, path_d({ run }), STYLE.valley))
+          end
+        end
+      end
+    end
+  end
+  -- labels of the strip instances the decomposition named, at their middle on the rim
+  for k, v in ipairs(ctx.L.valleys) do
+    if v.type == "strip" then
+      local cth, sth = cos(v.direction), sin(v.direction)
+      for _, side in ipairs(sides) do
+        if side[1] * cth + side[2] * sth > 0.5 then
+          -- where the middle line meets this side
+          local x0, y0 = side[3](0)
+          local x1, y1 = side[3](1)
+          local a0, a1 = y0 * cth - x0 * sth, y1 * cth - x1 * sth
+          if a1 ~= a0 then
+            local t = (v.mid - a0) / (a1 - a0)
+            if t >= 0 and t <= 1 then
+              local px, py = side[4](t)
+              ctx.labels[#ctx.labels + 1] = { px - 20 * side[1], py + 20 * side[2] + 4,
+                "V" .. k, size = 11, color = STYLE.valley }
+            end
+          end
+        end
+      end
+    end
+  end
+end
+
 -- The rim: a thin brick strip all round (hills), a wide sea-green one over each valley
 -- interval, and a small wedge for a valley that is a single direction.
 local function draw_rim(ctx)
@@ -152,7 +228,9 @@ local function draw_rim(ctx)
   out('<g id="rim" fill="none">')
   out(format('<path class="rim-hill" d="%sZ" stroke="%s" stroke-width="3"/>',
     rim_path(-pi, pi, 6.5), STYLE.hill))
+  draw_strips(ctx)
   for k, v in ipairs(ctx.L.valleys) do
+    if v.type == "strip" then goto next_valley end   -- (drawn with their families)
     ctx.summary.valleys = ctx.summary.valleys + 1
     local mid
     if v.to - v.from > 1e-9 then
@@ -172,6 +250,7 @@ local function draw_rim(ctx)
     end
     local x, y = rim_point(mid, -14)
     ctx.labels[#ctx.labels + 1] = { x, y, "V" .. k, size = 11, color = STYLE.valley }
+    ::next_valley::
   end
   out("</g>")
 end
@@ -432,20 +511,27 @@ local function draw_axes(ctx)
   local vcx, vcy, vr = ctx.vcx, ctx.vcy, ctx.vr
   out(format('<rect x="%.1f" y="%.1f" width="%.1f" height="%.1f" fill="none" stroke="%s" '
     .. 'stroke-width="1.2"/>', X0, Y0, P, P, STYLE.frame))
-  local step = nice_step(2 * vr, 7)
+  -- (ticks whose labels do not overlap: the step grows until they fit)
+  local xs, step = style.fitting_ticks(vcx - vr, vcx + vr, 7, P, 12)
+  local ys, ystep = style.fitting_ticks(vcy - vr, vcy + vr, 7, P, 12, true)
   out(format('<g id="axes" font-family="%s" font-size="12" fill="%s">', FONT, STYLE.text))
   local ticks = {}
-  for _, v in ipairs(style.multiples(vcx - vr, vcx + vr, step, 40)) do
+  for _, v in ipairs(xs) do
     local x = X0 + (v - (vcx - vr)) / (2 * vr) * P
     ticks[#ticks + 1] = format("M%.1f %.1fv-6M%.1f %.1fv6", x, Y0 + P, x, Y0)
     out(format('<text class="tick" x="%.1f" y="%.1f" text-anchor="middle">%s</text>', x,
       Y0 + P + 28, tick_label(v, step)))
   end
-  for _, v in ipairs(style.multiples(vcy - vr, vcy + vr, step, 40)) do
+  -- (the labels of the vertical axis share the left margin with the axis name: a long
+  -- one is set smaller so that it stays on the page)
+  local widest = 0
+  for _, v in ipairs(ys) do widest = max(widest, utf8.len(tick_label(v, ystep))) end
+  local ysize = max(7, min(12, (X0 - 22) / (0.62 * max(1, widest))))
+  for _, v in ipairs(ys) do
     local y = Y0 + ((vcy + vr) - v) / (2 * vr) * P
     ticks[#ticks + 1] = format("M%.1f %.1fh6M%.1f %.1fh-6", X0, y, X0 + P, y)
-    out(format('<text class="tick" x="%.1f" y="%.1f" text-anchor="end">%s</text>', X0 - 16,
-      y + 4, tick_label(v, step)))
+    out(format('<text class="tick" x="%.1f" y="%.1f" text-anchor="end" font-size="%.1f">%s'
+      .. '</text>', X0 - 16, y + 4, ysize, tick_label(v, ystep)))
   end
   out(format('<path d="%s" stroke="%s" stroke-width="1.1" fill="none"/>', concat(ticks),
     STYLE.frame))

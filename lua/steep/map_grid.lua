@@ -135,6 +135,23 @@ local function node_path(ctx, lines, shift)
   return concat(parts)
 end
 
+-- The heights' extent about the pivot, in units of the saddles' spread, beyond which the
+-- colour scale is symmetric-log.
+local SYMLOG_RATIO = 30
+
+-- Level values: round ones (multiples of a nice step) on a linear scale; on a
+-- symmetric-log scale 0 and +-{1, 2, 5} x 10^k, kept where they lie at least 1/(2n) of
+-- the ramp apart.
+local function level_values(ctx)
+  local n = ctx.nlevels
+  if not ctx.symlog then
+    local step = nice_step(ctx.hi - ctx.lo, n)
+    return style.multiples(ctx.lo, ctx.hi, step, 4 * n + 4)
+  end
+  return style.symlog_values(ctx.lo, ctx.hi, ctx.unit, 0.5 / n)
+end
+M.level_values = level_values
+
 -- The height on the node grid, its range, and the colour of each value.
 local function height_grid(ctx)
   local J, params, N = ctx.J, ctx.params, ctx.N
@@ -215,12 +232,34 @@ local function height_grid(ctx)
   ctx.lo, ctx.hi, ctx.pivot, ctx.pivot_saddle = lo, hi, pivot, pivot_saddle
   ctx.saddle_levels = saddle_levels
   ctx.summary.range = { lo, hi, pivot = pivot }
-  -- the ramp position of a value: piecewise linear, lo -> 0, pivot -> 1/2, hi -> 1
-  ctx.unit = function(v)
-    if v ~= v or v == huge then return 1 end
-    if v == -huge then return 0 end
-    if v < pivot then return max(0, 0.5 * (v - lo) / (pivot - lo)) end
-    return min(1, 0.5 + 0.5 * (v - pivot) / (hi - pivot))
+  -- the ramp position of a value: piecewise linear, lo -> 0, pivot -> 1/2, hi -> 1; where
+  -- the heights span far more than the saddles' levels (exp, sinh, cosh of the variable:
+  -- Re F grows exponentially), symmetric-log about the pivot instead, linear within c of
+  -- it (c: a quarter of the saddles' spread about the pivot, at least 1), logarithmic
+  -- beyond: position ~ asinh((v - pivot)/c)
+  local spread = 0
+  for _, v in pairs(saddle_levels) do spread = max(spread, abs(v - pivot)) end
+  local c = max(1, 0.25 * spread)
+  local extent = max(hi - pivot, pivot - lo)
+  if extent > SYMLOG_RATIO * max(1, spread) then
+    ctx.symlog = c
+    local function asinh(x) return x >= 0 and log(x + sqrt(x * x + 1)) or -log(-x + sqrt(x * x + 1)) end
+    local down, up = asinh((pivot - lo) / c), asinh((hi - pivot) / c)
+    ctx.unit = function(v)
+      if v ~= v or v == huge then return 1 end
+      if v == -huge then return 0 end
+      local a = asinh((v - pivot) / c)
+      if a < 0 then return max(0, 0.5 + 0.5 * a / down) end
+      return min(1, 0.5 + 0.5 * a / up)
+    end
+    ctx.summary.range.symlog = c
+  else
+    ctx.unit = function(v)
+      if v ~= v or v == huge then return 1 end
+      if v == -huge then return 0 end
+      if v < pivot then return max(0, 0.5 * (v - lo) / (pivot - lo)) end
+      return min(1, 0.5 + 0.5 * (v - pivot) / (hi - pivot))
+    end
   end
   ctx.palette = {}
   for b = 0, BANDS - 1 do ctx.palette[b] = ramp((b + 0.5) / BANDS) end
@@ -269,8 +308,7 @@ local function draw_levels(ctx)
   local out, H, N = ctx.out, ctx.H, ctx.N
   out('<g id="levels" fill="none" clip-path="url(#plot-area)">')
   if ctx.nlevels > 0 then
-    local step = nice_step(ctx.hi - ctx.lo, ctx.nlevels)
-    for _, c in ipairs(style.multiples(ctx.lo, ctx.hi, step, 4 * ctx.nlevels + 4)) do
+    for _, c in ipairs(level_values(ctx)) do
       local lines = chain(march(H, N, c))
       if #lines > 0 then
         ctx.summary.level_lines = ctx.summary.level_lines + 1

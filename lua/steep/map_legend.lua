@@ -94,37 +94,61 @@ local function draw_legend(ctx, LY)
   end
   out("</g>")
 
-  -- the colour bar: linear in the value, coloured as the map is
+  -- the colour bar, coloured as the map is: linear in the value, or (a symmetric-log
+  -- scale) linear in the ramp position, its ticks at round values placed by it
   local lo, hi, pivot = ctx.lo, ctx.hi, ctx.pivot
   local CY, CH = LY + rows * 21 + 14, 12
+  local symlog = ctx.symlog
+  local function xpos(v)
+    if symlog then return X0 + ctx.unit(v) * P end
+    return X0 + (v - lo) / (hi - lo) * P
+  end
   out(format('<g id="colourbar" font-family="%s" font-size="11" fill="%s">', FONT, STYLE.text))
   out('<g shape-rendering="crispEdges">')
   local nb = 160
   for b = 0, nb - 1 do
-    local u = ctx.unit(lo + (hi - lo) * (b + 0.5) / nb)
+    local u = symlog and (b + 0.5) / nb or ctx.unit(lo + (hi - lo) * (b + 0.5) / nb)
     out(format('<rect x="%.2f" y="%.1f" width="%.2f" height="%d" fill="%s"/>', X0 + P * b / nb,
       CY, P / nb + 0.05, CH, ctx.palette[min(BANDS - 1, floor(u * BANDS))]))
   end
   out("</g>")
   out(format('<rect x="%.1f" y="%.1f" width="%.1f" height="%d" fill="none" stroke="%s" '
     .. 'stroke-width="0.8"/>', X0, CY, P, CH, STYLE.frame))
-  local cstep = nice_step(hi - lo, 8)
-  local cticks = {}
-  for _, v in ipairs(style.multiples(lo, hi, cstep, 40)) do
-    local x = X0 + (v - lo) / (hi - lo) * P
-    cticks[#cticks + 1] = format("M%.1f %.1fv4", x, CY + CH)
-    out(format('<text x="%.1f" y="%.1f" text-anchor="middle">%s</text>', x, CY + CH + 15,
-      tick_label(v, cstep)))
+  -- ticks whose labels do not overlap (about 0.62 font px a character, 8 px apart)
+  local ticks = {}
+  if symlog then
+    -- round values by preference (0, the powers of ten, then 2 and 5 times them), each
+    -- kept where its label clears those kept before
+    local spans = {}
+    for _, v in ipairs(style.symlog_values(lo, hi, ctx.unit, 0)) do
+      local text = (math.abs(v) < 1e6 and v == math.floor(v)) and format("%d", v) or num(v, 3)
+      text = text:gsub("^%-", "\u{2212}")
+      local x, half = xpos(v), 0.5 * (0.62 * 11 * utf8.len(text)) + 4
+      local ok = x - half >= X0 - 20 and x + half <= X0 + P + 20
+      for _, sp in ipairs(spans) do if x + half > sp[1] and x - half < sp[2] then ok = false end end
+      if ok then spans[#spans + 1] = { x - half, x + half }; ticks[#ticks + 1] = { x, text } end
+    end
+  else
+    local vals, cstep = style.fitting_ticks(lo, hi, 8, P, 11)
+    for _, v in ipairs(vals) do ticks[#ticks + 1] = { xpos(v), tick_label(v, cstep) } end
   end
-  local px = X0 + (pivot - lo) / (hi - lo) * P
+  local cticks = {}
+  for _, t in ipairs(ticks) do
+    cticks[#cticks + 1] = format("M%.1f %.1fv4", t[1], CY + CH)
+    out(format('<text class="colour-tick" x="%.1f" y="%.1f" text-anchor="middle">%s</text>',
+      t[1], CY + CH + 15, t[2]))
+  end
+  local px = xpos(pivot)
   out(format('<path d="%sM%.1f %.1fv%d" stroke="%s" stroke-width="1" fill="none"/>',
     concat(cticks), px, CY - 4, CH + 4, STYLE.saddle_level))
   out(format('<path d="M%.1f %.1fl-4 -6h8Z" fill="%s"/>', px, CY - 1, STYLE.saddle_level))
   local var = ctx.var
   local quantity = ctx.shade == "exponent" and ("Re F(" .. var .. ")")
     or ("log |g(" .. var .. ") e^F(" .. var .. ")|")
-  local caption = wrap(format("shading: %s, clipped to [%s, %s]; pale middle (\u{25be}) at "
-    .. "the level of %s", quantity, num(lo, 3), num(hi, 3),
+  local scale = symlog and format(" on a symmetric-log scale (linear within %s of the pale "
+    .. "middle, logarithmic beyond)", num(symlog, 3)) or ""
+  local caption = wrap(format("shading: %s%s, clipped to [%s, %s]; pale middle (\u{25be}) at "
+    .. "the level of %s", quantity, scale, num(lo, 3), num(hi, 3),
     ctx.pivot_saddle and ("saddle S" .. ctx.pivot_saddle) or "the median value"), floor(P / 6.8))
   for k, l in ipairs(caption) do
     out(format('<text x="%.1f" y="%.1f" font-size="12">%s</text>', X0, CY + CH + 33 + (k - 1) * 16,
@@ -138,7 +162,9 @@ local function draw_legend(ctx, LY)
     local parts = {}
     for _, piece in ipairs(plan.pieces) do
       if piece.weight ~= 0 then
-        local who = piece.kind == "saddle" and ("S" .. piece.index) or ("end " .. cnum(piece.at))
+        local who = piece.kind == "saddle" and ("S" .. piece.index)
+          or piece.kind == "link" and ("link from " .. piece.ends[1])
+          or ("end " .. cnum(piece.at))
         parts[#parts + 1] = format("%s%s \u{2192} %s", piece.weight > 0 and "+" or "\u{2212}",
           abs(piece.weight) > 1 and (abs(piece.weight) .. "\u{b7}" .. who) or who, piece.ends[2])
       end

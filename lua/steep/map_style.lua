@@ -178,6 +178,55 @@ local function multiples(lo, hi, step, max_count)
   return out
 end
 
+--- Round values for a symmetric-log scale on [lo, hi]: 0 and +-{1, 2, 5} x 10^k, kept
+-- (in that order of preference: 0, the powers of ten, then the rest) where their ramp
+-- positions unit(v) lie at least `gap` from every value kept before; sorted.
+local function symlog_values(lo, hi, unit, gap)
+  local cand = {}
+  if lo <= 0 and hi >= 0 then cand[#cand + 1] = 0 end
+  local top = max(abs(lo), abs(hi))
+  if not (finite(top) and top > 0) then return cand end
+  local k1 = floor(math.log(top, 10))
+  local k0 = k1 - 12
+  for _, m in ipairs({ 1, 2, 5 }) do
+    for k = k1, k0, -1 do
+      for _, sgn in ipairs({ 1, -1 }) do
+        local v = sgn * m * 10.0 ^ k
+        if v >= lo and v <= hi then cand[#cand + 1] = v end
+      end
+    end
+  end
+  local kept = {}
+  for _, v in ipairs(cand) do
+    local u, ok = unit(v), true
+    for _, w in ipairs(kept) do if abs(unit(w) - u) < gap then ok = false; break end end
+    if ok then kept[#kept + 1] = v end
+  end
+  table.sort(kept)
+  return kept
+end
+
+--- Ticks whose labels do not overlap: from about n ticks on [lo, hi] (a linear scale of
+-- `pixels` length, labels `font` px high), the step grows (1, 2, 5 x 10^k) until every
+-- label (about 0.62 font px a character, 8 px apart; vertical: a line height apart) fits
+-- between its neighbours. -> values, step
+local function fitting_ticks(lo, hi, n, pixels, font, vertical)
+  local step = nice_step(hi - lo, n)
+  for _ = 1, 30 do
+    local vals = multiples(lo, hi, step, 400)
+    local room = step / (hi - lo) * pixels
+    local need = 0
+    for _, v in ipairs(vals) do
+      local w = vertical and (font + 4) or (0.62 * font * utf8.len(tick_label(v, step)) + 8)
+      need = max(need, w)
+    end
+    if #vals <= 1 or need <= room then return vals, step end
+    step = nice_step(hi - lo, max(1, (hi - lo) / step / 2))
+    if step <= 0 then break end
+  end
+  return {}, step
+end
+
 -- Wraps text to lines of at most n characters (by words).
 local function wrap(text, n)
   local lines, cur = {}, ""
@@ -197,6 +246,6 @@ M.FONT, M.RAMP, M.BANDS, M.STYLE = FONT, RAMP, BANDS, STYLE
 M.esc, M.hex, M.ramp, M.finite, M.num, M.cnum = esc, hex, ramp, finite, num, cnum
 M.angle_text, M.expr_text, M.contour_text = angle_text, expr_text, contour_text
 M.nice_step, M.step_digits, M.tick_label, M.wrap = nice_step, step_digits, tick_label, wrap
-M.multiples = multiples
+M.multiples, M.symlog_values, M.fitting_ticks = multiples, symlog_values, fitting_ticks
 
 return M

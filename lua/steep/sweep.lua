@@ -130,7 +130,10 @@ local function compute_rows(J, values, i0, i1, ctx, on_row, clock0)
         for _, which in ipairs({ "start", "finish" }) do
           local e = J.contour[which](J.contour)
           if contour_m.is_inf(e) then
-            local k = landscape.valley_of(L.valleys, e.angle)
+            -- (the ray from the point next to the end: in a strip valley its line decides)
+            local piece = which == "start" and J.contour.pieces[1]
+              or J.contour.pieces[#J.contour.pieces]
+            local k = landscape.ray_valley(L, which == "start" and piece.b or piece.a, e.angle)
             ends[#ends + 1] = k and landscape.describe_valley(L.valleys[k]) or "none"
           end
         end
