@@ -23,7 +23,7 @@ MODULE      = lua/steep/core.so
 ASAN_MODULE = ext/asan/steep/core.so
 SAN_FLAGS   = -fsanitize=address,undefined -fno-sanitize-recover=all -fno-omit-frame-pointer
 KERNEL_SRC  = ext/series.c ext/tape.c ext/problem.c ext/quad.c ext/geom.c ext/roots.c ext/path.c \
-              ext/invmap.c ext/rings.c
+              ext/invmap.c ext/rings.c ext/mjet.c ext/mexpand.c ext/mcrit.c
 
 .PHONY: all deps test asan memcheck fuzz bench demo install uninstall env clean help
 

@@ -67,5 +67,6 @@ void bind_tape_open(lua_State *L);
 void bind_cvec_open(lua_State *L);
 void bind_cmath_open(lua_State *L);
 void bind_landscape_open(lua_State *L);
+void bind_multi_open(lua_State *L);
 
 #endif
