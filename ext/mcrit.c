@@ -211,15 +211,26 @@ int mcrit_track(mproblem *p, const int *degs, cplx gamma, const cplx *start, dou
     if (!ok) {
       h *= 0.5;
       good = 0;
-      if (h < 1e-14) { memcpy(end, x, (size_t)n * sizeof *x); return MCRIT_FAILED; }
+      if (h < 1e-14) {
+        memcpy(end, x, (size_t)n * sizeof *x);
+        /* a path heading for a solution at infinity grows like (1 - t)^(-1/m): its steps
+         * collapse before |x| reaches `diverge` */
+        return norm(n, x) > 1e-4 * diverge ? MCRIT_DIVERGED : MCRIT_FAILED;
+      }
       continue;
     }
     memcpy(x, y, (size_t)n * sizeof *x);
     t += h;
-    if (norm(n, x) > diverge) { memcpy(end, x, (size_t)n * sizeof *x); return MCRIT_DIVERGED; }
+    if (norm(n, x) > diverge || (t > 0.9 && norm(n, x) > 1e-4 * diverge)) {
+      memcpy(end, x, (size_t)n * sizeof *x);
+      return MCRIT_DIVERGED;
+    }
     if (++good >= 3) { h = fmin(2 * h, 0.1); good = 0; }
   }
-  if (t < 1) { memcpy(end, x, (size_t)n * sizeof *x); return MCRIT_FAILED; }
+  if (t < 1) {
+    memcpy(end, x, (size_t)n * sizeof *x);
+    return norm(n, x) > 1e-4 * diverge ? MCRIT_DIVERGED : MCRIT_FAILED;
+  }
   /* polish at t = 1 and judge the end by the Hessian there */
   int it;
   int st = mcrit_newton(p, x, NULL, 0, INFINITY, 1e-14, 30, end, &it);

@@ -52,7 +52,9 @@ int mcrit_newton(mproblem *p, const cplx *x0, const cplx *known, int nknown, dou
 /* One path of the homotopy H(x, t) = (1 - t) gamma G(x) + t grad F(x), G_k = x_k^{d_k} - 1,
  * from the start solution `start` at t = 0 to t = 1: RK4 predictor in t, Newton
  * corrector, step halved when the corrector needs more than three steps or its first
- * step is large; |x| above `diverge` ends it (MCRIT_DIVERGED: a solution at infinity).
+ * step is large; |x| above `diverge`, or above 1e-4 diverge once t > 0.9 or when the
+ * step collapses, ends it (MCRIT_DIVERGED: a solution at infinity, whose path grows like
+ * (1 - t)^(-1/m) and would stall the steps before reaching `diverge`).
  * At t = 1, Newton's method on grad F polishes the end; MCRIT_SINGULAR when the Hessian
  * there is numerically singular (*rcond below 1e-10: a multiple critical point).
  * MCRIT_FAILED: the step fell below 1e-14 or maxsteps was reached. */

@@ -68,6 +68,22 @@ static int l_bessel_Jn(lua_State *L)
   return push_result(L, "bessel_Jn", st, &r);
 }
 
+/* bessel_I0_scaled(x) -> e^{-|x|} I0(x) (DLMF 10.25.2), error */
+static int l_bessel_I0_scaled(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_bessel_I0_scaled_e(luaL_checknumber(L, 1), &r);
+  return push_result(L, "bessel_I0_scaled", st, &r);
+}
+
+/* lngamma(x) -> log |Gamma(x)|, error */
+static int l_lngamma(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_lngamma_e(luaL_checknumber(L, 1), &r);
+  return push_result(L, "lngamma", st, &r);
+}
+
 static int l_expint_E1(lua_State *L)
 {
   gsl_sf_result r;
@@ -158,6 +174,8 @@ static const luaL_Reg funcs[] = {
   { "airy_Ai_deriv", l_airy_Ai_deriv },
   { "airy_Bi", l_airy_Bi },
   { "bessel_Jn", l_bessel_Jn },
+  { "bessel_I0_scaled", l_bessel_I0_scaled },
+  { "lngamma", l_lngamma },
   { "erfc", l_erfc },
   { "expint_E1", l_expint_E1 },
   { "faddeeva_w", l_faddeeva_w },
