@@ -686,6 +686,11 @@ local function torus_point(J, cp, shapes, opts)
         M.point_text(x)), 0)
     end
   end
+  if M.describe(J, cp, x).degenerate then
+    error(format("expand: the critical point %s is degenerate (its Hessian is singular: "
+      .. "the critical points form a curve or worse, as for an integrand invariant under "
+      .. "a rotation of the torus): not supported", M.point_text(x)), 0)
+  end
   -- strict maximality of Re F on the torus: a grid, then ascent from its best points
   local F0, _, H = derivs(J, cp, x)
   local ReF0 = re_of(F0)
