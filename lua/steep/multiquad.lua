@@ -92,7 +92,8 @@ end
 -- whole); returns value, error, status.
 -- The inner integrals' errors (carried through the weights) are added to the result's
 -- error but do not steer the bisection: below them no subdivision helps.
-local function adaptive(f, map, s0, s1, tol)
+local function adaptive(f, map, s0, s1, tol, atol)
+  atol = atol or 0
   local iv = {}
   local r, i, e, a, ein = rule(f, map, s0, s1)
   iv[1] = { s0 = s0, s1 = s1, r = r, i = i, e = e, a = a, ein = ein }
@@ -103,7 +104,7 @@ local function adaptive(f, map, s0, s1, tol)
       tr, ti, te, ta, tin = tr + v.r, ti + v.i, te + v.e, ta + v.a, tin + v.ein
       if v.e > worst then worst, wi = v.e, k end
     end
-    if te <= max(tol, 100 * EPS) * ta or te == 0 then
+    if te <= max(max(tol, 100 * EPS) * ta, atol) or te == 0 then
       return cnew(tr, ti), te + tin, status
     end
     if #iv >= MAX_INTERVALS or not (te < huge) then
@@ -160,43 +161,70 @@ local function circle_trapezoid(f, c, r, dir, centre, tol)
   return dir * cnew(pr, pi_), dprev + ein * 2 * pi / (N / 2), "limit"
 end
 
+-- The whole real line by the trapezoidal rule for an integrand that decays fast and is
+-- analytic in a strip (a whitened Laplace integrand, about N(0, 1)): exponentially
+-- accurate (Trefethen & Weideman 2014, section 5). Points j h out to where |f| is below
+-- 1e-18 of its largest value, h halved (nested) until two steps agree to tol times the
+-- integral of |f| (or the inner errors' level) and the step before agreed to 1e-2.
+local function line_trapezoid(f, tol, atol)
+  local vals = {}
+  local sabs, ein, fmax = 0, 0, 0
+  local function at(u)
+    local v, e = f(cnew(u, 0))
+    local a = cabs(v)
+    if not (a == a) then error("quad: the integrand is not finite at " .. u, 0) end
+    fmax = max(fmax, a)
+    return v, a, e
+  end
+  local h = 0.5
+  local sum = cnew(0, 0)
+  local pts = {}
+  local function take(u)
+    local v, a, e = at(u)
+    sum, sabs, ein = sum + v, sabs + a, ein + e
+    pts[#pts + 1] = u
+    return a
+  end
+  take(0)
+  local hi, lo = 0, 0
+  for _, dir in ipairs({ 1, -1 }) do
+    local small, u = 0, 0
+    while small < 2 or abs(u) < 6 do
+      u = u + dir * h
+      local a = take(u)
+      if a <= 1e-18 * fmax then small = small + 1 else small = 0 end
+      if abs(u) > 200 then error("quad: the integrand does not decay along the line", 0) end
+    end
+    if dir > 0 then hi = u else lo = u end
+  end
+  local T, dprev = sum * h, huge
+  for _ = 1, 8 do
+    local hh = h / 2
+    local u = lo + hh
+    while u < hi do take(u); u = u + h end
+    local Tn = sum * hh
+    local d = cabs(Tn - T)
+    local size, noise = sabs * hh, 2 * ein * hh
+    T, h = Tn, hh
+    if d <= max(max(tol, 100 * EPS) * size, atol or 0) + noise and dprev <= 1e-2 * size + noise then
+      return T, d + ein * h + fmax * 1e-18 * (hi - lo), "ok"
+    end
+    dprev = d
+  end
+  return T, dprev + ein * h, "limit"
+end
+
 ---------------------------------------------------------------------------------------
 -- Pieces of a given contour.
 ---------------------------------------------------------------------------------------
 
--- Along a ray from a in direction u: pieces [s0, s0 + len] of doubling length (each by
--- seg(z0, z1) -> value, error, status) until two in a row are negligible.
-local function ray_integral(seg, p)
-  local a = p.a or p.b
-  local u = expi(p.angle)
-  local L = max(1, cabs(a)) / 4
-  local total, err, status = cnew(0, 0), 0, "ok"
-  local s0, len, small = 0, L, 0
-  for _ = 1, 80 do
-    local v, e, st = seg(a + s0 * u, a + (s0 + len) * u)
-    total, err, status = total + v, err + e, worse(status, st)
-    if cabs(v) <= 1e-17 * cabs(total) or cabs(v) == 0 then
-      small = small + 1
-      if small >= 2 then
-        if p.kind == "ray_in" then total = -total end
-        return total, err, status
-      end
-    else
-      small = 0
-    end
-    s0, len = s0 + len, 2 * len
-  end
-  error(format("quad: the integral along the ray in direction %.6g does not converge "
-    .. "(the integrand does not decay along it): give along = \"deformed\" or a finite "
-    .. "contour", p.angle), 0)
-end
-
 -- The integral of f along one piece (a segment, an arc, a ray) of a given contour.
--- centre: an angle to centre full circles on (the peak of a torus integrand).
-local function piece_integral(f, p, tol, centre)
+-- centre: an angle to centre full circles on (the peak of a torus integrand); scale(a):
+-- the length scale of a ray from a (mapped to t in [0, 1) by a + L t/(1 - t) u).
+local function piece_integral(f, p, tol, centre, scale, atol)
   if p.kind == "segment" then
     local a, d = p.a, p.b - p.a
-    return adaptive(f, function(s) return a + s * d, d end, 0, 1, tol)
+    return adaptive(f, function(s) return a + s * d, d end, 0, 1, tol, atol)
   elseif p.kind == "arc" then
     local c, r = p.center, p.radius
     local th0, th1 = p.from, p.to
@@ -206,12 +234,17 @@ local function piece_integral(f, p, tol, centre)
     return adaptive(f, function(th)
       local e = expi(th)
       return c + r * e, cnew(0, r) * e
-    end, th0, th1, tol)
+    end, th0, th1, tol, atol)
   end
-  return ray_integral(function(z0, z1)
-    local d = z1 - z0
-    return adaptive(f, function(s) return z0 + s * d, d end, 0, 1, tol)
-  end, p)
+  local a = p.a or p.b
+  local u = expi(p.angle)
+  local L = scale(a)
+  local v, e, st = adaptive(f, function(t)
+    local q = 1 - t
+    return a + (L * t / q) * u, (L / (q * q)) * u
+  end, 0, 1, tol, atol)
+  if p.kind == "ray_in" then v = -v end
+  return v, e, st
 end
 
 ---------------------------------------------------------------------------------------
@@ -235,7 +268,7 @@ local function has_infinite_end(C)
 end
 
 -- f(xs) -> value, error, status of the innermost integral at the outer values xs.
-local function make_inner(J, params, mode, centre)
+local function make_inner(J, params, mode, centre, scale, atol)
   local Jin = inner_integral(J)
   local C = J.contours[J.n]
   local names = {}
@@ -255,7 +288,8 @@ local function make_inner(J, params, mode, centre)
       local v, e, st
       if piece.kind == "segment" then
         local ev
-        v, e, ev, st = core.quad_polyline(Jin.tape, p, { piece.a, piece.b }, { reltol = INNER_TOL })
+        v, e, ev, st = core.quad_polyline(Jin.tape, p, { piece.a, piece.b },
+          { reltol = INNER_TOL, abstol = atol })
       elseif piece.kind == "arc" then
         local th0, th1 = piece.from, piece.to
         local ev
@@ -267,10 +301,11 @@ local function make_inner(J, params, mode, centre)
             { reltol = INNER_TOL })
         end
       else
-        v, e, st = ray_integral(function(z0, z1)
-          local val, er, _, stt = core.quad_polyline(Jin.tape, p, { z0, z1 }, { reltol = INNER_TOL })
-          return val, er, stt
-        end, piece)
+        local a = piece.a or piece.b
+        local ev
+        v, e, ev, st = core.quad_ray(Jin.tape, p, a, piece.angle, scale(a),
+          { reltol = INNER_TOL, abstol = atol })
+        if piece.kind == "ray_in" then v = -v end
       end
       total, err, status = total + v, err + e, worse(status, st)
     end
@@ -399,12 +434,86 @@ end
 -- The iterated integral.
 ---------------------------------------------------------------------------------------
 
+-- Laplace type over all of R^n: the iterated integral in the coordinates u with
+-- x = x* + L u, L L^T = (-F''(x*))^{-1} (Cholesky), x* the highest maximum. The integral
+-- over R^n is unchanged (times det L), the integrand is nearly N(0, I) in u, so each
+-- inner integral has its peak near 0 with unit width whatever the outer values: a
+-- strongly correlated maximum no longer costs a shifting, narrow inner peak.
+local function whitened(J, params, cp)
+  local expr = require "steep.expr"
+  local pt = critical.contributing(J, cp, {})[1]
+  local m = pt.x
+  local _, _, Hm = critical.derivs(J, cp, m)
+  local n = J.n
+  local negH = {}
+  for i = 1, n do
+    negH[i] = {}
+    for j = 1, n do negH[i][j] = -(cparts(Hm[i][j])) end
+  end
+  local Sigma = cmatrix.inverse(negH)
+  if not Sigma then return nil end
+  local L = {}
+  for i = 1, n do
+    L[i] = {}
+    for j = 1, i do
+      local v = cparts(Sigma[i][j])
+      for k = 1, j - 1 do v = v - L[i][k] * L[j][k] end
+      if i == j then
+        if not (v > 0) then return nil end
+        L[i][i] = sqrt(v)
+      else
+        L[i][j] = v / L[j][j]
+      end
+    end
+  end
+  local taken = {}
+  for _, name in ipairs(J.params) do taken[name] = true end
+  for _, v in ipairs(J.vars) do taken[v.name] = true end
+  local us, map, detL = {}, {}, 1
+  for k = 1, n do
+    local name = "w" .. k
+    while taken[name] do name = "_" .. name end
+    us[k] = expr.symbol("var", name)
+    detL = detL * L[k][k]
+  end
+  for k = 1, n do
+    local e = cparts(m[k])
+    for j = 1, k do e = e + L[k][j] * us[j] end
+    map[J.vars[k]] = e
+  end
+  local line = J.contours[1]
+  local contours = {}
+  for k = 1, n do contours[k] = line end
+  local W = require("steep.multi").new { var = us,
+    exponent = expr.substitute(J.exponent, map),
+    amplitude = expr.substitute(expr.lift(J.amplitude), map) * detL, contour = contours,
+    large = J.large }
+  W._whitened = true
+  return W, critical.point_text(m)
+end
+
 --- quad(J, params, {along =}) -> value, error estimate, info {status, along, levels,
 -- inner_calls, notes}
 function M.quad(J, params, opts)
   local n = J.n
   local cp = J:_cparams(params)
   local kind = critical.classify(J, cp)
+  if kind == "laplace" and n >= 2 and not J._whitened then
+    local all_lines = true
+    for k = 1, n do
+      local s = critical.shape(J.contours[k])
+      all_lines = all_lines and s.lo == -huge and s.hi == huge and s.dir == 1
+    end
+    if all_lines then
+      local W, at = whitened(J, params, cp)
+      if W then
+        local v, e, info = M.quad(W, params, opts)
+        table.insert(info.notes, 1, "over R^" .. n .. " in coordinates whitened at the "
+          .. "maximum " .. at .. " (x = x* + L u, L L^T = (-F'')^{-1})")
+        return v, e, info
+      end
+    end
+  end
   local along = opts.along
   local notes = {}
   local Cn = J.contours[n]
@@ -437,7 +546,32 @@ function M.quad(J, params, opts)
   if inner_mode == "deformed" then
     notes[#notes + 1] = "the innermost integral deformed by the one-variable machinery"
   end
-  local inner, calls = make_inner(J, params, inner_mode, centre)
+  -- length scales of the rays: for a Laplace-type integral the distance to the maximum
+  -- or its width, whichever is larger; otherwise the distance to 0 (at least 1/4)
+  local scales = {}
+  for k = 1, n do scales[k] = function(a) return max(1, cabs(a)) / 4 end end
+  local rays = false
+  for k = 1, n do rays = rays or has_infinite_end(J.contours[k]) end
+  -- absolute tolerances for a Laplace-type integral: a slice at level k (variables k..n,
+  -- the outer ones fixed) need not be known better than tol times the whole (its leading
+  -- term Z0) over the outer variables' extent (sqrt(2 pi) widths each); slices far out in
+  -- the tails then take one rule instead of chasing digits relative to themselves
+  local atol = {}
+  for k = 1, n do atol[k] = 0 end
+  if kind == "laplace" then
+    local pt = critical.contributing(J, cp, {})[1]
+    local top = pt.x
+    local _, _, Hm = critical.derivs(J, cp, top)
+    local Z0 = cabs(require("steep.hormander").contribution(J, cp, pt, 1).value)
+    local extent = 1
+    for k = 1, n do
+      local w = 1 / sqrt(max(abs((cparts(Hm[k][k]))), 1e-300))
+      if rays then scales[k] = function(a) return max(w, cabs(a - top[k])) end end
+      atol[k] = 0.1 * OUTER_TOL[n] * Z0 / extent
+      extent = extent * sqrt(2 * pi) * w
+    end
+  end
+  local inner, calls = make_inner(J, params, inner_mode, centre, scales[n], atol[n])
   local tol = OUTER_TOL[n]
   local status = "ok"
   local memo_seed = {}
@@ -464,7 +598,7 @@ function M.quad(J, params, opts)
       local total, err = cnew(0, 0), 0
       for i = 1, #path - 1 do
         local a, d = path[i], path[i + 1] - path[i]
-        local v, e, st = adaptive(f, function(s) return a + s * d, d end, 0, 1, tolk)
+        local v, e, st = adaptive(f, function(s) return a + s * d, d end, 0, 1, tolk, atol[k])
         total, err, status = total + v, err + e, worse(status, st)
       end
       -- the tails beyond the path's ends: about the integrand there times the last step
@@ -477,9 +611,14 @@ function M.quad(J, params, opts)
       if s.dir < 0 then total = -total end
       return total, err
     end
+    if J._whitened then
+      local v, e, st = line_trapezoid(f, tolk, atol[k])
+      status = worse(status, st)
+      return v, e
+    end
     local total, err = cnew(0, 0), 0
     for _, piece in ipairs(J.contours[k].pieces) do
-      local v, e, st = piece_integral(f, piece, tolk, centre)
+      local v, e, st = piece_integral(f, piece, tolk, centre, scales[k], atol[k])
       total, err, status = total + v, err + e, worse(status, st)
     end
     return total, err
