@@ -401,3 +401,55 @@ function TestMultiErrors:test_degenerate()
     contour = { steep.line(-1, 1), steep.line(-1, 1) }, large = lam }
   H.raises({ "expand", "degenerate" }, J.expand, J, { lam = 10 })
 end
+
+---------------------------------------------------------------------------------------
+
+TestMultiMap = {}
+
+-- F = lam (x y - x^4/4 - y^4/4 + x/10) over [-2, 2]^2: grad F = 0 at two maxima near
+-- (+-1, +-1) and a saddle near (0, -0.1) (x = y^3 - 1/10 and y = x^3 by hand), all in
+-- view; both maxima contribute. The SVG is written, renders with rsvg-convert (Debian
+-- package librsvg2-bin) and carries one marker per critical point, by kind.
+function TestMultiMap:test_two_maxima_and_a_saddle()
+  local J = steep.integral { var = { x, y }, exponent = lam * (x * y - x ^ 4 / 4 - y ^ 4 / 4 + x / 10),
+    contour = { steep.line(-2, 2), steep.line(-2, 2) }, large = lam }
+  local base = os.tmpname()
+  local file, s = J:map { lam = 3, file = base .. ".svg", grid = 48 }
+  lu.assertEquals(file, base .. ".svg")
+  lu.assertEquals({ s.maxima, s.saddles, s.minima, s.contributing }, { 2, 1, 0, 2 })
+  lu.assertEquals(s.kind, "laplace")
+  local f = assert(io.open(file))
+  local svg = f:read("a")
+  f:close()
+  local function count(pat) local c = 0; for _ in svg:gmatch(pat) do c = c + 1 end; return c end
+  lu.assertEquals(count('class="critical maximum"'), 2)
+  lu.assertEquals(count('class="critical saddle"'), 1)
+  lu.assertEquals(count('class="contributing"'), 2)
+  lu.assertEquals(count('class="box"'), 4)
+  lu.assertStrContains(svg, "Laplace type")
+  lu.assertEquals(count("<svg"), 1)
+  lu.assertEquals(count("</svg>"), 1)
+  local ok, _, code = os.execute(string.format("env -u LD_PRELOAD -u ASAN_OPTIONS rsvg-convert "
+    .. "-o %q %q 2>/dev/null", base .. ".png", file))
+  lu.assertTrue(ok == true and code == 0, "rsvg-convert renders the map")
+  os.remove(base .. ".png")
+  os.remove(file)
+  os.remove(base)
+  H.raises({ "map", "'pair' must list two different variables" }, J.map, J,
+    { lam = 3, file = base .. ".svg", pair = { 1, 1 } })
+end
+
+-- A torus drawn in its angles: the critical point at angle 0 is a maximum of Re F there.
+function TestMultiMap:test_torus_angles()
+  local c = steep.circle(0, 1)
+  local n = steep.param "n"
+  local J = steep.integral { var = { x, y },
+    exponent = n * (3 * steep.log(1 + x + y) - steep.log(x) - steep.log(y)),
+    amplitude = 1 / (x * y), contour = { c, c }, large = n }
+  local base = os.tmpname()
+  local _, s = J:map { n = 10, file = base .. ".svg", grid = 32 }
+  lu.assertEquals({ s.maxima, s.contributing }, { 1, 1 })
+  H.close(s.window.x[1], -pi, 1e-14, "the angle window")
+  os.remove(base .. ".svg")
+  os.remove(base)
+end
