@@ -101,7 +101,7 @@ FUZZ_CC      = clang
 FUZZ_FLAGS   = -std=c99 -Wall -Wextra -Werror -g -O1 -fsanitize=fuzzer,address,undefined \
                -fno-sanitize-recover=all -fno-omit-frame-pointer
 FUZZ_SRC     = $(sort $(KERNEL_SRC) ext/invmap.c)
-FUZZERS      = tape series paths
+FUZZERS      = tape series paths multi
 SECONDS     ?= 60
 FUZZ_TIMEOUT = 10
 

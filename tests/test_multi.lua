@@ -373,6 +373,7 @@ end
 
 function TestMultiErrors:test_options()
   local J = cos_box()
+  H.raises({ "sweep: not available for integrals in several variables" }, J.sweep, J, { lam = 5 })
   H.raises({ "expand", "unknown option 'ordre'" }, J.expand, J, { lam = 5, ordre = 2 })
   H.raises({ "expand", "unbound parameter 'lam'" }, J.expand, J, { order = 2 })
   H.raises({ "expand", "'at' must be a list of 2 coordinates" }, J.expand, J,

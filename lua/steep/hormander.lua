@@ -62,11 +62,11 @@ local function check_order(order, n, fname)
   local Kmax = M.max_order(n)
   if type(order) ~= "number" or math.tointeger(order) == nil or order < 1 then
     error(format("%s: option 'order' must be a whole number of terms from 1 to %d, got %s",
-      fname, Kmax, tostring(order)), 4)
+      fname, Kmax, tostring(order)), 3)
   end
   if order > Kmax then
     error(format("%s: order %d in %d variables is beyond what this build computes in "
-      .. "reasonable time (at most %d terms in %d variables)", fname, order, n, Kmax, n), 4)
+      .. "reasonable time (at most %d terms in %d variables)", fname, order, n, Kmax, n), 3)
   end
   return math.tointeger(order)
 end

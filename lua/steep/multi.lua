@@ -122,16 +122,18 @@ function methods._cparams(J, params)
   return cp
 end
 
-local function check_point(J, p, fname, what)
+-- (level: the error level of the method's caller, counted from here)
+local function check_point(J, p, fname, what, level)
+  level = level or 3
   if type(p) ~= "table" or complex.is(p) or #p ~= J.n then
-    error(format("%s: option '%s' must be a list of %d coordinates", fname, what, J.n), 4)
+    error(format("%s: option %s must be a list of %d coordinates", fname, what, J.n), level)
   end
   local out = {}
   for k = 1, J.n do
     local re, im = cparts(p[k])
     if not re or re ~= re or im ~= im or abs(re) == huge or abs(im) == huge then
-      error(format("%s: option '%s' coordinate %d must be a finite number or complex value",
-        fname, what, k), 4)
+      error(format("%s: option %s coordinate %d must be a finite number or complex value",
+        fname, what, k), level)
     end
     out[k] = cnew(re, im)
   end
@@ -141,10 +143,10 @@ end
 local function check_seeds(J, seeds, fname)
   if seeds == nil then return nil end
   if type(seeds) ~= "table" then
-    error(format("%s: option 'seeds' must be a list of points", fname), 4)
+    error(format("%s: option 'seeds' must be a list of points", fname), 3)
   end
   local out = {}
-  for i, s in ipairs(seeds) do out[i] = check_point(J, s, fname, "seeds") end
+  for i, s in ipairs(seeds) do out[i] = check_point(J, s, fname, format("'seeds' entry %d", i), 4) end
   return out
 end
 
@@ -164,7 +166,7 @@ function methods.expand(J, opts)
     "expand")
   local hormander = require "steep.hormander"
   local K = hormander.check_order(o.order or 1, J.n, "expand")
-  local at = o.at and check_point(J, o.at, "expand", "at")
+  local at = o.at and check_point(J, o.at, "expand", "'at'")
   local cp = J:_cparams(params)
   local r = hormander.expand(J, cp, { order = K, at = at, seeds = check_seeds(J, o.seeds, "expand") })
   r.integral, r.params = J, params
@@ -186,7 +188,7 @@ function methods.series(J, opts)
   local K = hormander.check_order(o.order or 4, J.n, "series")
   params[J.large.name] = 1
   return hormander.series(J, J:_cparams(params), { order = K,
-    at = o.at and check_point(J, o.at, "series", "at") })
+    at = o.at and check_point(J, o.at, "series", "'at'") })
 end
 
 --- Is the exponent large * phi(x) with phi and the amplitude free of the large parameter?
@@ -318,6 +320,15 @@ function M.report(r, opts)
   add("caution: an asymptotic approximation; check it (J:check) before it informs any "
     .. "engineering, financial or safety decision")
   return table.concat(lines, "\n")
+end
+
+-- The one-variable methods that have no several-variable form yet: a clear error.
+for _, name in ipairs({ "landscape", "rescale", "suggest_rescaling", "crossings", "compare",
+    "sweep" }) do
+  methods[name] = function()
+    error(format("%s: not available for integrals in several variables (available: critical, "
+      .. "expand, series, quad, check, map)", name), 2)
+  end
 end
 
 M.Multi = Multi
