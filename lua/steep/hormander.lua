@@ -201,7 +201,7 @@ function M.contribution(J, cp, pt, K, opts)
   for k = 1, n do desc[k] = KIND_TEXT[kinds[k]] end
   local kind = pt.why
   local signature
-  if J.problem_kind == "stationary phase" and not pt.named then
+  if pt.problem == "stationary phase" and not pt.named then
     -- F = i phi: phi'' = -i F'', so an eigenvalue mu of -F'' is -i times one of phi''
     signature = 0
     for _, mu in ipairs(eig) do
@@ -229,9 +229,11 @@ end
 function M.expand(J, cp, opts)
   local K = opts.order
   local pts, kind, info = critical.contributing(J, cp, { at = opts.at, seeds = opts.seeds })
-  J.problem_kind = kind
   local contributions = {}
-  for _, pt in ipairs(pts) do contributions[#contributions + 1] = M.contribution(J, cp, pt, K) end
+  for _, pt in ipairs(pts) do
+    pt.problem = kind
+    contributions[#contributions + 1] = M.contribution(J, cp, pt, K)
+  end
   table.sort(contributions, function(a, b) return a.dominance > b.dominance end)
   -- sums relative to the dominant point's e^{F0}, so huge values keep their digits
   local top = contributions[1]
@@ -278,9 +280,9 @@ end
 function M.series(J, cp1, opts)
   local K = opts.order
   local pts, kind = critical.contributing(J, cp1, { at = opts.at })
-  J.problem_kind = kind
   local out = {}
   for _, pt in ipairs(pts) do
+    pt.problem = kind
     local c = M.contribution(J, cp1, pt, K)
     local nedge, nq = 0, 0
     for _, k in ipairs(c.kinds) do if k == "edge" then nedge = nedge + 1 else nq = nq + 1 end end

@@ -439,9 +439,8 @@ end
 -- over R^n is unchanged (times det L), the integrand is nearly N(0, I) in u, so each
 -- inner integral has its peak near 0 with unit width whatever the outer values: a
 -- strongly correlated maximum no longer costs a shifting, narrow inner peak.
-local function whitened(J, params, cp)
+local function whitened(J, cp, pt)
   local expr = require "steep.expr"
-  local pt = critical.contributing(J, cp, {})[1]
   local m = pt.x
   local _, _, Hm = critical.derivs(J, cp, m)
   local n = J.n
@@ -498,14 +497,18 @@ function M.quad(J, params, opts)
   local n = J.n
   local cp = J:_cparams(params)
   local kind = critical.classify(J, cp)
-  if kind == "laplace" and n >= 2 and not J._whitened then
+  -- the maxima of a Laplace-type integrand guide the quadrature (scales, tolerances,
+  -- whitening); a maximum the expansion refuses only costs the quadrature those hints
+  local okp, pts = false, nil
+  if kind == "laplace" then okp, pts = pcall(critical.contributing, J, cp, {}) end
+  if okp and n >= 2 and not J._whitened then
     local all_lines = true
     for k = 1, n do
       local s = critical.shape(J.contours[k])
       all_lines = all_lines and s.lo == -huge and s.hi == huge and s.dir == 1
     end
     if all_lines then
-      local W, at = whitened(J, params, cp)
+      local W, at = whitened(J, cp, pts[1])
       if W then
         local v, e, info = M.quad(W, params, opts)
         table.insert(info.notes, 1, "over R^" .. n .. " in coordinates whitened at the "
@@ -558,8 +561,8 @@ function M.quad(J, params, opts)
   -- the tails then take one rule instead of chasing digits relative to themselves
   local atol = {}
   for k = 1, n do atol[k] = 0 end
-  if kind == "laplace" then
-    local pt = critical.contributing(J, cp, {})[1]
+  if okp then
+    local pt = pts[1]
     local top = pt.x
     local _, _, Hm = critical.derivs(J, cp, top)
     local Z0 = cabs(require("steep.hormander").contribution(J, cp, pt, 1).value)
