@@ -95,3 +95,24 @@ function TestMultiPhase:test_several_points_refused_by_quad()
   lu.assertEquals(#r.contributions, 2)
   H.raises({ "quad", "2 real stationary points" }, J.quad, J, { lam = 20 })
 end
+
+-- Orientation: the second line reversed negates the expansion and the quadrature (the
+-- integral over a reversed contour is the negated one), in the stationary-phase and the
+-- Laplace case.
+function TestMultiPhase:test_reversed_contour()
+  local phi = cases[1].phi
+  local J = integral(cases[1])
+  local Jr = steep.integral { var = { x, y }, exponent = I * lam * phi, contour = { R, R:reverse() },
+    large = lam }
+  local r, rr = J:expand { lam = 20, order = 3 }, Jr:expand { lam = 20, order = 3 }
+  H.close(rr.value, -r.value, 1e-14, "stationary phase, reversed")
+  local L = steep.integral { var = { x, y }, exponent = -lam * (x ^ 2 + x * y + y ^ 2 + x ^ 4),
+    contour = { steep.line(1, -1), steep.line(-1, 1) }, large = lam }
+  local L2 = steep.integral { var = { x, y }, exponent = -lam * (x ^ 2 + x * y + y ^ 2 + x ^ 4),
+    contour = { steep.line(-1, 1), steep.line(-1, 1) }, large = lam }
+  H.close(L:expand { lam = 30, order = 3 }.value, -L2:expand { lam = 30, order = 3 }.value, 1e-14,
+    "Laplace, reversed")
+  local q = L:quad { lam = 30 }
+  local q2 = L2:quad { lam = 30 }
+  H.close(q, -q2, 1e-12, "Laplace quadrature, reversed")
+end

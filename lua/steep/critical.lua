@@ -843,7 +843,7 @@ function M.contributing(J, cp, opts)
         local x, dirs, jac, kinds = {}, {}, {}, {}
         for k = 1, J.n do
           x[k] = cnew(re_of(c.x[k]), 0)
-          kinds[k], dirs[k], jac[k] = "full", 1, 1
+          kinds[k], dirs[k], jac[k] = "full", 1, shapes[k].dir
         end
         pts[#pts + 1] = { x = x, kinds = kinds, dirs = dirs, jac = jac, notes = {},
           why = "real stationary point" }
