@@ -138,12 +138,12 @@ function TestMultiTorus:test_three_variable_torus_orders()
 end
 
 -- Iterated quadrature of the same to 1e-8 (n = 3), its estimate bounding its error (at
--- n = 10 and 20: at n = 50 it takes 15 s, 256 points a circle).
+-- n = 10: 0.4 s; n = 20 takes 2 s and n = 50 15 s, 256 points a circle).
 function TestMultiTorus:test_three_variable_quadrature()
   local J = four_nomial()
-  local exact = multinomial(4, 20)
+  local exact = multinomial(4, 10)
   local norm = (2 * pi * steep.I) ^ 3
-  for _, N in ipairs({ 10, 20 }) do
+  for _, N in ipairs({ 10 }) do
     local want = exact(N)
     local v, e, info = J:quad { n = N }
     lu.assertEquals(info.status, "ok")

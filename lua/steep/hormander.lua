@@ -225,10 +225,43 @@ function M.contribution(J, cp, pt, K, opts)
   }
 end
 
+-- The points that contribute depend on the parameters (and a named point or seeds), not
+-- on the order: the last few are kept on the integral (J:check and a table of orders
+-- ask for them repeatedly).
+local function contributing_cached(J, cp, opts)
+  local parts = {}
+  for k, v in pairs(cp) do
+    local re, im = cparts(v)
+    parts[#parts + 1] = format("%s=%a,%a", k, re, im)
+  end
+  table.sort(parts)
+  for _, key in ipairs({ "at", "seeds" }) do
+    local list = opts[key]
+    if list then
+      local pts = list[1] and type(list[1]) == "table" and not complex.is(list[1]) and list or { list }
+      for _, pt in ipairs(pts) do
+        for _, v in ipairs(pt) do
+          local re, im = cparts(v)
+          parts[#parts + 1] = format("%s:%a,%a", key, re, im)
+        end
+      end
+    end
+  end
+  local key = table.concat(parts, ";")
+  J._pcache = J._pcache or {}
+  for _, e in ipairs(J._pcache) do
+    if e.key == key then return e.pts, e.kind, e.info end
+  end
+  local pts, kind, info = critical.contributing(J, cp, opts)
+  table.insert(J._pcache, 1, { key = key, pts = pts, kind = kind, info = info })
+  J._pcache[5] = nil
+  return pts, kind, info
+end
+
 --- expand(J, cp, opts) -> result: every contributing point's expansion summed.
 function M.expand(J, cp, opts)
   local K = opts.order
-  local pts, kind, info = critical.contributing(J, cp, { at = opts.at, seeds = opts.seeds })
+  local pts, kind, info = contributing_cached(J, cp, { at = opts.at, seeds = opts.seeds })
   local contributions = {}
   for _, pt in ipairs(pts) do
     pt.problem = kind

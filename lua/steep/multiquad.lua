@@ -274,13 +274,33 @@ local function make_inner(J, params, mode, centre, scale, atol)
   local names = {}
   for k = 1, J.n - 1 do names[k] = J.vars[k].name end
   local count = 0
+  local prev   -- the last landscape's saddles and singularities: Newton starts there
   return function(xs)
     count = count + 1
     local p = {}
     for k, v in pairs(params) do p[k] = v end
     for k = 1, J.n - 1 do p[names[k]] = xs[k] end
     if mode == "deformed" then
-      local v, e, info = Jin:quad(p)
+      -- as J:sweep continues a landscape from one parameter value to the next: the
+      -- previous saddles and singularities seed Newton, and the whole region is searched
+      -- again when one is lost or the argument principle counts one more
+      local L
+      if prev then
+        L = Jin:_landscape(p, prev.region, false, { seeds = prev.saddles, fast = true,
+          sing_seeds = prev.singularities, sing_radii = prev.radii })
+        local sc = L.saddle_count
+        if #L.saddles < #prev.saddles or #L.singularities < #prev.singularities
+            or (sc and sc.count and sc.found < sc.count) then
+          L = nil
+        end
+      end
+      L = L or Jin:_landscape(p, nil, false)
+      local v, e, info = require("steep.integral").quad_with(Jin, p, L, "deformed")
+      prev = { region = L.region, saddles = {}, singularities = {}, radii = {} }
+      for _, sd in ipairs(L.saddles) do prev.saddles[#prev.saddles + 1] = sd.at end
+      for k, sg in ipairs(L.singularities) do
+        prev.singularities[k], prev.radii[k] = sg.at, sg.radius or false
+      end
       return v, e, info.status
     end
     local total, err, status = cnew(0, 0), 0, "ok"
@@ -395,7 +415,9 @@ local function steepest_path(J, cp, k, xs, seed)
     local z = xc + sgn * 0.3 * w * d0
     local y = rest
     local reached = false
-    local next_drop = 0.5   -- keep points where Re Phi has dropped by 0.5 j^2 (j widths)
+    -- keep points where Re Phi has dropped by (1.5 j)^2 / 2 (every 1.5 widths: a
+    -- Kronrod rule on each chord resolves the Gaussian there)
+    local next_drop = 1.125
     local j = 1
     for _ = 1, 600 do
       local F, dF, ny = reduced(J, cp, k, xs, z, y)
@@ -404,7 +426,7 @@ local function steepest_path(J, cp, k, xs, seed)
       local drop = ReF0 - cparts(F)
       if drop >= next_drop or drop > STOP_DROP then
         pts[#pts + 1] = z
-        while next_drop <= drop do j = j + 1; next_drop = 0.5 * j * j end
+        while next_drop <= drop do j = j + 1; next_drop = 1.125 * j * j end
       end
       if drop > STOP_DROP then reached = true; break end
       local a = cabs(dF)
