@@ -537,14 +537,13 @@ local function face_sizes(J, cp, shapes, x, kinds)
           y[k] = e
           local ok, yb, Fb = pcall(ascend, J, cp, pinned, y)
           if ok and Fb == Fb and Fb > -huge then
-            local _, gc, Hc = derivs(J, cp, x)
+            local _, _, Hc = derivs(J, cp, x)
             local width = 1 / sqrt(max(abs(re_of(Hc[k][k])), 1e-300))
             local _, gb = derivs(J, cp, yb)
             local slope = abs(re_of(gb[k]))
             local rel = math.exp(Fb - F0) * min(1, 1 / (slope * width * sqrt(2 * pi)))
             out[#out + 1] = { coordinate = k, at = yb, F = Fb, relative = rel,
               widths = abs(x[k] - e) / width }
-            local _ = gc
           end
         end
       end

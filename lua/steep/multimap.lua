@@ -94,7 +94,6 @@ end
 -- interpolant of a cell crosses the level.
 local function level_segments(V, G, level)
   local segs = {}
-  local function interp(a, b, va, vb) return a + (level - va) / (vb - va) * (b - a) end
   for i = 1, G - 1 do
     for j = 1, G - 1 do
       local v00, v10, v01, v11 = V[i][j], V[i + 1][j], V[i][j + 1], V[i + 1][j + 1]
@@ -111,7 +110,6 @@ local function level_segments(V, G, level)
       edge(i, j + 1, i, j, v01, v00)
       if #pts >= 2 then segs[#segs + 1] = { pts[1], pts[2] } end
       if #pts == 4 then segs[#segs + 1] = { pts[3], pts[4] } end
-      local _ = interp
     end
   end
   return segs
