@@ -396,6 +396,20 @@ function TestMultiErrors:test_unsettled_needs_a_named_point()
   H.close(r.value, 2 * pi / 10, 1e-14, "the Gaussian at a named point (exact)")
 end
 
+-- A divergent integral: an expansion and a quadrature that say so
+-- (e^{lam e^{xy}} grows without bound along x = y).
+function TestMultiErrors:test_divergent()
+  local R = steep.line(steep.inf(pi), steep.inf(0))
+  local J = steep.integral { var = { x, y }, exponent = lam * steep.exp(x * y), contour = { R, R },
+    large = lam }
+  H.raises({ "expand", "diverges" }, J.expand, J, { lam = 5 })
+  H.raises({ "quad", "non-finite value" }, J.quad, J, { lam = 5 })
+  -- a local maximum at 0, but F = lam (-x^2 - y^2 + x^4/100) grows again for |x| > 7
+  local J2 = steep.integral { var = { x, y }, exponent = lam * (-x ^ 2 - y ^ 2 + x ^ 4 / 100),
+    contour = { R, R }, large = lam }
+  H.raises({ "expand", "above its largest maximum", "diverges" }, J2.expand, J2, { lam = 5 })
+end
+
 -- A degenerate maximum (Hessian singular) is refused.
 function TestMultiErrors:test_degenerate()
   local J = steep.integral { var = { x, y }, exponent = -lam * (x ^ 2 + y ^ 4),

@@ -610,6 +610,49 @@ local function laplace_points(J, cp, shapes, crit)
     end
     if not dup then found[#found + 1] = { xr = x, F = Fx } end
   end
+  -- where the box reaches infinity, F must fall below its largest maximum far out: probe
+  -- along the axes and the diagonals from the best point (a divergent integral, or a
+  -- higher maximum beyond the grid, would otherwise pass unnoticed)
+  table.sort(found, function(a, b) return a.F > b.F end)
+  if found[1] then
+    local x0, F0 = found[1].xr, found[1].F
+    local dirs = {}
+    for k = 1, n do
+      local d = {}
+      for j = 1, n do d[j] = (j == k) and 1 or 0 end
+      dirs[#dirs + 1] = d
+    end
+    for mask = 0, 2 ^ n - 1 do
+      local d = {}
+      for j = 1, n do d[j] = ((mask >> (j - 1)) & 1 == 1) and -1 or 1 end
+      dirs[#dirs + 1] = d
+    end
+    local probes, where = {}, {}
+    for _, d in ipairs(dirs) do
+      for _, sgn in ipairs({ 1, -1 }) do
+        for e = 2, 12 do
+          local p, inside = {}, true
+          for j = 1, n do
+            local v = x0[j] + sgn * d[j] * 2 ^ e * max(1, abs(x0[j]))
+            if v < shapes[j].lo or v > shapes[j].hi then inside = false end
+            p[j] = v
+          end
+          if inside then probes[#probes + 1] = p; where[#where + 1] = p end
+        end
+      end
+    end
+    if #probes > 0 then
+      local Fs = M.eval_many(J, cp, probes)
+      for i = 1, #probes do
+        local v = re_of(Fs:get(i))
+        if v == v and v > F0 then
+          error(format("expand: F reaches %.6g at %s, above its largest maximum found (%.6g at "
+            .. "%s): the integral diverges towards infinity, or a higher maximum lies outside "
+            .. "the search", v, M.point_text(where[i]), F0, M.point_text(x0)), 0)
+        end
+      end
+    end
+  end
   local out = {}
   for _, f in ipairs(found) do
     local kinds, dirs, jac, notes = kkt_kinds(J, cp, shapes, f.xr)

@@ -660,6 +660,12 @@ function M.quad(J, params, opts)
     if a < huge then Fmax = max(Fmax, a) end
   end
   err = err + (8 + Fmax) * EPS * cabs(value)
+  local vr, vi = cparts(value)
+  if not (vr == vr and vi == vi and abs(vr) < huge and abs(vi) < huge and err == err) then
+    error(format("quad: the iterated quadrature gives a non-finite value (status %s): the "
+      .. "integral diverges, or its integrand overflows double precision in the box",
+      status), 0)
+  end
   return value, err, { status = status, along = along, inner = inner_mode,
     outer = outer_mode, inner_calls = calls(), notes = notes }
 end
