@@ -23,7 +23,7 @@ MODULE      = lua/steep/core.so
 ASAN_MODULE = ext/asan/steep/core.so
 SAN_FLAGS   = -fsanitize=address,undefined -fno-sanitize-recover=all -fno-omit-frame-pointer
 KERNEL_SRC  = ext/series.c ext/tape.c ext/problem.c ext/quad.c ext/geom.c ext/roots.c ext/path.c \
-              ext/invmap.c ext/rings.c ext/airy.c
+              ext/invmap.c ext/rings.c ext/airy.c ext/mjet.c ext/mexpand.c ext/mcrit.c
 KERNEL_TESTS = tests/c/test_kernels.c tests/c/test_airy.c
 
 .PHONY: all deps test asan memcheck fuzz bench demo install uninstall env clean help
@@ -103,7 +103,7 @@ FUZZ_CC      = clang
 FUZZ_FLAGS   = -std=c99 -Wall -Wextra -Werror -g -O1 -fsanitize=fuzzer,address,undefined \
                -fno-sanitize-recover=all -fno-omit-frame-pointer
 FUZZ_SRC     = $(sort $(KERNEL_SRC) ext/invmap.c)
-FUZZERS      = tape series paths bindings
+FUZZERS      = tape series paths bindings multi
 SECONDS     ?= 60
 FUZZ_TIMEOUT = 10
 

@@ -80,5 +80,6 @@ void bind_cvec_open(lua_State *L);
 void bind_cmath_open(lua_State *L);
 void bind_landscape_open(lua_State *L);
 void bind_process_open(lua_State *L);
+void bind_multi_open(lua_State *L);
 
 #endif

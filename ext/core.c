@@ -54,6 +54,7 @@ int luaopen_steep_core(lua_State *L) {
   bind_cmath_open(L);
   bind_landscape_open(L);
   bind_process_open(L);
+  bind_multi_open(L);
   lua_pushcfunction(L, core_isatty);
   lua_setfield(L, -2, "isatty");
   lua_pushcfunction(L, core_file_kind);

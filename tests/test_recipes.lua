@@ -258,6 +258,10 @@ function TestRecipesScripts:test_recipes_run()
       "DLMF 10.41.10", "caution: " },
     ["beyond_optimal.lua"] = { "== e^x E1(x)", "== Gamma(x)/x^x", "resummed", "plot written to",
       "caution: " },
+    ["diagonal_coefficients.lua"] = { "1/(1 - x - y - 2xy)", "one-variable route", "\n160 ",
+      "torus quadrature", "caution: " },
+    ["laplace_approximation.lua"] = { "2 coefficients", "rel.err 2", "\n160 ", "3 coefficients",
+      "caution: " },
   }
   local ls = assert(io.popen("ls " .. q(root .. "/recipes")))
   local seen = 0
@@ -288,7 +292,7 @@ function TestRecipesScripts:test_recipes_run()
     end
   end
   ls:close()
-  lu.assertEquals(seen, 8, "recipes found")
+  lu.assertEquals(seen, 10, "recipes found")
   os.execute("rm -rf " .. q(tmpdir))
 end
 
@@ -509,4 +513,43 @@ function TestRecipesBesselLargeOrder:test_debye_coefficients()
   local p = 1 / math.sqrt(1 + 2 ^ 2)
   local c = B.debye(2, 3, "I")
   for k = 1, 3 do H.close(c[k], B.u[k](p), 1e-12, "U_" .. k .. " for I at z = 2", 1) end
+end
+
+---------------------------------------------------------------------------------------
+
+TestRecipesLaplaceApproximation = {}
+
+-- The recipe's two-coefficient logistic example against iterated quadrature (the
+-- reference, its estimate below 1e-10): each correction term improves on the one before
+-- (n = 40, 160), the estimate of the two-correction value bounds its error, and the
+-- leading term is the textbook Laplace approximation e^{n lbar*} (2 pi/n)^{d/2}
+-- det(-lbar'')^{-1/2} prior(theta*) (Tierney & Kadane 1986), computed here from the
+-- Hessian at the maximum by steep's own derivatives.
+function TestRecipesLaplaceApproximation:test_corrections_improve()
+  local la = require "laplace_approximation"
+  local spec = {}
+  for k, v in pairs(la.example.two) do spec[k] = v end
+  spec.n = { 40, 160 }
+  local rows, text = la.table(spec)
+  lu.assertStrContains(text, "rel.err 2")
+  for _, row in ipairs(rows) do
+    local rel = row.relative
+    lu.assertTrue(row.quad_error <= 1e-10 * row.quad:abs(), "quadrature estimate at n = " .. row.n)
+    lu.assertTrue(rel[1] > rel[2] and rel[2] > rel[3], string.format("n = %d: %.3g, %.3g, %.3g",
+      row.n, rel[1], rel[2], rel[3]))
+    lu.assertTrue((row.second - row.quad):abs() <= row.estimate + row.quad_error,
+      string.format("n = %d: the estimate bounds the error", row.n))
+  end
+  -- the leading term by hand at n = 40
+  local a, b = la.a, la.b
+  local lbar = spec.loglik
+  local N = 40
+  local m = rows[1].maximum
+  local p = { a = m[1], b = m[2] }
+  local t = steep.compile({ lbar, steep.diff(steep.diff(lbar, a), a), steep.diff(steep.diff(lbar, a), b),
+    steep.diff(steep.diff(lbar, b), b), spec.prior }, nil)
+  local l0, haa, hab, hbb, pr = t:eval(0, p)
+  local det = haa * hbb - hab * hab
+  local lead = steep.exp(N * l0) * (2 * pi / N) * pr / steep.sqrt(det)
+  H.close(rows[1].leading, lead, 1e-12, "the leading Laplace term at n = 40")
 end

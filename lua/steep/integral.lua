@@ -25,6 +25,8 @@ local function argerror(fname, msg) error(format("bad argument #1 to '%s' (%s)",
 --- steep.integral{var =, exponent =, amplitude =, contour =, large =}
 function M.new(spec)
   if type(spec) ~= "table" then argerror("integral", "table expected, got " .. type(spec)) end
+  -- several variables (a list): lua/steep/multi.lua
+  if type(spec.var) == "table" and not expr.is(spec.var) then return require("steep.multi").new(spec) end
   local known = { var = true, exponent = true, amplitude = true, contour = true, large = true }
   for k in pairs(spec) do
     if not known[k] then

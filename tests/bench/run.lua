@@ -757,3 +757,44 @@ do
   print(format("%-44s %10.1f", "ratio uniform / Lugannani-Rice", t_un / t_lr))
   print(format("%-44s %10.2f", "uniform, ms per threshold", t_un / NT * 1e3))
 end
+
+---------------------------------------------------------------------------------------
+-- Several variables: the cost of an expansion (jets in total degree and Hormander's
+-- sum, ext/mjet.c and ext/mexpand.c) and of the iterated quadrature that checks it, on
+-- the cases tests/test_multi*.lua checks against exact values. Figures only.
+---------------------------------------------------------------------------------------
+
+do
+  local x, y, z = steep.var "x", steep.var "y", steep.var "z"
+  local lam, nn = steep.param "lam", steep.param "n"
+  local log = steep.log
+  local c = steep.circle(0, 1)
+  local cases = {
+    { "cos box, 2 variables, lam = 20", steep.integral { var = { x, y },
+      exponent = lam * (steep.cos(x) + steep.cos(y)),
+      contour = { steep.line(0, math.pi), steep.line(0, math.pi) }, large = lam },
+      { lam = 20 }, { 2, 6 } },
+    { "torus (1+x+y+z)^4n, 3 variables, n = 10", steep.integral { var = { x, y, z },
+      exponent = nn * (4 * log(1 + x + y + z) - log(x) - log(y) - log(z)),
+      amplitude = 1 / (x * y * z), contour = { c, c, c }, large = nn }, { n = 10 }, { 2, 4 } },
+    { "stationary phase on R^2, lam = 20", steep.integral { var = { x, y },
+      exponent = I * lam * ((x ^ 2 - y ^ 2) / 2 + 0.3 * x ^ 2 * y),
+      contour = { steep.line(steep.inf(math.pi), steep.inf(0)),
+        steep.line(steep.inf(math.pi), steep.inf(0)) }, large = lam }, { lam = 20 }, { 4 } },
+  }
+  print()
+  print("several variables: J:expand (which points contribute, jets, terms) and J:quad")
+  print(format("%-44s %s", "case", "J:expand CPU s by order; J:quad CPU s"))
+  for _, case in ipairs(cases) do
+    local J, p = case[2], case[3]
+    local texp = {}
+    for _, K in ipairs(case[4]) do
+      local opts = { order = K }
+      for k, v in pairs(p) do opts[k] = v end
+      texp[#texp + 1] = format("%d: %.3f", K, (best_of(2, function() return J:expand(opts) end)))
+    end
+    local tq, v, e = best_of(1, function() return J:quad(p) end)
+    print(format("%-44s %s   quad %.3f s (estimate %.1e relative)", case[1],
+      "order " .. table.concat(texp, ", order "), tq, e / v:abs()))
+  end
+end

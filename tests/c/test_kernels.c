@@ -23,6 +23,9 @@
 #include "rings.h"
 #include "tape.h"
 #include "kernel_check.h"
+#include "mjet.h"
+#include "mexpand.h"
+#include "mcrit.h"
 
 #define PI 3.14159265358979323846
 
@@ -855,6 +858,197 @@ static void test_rings(void) {
         "geom_nearest: a point below the first segment");
 }
 
+/* ---- several variables (mjet.c, mexpand.c, mcrit.c) ------------------------------ */
+
+static double fact(int k) { double f = 1; for (int j = 2; j <= k; j++) f *= j; return f; }
+
+/* the rank of the monomial with exponents e (by search: the test does not trust the
+ * layout's own table) */
+static size_t find_rank(const mlayout *ly, const int *e) {
+  for (size_t i = 0; i < ly->N; i++) {
+    int same = 1;
+    for (int k = 0; k < ly->n; k++) if (ly->exps[i * (size_t)ly->n + (size_t)k] != e[k]) same = 0;
+    if (same) return i;
+  }
+  return (size_t)-1;
+}
+
+static void test_multi(void) {
+  /* the layout: binomial(n + D, n) monomials in graded order, binomial(d + n - 1, n - 1)
+   * of degree d, and the dense table inverting the exponents */
+  mlayout ly;
+  void *mem = malloc(mlayout_bytes(3, 5));
+  mlayout_init(&ly, 3, 5, mem);
+  int ok = ly.N == 56;
+  for (int d = 0; d <= 5; d++)
+    ok = ok && ly.upto[d + 1] - ly.upto[d] == (size_t)((d + 2) * (d + 1) / 2);
+  for (size_t i = 0; i < ly.N; i++) {
+    int e[3] = {ly.exps[3 * i], ly.exps[3 * i + 1], ly.exps[3 * i + 2]};
+    ok = ok && find_rank(&ly, e) == i && (size_t)ly.rank[ly.code[i]] == i &&
+         e[0] + e[1] + e[2] == ly.degree[i] && (i == 0 || ly.degree[i] >= ly.degree[i - 1]);
+  }
+  check(ok, "mlayout: 56 monomials of degree <= 5 in 3 variables, graded, ranks invert codes");
+  free(mem);
+  check(mlayout_bytes(5, 2) == 0 && mlayout_bytes(4, 100) == 0,
+        "mlayout: 5 variables, or a dense table too large, are refused");
+
+  /* mpoly_mul against the schoolbook product by exponents, n = 2, D = 7 */
+  mem = malloc(mlayout_bytes(2, 7));
+  mlayout_init(&ly, 2, 7, mem);
+  cplx a[36], b[36], c[36], want[36];
+  for (size_t i = 0; i < ly.N; i++) { a[i] = 0.5 * (rnd() + I * rnd()); b[i] = rnd() + I * rnd(); want[i] = 0; }
+  for (size_t i = 0; i < ly.N; i++)
+    for (size_t j = 0; j < ly.N; j++) {
+      int e[2] = {ly.exps[2 * i] + ly.exps[2 * j], ly.exps[2 * i + 1] + ly.exps[2 * j + 1]};
+      if (e[0] + e[1] <= 7) want[find_rank(&ly, e)] += a[i] * b[j];
+    }
+  mpoly_mul(&ly, c, a, b, 7);
+  check(maxdiff(c, want, ly.N) <= 1e-13, "mpoly_mul: the truncated product");
+  /* exp(a) exp(-a) = 1 by composition with exp's series at a0 (Griewank & Walther 2008,
+   * Table 13.2: exp' = exp) */
+  cplx f1[8], f2[8], work[72], ea[36], ema[36], na[36];
+  for (int k = 0; k <= 7; k++) {
+    f1[k] = cexp(a[0]) / fact(k);
+    f2[k] = cexp(-a[0]) / fact(k);   /* exp at -a0, composed with -a + a0 */
+  }
+  for (size_t i = 0; i < ly.N; i++) na[i] = -a[i];
+  mpoly_compose(&ly, ea, a, f1, 7, work);
+  mpoly_compose(&ly, ema, na, f2, 7, work);
+  mpoly_mul(&ly, c, ea, ema, 7);
+  c[0] -= 1;
+  /* (the tolerance is relative to the size of the products that cancel) */
+  double worst = 0, size = 0;
+  for (size_t i = 0; i < ly.N; i++) { worst = fmax(worst, cabs(c[i])); size = fmax(size, cabs(ea[i]) * cabs(ema[i])); }
+  check(worst <= 1e-14 * fmax(1, size), "mpoly_compose: exp(a) exp(-a) = 1");
+  free(mem);
+
+  /* a tape in two variables (parameter slots 0 and 1): exp(x + 2y); its jet at 0 has
+   * coefficients 2^j / (i! j!) (exact series) */
+  htape h;
+  const tape_ins ins[6] = {
+    {OP_PARAM, -1, -1, 0, 0}, {OP_PARAM, -1, -1, 1, 0}, {OP_CONST, -1, -1, 0, 2},
+    {OP_MUL, 1, 2, 0, 0}, {OP_ADD, 0, 3, 0, 0}, {OP_EXP, 4, -1, 0, 0}};
+  htape_init(&h, ins, 6, 2);
+  const char *why = "";
+  int slots[2] = {0, 1};
+  cplx params[2] = {0, 0}, x0[2] = {0, 0};
+  mem = malloc(mlayout_bytes(2, 6));
+  mlayout_init(&ly, 2, 6, mem);
+  cplx *w = malloc(6 * ly.N * sizeof *w), *scr = malloc(mjet_scratch_len(&ly, &h.t, 6) * sizeof *scr);
+  long bad = -1;
+  int st = tape_check(&h.t, &why) == -1 ? mjet_tape(&ly, &h.t, params, slots, x0, NULL, 6, 5, w, scr, &bad) : -1;
+  worst = 0;
+  for (size_t i = 0; st == STEEP_OK && i < ly.N; i++) {
+    int e0 = ly.exps[2 * i], e1 = ly.exps[2 * i + 1];
+    worst = fmax(worst, cabs(w[5 * ly.N + i] - pow(2, e1) / (fact(e0) * fact(e1))));
+  }
+  check(st == STEEP_OK && worst <= 1e-15, "mjet_tape: exp(x + 2y) against its exact series");
+  /* log of the variable at 0: singular, at the log's slot */
+  const tape_ins lg[2] = {{OP_PARAM, -1, -1, 0, 0}, {OP_LOG, 0, -1, 0, 0}};
+  htape_init(&h, lg, 2, 2);
+  st = tape_check(&h.t, &why) == -1 ? mjet_tape(&ly, &h.t, params, slots, x0, NULL, 3, 1, w, scr, &bad) : -1;
+  check(st == STEEP_SINGULAR && bad == 1, "mjet_tape: log 0 is singular at slot 1");
+  free(w);
+  free(scr);
+  free(mem);
+
+  /* Isserlis' theorem (Isserlis, Biometrika 12 (1918)) for Sigma = [[p, q], [q, r]]:
+   * E x^2 = p, E x y = q, E x^4 = 3 p^2, E x^3 y = 3 p q, E x^2 y^2 = p r + 2 q^2 */
+  mem = malloc(mlayout_bytes(2, 6));
+  mlayout_init(&ly, 2, 6, mem);
+  cplx pp = 0.7 + 0.2 * I, qq = -0.3 + 0.1 * I, rr = 1.1;
+  cplx Sig[4] = {pp, qq, qq, rr}, mom[28];
+  int kinds[2] = {MEXP_FULL, MEXP_FULL};
+  mexpand_gauss_moments(&ly, kinds, Sig, mom);
+  int e20[2] = {2, 0}, e11[2] = {1, 1}, e40[2] = {4, 0}, e31[2] = {3, 1}, e22[2] = {2, 2}, e30[2] = {3, 0};
+  check(cabs(mom[find_rank(&ly, e20)] - pp) < 1e-15 && cabs(mom[find_rank(&ly, e11)] - qq) < 1e-15 &&
+        cabs(mom[find_rank(&ly, e40)] - 3 * pp * pp) < 1e-15 &&
+        cabs(mom[find_rank(&ly, e31)] - 3 * pp * qq) < 1e-15 &&
+        cabs(mom[find_rank(&ly, e22)] - (pp * rr + 2 * qq * qq)) < 1e-15 &&
+        mom[find_rank(&ly, e30)] == 0, "mexpand_gauss_moments: Isserlis' theorem in 2 variables");
+  free(mem);
+
+  /* the terms for F = -(x^2 + y^2)/2 and g = x^2 (both exact Gaussian integrals): T_0 = 0,
+   * T_2 = Sigma_xx = 1, everything else 0; with x an edge (F = -x - y^2/2, g = 1): the
+   * Watson and Gaussian factors are exact, T_0 = 1 and the rest 0 */
+  mem = malloc(mlayout_bytes(2, 12));
+  mlayout_init(&ly, 2, 12, mem);
+  cplx *Fj = calloc(ly.N, sizeof *Fj), *gj = calloc(ly.N, sizeof *gj), terms[5];
+  cplx *ms = malloc(mexpand_scratch_len(&ly) * sizeof *ms);
+  Fj[find_rank(&ly, e20)] = -0.5;
+  int e02[2] = {0, 2}, e10[2] = {1, 0};
+  Fj[find_rank(&ly, e02)] = -0.5;
+  gj[find_rank(&ly, e20)] = 1;
+  cplx id[4] = {1, 0, 0, 1};
+  st = mexpand_terms(&ly, Fj, gj, kinds, id, 4, terms, ms);
+  check(st == STEEP_OK && cabs(terms[0]) == 0 && cabs(terms[2] - 1) < 1e-15 && cabs(terms[1]) == 0 &&
+        cabs(terms[3]) == 0 && cabs(terms[4]) == 0, "mexpand_terms: a Gaussian moment exactly");
+  Fj[find_rank(&ly, e20)] = 0;
+  Fj[find_rank(&ly, e10)] = -1;
+  gj[find_rank(&ly, e20)] = 0;
+  gj[0] = 1;
+  int kinds2[2] = {MEXP_EDGE, MEXP_FULL};
+  st = mexpand_terms(&ly, Fj, gj, kinds2, id, 4, terms, ms);
+  check(st == STEEP_OK && cabs(terms[0] - 1) < 1e-15 && cabs(terms[1]) + cabs(terms[2]) +
+        cabs(terms[3]) + cabs(terms[4]) == 0, "mexpand_terms: Watson times Gaussian exactly");
+  Fj[find_rank(&ly, e10)] = 0;
+  check(mexpand_terms(&ly, Fj, gj, kinds2, id, 4, terms, ms) == STEEP_SINGULAR,
+        "mexpand_terms: an edge without slope is refused");
+  free(Fj);
+  free(gj);
+  free(ms);
+  free(mem);
+
+  /* mcrit_solve on a 3 x 3 system with a known solution */
+  cplx A[9] = {2, 1, 0, 1, 3, 1, 0, 1, 4}, y[3] = {1, I, -1}, rhs[3];
+  for (int i = 0; i < 3; i++) rhs[i] = A[3 * i] * y[0] + A[3 * i + 1] * y[1] + A[3 * i + 2] * y[2];
+  double rc = 0;
+  check(mcrit_solve(3, A, rhs, &rc) == STEEP_OK && maxdiff(rhs, y, 3) < 1e-15 && rc > 0.1,
+        "mcrit_solve: a 3 x 3 system");
+  cplx S[4] = {1, 2, 2, 4}, r2[2] = {1, 1};
+  check(mcrit_solve(2, S, r2, &rc) == STEEP_SINGULAR, "mcrit_solve: a singular matrix");
+
+  /* F = x^3/3 - x + y^3/3 - 4y: grad (x^2 - 1, y^2 - 4); Newton from (2, 3) reaches (1, 2);
+   * deflated by (1, 2), from the same seed it reaches another root; the homotopy's four
+   * paths end at the four roots (+-1, +-2), each once */
+  const tape_ins cub[11] = {
+    {OP_PARAM, -1, -1, 0, 0}, {OP_POWI, 0, -1, 3, 0}, {OP_CONST, -1, -1, 0, 1.0 / 3},
+    {OP_MUL, 1, 2, 0, 0}, {OP_SUB, 3, 0, 0, 0}, {OP_PARAM, -1, -1, 1, 0},
+    {OP_POWI, 5, -1, 3, 0}, {OP_MUL, 6, 2, 0, 0}, {OP_CONST, -1, -1, 0, 4},
+    {OP_MUL, 8, 5, 0, 0}, {OP_SUB, 7, 9, 0, 0}};
+  tape_ins all[12];
+  memcpy(all, cub, sizeof cub);
+  all[11] = (tape_ins){OP_ADD, 4, 10, 0, 0};
+  htape_init(&h, all, 12, 2);
+  check(tape_check(&h.t, &why) == -1, "the cubic tape checks");
+  mproblem mp;
+  void *pm = malloc(mproblem_bytes(&h.t, 2));
+  mproblem_init(&mp, &h.t, params, slots, 2, pm);
+  cplx seed[2] = {2, 3}, root[2], root2[2];
+  int it = 0;
+  st = mcrit_newton(&mp, seed, NULL, 0, INFINITY, 1e-14, 50, root, &it);
+  check(st == MCRIT_OK && cabs(root[0] - 1) < 1e-14 && cabs(root[1] - 2) < 1e-14,
+        "mcrit_newton: (1, 2) from (2, 3)");
+  st = mcrit_newton(&mp, seed, root, 1, 2.0, 1e-14, 200, root2, &it);
+  cplx F0, g0[2];
+  check(st == MCRIT_OK && cabs(root2[0] - root[0]) + cabs(root2[1] - root[1]) > 0.5 &&
+        mproblem_derivs(&mp, root2, &F0, g0, NULL) == STEEP_OK && cabs(g0[0]) + cabs(g0[1]) < 1e-12,
+        "mcrit_newton: deflation finds another critical point");
+  int degs[2] = {2, 2}, hits[4] = {0, 0, 0, 0}, good = 1;
+  for (int pth = 0; pth < 4; pth++) {
+    cplx start[2] = {pth % 2 ? -1 : 1, pth / 2 ? -1 : 1}, end[2];
+    int steps = 0;
+    st = mcrit_track(&mp, degs, 0.8109 + 0.5852 * I, start, 1e8, 4000, end, &rc, &steps);
+    if (st != MCRIT_OK) { good = 0; continue; }
+    int k = (creal(end[0]) < 0) + 2 * (creal(end[1]) < 0);
+    if (fabs(fabs(creal(end[0])) - 1) > 1e-12 || fabs(fabs(creal(end[1])) - 2) > 1e-12) good = 0;
+    hits[k]++;
+  }
+  check(good && hits[0] == 1 && hits[1] == 1 && hits[2] == 1 && hits[3] == 1,
+        "mcrit_track: four paths, four roots, each once");
+  free(pm);
+}
+
 int main(void) {
   test_series();
   test_quad();
@@ -867,6 +1061,7 @@ int main(void) {
   test_rings();
   test_dual();
   test_airy();
+  test_multi();
   printf("kernels: %d passed, %d failed\n", passed, failed);
   return failed ? 1 : 0;
 }

@@ -79,6 +79,14 @@ static int l_bessel_Jn(lua_State *L)
   return push_result(L, "bessel_Jn", st, &r);
 }
 
+/* bessel_I0_scaled(x) -> e^{-|x|} I0(x) (DLMF 10.25.2), error */
+static int l_bessel_I0_scaled(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_bessel_I0_scaled_e(luaL_checknumber(L, 1), &r);
+  return push_result(L, "bessel_I0_scaled", st, &r);
+}
+
 static int l_expint_E1(lua_State *L)
 {
   gsl_sf_result r;
@@ -313,6 +321,7 @@ static const luaL_Reg funcs[] = {
   { "gamma_inc_Q", l_gamma_inc_Q },
   { "psi", l_psi },
   { "psi_1", l_psi_1 },
+  { "bessel_I0_scaled", l_bessel_I0_scaled },
   { "erfc", l_erfc },
   { "expint_E1", l_expint_E1 },
   { "expint_E1_scaled", l_expint_E1_scaled },
