@@ -385,7 +385,8 @@ function M.expand(J, params, opts)
   local result = { value = value, error = err, contributions = contributions,
     order = order, params = params, landscape = L, notes = plan.notes,
     stokes = plan.stokes and true or false, integral = J, status = status,
-    stokes_line = stokes and { settled = stokes.settled, unsettled = unsettled } or nil,
+    stokes_line = stokes and { settled = stokes.settled, unsettled = unsettled,
+      by_rule = stokes.by_rule } or nil,
     resum = resummed }
   setmetatable(result, { __index = { report = M.report } })
   if opts.verify then M.verify(J, params, result, opts) end
@@ -489,7 +490,9 @@ function M.report(r, opts)
   end
   say(r.status .. (r.check and "" or
     " (not compared with quadrature: verify = true or J:check does that)"), "status: ", 4)
-  if r.stokes_line and r.stokes_line.settled then
+  if r.stokes_line and r.stokes_line.by_rule then
+    say("settled (the saddles whose paths run into others have weight 0)", "on a Stokes line: ", 4)
+  elseif r.stokes_line and r.stokes_line.settled then
     say("the weights are the same on both sides of it (settled)", "on a Stokes line: ", 4)
   elseif r.stokes_line then
     say(format("mean of both sides, unsettled part %.3g", r.stokes_line.unsettled),

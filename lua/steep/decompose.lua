@@ -28,7 +28,7 @@ local cabs, carg, expi = landscape.cabs, landscape.carg, landscape.expi
 local format, pi, abs, floor, huge = string.format, math.pi, math.abs, math.floor, math.huge
 
 local M = {}
-local saddle_under
+local saddle_under, stokes_rule
 
 -- A path's full polyline (a cvec): the part used for quadrature followed by the coarse
 -- tail.
@@ -326,6 +326,34 @@ function M.negligible_end(J, params, L, point, ref, d1)
   local pts = core.cvec { point, far }
   return { points = { point, far }, traced = pts, F = core.cvec { F, F }, reason = "low",
     tail = core.cvec {}, ends = "valley " .. k, evals = 0, straight = true }
+end
+
+-- The Stokes rule: weights (all 0) for every saddle in `sources` when each has weight 0
+-- (its own ascent paths, which run into no saddle, cross the sampled contour `cvec` to a
+-- net 0 between every pair of descent rays; a weight fixed already must be 0), else nil.
+stokes_rule = function(L, cvec, sources, fixed)
+  local out = {}
+  for _, j in ipairs(sources) do
+    local m = L.saddles[j].order
+    if fixed[j] then
+      for _, c in ipairs(fixed[j]) do if c ~= 0 then return nil end end
+      out[j] = fixed[j]
+    else
+      local asc = L.paths[j].ascent
+      local n = {}
+      for k, a in ipairs(asc) do
+        if a.ends:match("^saddle") then return nil end
+        n[k] = core.crossings(cvec, core.cvec_join(a.points, a.tail))
+      end
+      local w = {}
+      for k = 1, m do
+        w[k] = n[k % m + 1] - n[k]
+        if w[k] ~= 0 then return nil end
+      end
+      out[j] = w
+    end
+  end
+  return out
 end
 
 -- The saddle (index) whose rays in the plan start at z, and the direction the
@@ -649,6 +677,7 @@ function M.decompose_uncached(J, params, L, contour, opts)
   end
   local fixed, free = {}, {}   -- saddle index -> weights; list of saddle indices
   local connections = {}       -- (the copies of a periodic family's connection: noted once)
+  local sources = {}           -- saddles whose descent path runs into another
   for j, s in ipairs(L.saddles) do
     local paths = L.paths[j] or landscape.saddle_paths(J, params, L, j)
     L.paths[j] = paths
@@ -656,6 +685,7 @@ function M.decompose_uncached(J, params, L, contour, opts)
       if p.ends:match("^saddle") then
         local note = periodic.connection_note(L, j, p.ends, connections)
         if note then plan.notes[#plan.notes + 1] = note end
+        sources[#sources + 1] = j
         plan.stokes = true
       end
     end
@@ -697,8 +727,26 @@ function M.decompose_uncached(J, params, L, contour, opts)
     free = {}
     plan.stokes = nil
   end
-  -- on a Stokes line: decide the weights on both sides of it
-  if plan.stokes and not (opts and opts.rotated) then
+  -- on a Stokes line, the rule first: a jump of the lower saddle's weight is the
+  -- intersection number times the higher saddle's weight, so where every saddle whose
+  -- descent path runs into another has weight 0 (its ascent paths, complete since it is
+  -- the higher, cross the contour to a net 0) nothing jumps
+  if plan.stokes and not (opts and (opts.rotated or opts.weights)) then
+    local zero = stokes_rule(L, cvec, sources, fixed)
+    if zero then
+      local keep = {}
+      for _, j in ipairs(free) do if zero[j] then fixed[j] = zero[j] else keep[#keep + 1] = j end end
+      free = keep
+      plan.stokes = { settled = true, by_rule = true }
+      plan.notes[#plan.notes + 1] = "on the Stokes line the saddles whose descent paths run into "
+        .. "others have weight 0 (their ascent paths cross the contour to a net 0): nothing "
+        .. "jumps, the decomposition is settled"
+    end
+  end
+  -- otherwise decide the weights on both sides of the line
+  if plan.stokes and plan.stokes ~= true and plan.stokes.by_rule then
+    -- (settled by the rule)
+  elseif plan.stokes and not (opts and opts.rotated) then
     local sp = M.across_stokes_line(J, params, L, contour, plan.notes)
     if sp then return sp end
     plan.notes[#plan.notes + 1] = "the weights could not be decided on either side of the "
@@ -707,7 +755,8 @@ function M.decompose_uncached(J, params, L, contour, opts)
   -- (with infinitely many saddles, those of the region are not all of them: a solution
   -- from their ends alone need not be the right one, while crossing numbers are decided
   -- saddle by saddle)
-  local by_ends = not plan.stokes and not (opts and opts.by_crossings)
+  local by_ends = (not plan.stokes or (plan.stokes ~= true and plan.stokes.by_rule))
+    and not (opts and opts.by_crossings)
     and not L.region.bounded and solve_by_ends(L, boundary, fixed, free)
   if #free > 0 then plan.weights_by = by_ends and "ends" or "crossings" end
   for _, j in ipairs(free) do
