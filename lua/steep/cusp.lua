@@ -426,11 +426,15 @@ end
 -- The contribution.
 ---------------------------------------------------------------------------------------
 
---- contribution(J, params, L, group, order) -> contribution table, or nil and why.
--- group = { {saddle = s1, rays = pieces}, {saddle = s2, rays = ...}, {saddle = s3, ...} }
-function M.contribution(J, params, L, group, order)
-  local map, why = M.quartic_map(group[1].saddle, group[2].saddle, group[3].saddle)
-  if not map then return nil, why end
+--- contribution(J, params, L, group, order [, map]) -> contribution table, or nil and why.
+-- group = { {saddle = s1, rays = pieces}, {saddle = s2, rays = ...}, {saddle = s3, ...} };
+-- map: their quartic_map, when already made.
+function M.contribution(J, params, L, group, order, map)
+  local why
+  if not map then
+    map, why = M.quartic_map(group[1].saddle, group[2].saddle, group[3].saddle)
+    if not map then return nil, why end
+  end
   local boundary
   boundary, why = model_boundary(map, group)
   if not boundary then return nil, why end
@@ -457,31 +461,40 @@ function M.contribution(J, params, L, group, order)
   local sc = cabs(scale)
   local gsize = 0
   for k = 0, n - 1 do gsize = max(gsize, cabs(c[k]) * used_rho ^ k) end
-  local terms, value = {}, cnew(0, 0)
-  local cur, len = c, n
-  local coefs = {}
-  local sizes, model_err = 0, 0
-  for k = 1, nterms + 3 do
-    if len < 5 then break end
-    local p0, p1, p2, dh, nlen = reduce(cur, len, map.zeta, map.eta)
-    coefs[k] = { p0, p1, p2 }
-    terms[k] = (p0 * I[0] + p1 * I[1] + p2 * I[2]) * scale
-    if k <= nterms then
-      sizes = sizes + (cabs(p0 * I[0]) + cabs(p1 * I[1]) + cabs(p2 * I[2])) * sc
-      model_err = model_err + (cabs(p0) * E[0] + cabs(p1) * E[1] + cabs(p2) * E[2]) * sc
+  -- the terms from coefficients cf[0..len-1]: each reduction takes four of them
+  local function series(cf, len, count)
+    local out, coefs = {}, {}
+    for k = 1, count do
+      if len < 5 then break end
+      local p0, p1, p2, dh, nlen = reduce(cf, len, map.zeta, map.eta)
+      coefs[k] = { p0, p1, p2 }
+      out[k] = (p0 * I[0] + p1 * I[1] + p2 * I[2]) * scale
+      cf, len = dh, nlen
     end
-    cur, len = dh, nlen
+    return out, coefs
   end
+  local terms, coefs = series(c, n, nterms + 3)
   local used = min(nterms, #terms)
-  for k = 1, used do value = value + terms[k] end
+  local value, sizes, model_err = cnew(0, 0), 0, 0
+  for k = 1, used do
+    local p0, p1, p2 = coefs[k][1], coefs[k][2], coefs[k][3]
+    value = value + terms[k]
+    sizes = sizes + (cabs(p0 * I[0]) + cabs(p1 * I[1]) + cabs(p2 * I[2])) * sc
+    model_err = model_err + (cabs(p0) * E[0] + cabs(p1) * E[1] + cabs(p2) * E[2]) * sc
+  end
   -- the error: the series' remainder read from the next terms (as for plain
-  -- contributions), the model integrals' own errors, the coefficients' (the two circles'
-  -- leading terms apart), and rounding: of e^A and the sums (as expand.truncate's floor),
-  -- of the circle's coefficients (of the size of G on it)
+  -- contributions), the model integrals' own errors, the coefficients' (the value from the
+  -- second circle, and from eight coefficients fewer, apart: the reduction divides a
+  -- truncated series, whose tail reaches the first terms where G's radius of convergence
+  -- is not much larger than the roots'), and rounding: of e^A and the sums (as
+  -- expand.truncate's floor), of the circle's coefficients (of the size of G on it)
   local err = require("steep.expand").remainder(terms, used) + model_err
-  local q0, q1, q2 = reduce(c2, n, map.zeta, map.eta)
-  err = err + cabs((q0 - coefs[1][1]) * I[0] + (q1 - coefs[1][2]) * I[1]
-    + (q2 - coefs[1][3]) * I[2]) * sc
+  for _, other in ipairs({ { c2, n }, { c, n - 8 } }) do
+    local alt = series(other[1], other[2], used)
+    local v = cnew(0, 0)
+    for k = 1, used do v = v + (alt[k] or cnew(0, 0)) end
+    err = err + cabs(v - value)
+  end
   err = err + (128 + cabs(map.A)) * EPS * sizes
     + 64 * EPS * gsize * (cabs(I[0]) + cabs(I[1]) + cabs(I[2])) * sc
   -- the saddles' F carry rounding: A's moves the value by dA relative; zeta's and eta's
@@ -519,10 +532,12 @@ end
 -- Which saddles go together.
 ---------------------------------------------------------------------------------------
 
---- groups(L, used) -> list of {j1, j2, j3}: three simple saddles, every two within the
--- pair form's scale (|F_j - F_k| <= SPREAD), at least one of them used by the contour
--- (used[j] true); each among the four saddles nearest a used one; disjoint, the tightest
--- (smallest largest |F_j - F_k|) first. Whether the quartic map fits is decided later.
+--- groups(L, used) -> list of {trio = {j1, j2, j3}, map =, spread =}: three simple
+-- saddles, every two within the pair form's scale (|F_j - F_k| <= SPREAD), at least one of
+-- them used by the contour (used[j] true), each among the four saddles nearest a used
+-- one, that the quartic map fits (map: M.quartic_map of L.saddles[j1], [j2], [j3]); the
+-- tightest (smallest largest |F_j - F_k|) first. (They may overlap: the caller takes
+-- disjoint ones.)
 function M.groups(L, used)
   local S = L.saddles
   local cands, seen = {}, {}
@@ -542,7 +557,9 @@ function M.groups(L, used)
             seen[key] = true
             local spread = max(cabs(S[trio[1]].F - S[trio[2]].F), cabs(S[trio[1]].F - S[trio[3]].F),
               cabs(S[trio[2]].F - S[trio[3]].F))
-            if spread <= M.SPREAD then cands[#cands + 1] = { trio = trio, spread = spread } end
+            local map = spread <= M.SPREAD
+              and M.quartic_map(S[trio[1]], S[trio[2]], S[trio[3]])
+            if map then cands[#cands + 1] = { trio = trio, spread = spread, map = map } end
           end
         end
       end
