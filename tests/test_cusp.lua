@@ -347,3 +347,30 @@ function TestCuspGeneral:test_real_laplace_type_on_a_stokes_line()
     end
   end
 end
+
+-- Where the cusp form cannot be built it says so and the other forms take the saddles: a
+-- pole of the amplitude among three saddles close together (exp(-t^4/5 - 0.6 t^2 +
+-- 1.25 i x t) / (t - (-0.45 + 0.8i)) at x = +-3: no circle about the three saddles' images
+-- gives the amplitude's Taylor coefficients there). The result's notes name the reason;
+-- the value (the pole form and plain saddles) lies within its estimate of quadrature along
+-- the real line as given.
+function TestCuspGeneral:test_falls_back_and_says_so()
+  local tt, xx = steep.var "t", steep.param "x"
+  local J = steep.integral { var = tt, exponent = -tt ^ 4 / 5 - 0.6 * tt ^ 2 + I * 1.25 * xx * tt,
+    amplitude = 1 / (tt - steep.complex(-0.45, 0.8)),
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = xx }
+  for _, xv in ipairs({ 3, -3 }) do
+    local msg = "x = " .. xv
+    local r = J:expand { x = xv, order = 4 }
+    local parts = cusp_parts(r)
+    lu.assertEquals(#parts, 0, msg)
+    local said = false
+    for _, n in ipairs(r.notes) do
+      if n:find("the cusp form was not used", 1, true) then said = true end
+    end
+    lu.assertTrue(said, msg .. ": a note says why: " .. table.concat(r.notes, " | "))
+    local q, qe, info = J:quad { x = xv, along = "given" }
+    lu.assertEquals(info.status, "ok", msg .. ": quadrature")
+    within(r, q, qe, msg)
+  end
+end

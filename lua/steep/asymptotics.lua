@@ -212,31 +212,11 @@ local function contributions_of(J, params, L, plan, order, resum, opts)
       contributions[#contributions + 1] = endpoint_contribution(J, params, piece, order, L, opts)
     end
   end
-  -- three simple saddles close together: the cusp form for the three (steep.cusp); where
-  -- it cannot be built, a note says why (the forms below then take them)
-  local handled, used, failed = {}, {}, {}
-  for _, j in ipairs(order_seen) do used[j] = true end
-  for _, g in ipairs(cusp.groups(L, used)) do
-    local a, b, d = g.trio[1], g.trio[2], g.trio[3]
-    if not (handled[a] or handled[b] or handled[d]) then
-      local group = {}
-      for i, k in ipairs(g.trio) do group[i] = { saddle = L.saddles[k], rays = by_saddle[k] or {} } end
-      local ok, c, why = pcall(cusp.contribution, J, params, L, group, order, g.map)
-      if ok and c then
-        c.pair = resum and group or nil   -- (resummation may expand them apart)
-        contributions[#contributions + 1] = c
-        handled[a], handled[b], handled[d] = true, true, true
-      else
-        failed[#failed + 1] = { trio = g.trio, why = ok and why or c }
-      end
-    end
-  end
-  for _, f in ipairs(failed) do
-    local a, b, d = f.trio[1], f.trio[2], f.trio[3]
-    if not (handled[a] or handled[b] or handled[d]) and plan.notes then
-      plan.notes[#plan.notes + 1] = format("saddles %d, %d and %d are close together, but "
-        .. "the cusp form was not used for them (%s)", a, b, d, tostring(f.why))
-    end
+  -- three simple saddles close together: the cusp form for the three (steep.cusp)
+  local handled = {}
+  for _, c in ipairs(cusp.contributions(J, params, L, by_saddle, order_seen, order, resum,
+      plan.notes, handled)) do
+    contributions[#contributions + 1] = c
   end
   -- two simple saddles close together: the Airy-type uniform form for the pair
   for _, j in ipairs(order_seen) do

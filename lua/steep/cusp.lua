@@ -327,7 +327,8 @@ M.model_boundary = model_boundary
 ---------------------------------------------------------------------------------------
 
 -- The model integrals as steep integrals: amplitude u^m (m = 0, 1, 2), the contour from
--- valley a to valley b through 0 (made once, when first asked for; the contour of a pair
+-- valley a to valley b through 0 (made once, when first asked for, and not changed after:
+-- their landscapes are made afresh for each use and kept by no one; the contour of a pair
 -- is shared by the three, so their quadrature shares one decomposition).
 local models = { contours = {} }
 local function model(m, a, b)
@@ -374,7 +375,7 @@ local function model_integrals(map, boundary)
   local params = { zeta = map.zeta, eta = map.eta }
   local vm = max(cabs(map.u[1]), cabs(map.u[2]), cabs(map.u[3]))
   local region = { center = cnew(0, 0), radius = max(4, 1.5 * vm + 2) }
-  local L = model(0, pairs_[1][1], pairs_[1][2]):_landscape(params, region, false)
+  local L = model(0, pairs_[1][1], pairs_[1][2]):_landscape_uncached(params, region, false)
   for _, ab in ipairs(pairs_) do
     for m = 0, 2 do
       local v, e, info = integral.quad_with(model(m, ab[1], ab[2]), params, L, "deformed")
@@ -570,6 +571,40 @@ function M.groups(L, used)
     return table.concat(x.trio, ",") < table.concat(y.trio, ",")
   end)
   return cands
+end
+
+--- contributions(J, params, L, by_saddle, seen, order, keep, notes, handled) -> list: the
+-- cusp contributions of the contour's saddles (by_saddle[j]: saddle j's ray pieces; seen:
+-- the saddles with pieces), each group of three taken once, disjoint, the tightest first;
+-- their indices set in `handled`. Where a group's form cannot be built (a pole of the
+-- amplitude among them, say) a note says why, and the caller's other forms take them.
+-- (keep: the contribution keeps its group for resummation, which may expand them apart.)
+function M.contributions(J, params, L, by_saddle, seen, order, keep, notes, handled)
+  local used, out, failed = {}, {}, {}
+  for _, j in ipairs(seen) do used[j] = true end
+  for _, g in ipairs(M.groups(L, used)) do
+    local a, b, d = g.trio[1], g.trio[2], g.trio[3]
+    if not (handled[a] or handled[b] or handled[d]) then
+      local group = {}
+      for i, k in ipairs(g.trio) do group[i] = { saddle = L.saddles[k], rays = by_saddle[k] or {} } end
+      local ok, c, why = pcall(M.contribution, J, params, L, group, order, g.map)
+      if ok and c then
+        c.pair = keep and group or nil
+        out[#out + 1] = c
+        handled[a], handled[b], handled[d] = true, true, true
+      else
+        failed[#failed + 1] = { trio = g.trio, why = ok and why or c }
+      end
+    end
+  end
+  for _, f in ipairs(failed) do
+    local a, b, d = f.trio[1], f.trio[2], f.trio[3]
+    if notes and not (handled[a] or handled[b] or handled[d]) then
+      notes[#notes + 1] = format("saddles %d, %d and %d are close together, but the cusp "
+        .. "form was not used for them (%s)", a, b, d, tostring(f.why))
+    end
+  end
+  return out
 end
 
 return M
