@@ -458,6 +458,25 @@ static int land_invmap_cubic(lua_State *L) {
   return invmap_results(L, st, G, (size_t)N, rho, ncoef);
 }
 
+/* core.invmap_quartic(tape, params, t1, A, zeta, eta, ua, tprime, rho, N [, ncoef]) -> as
+ * core.invmap_circle */
+static int land_invmap_quartic(lua_State *L) {
+  lua_settop(L, 11);   /* (as above) */
+  problem *p = checkproblem(L);
+  cplx t1 = bind_checkcomplex(L, 3), A = bind_checkcomplex(L, 4);
+  cplx zeta = bind_checkcomplex(L, 5), eta = bind_checkcomplex(L, 6);
+  cplx ua = bind_checkcomplex(L, 7), tprime = bind_checkcomplex(L, 8);
+  double rho = luaL_checknumber(L, 9);
+  lua_Integer N = luaL_checkinteger(L, 10);
+  luaL_argcheck(L, tprime != 0, 8, "t'(u_a) must not be zero");
+  luaL_argcheck(L, rho > 0 && isfinite(rho), 9, "radius must be positive and finite");
+  luaL_argcheck(L, N >= 8 && N <= 65536, 10, "number of points must be 8..65536");
+  lua_Integer ncoef = luaL_optinteger(L, 11, 0);
+  cplx *G = bind_newcvec(L, (size_t)N);
+  int st = invmap_quartic(p, t1, A, zeta, eta, ua, tprime, rho, (size_t)N, G);
+  return invmap_results(L, st, G, (size_t)N, rho, ncoef);
+}
+
 /* core.laurent(tape, params, p, rho, N, depth) -> cvec of a_m rho^m for m = -depth..1
  * (entry m + depth + 1), max |integrand| on the circle, and (N even) the same cvec from
  * every other point (an N/2 rule on the same samples, for an error estimate): the
@@ -586,7 +605,8 @@ static const luaL_Reg land_funcs[] = {
   {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
   {"short_stretches", land_short_stretches},
   {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},
-  {"invmap_cubic", land_invmap_cubic}, {"laurent", land_laurent},
+  {"invmap_cubic", land_invmap_cubic}, {"invmap_quartic", land_invmap_quartic},
+  {"laurent", land_laurent},
   {"branch_jump", land_branch_jump}, {"ring_power", land_ring_power}, {"log_spread", land_log_spread},
   {"turning", geo_turning}, {"crossings", geo_crossings}, {"distance", geo_distance},
   {"nearest", geo_nearest},

@@ -8,6 +8,7 @@ local decompose = require "steep.decompose"
 local expand = require "steep.expand"
 local expr = require "steep.expr"
 local coalesce = require "steep.coalesce"
+local cusp = require "steep.cusp"
 local nearpole = require "steep.nearpole"
 local strips = require "steep.strips"
 
@@ -228,8 +229,13 @@ local function contributions_of(J, params, L, plan, order, resum, opts)
       contributions[#contributions + 1] = endpoint_contribution(J, params, piece, order, L, opts)
     end
   end
-  -- two simple saddles close together: the Airy-type uniform form for the pair
+  -- three simple saddles close together: the cusp form for the three (steep.cusp)
   local handled = {}
+  for _, c in ipairs(cusp.contributions(J, params, L, by_saddle, order_seen, order, resum,
+      plan.notes, handled)) do
+    contributions[#contributions + 1] = c
+  end
+  -- two simple saddles close together: the Airy-type uniform form for the pair
   for _, j in ipairs(order_seen) do
     local s = L.saddles[j]
     if s.order == 2 and not handled[j] then
