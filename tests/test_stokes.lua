@@ -71,6 +71,13 @@ function TestStokesAiry:test_complex_x_across_the_line()
         within(res.value, res.error, 2 * pi * ai_maclaurin(xv), msg)
         if d == 0 then
           lu.assertNotNil(res.stokes_line, msg .. ": on the line")
+          -- a genuine jump (Ai's subdominant exponential switches on): the value is the
+          -- mean of the two sides, both given
+          local sd = res.stokes_line.sides
+          lu.assertFalse(res.stokes_line.settled, msg)
+          lu.assertEquals(res.stokes_line.multiplier, 0.5, msg)
+          lu.assertTrue(((sd.plus.value + sd.minus.value) / 2 - res.value):abs()
+            <= 1e-14 * res.value:abs(), msg .. ": the mean of the sides")
         end
       end
     end

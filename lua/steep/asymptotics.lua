@@ -414,8 +414,16 @@ function M.expand(J, params, opts)
   end
   local contributions = contributions_of(J, params, L, plan, order, opts.resum, opts)
   local stokes = type(plan.stokes) == "table" and plan.stokes or nil
+  local sides
   if stokes and not stokes.settled then
-    contributions = mean_of_sides(contributions, contributions_of(J, params, L, stokes.minus, order, nil, opts))
+    local minus = contributions_of(J, params, L, stokes.minus, order, nil, opts)
+    local function total(list)
+      local v, e = cnew(0, 0), 0
+      for _, c in ipairs(list) do v, e = v + c.value, e + c.error end
+      return { value = v, error = e }
+    end
+    sides = { plus = total(contributions), minus = total(minus) }
+    contributions = mean_of_sides(contributions, minus)
   elseif order == "optimal" and not opts.resum and plan.stokes ~= true then
     berry_smoothing(J, params, L, contributions, order, plan.notes)
   end
@@ -460,7 +468,7 @@ function M.expand(J, params, opts)
     order = order, params = params, landscape = L, notes = plan.notes,
     stokes = plan.stokes and true or false, integral = J, status = status,
     stokes_line = stokes and { settled = stokes.settled, unsettled = unsettled,
-      by_rule = stokes.by_rule } or nil,
+      by_rule = stokes.by_rule, sides = sides, multiplier = sides and 0.5 or nil } or nil,
     resum = resummed }
   setmetatable(result, { __index = { report = M.report } })
   if opts.verify then M.verify(J, params, result, opts) end
@@ -571,7 +579,10 @@ function M.report(r, opts)
   elseif r.stokes_line and r.stokes_line.settled then
     say("the weights are the same on both sides of it (settled)", "on a Stokes line: ", 4)
   elseif r.stokes_line then
-    say(format("mean of both sides, unsettled part %.3g", r.stokes_line.unsettled),
+    local sd = r.stokes_line.sides
+    say(format("Stokes multiplier 1/2 (Berry): the mean of the two sides' values %s and "
+      .. "%s; unsettled part %.3g", fmtc(sd.plus.value, sd.plus.error),
+      fmtc(sd.minus.value, sd.minus.error), r.stokes_line.unsettled),
       "on a Stokes line with a genuine jump: ", 4)
   elseif r.stokes then
     add("warning: a saddle connection was found (Stokes line): see notes")
