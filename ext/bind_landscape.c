@@ -214,12 +214,19 @@ static int land_saddle_starts(lua_State *L) {
  * grows with |F|; a fixed bound on the angle keeps a log cut's jump visible however large
  * F is) -- or where the integrand is negligible (Re F below Re level - 30). A path that
  * crosses a branch cut of the exponent would otherwise be integrated on the wrong sheet
- * there. */
+ * there. With a sixth argument rho the tape's exponent is rho times the integral's (an
+ * exponent turned in phase onto or past a Stokes line, |rho| = 1): a cut of log that is
+ * harmless in the integral's own exponent (2 pi i k) makes the turned one jump by
+ * rho 2 pi i k, of which the traced values (Im F held at the path's level) show the
+ * imaginary part 2 pi k Re(rho): that is divided out before the test. */
 static int land_branch_jump(lua_State *L) {
   problem *p = checkproblem(L);
   size_t n = 0, nF = 0;
   cplx *pts = bind_checkpoints(L, 3, &n), *Fc = bind_checkpoints(L, 4, &nF);
   cplx level = bind_checkcomplex(L, 5);
+  double turn = lua_isnoneornil(L, 6) ? 1 : creal(bind_checkcomplex(L, 6));
+  if (!(turn > 0.5) || !(turn <= 1 + 1e-12))
+    return luaL_argerror(L, 6, "a turn rho with |rho| = 1 and |arg rho| < pi/3 expected");
   double lr = creal(level), tol = 1e-6 * fmax(1, cabs(level));
   double tol_angle = fmax(1e-6, 1e-12 * cabs(level));
   cplx *slots = p->vals + p->t->nout;   /* as problem_integrand lays them out */
@@ -227,7 +234,8 @@ static int land_branch_jump(lua_State *L) {
     tape_eval(p->t, pts[k], p->params, p->vals, slots);
     cplx d = p->vals[0] - Fc[k];
     double fr = creal(p->vals[0]), dr = creal(d);
-    int harmless = (fabs(dr) <= tol && fabs(sin(cimag(d) / 2)) <= tol_angle) || !(fr > lr - 30);
+    int harmless = (fabs(dr) <= tol && fabs(sin(cimag(d) / turn / 2)) <= tol_angle)
+                   || !(fr > lr - 30);
     if (isfinite(dr) && !harmless) {
       lua_pushinteger(L, (lua_Integer)k + 1);
       bind_pushcomplex(L, pts[k]);

@@ -794,7 +794,10 @@ function M.decompose_uncached(J, params, L, contour, opts)
       or J.tape:eval(piece.at, params)
     local k, at, jump
     if not piece.path.straight then
-      k, at, jump = core.branch_jump(J.tape, params, piece.path.traced, piece.path.F, level)
+      -- (an exponent turned onto or past a Stokes line: its jumps measured in the
+      -- integral's own exponent, where 2 pi i n across a cut of log is harmless)
+      k, at, jump = core.branch_jump(J.tape, params, piece.path.traced, piece.path.F, level,
+        opts and opts.rotated and params[PHASE] or nil)
     end
     if k then
       plan.status = "incomplete"
