@@ -206,6 +206,12 @@ static int land_saddle_starts(lua_State *L) {
   return 1;
 }
 
+/* d within (tol in its real part, tol_angle in the sine of half its imaginary part) of
+ * 2 pi i times an integer. */
+static int multiple_of_2pi_i(cplx d, double tol, double tol_angle) {
+  return fabs(creal(d)) <= tol && fabs(sin(cimag(d) / 2)) <= tol_angle;
+}
+
 /* core.branch_jump(tape, params, points, F, level) -> nil, or k, point, jump: the first
  * point of a traced path where the principal value of F differs from the value F[k]
  * followed by continuity along it by more than a harmless jump. Harmless: 2 pi i times
@@ -215,18 +221,25 @@ static int land_saddle_starts(lua_State *L) {
  * F is) -- or where the integrand is negligible (Re F below Re level - 30). A path that
  * crosses a branch cut of the exponent would otherwise be integrated on the wrong sheet
  * there. With a sixth argument rho the tape's exponent is rho times the integral's (an
- * exponent turned in phase onto or past a Stokes line, |rho| = 1): a cut of log that is
- * harmless in the integral's own exponent (2 pi i k) makes the turned one jump by
- * rho 2 pi i k, of which the traced values (Im F held at the path's level) show the
- * imaginary part 2 pi k Re(rho): that is divided out before the test. */
+ * exponent turned in phase onto or past a Stokes line, |rho| = 1, Re rho > 1/2): a cut of
+ * log that is harmless in the integral's own exponent (2 pi i k) makes the turned one jump
+ * by rho 2 pi i k. The tracer carries a jump met along the path whole (F differs from
+ * the traced value by rho 2 pi i k), one met at its start only in its imaginary part (a
+ * saddle on the cut: the traced value holds Im F at the level, so the difference is
+ * 2 pi i k Re rho); either form is harmless. (Both at once on one path, a saddle on one
+ * cut whose path crosses another, is reported as a jump: a clear error, not a wrong
+ * sheet.) */
 static int land_branch_jump(lua_State *L) {
   problem *p = checkproblem(L);
   size_t n = 0, nF = 0;
   cplx *pts = bind_checkpoints(L, 3, &n), *Fc = bind_checkpoints(L, 4, &nF);
   cplx level = bind_checkcomplex(L, 5);
-  double turn = lua_isnoneornil(L, 6) ? 1 : creal(bind_checkcomplex(L, 6));
-  if (!(turn > 0.5) || !(turn <= 1 + 1e-12))
-    return luaL_argerror(L, 6, "a turn rho with |rho| = 1 and |arg rho| < pi/3 expected");
+  cplx rho = 1;
+  if (!lua_isnoneornil(L, 6)) {
+    rho = bind_checkcomplex(L, 6);
+    if (!(fabs(cabs(rho) - 1) <= 1e-12) || !(creal(rho) > 0.5))
+      return luaL_argerror(L, 6, "a turn rho with |rho| = 1 and |arg rho| < pi/3 expected");
+  }
   double lr = creal(level), tol = 1e-6 * fmax(1, cabs(level));
   double tol_angle = fmax(1e-6, 1e-12 * cabs(level));
   cplx *slots = p->vals + p->t->nout;   /* as problem_integrand lays them out */
@@ -234,8 +247,8 @@ static int land_branch_jump(lua_State *L) {
     tape_eval(p->t, pts[k], p->params, p->vals, slots);
     cplx d = p->vals[0] - Fc[k];
     double fr = creal(p->vals[0]), dr = creal(d);
-    int harmless = (fabs(dr) <= tol && fabs(sin(cimag(d) / turn / 2)) <= tol_angle)
-                   || !(fr > lr - 30);
+    int harmless = multiple_of_2pi_i(d / rho, tol, tol_angle)
+                   || multiple_of_2pi_i(d / creal(rho), tol, tol_angle) || !(fr > lr - 30);
     if (isfinite(dr) && !harmless) {
       lua_pushinteger(L, (lua_Integer)k + 1);
       bind_pushcomplex(L, pts[k]);

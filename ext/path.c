@@ -105,8 +105,17 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
       return PATH_HIGH;
     }
     if (cabs(t - o->center) > o->radius) return PATH_EDGE;
-    /* F no longer changes over a step (F' vanished where no saddle was listed) */
-    if (!accepted || cabs(dF) * (cabs(t) + o->scale) <= 1e-13 * (1 + cabs(F))) return PATH_FLAT;
+    /* F no longer changes over a step (F' vanished where no saddle was listed); not
+     * within a few stop radii of a stop point, where F' vanishes by right (a saddle only
+     * 1e-4 from its neighbours: F' there is below any fixed floor) and the step cap above
+     * leads the path in */
+    if (!accepted) return PATH_FLAT;
+    if (cabs(dF) * (cabs(t) + o->scale) <= 1e-13 * (1 + cabs(F))) {
+      int near_stop = 0;
+      for (size_t j = 0; j < o->nstops && !near_stop; j++)
+        near_stop = cabs(t - o->stops[j]) <= 4 * o->stop_r[j];
+      if (!near_stop) return PATH_FLAT;
+    }
     if (*n >= maxpts) return PATH_BOUND;
   }
   return PATH_BOUND;

@@ -631,6 +631,11 @@ function TestBadInput:test_lying_list_lengths()
     bad({ "bad argument #3 to 'quad_polyline'", too_long }, function() return core.quad_polyline(tape, P, L, {}) end)
     bad({ "bad argument #4 to 'branch_jump'", too_long }, function() return core.branch_jump(tape, P, { 1, 2 }, L, 0) end)
   end
+  -- the turn of an exponent turned onto a Stokes line: |rho| = 1, |arg rho| < pi/3
+  for _, rho in ipairs({ 0.6, steep.complex(0.9, 5), -1, 0 / 0 }) do
+    bad({ "bad argument #6 to 'branch_jump'", "|rho| = 1" },
+      function() return core.branch_jump(tape, P, { 1, 2 }, { 1, 2 }, 0, rho) end)
+  end
   -- a length of 2^24 exactly is allowed: the missing entries are then the error
   bad({ "point 4 is a nil (number or complex expected)" }, function() return core.turning(liar(1 << 24), 0) end)
   bad({ "bad argument #1 to 'eval_many' (point 4 is a nil)" },

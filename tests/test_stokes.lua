@@ -91,7 +91,7 @@ end
 -- smoothing contribution present for |d| <= 0.1, with Berry's multiplier on the right
 -- side of 1/2; the error with it at most a fifth of the error without it (the value less
 -- the smoothing contribution) for |d| <= 0.03 (measured: 20 to 40 times smaller); and no
--- jump at the line (d = +-1e-3 against the mean of the two sides at d = 0).
+-- jump at the line (at d = +-1e-3 the error is the error at d = 0 to a tenth of the jump).
 function TestStokesAiry:test_berry_smoothing_near_the_line()
   local J = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t),
     contour = steep.path { steep.inf(5 * pi / 6), 0, steep.inf(pi / 6) }, large = x }
@@ -119,13 +119,46 @@ function TestStokesAiry:test_berry_smoothing_near_the_line()
             .. "smoothing, %.3g without", msg, with, without))
         end
         if math.abs(d) == 1e-3 then
-          -- (Ai changes by about |Ai'| |x| d between the two: its own slope allowed)
-          local slope = (want - 2 * pi * ai_maclaurin(r0 * C(math.cos(2 * pi / 3),
-            math.sin(2 * pi / 3)))):abs()
-          within(res.value, 2 * slope + on.error, on.value, msg .. ": no jump at the line")
+          -- no jump at the line: the error (value less reference) just off the line is
+          -- the error on it, to within a tenth of the jump the smoothing bridges (the
+          -- unsettled half of the subdominant's share on the line; Ai's own change
+          -- between the two points cancels in the errors)
+          local on_want = 2 * pi * ai_maclaurin(r0 * C(math.cos(2 * pi / 3), math.sin(2 * pi / 3)))
+          local moved = ((res.value - want) - (on.value - on_want)):abs()
+          lu.assertTrue(moved <= 0.1 * on.stokes_line.unsettled, string.format("%s: the "
+            .. "error moves by %.3g between the line and d, the jump there is %.3g", msg,
+            moved, on.stokes_line.unsettled))
         end
       end
     end
+  end
+end
+
+-- A log term that changes the exponent only by 2 pi i (2 (log(t - 10) - log(10 - t)) is
+-- +-2 pi i off the cut) leaves the integral Airy's: on the Stokes line the exponent is
+-- turned by +-eps to decide the weights, and the turned term jumps by rho 2 pi i where
+-- the paths cross its cut, which must still count as harmless (it once made the weights
+-- undecidable: an error). Against the Maclaurin sum, as above; the status says whether
+-- the integral converges only in Abel's sense also on the line (Pearcey's exponent with
+-- a growing linear term, -2t on the real line's left end).
+function TestStokesAiry:test_harmless_cut_on_the_line()
+  local J = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t)
+      + 2 * (steep.log(t - 10) - steep.log(10 - t)),
+    contour = steep.path { steep.inf(5 * pi / 6), 0, steep.inf(pi / 6) }, large = x }
+  for _, d in ipairs({ 0, 0.05 }) do
+    local xv = 6 * C(math.cos(2 * pi / 3 + d), math.sin(2 * pi / 3 + d))
+    local msg = string.format("|x| = 6, arg x = 2pi/3 %+g", d)
+    local res = J:expand { x = xv, order = 4 }
+    lu.assertStrContains(res.status, "estimated", msg)
+    within(res.value, res.error, 2 * pi * ai_maclaurin(xv), msg)
+    if d == 0 then lu.assertFalse(res.stokes_line.settled, msg .. ": a genuine jump") end
+  end
+  local l, y = steep.param "l", steep.param "y"
+  local P = steep.integral { var = t, exponent = I * (l * (t ^ 4 / 4 - t ^ 2 / 2) + y * t),
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = l }
+  for _, lv in ipairs({ 2, 4 }) do
+    local res = P:expand { l = lv, y = C(0, 2), order = 2 }
+    lu.assertStrContains(res.status, "Abel's sense", "Pearcey, y = 2i, l = " .. lv)
   end
 end
 

@@ -333,21 +333,41 @@ end
 -- covers: the estimates are left as they are. Only where |Lambda| >= 8 and |sigma| < 4.
 local SIGMA_NEAR, LAMBDA_MIN = 4, 8
 local function report_num(z) return require("steep.report").num(z) end
+-- (|F_j - F_k| within which two saddles take the pair form: (4/3) |zeta|^(3/2))
+local PAIR_SCALE = 4 / 3 * coalesce.ZETA_RADIUS ^ 1.5
 local function berry_smoothing(J, params, L, contributions, order, notes)
   local resum = require "steep.resum"
   local added = {}
+  local tol = 1e-12 * L.region.radius
+  -- a saddle whose plain series is poor: named by a uniform contribution, or within the
+  -- pair form's scale of another saddle (its share is then not added: the dominant's
+  -- estimate covers it)
+  local function poorly_served(m)
+    local at = L.saddles[m].at
+    for _, c in ipairs(contributions) do
+      if c.kind ~= "saddle" then
+        local pts = { c.at, c.partner }
+        for _, q in ipairs(c.partners or {}) do pts[#pts + 1] = q end
+        for _, q in pairs(pts) do if cabs(q - at) <= tol then return true end end
+      end
+    end
+    for k, sk in ipairs(L.saddles) do
+      if k ~= m and cabs(sk.F - L.saddles[m].F) <= PAIR_SCALE then return true end
+    end
+    return false
+  end
   for _, c in ipairs(contributions) do
     local n
     if c.kind == "saddle" and c.order == 2 and c.weights then
       for j, s in ipairs(L.saddles) do
-        if cabs(s.at - c.at) <= 1e-12 * L.region.radius then n = j end
+        if cabs(s.at - c.at) <= tol then n = j end
       end
     end
     for m, sm in ipairs(n and L.saddles or {}) do
       local sgl = L.saddles[n].F - sm.F
       local sr, si = cparts(sgl)
       if m ~= n and sm.order == 2 and sr > 0 and si ~= 0 and cabs(sgl) >= LAMBDA_MIN
-          and abs(si) < SIGMA_NEAR * math.sqrt(2 * sr) then
+          and abs(si) < SIGMA_NEAR * math.sqrt(2 * sr) and not poorly_served(m) then
         local S, sigma = resum.stokes_multiplier(sgl)
         local f = S - (si > 0 and 1 or 0)
         -- (the share at its largest, |f| |g| e^{Re F} sqrt(2 pi/|F''|), against the error

@@ -474,42 +474,54 @@ function M.contribution(J, params, L, group, order, map)
     end
     return out, coefs
   end
-  local terms, coefs = series(c, n, nterms + 3)
-  local used = min(nterms, #terms)
-  local value, sizes, model_err = cnew(0, 0), 0, 0
-  for k = 1, used do
-    local p0, p1, p2 = coefs[k][1], coefs[k][2], coefs[k][3]
-    value = value + terms[k]
-    sizes = sizes + (cabs(p0 * I[0]) + cabs(p1 * I[1]) + cabs(p2 * I[2])) * sc
-    model_err = model_err + (cabs(p0) * E[0] + cabs(p1) * E[1] + cabs(p2) * E[2]) * sc
+  -- the value and its error from the first `want` terms
+  local function assemble(want)
+    local terms, coefs = series(c, n, want + 3)
+    local used = min(want, #terms)
+    local value, sizes, model_err = cnew(0, 0), 0, 0
+    for k = 1, used do
+      local p0, p1, p2 = coefs[k][1], coefs[k][2], coefs[k][3]
+      value = value + terms[k]
+      sizes = sizes + (cabs(p0 * I[0]) + cabs(p1 * I[1]) + cabs(p2 * I[2])) * sc
+      model_err = model_err + (cabs(p0) * E[0] + cabs(p1) * E[1] + cabs(p2) * E[2]) * sc
+    end
+    -- the error: the series' remainder read from the next terms (as for plain
+    -- contributions), the model integrals' own errors, the coefficients' (the value from the
+    -- second circle, and from eight coefficients fewer, apart: the reduction divides a
+    -- truncated series, whose tail reaches the first terms where G's radius of convergence
+    -- is not much larger than the roots'), and rounding: of e^A and the sums (as
+    -- expand.truncate's floor), of the circle's coefficients (of the size of G on it)
+    local err = require("steep.expand").remainder(terms, used) + model_err
+    for _, other in ipairs({ { c2, n }, { c, n - 8 } }) do
+      local alt = series(other[1], other[2], used)
+      local v = cnew(0, 0)
+      for k = 1, used do v = v + (alt[k] or cnew(0, 0)) end
+      err = err + cabs(v - value)
+    end
+    err = err + (128 + cabs(map.A)) * EPS * sizes
+      + 64 * EPS * gsize * (cabs(I[0]) + cabs(I[1]) + cabs(I[2])) * sc
+    -- the saddles' F carry rounding: A's moves the value by dA relative; zeta's and eta's
+    -- move the model integrals (dI_m/dzeta = I_{m+2}/2, dI_m/deta = -I_{m+1}, with
+    -- I3 = zeta I1 - eta I0 and I4 = zeta I2 - eta I1 + I0 by parts)
+    local I3 = map.zeta * I[1] - map.eta * I[0]
+    local I4 = map.zeta * I[2] - map.eta * I[1] + I[0]
+    local Iabs = { [0] = cabs(I[0]), cabs(I[1]), cabs(I[2]), cabs(I3), cabs(I4) }
+    local p = coefs[1]
+    local shift = 0
+    for m = 0, 2 do
+      shift = shift + cabs(p[m + 1]) * (0.5 * Iabs[m + 2] * map.dzeta + Iabs[m + 1] * map.deta)
+    end
+    err = err + map.dA * cabs(value) + shift * sc
+    return value, err, terms, used, coefs
   end
-  -- the error: the series' remainder read from the next terms (as for plain
-  -- contributions), the model integrals' own errors, the coefficients' (the value from the
-  -- second circle, and from eight coefficients fewer, apart: the reduction divides a
-  -- truncated series, whose tail reaches the first terms where G's radius of convergence
-  -- is not much larger than the roots'), and rounding: of e^A and the sums (as
-  -- expand.truncate's floor), of the circle's coefficients (of the size of G on it)
-  local err = require("steep.expand").remainder(terms, used) + model_err
-  for _, other in ipairs({ { c2, n }, { c, n - 8 } }) do
-    local alt = series(other[1], other[2], used)
-    local v = cnew(0, 0)
-    for k = 1, used do v = v + (alt[k] or cnew(0, 0)) end
-    err = err + cabs(v - value)
+  -- "optimal": the number of terms (at most 6) whose error estimate is the smallest
+  local value, err, terms, used, coefs = assemble(nterms)
+  if order == "optimal" then
+    for want = 1, nterms - 1 do
+      local v2, e2, t2, u2, c2s = assemble(want)
+      if e2 < err then value, err, terms, used, coefs = v2, e2, t2, u2, c2s end
+    end
   end
-  err = err + (128 + cabs(map.A)) * EPS * sizes
-    + 64 * EPS * gsize * (cabs(I[0]) + cabs(I[1]) + cabs(I[2])) * sc
-  -- the saddles' F carry rounding: A's moves the value by dA relative; zeta's and eta's
-  -- move the model integrals (dI_m/dzeta = I_{m+2}/2, dI_m/deta = -I_{m+1}, with
-  -- I3 = zeta I1 - eta I0 and I4 = zeta I2 - eta I1 + I0 by parts)
-  local I3 = map.zeta * I[1] - map.eta * I[0]
-  local I4 = map.zeta * I[2] - map.eta * I[1] + I[0]
-  local Iabs = { [0] = cabs(I[0]), cabs(I[1]), cabs(I[2]), cabs(I3), cabs(I4) }
-  local p = coefs[1]
-  local shift = 0
-  for m = 0, 2 do
-    shift = shift + cabs(p[m + 1]) * (0.5 * Iabs[m + 2] * map.dzeta + Iabs[m + 1] * map.deta)
-  end
-  err = err + map.dA * cabs(value) + shift * sc
   -- the contribution is reported at the middle saddle (the root nearest 0)
   local mid = 1
   for j = 2, 3 do if cabs(map.u[j]) < cabs(map.u[mid]) then mid = j end end

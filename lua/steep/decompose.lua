@@ -67,10 +67,12 @@ local function contour_end_label(L, e, which, from, tol)
     if boundary and not tol and L.analysis and L.valleys[k].type ~= "strip" then
       local ok, cl = L.analysis.converges(e.angle)
       if not ok and cl.class ~= "unknown" then
+        local size = cl.class == "hill" and format("|integrand| grows like e^(c r^%g), c > 0",
+          cl.degree or 1) or format("|integrand| ~ r^%g", cl.kappa or 0)
         abel = format("the contour's %s end (direction %.6g) runs along the edge of a valley "
-          .. "where the integrand does not decay (|integrand| ~ r^%g): the integral exists "
-          .. "there only in Abel's sense, the value continued by turning the end into the "
-          .. "valley", which, e.angle, cl.kappa or 0)
+          .. "where the integrand does not decay (%s): the integral exists there only in "
+          .. "Abel's sense, the value continued by turning the end into the valley", which,
+          e.angle, size)
       end
     end
     return "valley " .. k, boundary, abel
@@ -611,7 +613,7 @@ function M.decompose_uncached(J, params, L, contour, opts)
     for _, a in ipairs({ abel_s or false, abel_f or false }) do
       if a then plan.notes[#plan.notes + 1] = a; plan.abel = true end
     end
-    if boundary_s or boundary_f then
+    if (boundary_s and not abel_s) or (boundary_f and not abel_f) then
       plan.notes[#plan.notes + 1] = "an end lies on the edge of its valley: the integrand "
         .. "oscillates there without decaying (convergent only conditionally)"
     end
@@ -748,7 +750,7 @@ function M.decompose_uncached(J, params, L, contour, opts)
     -- (settled by the rule)
   elseif plan.stokes and not (opts and opts.rotated) then
     local sp = M.across_stokes_line(J, params, L, contour, plan.notes)
-    if sp then return sp end
+    if sp then sp.abel = plan.abel; return sp end
     plan.notes[#plan.notes + 1] = "the weights could not be decided on either side of the "
       .. "Stokes line (turning the exponent's phase did not separate the saddles)"
   end
