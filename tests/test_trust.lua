@@ -148,6 +148,37 @@ end
 
 TestTrustPoles = {}
 
+-- A simple pole of the amplitude beside a Gaussian: the integral of e^{-x t^2/2}/(t - p) over
+-- the real line is i pi w(p sqrt(x/2)) for Im p > 0 (DLMF 7.7.2 after t = s sqrt(2/x);
+-- w from libcerf). The residue is taken on the circle where it is best conditioned; a
+-- circle of radius 1.7e-6 about p ~ 1 once lost three digits to the rounding of its own
+-- points (relative u |p| / rho), under an estimate of 1e-14: the uniform pole form then
+-- missed by 7.5e-13 against its estimate 1.3e-13. Residue against e^{-x p^2/2} (exact),
+-- and the expansion against w, each within its estimate.
+function TestTrustPoles:test_residue_circle_not_too_small()
+  local p = steep.param "p"
+  local J = steep.integral { var = t, exponent = -x * t ^ 2 / 2, amplitude = 1 / (t - p),
+    contour = REAL_LINE, large = x }
+  for _, case in ipairs({ { 14.826997691933, steep.complex(-0.165501767391624, 0.966949118157443) },
+    { 30, steep.complex(0.4, 0.7) }, { 8, steep.complex(-1.2, 0.35) } }) do
+    local xv, pv = case[1], case[2]
+    local msg = string.format("x = %g, p = %s", xv, tostring(pv))
+    local L = J:landscape { x = xv, p = pv }
+    local s = L.singularities[1]
+    local exact = require("steep.complex").apply("exp", pv * pv * (-xv / 2))
+    lu.assertTrue((s.residue - exact):abs() <= s.residue_error, string.format("%s: residue "
+      .. "off by %.3g, estimate %.3g", msg, (s.residue - exact):abs(), s.residue_error))
+    H.close(s.residue, exact, 1e-14, msg .. ": residue")
+    local zz = pv * math.sqrt(xv / 2)
+    local wr, wi = gsl.faddeeva_w(zz:re(), zz:im())
+    local want = steep.I * math.pi * steep.complex(wr, wi)
+    for _, order in ipairs({ 2, 5, "optimal" }) do
+      local r = J:expand { x = xv, p = pv, order = order }
+      within(r.value, r.error + 1e-15 * want:abs(), want, 1e-13, msg .. ", order " .. tostring(order))
+    end
+  end
+end
+
 -- The residue of a pole of high order made by the exponent: D_20 = [z^20] (1+z)^20
 -- (1-z)^-21 is 2 pi i times the residue at 0 of the coefficient integrand, a pole of order
 -- 21 (exact integer, tests/bigint.lua by the sum of C(n,k) C(n+k,k)).

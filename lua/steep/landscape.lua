@@ -313,8 +313,11 @@ end
 -- exponent) may be far smaller than |f| near the pole: the radius minimizing
 -- max|f| rho is found on a geometric grid below 0.9 times the distance to the next
 -- singular point (the circle's own saddle point; for a coefficient integral it is the
--- saddle of the coefficient's Cauchy integral). Points: enough for the rule on every
--- other point to agree (their difference is the error estimate, with the rounding).
+-- saddle of the coefficient's Cauchy integral). The points p + rho e^{i theta} themselves
+-- carry u |p| of rounding, which moves f by a relative u |p| / rho near a pole: a circle
+-- much smaller than |p| loses digits (1e-12 at rho = 1.7e-6), so the radius minimizes
+-- max|f| (|p| + 2 rho), both parts together. Points: enough for the rule on every other
+-- point to agree (their difference is the error estimate, with both roundings).
 function M.residue(J, params, p, nearest, order)
   local best, brho, bspread = huge, nil, 0
   for i = 0, 60 do
@@ -330,10 +333,10 @@ function M.residue(J, params, p, nearest, order)
       if l ~= l then l = huge end
       hi, lo = math.max(hi, l), math.min(lo, l)
     end
-    local score = hi + log(rho)
+    local score = hi + log(cabs(p) + 2 * rho)
     if score < best then best, brho, bspread = score, rho, hi - lo end
   end
-  if not brho or not (best < 700) then return nil end
+  if not brho or not (best - log(cabs(p) + 2 * brho) + log(brho) < 700) then return nil end
   -- (the function's variation around the circle sets how many points the rule needs)
   local N = 256
   while N < 16 * (order + 4) or N < 8 * math.min(bspread, 1e4) do N = 2 * N end
@@ -341,7 +344,7 @@ function M.residue(J, params, p, nearest, order)
   for _ = 1, 4 do
     local b, vmax, a = laurent(J.tape, params, p, brho, N, 2)
     r = b[-1] * brho
-    e = cabs(b[-1] - a[-1]) * brho + 8 * 2.2e-16 * vmax * brho + 1e-15 * cabs(r)
+    e = cabs(b[-1] - a[-1]) * brho + 8 * 2.2e-16 * vmax * (brho + cabs(p)) + 1e-15 * cabs(r)
     if not (cabs(r) < huge) then return nil end
     if e <= 1e-12 * cabs(r) or N >= 16384 then break end
     N = 2 * N
@@ -492,7 +495,7 @@ function M.singularities(J, params, region, opts)
         s.residue = b[-1] * rho
         -- the difference of the two sums, and their rounding (terms up to vmax)
         s.residue_error = cabs(b[-1] - a[-1]) * rho + 1e-15 * cabs(s.residue)
-          + 8 * 2.2e-16 * vmax * rho
+          + 8 * 2.2e-16 * vmax * (rho + cabs(m.at))
         if cabs(b[-depth]) > 1e-6 * big then s.kind = "essential"; s.order = nil end
       end
       if s.kind == "pole" and s.order then
