@@ -304,6 +304,35 @@ function TestTrustEndpoints:test_log_factors()
   end
 end
 
+-- The power a parameter: t^p is exp(p log t) in the expression, once an internal error
+-- ("jet at 0: log is singular") from the endpoint expansion. The same formulas with
+-- s = p + 1 (DLMF 5.2.1 and its derivative in s; gsl_sf_gamma, gsl_sf_psi); a singular
+-- form it does not read gets a message that says what it reads.
+function TestTrustEndpoints:test_parameter_power()
+  local p = steep.param "p"
+  local J = steep.integral { var = t, exponent = -x * t, amplitude = t ^ p,
+    contour = steep.line(0, steep.inf(0)), large = x }
+  local JL = steep.integral { var = t, exponent = -x * t, amplitude = t ^ p * steep.log(t),
+    contour = steep.line(0, steep.inf(0)), large = x }
+  for _, pv in ipairs({ -0.7, 0.3, 2.5 }) do
+    for _, xv in ipairs({ 4, 30 }) do
+      local sv = pv + 1
+      local msg = string.format("p = %g, x = %g", pv, xv)
+      local want = gsl.gamma(sv) * xv ^ -sv
+      local r = J:expand { x = xv, p = pv, order = 3 }
+      within(r.value, r.error + 1e-15 * want, steep.complex(want, 0), 1e-13, "t^p, " .. msg)
+      local wantl = want * (gsl.psi(sv) - math.log(xv))
+      local rl = JL:expand { x = xv, p = pv, order = 3 }
+      within(rl.value, rl.error + 1e-15 * math.abs(wantl), steep.complex(wantl, 0), 1e-12,
+        "t^p log t, " .. msg)
+    end
+  end
+  local K = steep.integral { var = t, exponent = -x * t, amplitude = steep.exp(p * steep.log(t) + t),
+    contour = steep.line(0, steep.inf(0)), large = x }
+  H.raises({ "singular at the endpoint 0", "does not read", "(t - a)^beta" }, K.expand, K,
+    { x = 10, p = 0.3, order = 3 })
+end
+
 -- Oscillation on top of decay converges: exp(x (i sin 10t - t^2/100)) over the real line at
 -- x = 1 is sqrt(100 pi) J_0(1) (Jacobi-Anger, DLMF 10.12.1, and the Gaussian's Fourier
 -- transform: the terms n != 0 carry e^{-2500 n^2}); gsl_sf_bessel_Jn.

@@ -382,9 +382,10 @@ function M.saddle_terms(a, F0, m, c, nraw, aerr)
 end
 
 -- The amplitude's singular factors at an endpoint a: looks through the products and
--- quotients of the amplitude for a factor base^beta (powc with a real exponent),
--- sqrt(base), or sqrt(base)^k (= base^(k/2) for principal branches), and for a factor
--- log(base) or log(base)^m (m = 1, 2), whose base vanishes at a; a factor of a denominator
+-- quotients of the amplitude for a factor base^beta (powc with a real exponent, or
+-- exp(beta log(base)) with beta a parameter real at these values), sqrt(base), or
+-- sqrt(base)^k (= base^(k/2) for principal branches), and for a factor log(base) or
+-- log(base)^m (m = 1, 2), whose base vanishes at a; a factor of a denominator
 -- counts with -beta. Returns {beta, pbase, lbase, m, rest} (rest: the other factors, an
 -- expression regular at a, or a number), or nil.
 local function endpoint_factors(J, params, a)
@@ -418,6 +419,22 @@ local function endpoint_factors(J, params, a)
       end
     elseif f.op == "sqrt" then
       beta, base = 0.5, f.a
+    elseif f.op == "exp" then
+      -- base^c with c a parameter (written exp(c log(base))): real c at these values
+      local e, s = f.a, 1
+      if e.op == "neg" then e, s = e.a, -1 end
+      if e.op == "mul" then
+        local c, l
+        if expr.is(e.b) and e.b.op == "log" and not (expr.is(e.a) and e.a:depends_on(J.var)) then
+          c, l = e.a, e.b
+        elseif expr.is(e.a) and e.a.op == "log" and not (expr.is(e.b) and e.b:depends_on(J.var)) then
+          c, l = e.b, e.a
+        end
+        if c then
+          local cr, ci = cparts(expr.is(c) and c:value(bind) or c)
+          if ci == 0 then beta, base = s * cr, l.a end
+        end
+      end
     elseif f.op == "log" and signs[i] > 0 then
       lbase, m = f.a, 1
     end
@@ -483,6 +500,16 @@ function M.endpoint_series(J, params, a, n, near, L, opts)
       .. "Hadamard's finite part, the value continued in the power)", tostring(a), beta,
       tostring(a)), 0)
   end
+  -- (a jet that fails at a: a singular factor of a form not read above; said plainly)
+  local function jet_at(tape, k)
+    local ok, j1, j2, j3 = pcall(tape.jet, tape, a, k, params)
+    if ok then return j1, j2, j3 end
+    error(format("the integrand is singular at the endpoint %s in a form the endpoint "
+      .. "expansion does not read (%s); it reads amplitude factors (t - a)^beta (beta a "
+      .. "number, or a parameter written base^p), sqrt(t - a) and log(t - a)^m (m <= 2) in "
+      .. "products and quotients, and logs of t - a in the exponent", tostring(a),
+      tostring(j1):gsub("^.-:%d+: ", "")), 0)
+  end
   local Fj
   if fac then
     -- J.tape also computes the amplitude, which is singular at a (its jet fails there):
@@ -490,9 +517,9 @@ function M.endpoint_series(J, params, a, n, near, L, opts)
     if not J._exponent_tape then
       J._exponent_tape = require("steep.expr").compile({ J.exponent }, J.var)
     end
-    Fj = J._exponent_tape:jet(a, order, params)
+    Fj = jet_at(J._exponent_tape, order)
   else
-    Fj = J.tape:jet(a, order, params)
+    Fj = jet_at(J.tape, order)
   end
   local gj, qb
   if fac then
@@ -508,7 +535,7 @@ function M.endpoint_series(J, params, a, n, near, L, opts)
       tapes[fac] = quotient_tape
     end
     local _ = key
-    local rj, pj, lj = quotient_tape:jet(a, order + 1, params)
+    local rj, pj, lj = jet_at(quotient_tape, order + 1)
     local function shifted(sj, what)
       local q = {}
       for k = 0, order - 1 do q[k + 1] = sj:coef(k + 1) end
