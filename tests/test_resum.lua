@@ -397,6 +397,35 @@ end
 
 ---------------------------------------------------------------------------------------
 
+TestResumFloors = {}
+
+-- Two cases a random scan against quadrature found beyond their estimates (project's own
+-- quadrature as the reference, 1e-14): an endpoint series with a power a parameter at
+-- small x, whose Pade approximants of degree 26 use coefficients below their own errors
+-- (the sum is now taken again with them moved: 4.7e-13 off, estimate 3.6e-14 -> 1.4e-12),
+-- and Pearcey's saddles at +-1 summed apart (resum = "borel"), where every check passed
+-- and the sums were 6e-13 relative off (estimate 4.6e-14): the relative floor.
+function TestResumFloors:test_estimates_bound()
+  local p, y, l = steep.param "p", steep.param "y", steep.param "l"
+  local E = steep.integral { var = t, exponent = -x * (t + t ^ 2 / 2), amplitude = t ^ p / (1 + t),
+    contour = steep.line(0, steep.inf(0)), large = x }
+  local P = steep.integral { var = t, exponent = I * (l * (t ^ 4 / 4 - t ^ 2 / 2) + y * t),
+    amplitude = 1 + t / 3, contour = steep.line(steep.inf(pi), steep.inf(0)), large = l }
+  for _, case in ipairs({ { E, { p = -0.36545960410382, x = 4.0679622011271 }, true },
+    { P, { l = 34.613178156812, y = C(-0.166110407681711, -0.0327242006892552) }, "borel" } }) do
+    local J, params, how = case[1], case[2], case[3]
+    local q, qe, info = J:quad(params)
+    lu.assertEquals(info.status, "ok")
+    local o = { order = "optimal", resum = how }
+    for k, v in pairs(params) do o[k] = v end
+    local r = J:expand(o)
+    local d = cabs(r.value - q)
+    lu.assertTrue(d <= r.error + qe, string.format("%s: resummed %.3g off, estimate %.3g",
+      tostring(J), d, r.error))
+    lu.assertTrue(r.error <= 1e-11 * cabs(q), string.format("%s: estimate %.3g", tostring(J), r.error))
+  end
+end
+
 TestResumInterface = {}
 
 function TestResumInterface:test_options()
