@@ -23,6 +23,7 @@ static problem *checkproblem(lua_State *L) {
   cplx *params = bind_tapeparams(L, 1, 2);
   problem *p = bind_scratch(L, sizeof(problem));
   problem_init(p, t, params, bind_scratch(L, problem_bytes(t)));
+  p->tally = bind_tapetally(L, 1);
   return p;
 }
 

@@ -19,6 +19,7 @@ typedef struct problem {
   cplx *scratch;       /* 4 * (PROBLEM_MAX_JET + 1) entries */
   cplx *vals;          /* t->nout entries */
   long evals;          /* integrand or jet evaluations so far */
+  long *tally;         /* NULL, or a running total the evaluations are added to as well */
 } problem;
 
 /* Bytes of memory a problem over tape t needs (for the caller to allocate). */
