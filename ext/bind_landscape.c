@@ -8,6 +8,7 @@
  * by name: output 1 is the exponent F, output 2 (if any) the amplitude g.
  */
 #include <math.h>
+#include <stdio.h>
 #include <string.h>
 #include "bind.h"
 #include "geom.h"
@@ -127,6 +128,50 @@ static int land_count(lua_State *L) {
   lua_pushinteger(L, count);
   lua_pushnumber(L, dist);
   return 3;
+}
+
+/* core.zeros(tape, params, {out=, deriv=}, center, radius, opts) -> roots (cvec),
+ *   multiplicities (list), Newton's evaluations, count status (or nil), count (or nil)
+ * opts: grid (boolean: seed from the grid, and search again by random seeds while the
+ * count is not reached), seeds (points), count (at most that many points for the
+ * argument principle; 0 or absent: no count), poles (added to the count). The zeros in
+ * the order found, inside the disc or not (root_search in roots.h). */
+static int land_zeros(lua_State *L) {
+  problem *p = checkproblem(L);
+  zero_fn z;
+  checkzerofn(L, 3, p, &z);
+  cplx center = bind_checkcomplex(L, 4);
+  double radius = luaL_checknumber(L, 5);
+  luaL_argcheck(L, radius > 0 && isfinite(radius), 5, "radius must be positive and finite");
+  luaL_checktype(L, 6, LUA_TTABLE);
+  lua_getfield(L, 6, "grid");
+  int grid = lua_toboolean(L, -1);
+  lua_pop(L, 1);
+  int count_pts = (int)optint(L, 6, "count", 0, 0, 1000000);
+  int poles = (int)optint(L, 6, "poles", 0, -1000000, 1000000);
+  size_t ns = 0;
+  lua_getfield(L, 6, "seeds");
+  const cplx *seeds = lua_isnil(L, -1) ? NULL : bind_checkpoints(L, lua_gettop(L), &ns);
+  size_t cap = ROOT_SEARCH_MAX(ns);
+  cplx *at = bind_array(L, cap, sizeof(cplx));
+  int *mult = bind_array(L, cap, sizeof(int));
+  size_t n = 0;
+  long newton = 0;
+  int cst = ROOT_FAIL, count = 0;
+  root_search(zero_jet, &z, &p->evals, center, radius, grid, seeds, ns, count_pts, poles, at,
+              mult, &n, &newton, &cst, &count);
+  memcpy(bind_newcvec(L, n), at, n * sizeof(cplx));
+  lua_createtable(L, (int)n, 0);
+  for (size_t k = 0; k < n; k++) {
+    lua_pushinteger(L, mult[k]);
+    lua_rawseti(L, -2, (lua_Integer)k + 1);
+  }
+  lua_pushinteger(L, newton);
+  if (count_pts <= 0) return 3;
+  lua_pushstring(L, root_text[cst]);
+  if (cst == ROOT_FAIL) return 4;   /* (not a count's status: none was made) */
+  lua_pushinteger(L, count);
+  return 5;
 }
 
 /* ---- paths ---------------------------------------------------------------------- */
@@ -463,7 +508,7 @@ static int land_invmap_cubic(lua_State *L) {
  * (entry m + depth + 1), max |integrand| on the circle, and (N even) the same cvec from
  * every other point (an N/2 rule on the same samples, for an error estimate): the
  * trapezoidal rule on |t - p| = rho (exponentially accurate for an integrand analytic
- * on an annulus). */
+ * on an annulus); circle_laurent in rings.h. */
 static int land_laurent(lua_State *L) {
   problem *p = checkproblem(L);
   cplx c = bind_checkcomplex(L, 3);
@@ -472,29 +517,86 @@ static int land_laurent(lua_State *L) {
   luaL_argcheck(L, rho > 0 && isfinite(rho), 4, "radius must be positive and finite");
   luaL_argcheck(L, N >= 8 && N <= 65536, 5, "number of points must be 8..65536");
   luaL_argcheck(L, depth >= 1 && depth <= 1024, 6, "depth must be 1..1024");
-  cplx *f = bind_array(L, (size_t)N, sizeof(cplx));
-  double vmax = 0;
-  for (lua_Integer k = 0; k < N; k++) {
-    f[k] = integrand(p, c + rho * cexp(I * (6.283185307179586 * (double)k / (double)N)));
-    vmax = fmax(vmax, cabs(f[k]));
-  }
   cplx *root = bind_array(L, (size_t)N, sizeof(cplx));
   unit_roots((size_t)N, root);
+  cplx *work = bind_array(L, bind_mulcount(L, p->t->n, TAPE_BLOCK) +
+                                 bind_mulcount(L, p->t->nout + 2, (size_t)N), sizeof(cplx));
   int halves = N % 2 == 0;
   cplx *out = bind_newcvec(L, (size_t)depth + 2);
-  lua_pushnumber(L, vmax);
+  double vmax = 0;
   cplx *half = halves ? bind_newcvec(L, (size_t)depth + 2) : NULL;
-  for (lua_Integer m = -depth; m <= 1; m++) {
-    cplx sum = 0, sum2 = 0;
-    for (lua_Integer k = 0; k < N; k++) {
-      cplx term = f[k] * root[((k * m) % N + N) % N];
-      sum += term;
-      if (k % 2 == 0) sum2 += term;
-    }
-    out[m + depth] = sum / (double)N;
-    if (halves) half[m + depth] = sum2 / (double)(N / 2);
+  circle_laurent(p, c, rho, (int)N, (int)depth, root, work, out, half, &vmax);
+  if (halves) {
+    lua_pushnumber(L, vmax);
+    lua_insert(L, -2);
+    return 3;
   }
-  return halves ? 3 : 2;
+  lua_pushnumber(L, vmax);
+  return 2;
+}
+
+/* core.ring_quietest(tape, params, c, r0, count, n) -> rho, score, spread (or nil): the
+ * circle about c, of radius r0 2^(-i/3) for i < count, where a residue at c is best
+ * conditioned (ring_quietest in rings.h). */
+static int land_ring_quietest(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx c = bind_checkcomplex(L, 3);
+  double r0 = luaL_checknumber(L, 4);
+  lua_Integer count = luaL_checkinteger(L, 5), n = luaL_checkinteger(L, 6);
+  luaL_argcheck(L, r0 > 0 && isfinite(r0), 4, "radius must be positive and finite");
+  luaL_argcheck(L, count >= 1 && count <= 1024, 5, "number of radii must be 1..1024");
+  luaL_argcheck(L, n >= 4 && n <= 65536, 6, "number of points must be 4..65536");
+  cplx *work = bind_array(L, bind_mulcount(L, p->t->n, TAPE_BLOCK) +
+                                 bind_mulcount(L, p->t->nout + 1, (size_t)n), sizeof(cplx));
+  double rho = 0, score = 0, spread = 0;
+  if (!ring_quietest(p, c, r0, (int)count, (int)n, work, &rho, &score, &spread)) {
+    lua_pushnil(L);
+    return 1;
+  }
+  lua_pushnumber(L, rho);
+  lua_pushnumber(L, score);
+  lua_pushnumber(L, spread);
+  return 3;
+}
+
+/* The error of a kernel that met a point where F' could not be evaluated. */
+static int circle_error(lua_State *L, const char *what, cplx c, double rho) {
+  char at[64];   /* lua_pushfstring has no %g */
+  snprintf(at, sizeof at, "%.15g%+.15gi", creal(c), cimag(c));
+  return luaL_error(L, "%s: F' is not finite on the circle of radius %g about %s", what, rho, at);
+}
+
+/* core.log_coefficient(tape, params, c, rho, n) -> the coefficient a of a log(t - c) in F
+ * (circle_log_coefficient in rings.h) */
+static int land_log_coefficient(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx c = bind_checkcomplex(L, 3);
+  double rho = luaL_checknumber(L, 4);
+  lua_Integer n = luaL_checkinteger(L, 5);
+  luaL_argcheck(L, rho > 0 && isfinite(rho), 4, "radius must be positive and finite");
+  luaL_argcheck(L, n >= 4 && n <= 65536, 5, "number of points must be 4..65536");
+  cplx a = 0;
+  if (circle_log_coefficient(p, c, rho, (int)n, &a) != STEEP_OK)
+    return circle_error(L, "log_coefficient", c, rho);
+  bind_pushcomplex(L, a);
+  return 1;
+}
+
+/* core.dF_laurent(tape, params, c, rho, n, depth) -> cvec of the Laurent coefficients
+ * b_m of F' about c, m = -depth - 1..0 (entry m + depth + 2), or nil where F' could not
+ * be evaluated on the circle (circle_dF_laurent in rings.h) */
+static int land_dF_laurent(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx c = bind_checkcomplex(L, 3);
+  double rho = luaL_checknumber(L, 4);
+  lua_Integer n = luaL_checkinteger(L, 5), depth = luaL_checkinteger(L, 6);
+  luaL_argcheck(L, rho > 0 && isfinite(rho), 4, "radius must be positive and finite");
+  luaL_argcheck(L, n >= 4 && n <= 65536, 5, "number of points must be 4..65536");
+  luaL_argcheck(L, depth >= 0 && depth <= 1024, 6, "depth must be 0..1024");
+  cplx *work = bind_array(L, (size_t)n, sizeof(cplx));
+  cplx *b = bind_newcvec(L, (size_t)depth + 2);
+  if (circle_dF_laurent(p, c, rho, (int)n, (int)depth, work, b) != STEEP_OK) lua_pushnil(L);
+  return 1;
 }
 
 /* ---- rings ---------------------------------------------------------------------- */
@@ -583,11 +685,13 @@ static int geo_nearest(lua_State *L) {
 }
 
 static const luaL_Reg land_funcs[] = {
-  {"zero", land_zero}, {"count", land_count}, {"trace", land_trace},
+  {"zero", land_zero}, {"count", land_count}, {"zeros", land_zeros}, {"trace", land_trace},
   {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
   {"short_stretches", land_short_stretches},
   {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},
   {"invmap_cubic", land_invmap_cubic}, {"laurent", land_laurent},
+  {"ring_quietest", land_ring_quietest}, {"log_coefficient", land_log_coefficient},
+  {"dF_laurent", land_dF_laurent},
   {"branch_jump", land_branch_jump}, {"ring_power", land_ring_power}, {"log_spread", land_log_spread},
   {"turning", geo_turning}, {"crossings", geo_crossings}, {"distance", geo_distance},
   {"nearest", geo_nearest},

@@ -52,6 +52,12 @@ void problem_integrand_batch(problem *p, const cplx *xs, size_t m, cplx *f, cplx
   for (size_t i = 0; i < m; i++) f[i] = (t->nout > 1 ? out[m + i] : 1.0) * cexp(out[i]);
 }
 
+void problem_values_batch(problem *p, const cplx *xs, size_t m, cplx *work, cplx *out) {
+  p->evals += (long)m;
+  if (p->tally) *p->tally += (long)m;
+  tape_eval_batch(p->t, xs, m, p->params, out, work);
+}
+
 int problem_dF(problem *p, cplx x, cplx *F, cplx *dF) {
   long bad;
   size_t out = (size_t)p->t->out[0];

@@ -41,6 +41,10 @@ cplx problem_integrand(problem *p, cplx x, cplx *F);
 void problem_integrand_batch(problem *p, const cplx *xs, size_t m, cplx *f, cplx *work,
                              cplx *out);
 
+/* The tape's outputs at m points (no exponential taken): out[o * m + i] is output o at
+ * xs[i], by tape_eval_batch. work: t->n * TAPE_BLOCK entries. Counts m evaluations. */
+void problem_values_batch(problem *p, const cplx *xs, size_t m, cplx *work, cplx *out);
+
 /* F(x) and F'(x) by forward mode (tape_dual_upto). Returns a steep_status. */
 int problem_dF(problem *p, cplx x, cplx *F, cplx *dF);
 

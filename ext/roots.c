@@ -2,6 +2,7 @@
  * roots.c — zeros of analytic functions in a disc; contracts in roots.h.
  */
 #include <math.h>
+#include <stdint.h>
 #include "roots.h"
 
 #define MAX_MULT 8
@@ -115,4 +116,87 @@ int root_count(jet_fn jet, void *ctx, cplx center, double radius, int maxpts, in
   *count = (int)lround(w);
   *dist = fabs(w - *count);
   return used >= maxpts ? ROOT_NOCONV : ROOT_OK;
+}
+
+/* |z| as lua/steep/complex.lua's hypot (the search replaces a Lua loop: same decisions). */
+static double plain_abs(cplx z) {
+  double re = creal(z), im = cimag(z);
+  double r = sqrt(re * re + im * im);
+  if (r < 1e150 && r > 1e-150) return r;
+  return cabs(z);
+}
+
+typedef struct {
+  jet_fn jet;
+  void *ctx;
+  long *evals;   /* the evaluation counter the jets advance */
+  cplx center;
+  double radius;
+  cplx *at;
+  int *mult;
+  size_t n;
+  long newton;   /* evaluations spent in Newton's method */
+} search;
+
+static void try_seed(search *s, cplx seed) {
+  cplx root = 0;
+  int m = 0;
+  long before = *s->evals;
+  int st = root_newton(s->jet, s->ctx, seed, s->center, s->radius, s->radius / 10, 60, &root, &m);
+  s->newton += *s->evals - before;
+  if (st != ROOT_OK) return;
+  for (size_t k = 0; k < s->n; k++)
+    if (plain_abs(s->at[k] - root) <= 1e-8 * s->radius) return;
+  s->at[s->n] = root;
+  s->mult[s->n] = m;
+  s->n++;
+}
+
+static int inside_total(const search *s) {
+  int n = 0;
+  for (size_t k = 0; k < s->n; k++)
+    if (plain_abs(s->at[k] - s->center) < s->radius) n += s->mult[k];
+  return n;
+}
+
+void root_search(jet_fn jet, void *ctx, long *evals, cplx center, double radius, int grid,
+                 const cplx *seeds, size_t nseeds, int count_pts, int poles, cplx *at,
+                 int *mult, size_t *nfound, long *nevals, int *count_status, int *count) {
+  const double pi = 3.141592653589793;
+  search s = {jet, ctx, evals, center, radius, at, mult, 0, 0};
+  if (grid) {
+    try_seed(&s, center);
+    for (int ring = 1; ring <= 6; ring++) {
+      double r = radius * ring / 6.5;
+      int m = 8 * ring;
+      for (int j = 0; j < m; j++)
+        try_seed(&s, center + r * cexp(I * (2 * pi * (j + 0.5 * (ring % 2)) / m)));
+    }
+  }
+  for (size_t k = 0; k < nseeds; k++)
+    if (plain_abs(seeds[k] - center) < radius) try_seed(&s, seeds[k]);
+  *count_status = ROOT_FAIL;
+  *count = 0;
+  if (count_pts > 0) {
+    double dist = 0;
+    *count_status = root_count(jet, ctx, center, radius, count_pts, count, &dist);
+    if (*count_status == ROOT_OK && grid) {
+      /* the Lua side's generator: s -> (s a + c) mod 2^63, uniform (s >> 11) / 2^52 */
+      uint64_t state = 12345;
+      int want = *count + poles;
+      for (int round = 1; round <= 4 && inside_total(&s) < want; round++) {
+        for (int j = 0; j < 150; j++) {
+          double u[2];
+          for (int q = 0; q < 2; q++) {
+            state = (state * 6364136223846793005ULL + 1442695040888963407ULL) &
+                    0x7fffffffffffffffULL;
+            u[q] = (double)(state >> 11) / 4503599627370496.0;
+          }
+          try_seed(&s, center + radius * sqrt(u[0]) * cexp(I * (2 * pi * u[1])));
+        }
+      }
+    }
+  }
+  *nfound = s.n;
+  *nevals = s.newton;
 }

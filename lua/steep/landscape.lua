@@ -86,45 +86,23 @@ end
 -- Zeros in a disc.
 ---------------------------------------------------------------------------------------
 
--- A deterministic generator for extra seeds (the same region gives the same seeds).
-local function lcg(seed)
-  local s = seed
-  return function()
-    s = (s * 6364136223846793005 + 1442695040888963407) & 0x7fffffffffffffff
-    return (s >> 11) / (1 << 52)
-  end
-end
-
 --- zeros(tape, params, spec, region, opts) -> list of {at, mult}, info
 -- spec = {out =, deriv =}: the zeros of the deriv-th derivative of tape output `out`.
 -- region = {center =, radius =}. opts.seeds: extra seed points; opts.poles: the number
 -- of poles of h inside (for the argument-principle count), or false if h is not
 -- meromorphic there (then no count is made). info: {count =, found =, status =, evals =}.
+-- Newton's method runs in C (core.zeros: the seeds are a grid of 169 points, then the
+-- extra ones; where the count says zeros are missing, up to 4 rounds of 150 random seeds,
+-- the same for the same disc; following a sweep from seeds only, a shortfall is
+-- reported, not searched for: the caller falls back to a full search).
 function M.zeros(tape, params, spec, region, opts)
   opts = opts or {}
   local c, R = region.center, region.radius
-  local scale = R / 10
+  local roots, mults, evals, count_status, count = core.zeros(tape, params, spec, c, R,
+    { grid = not opts.seeds_only, seeds = opts.seeds, count = opts.poles ~= false and 40000 or 0,
+      poles = opts.poles or 0 })
   local found = {}
-  local evals = 0
-  local function try(seed)
-    local st, root, mult, ev = core.zero(tape, params, spec, seed, c, R, scale, 60)
-    evals = evals + ev
-    if st ~= "ok" then return end
-    for _, z in ipairs(found) do
-      if cabs(z.at - root) <= 1e-8 * R then return end
-    end
-    found[#found + 1] = { at = root, mult = mult }
-  end
-  if not opts.seeds_only then
-    try(c)
-    for ring = 1, 6 do
-      local r, m = R * ring / 6.5, 8 * ring
-      for j = 0, m - 1 do try(c + r * expi(2 * pi * (j + 0.5 * (ring % 2)) / m)) end
-    end
-  end
-  for _, s in ipairs(opts.seeds or {}) do
-    if cabs(s - c) < R then try(s) end
-  end
+  for k = 1, #roots do found[k] = { at = roots:get(k), mult = mults[k] } end
   local info = { found = 0, evals = evals }
   local function total()
     local n = 0
@@ -132,20 +110,8 @@ function M.zeros(tape, params, spec, region, opts)
     return n
   end
   if opts.poles ~= false then
-    local st, count = core.count(tape, params, spec, c, R, 40000)
-    info.count_status = st
-    if st == "ok" then info.count = count + (opts.poles or 0) end
-    local rnd = lcg(12345)
-    local round = 0
-    -- (following a sweep from seeds only, a shortfall is reported, not searched for:
-    -- the caller falls back to a full search)
-    while info.count and total() < info.count and round < 4 and not opts.seeds_only do
-      round = round + 1
-      for _ = 1, 150 do
-        local r, th = R * math.sqrt(rnd()), 2 * pi * rnd()
-        try(c + r * expi(th))
-      end
-    end
+    info.count_status = count_status
+    if count_status == "ok" then info.count = count + (opts.poles or 0) end
   end
   -- keep the zeros inside the disc, nearest the center first
   local inside = {}
@@ -255,15 +221,9 @@ local function log_spread(tape, params, p, rho)
 end
 
 -- The coefficient c of c*log(t - p) in F at a log point: (1/2 pi i) times the integral of
--- F' around p, by the trapezoidal rule.
+-- F' around p, by the trapezoidal rule on 64 points (in C: core.log_coefficient).
 local function log_coefficient(tape, params, p, rho)
-  local n, s = 64, cnew(0, 0)
-  for k = 0, n - 1 do
-    local u = expi(2 * pi * k / n)
-    local Fs = tape:jet(p + rho * u, 1, params)
-    s = s + Fs:coef(1) * u
-  end
-  return s * rho / n
+  return core.log_coefficient(tape, params, p, rho, 64)
 end
 
 local function near_integer(x, tol) return abs(x - floor(x + 0.5)) <= tol end
@@ -276,20 +236,14 @@ local function near_integer(x, tol) return abs(x - floor(x + 0.5)) <= tol end
 -- s.lead, s.sectors ({from, to} angles) when the leading term is clear.
 essential_sectors = function(J, params, s, p, rho)
   local n, depth = 64, 12
-  local vals = {}
-  for j = 0, n - 1 do
-    local u = expi(2 * pi * j / n)
-    local ok, Fs = pcall(J.tape.jet, J.tape, p + rho * u, 1, params, 1)
-    if not ok then return end
-    vals[j] = Fs:coef(1)
-  end
-  -- b_m = (1/n) sum F'_j u_j^(-m) rho^(-m): the coefficient of (t - p)^m
+  -- b_m = (1/n) sum F'_j u_j^(-m) rho^(-m): the coefficient of (t - p)^m, on n points (in
+  -- C: core.dF_laurent; nil where F' is not finite on the circle)
+  local b = core.dF_laurent(J.tape, params, p, rho, n, depth)
+  if not b then return end
   local lead, order, big = nil, nil, 0
   local coef = {}
   for m = -depth - 1, 0 do
-    local sum = cnew(0, 0)
-    for j = 0, n - 1 do sum = sum + vals[j] * expi(-2 * pi * j * m / n) end
-    coef[m] = sum / n * rho ^ (-m)
+    coef[m] = b:get(m + depth + 2)
     big = math.max(big, cabs(coef[m]) * rho ^ m)
   end
   for m = -depth - 1, -2 do
@@ -316,23 +270,8 @@ end
 -- saddle of the coefficient's Cauchy integral). Points: enough for the rule on every
 -- other point to agree (their difference is the error estimate, with the rounding).
 function M.residue(J, params, p, nearest, order)
-  local best, brho, bspread = huge, nil, 0
-  for i = 0, 60 do
-    local rho = 0.9 * nearest * 2 ^ (-i / 3)
-    local pts = {}
-    for k = 0, 63 do pts[k + 1] = p + rho * expi(2 * pi * (k + 0.5) / 64) end
-    local Fv, gv = J.tape:eval_many(core.cvec(pts), params)
-    local hi, lo = -huge, huge
-    for k = 1, 64 do
-      local fr = cparts(Fv:get(k))
-      local gm = gv and cabs(gv:get(k)) or 1
-      local l = fr + (gm > 0 and log(gm) or -huge)
-      if l ~= l then l = huge end
-      hi, lo = math.max(hi, l), math.min(lo, l)
-    end
-    local score = hi + log(rho)
-    if score < best then best, brho, bspread = score, rho, hi - lo end
-  end
+  -- radii 0.9 nearest 2^(-i/3), i = 0..60, 64 points each (in C: core.ring_quietest)
+  local brho, best, bspread = core.ring_quietest(J.tape, params, p, 0.9 * nearest, 61, 64)
   if not brho or not (best < 700) then return nil end
   -- (the function's variation around the circle sets how many points the rule needs)
   local N = 256
