@@ -40,12 +40,14 @@ int root_count(jet_fn jet, void *ctx, cplx center, double radius, int maxpts, in
 /* All the zeros Newton's method finds in the disc |t - center| < radius from a set of
  * seeds, told apart at 1e-8 radius (a zero met again from another seed is kept once, with
  * the multiplicity of its first finding), in the order first found; each Newton run as
- * root_newton with scale radius/10 and 60 steps. Seeds, in this order: with `grid`, the
- * center and 6 rings of 8, 16, ..., 48 points at radii k/6.5 (odd rings turned by half a
- * step); then the extra seeds inside the disc; then, with count_pts > 0, the argument
- * principle (root_count with that many points at most) counts the zeros inside, and with
- * `grid` up to 4 rounds of 150 pseudo-random seeds (a fixed generator: the same disc gets
- * the same seeds) run while fewer than count + poles (with multiplicity) were found.
+ * root_newton with scale radius/10 and 60 steps (an iterate that lands on a zero found
+ * already stops there). Seeds: with `grid`, the center and 6 rings of 8, 16, ..., 48 points
+ * at radii k/6.5 (odd rings turned by half a step); the extra seeds inside the disc. With
+ * count_pts > 0 the argument principle (root_count with that many points at most) counts
+ * the zeros inside less the poles; with `grid` as well, the extra seeds go first, then the
+ * count, and the grid only where they found fewer than count + poles zeros (with
+ * multiplicity), then up to 4 rounds of 150 pseudo-random seeds (a fixed generator: the
+ * same disc gets the same seeds) while that is still so. Without a count, the grid first.
  * at[], mult[]: room for ROOT_SEARCH_MAX(nseeds) zeros; *nfound their number, *nevals
  * the evaluations of Newton's method (the count's not included); *count_status a
  * root_status of the count (ROOT_FAIL when none was made), *count its result.

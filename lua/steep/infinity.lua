@@ -158,9 +158,19 @@ local function dominant_raw(list, th)
   return group, best
 end
 
+-- Does no term of the list (nor its remainder) have an exponential part? Then the
+-- growths do not depend on the direction (growth() reads th only through E), and neither
+-- does a decision about the list: it holds at every direction and is not replayed.
+local function fixed_growths(list)
+  for _, t in ipairs(list.terms) do if #t.E > 0 then return false end end
+  return not (list.rest and #list.rest.E > 0)
+end
+
 local function dominant(list, th)
   local group, best = dominant_raw(list, th)
-  if log then log[#log + 1] = { kind = "dominant", list = list, group = group } end
+  if log then
+    log[#log + 1] = { kind = "dominant", list = list, group = group, fixed = fixed_growths(list) }
+  end
   return group, best
 end
 
@@ -169,13 +179,16 @@ end
 local function rest_below(list, g, th)
   if not list.rest then return true end
   local below = compare(growth(list.rest, th), g) < 0
-  if log then log[#log + 1] = { kind = "rest", list = list, below = below } end
+  if log then
+    log[#log + 1] = { kind = "rest", list = list, below = below, fixed = fixed_growths(list) }
+  end
   return below
 end
 
 -- Do the logged decisions come out the same at direction th?
 local function same_decisions(decisions, th)
   for _, d in ipairs(decisions) do
+    if d.fixed then goto next_decision end
     local group, best = dominant_raw(d.list, th)
     if d.kind == "dominant" then
       if #group ~= #d.group then return false end
@@ -183,6 +196,7 @@ local function same_decisions(decisions, th)
     elseif best then
       if (compare(growth(d.list.rest, th), best) < 0) ~= d.below then return false end
     end
+    ::next_decision::
   end
   return true
 end

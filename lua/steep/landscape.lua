@@ -79,7 +79,39 @@ function M.critical(F, g, var)
   end
   walk(expr.lift(F), "exponent")
   if g ~= nil then walk(expr.lift(g), "amplitude") end
+  for _, c in ipairs(out) do c.degree = M.poly_degree(c.h, var) end
   return out
+end
+
+--- poly_degree(e, var) -> d when the expression e is, by its form, a polynomial in var of
+-- degree at most d (sums, products, whole powers and quotients by what does not depend on
+-- var; anything free of var counts as a constant), else nil. At most 64.
+function M.poly_degree(e, var)
+  local memo = {}
+  local function deg(n)
+    if not expr.is(n) then return 0 end
+    local m = memo[n]
+    if m ~= nil then return m or nil end
+    local op, r = n.op, nil
+    if op == "const" or op == "param" then r = 0
+    elseif op == "var" then r = (n == var) and 1 or 0
+    else
+      local a = n.a and deg(n.a)
+      local b = n.b and deg(n.b)
+      local free = (n.a == nil or a == 0) and (n.b == nil or b == 0)
+      if free then r = 0
+      elseif op == "add" or op == "sub" then r = a and b and math.max(a, b)
+      elseif op == "neg" then r = a
+      elseif op == "mul" then r = a and b and a + b
+      elseif op == "div" then r = (b == 0) and a or nil
+      elseif op == "powi" and n.k >= 0 then r = a and a * n.k
+      end
+    end
+    if r and r > 64 then r = nil end
+    memo[n] = r or false
+    return r
+  end
+  return deg(expr.lift(e))
 end
 
 ---------------------------------------------------------------------------------------
@@ -98,11 +130,18 @@ end
 function M.zeros(tape, params, spec, region, opts)
   opts = opts or {}
   local c, R = region.center, region.radius
-  local roots, mults, evals, count_status, count = core.zeros(tape, params, spec, c, R,
-    { grid = not opts.seeds_only, seeds = opts.seeds, count = opts.poles ~= false and 40000 or 0,
-      poles = opts.poles or 0 })
-  local found = {}
-  for k = 1, #roots do found[k] = { at = roots:get(k), mult = mults[k] } end
+  local found, evals, count_status, count
+  if opts.degree and opts.poles == false and not opts.seeds_only and spec.deriv == 0 then
+    found, evals = M.polynomial_zeros(tape, params, spec, region, opts.degree)
+  end
+  if not found then
+    local roots, mults
+    roots, mults, evals, count_status, count = core.zeros(tape, params, spec, c, R,
+      { grid = not opts.seeds_only, seeds = opts.seeds,
+        count = opts.poles ~= false and 40000 or 0, poles = opts.poles or 0 })
+    found = {}
+    for k = 1, #roots do found[k] = { at = roots:get(k), mult = mults[k] } end
+  end
   local info = { found = 0, evals = evals }
   local function total()
     local n = 0
@@ -133,6 +172,35 @@ function M.zeros(tape, params, spec, region, opts)
       info.count, info.found)
   end
   return inside, info
+end
+
+--- polynomial_zeros(tape, params, spec, region, d) -> list of {at, mult}, evaluations: the
+-- zeros in the disc of tape output spec.out, a polynomial of degree at most d (its form
+-- says so: M.poly_degree): its Taylor coefficients about the center by one jet, every
+-- root by poly_roots, each polished by Newton's method on the tape (the multiplicity from
+-- its jet; roots of a multiple zero polish to one), as zeros() keeps them. Nil when the
+-- jet cannot be taken at the center (an earlier output of the tape is singular there).
+function M.polynomial_zeros(tape, params, spec, region, d)
+  local c, R = region.center, region.radius
+  local ok, s = pcall(function() return select(spec.out, tape:jet(c, d, params, spec.out)) end)
+  if not ok then return nil end
+  local a = {}
+  for j = 0, d do a[j] = s:coef(j) end
+  while d > 0 and cabs(a[d]) == 0 do d = d - 1 end
+  local found, evals = {}, 1
+  if d == 0 then return found, evals end
+  for _, u in ipairs((M.poly_roots(a, d))) do
+    local st, root, mult, ev = core.zero(tape, params, spec, c + u, c, R, R / 10, 60)
+    evals = evals + ev
+    if st == "ok" then
+      local dup = false
+      for _, z in ipairs(found) do
+        if cabs(z.at - root) <= 1e-8 * R then dup = true; break end
+      end
+      if not dup then found[#found + 1] = { at = root, mult = mult } end
+    end
+  end
+  return found, evals
 end
 
 --- poly_roots(c, d) -> list of the d roots of sum_{k<=d} c[k] z^k (complex values), by
@@ -310,7 +378,8 @@ function M.singularities(J, params, region, opts)
   local htape = J:critical_tape()
   for k, c in ipairs(crit) do
     local zs, zi = M.zeros(htape, params, { out = k, deriv = 0 }, region,
-      { poles = false, seeds = opts and opts.seeds, seeds_only = opts and opts.fast })
+      { poles = false, seeds = opts and opts.seeds, seeds_only = opts and opts.fast,
+        degree = c.degree })
     info.evals = info.evals + zi.evals
     local found = 0
     for _, z in ipairs(zs) do

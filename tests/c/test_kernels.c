@@ -548,6 +548,14 @@ static void test_roots(void) {
     check(cst == ROOT_OK && count == 4 && total == 4 && n == 3 && seen[0] == 1 && seen[1] == 1 &&
               seen[2] == 1 && newton > 0,
           "root_search: every zero of h in |t| < 3 once, with multiplicity, counted 4");
+    /* seeds by each zero reach the count: the grid is not searched (one Newton run per
+     * seed, a handful of jets each, against 169 runs) */
+    cplx near[3] = {1.1, -2.1, 0.05 + 1.05 * I};
+    long grid_evals = newton;
+    root_search(poly_jet, &calls, &calls, 0, 3, 1, near, 3, 20000, 0, at, mult, &n, &newton,
+                &cst, &count);
+    check(cst == ROOT_OK && count == 4 && n == 3 && newton < grid_evals / 5,
+          "root_search: seeds that reach the count spare the grid");
     cplx seed = -1.8 + 0.1 * I;
     root_search(poly_jet, &calls, &calls, 0, 3, 0, &seed, 1, 0, 0, at, mult, &n, &newton, &cst,
                 &count);
