@@ -307,7 +307,9 @@ static cplx integrand_one(void *ctx, cplx t) { return integrand(((batch_ctx *)ct
 /* core.quad_polyline(tape, params, points, opts) -> value, error, evaluations, status
  * opts: abstol, reltol, singular_start, singular_end (tanh-sinh on that segment), limit
  * (subintervals per segment), budget (evaluations in all; past it: status "limit"),
- * first, last (integrate the points first..last only, 1-based; default all).
+ * first, last (integrate the points first..last only, 1-based; default all); for a
+ * traced descent path, levels (F at every point) and merge (the largest fall of Re F a
+ * joined segment may span), avoid (points the joined chords keep clear of).
  * The two passes of quad_polyline (quad.h), the first with batch evaluation of the tape. */
 static int land_quad_polyline(lua_State *L) {
   problem *p = checkproblem(L);
@@ -327,6 +329,24 @@ static int land_quad_polyline(lua_State *L) {
   size_t last = (size_t)optint(L, 4, "last", (long)n, (long)first + 1, (long)n);
   pts += first - 1;
   n = last - first + 1;
+  /* a traced descent path: consecutive segments joined where F changes little
+   * (quad_merge_vertices), with F's values at the points in `levels` */
+  double drop = optnum(L, 4, "merge", 0);
+  lua_getfield(L, 4, "levels");
+  if (drop > 0 && !lua_isnil(L, -1) && first == 1 && last == n) {
+    size_t nl = 0, na = 0;
+    const cplx *levels = bind_checkpoints(L, lua_gettop(L), &nl);
+    lua_getfield(L, 4, "avoid");
+    const cplx *avoid = lua_isnil(L, -1) ? NULL : bind_checkpoints(L, lua_gettop(L), &na);
+    if (nl == n) {
+      size_t *keep = bind_array(L, n, sizeof(size_t));
+      size_t m = quad_merge_vertices(pts, levels, n, drop, avoid, na, keep);
+      cplx *merged = bind_array(L, m, sizeof(cplx));
+      for (size_t k = 0; k < m; k++) merged[k] = pts[keep[k]];
+      pts = merged;
+      n = m;
+    }
+  }
   batch_ctx c = {p, bind_array(L, p->t->n, TAPE_BLOCK * sizeof(cplx)),
                  bind_array(L, p->t->nout, 15 * QUAD_BATCH * sizeof(cplx))};
   void *scratch = bind_array(L, QUAD_POLYLINE_BYTES(n - 1), 1);

@@ -12,18 +12,20 @@ static int eval(problem *p, cplx t, cplx *F, cplx *dF) {
   return finite_c(*F) && finite_c(*dF) ? STEEP_OK : STEEP_NONFINITE;
 }
 
-/* log |g(t) e^{F(t)}| = Re F + log|g| (no overflow or underflow of the integrand). */
+/* log |g(t) e^{F(t)}| = Re F + log|g| (no overflow or underflow of the integrand), where
+ * the last evaluation was problem_dF at t (g continues it). */
 static double log_integrand(problem *p, cplx t, cplx Fcont) {
   if (p->t->nout < 2) return creal(Fcont);
-  cplx F;
-  (void)problem_integrand(p, t, &F);
-  return creal(Fcont) + log(cabs(p->vals[1]));
+  return creal(Fcont) + log(cabs(problem_amplitude_after_dF(p, t)));
 }
 
-/* Newton's corrector onto Im(F + off) = target: moves along grad Im F = i conj(F'). */
-static int correct(problem *p, cplx *t, double target, cplx off, cplx *F, cplx *dF) {
+/* Newton's corrector onto Im(F + off) = target: moves along grad Im F = i conj(F').
+ * `known`: *F and *dF hold F and F' at *t already (the predictor's evaluation); the last
+ * evaluation made is at the returned *t. */
+static int correct(problem *p, cplx *t, double target, cplx off, cplx *F, cplx *dF,
+                   int known) {
   for (int k = 0; k < 6; k++) {
-    if (eval(p, *t, F, dF) != STEEP_OK) return STEEP_SINGULAR;
+    if (!(k == 0 && known) && eval(p, *t, F, dF) != STEEP_OK) return STEEP_SINGULAR;
     double r = cimag(*F + off) - target;
     double d2 = creal(*dF) * creal(*dF) + cimag(*dF) * cimag(*dF);
     if (fabs(r) <= 1e-13 * (1 + cabs(*F + off)) || d2 == 0) return STEEP_OK;
@@ -49,7 +51,7 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
    * there differs from it by a branch jump (a saddle on a cut of log), carry the jump. */
   if (eval(p, t, &F, &dF) == STEEP_OK && fabs(cimag(level - F)) > 0.5)
     off = I * cimag(level - F);
-  if (correct(p, &t, target, off, &F, &dF) != STEEP_OK) return PATH_SINGULAR;
+  if (correct(p, &t, target, off, &F, &dF, 0) != STEEP_OK) return PATH_SINGULAR;
   pts[0] = t;
   Fs[0] = F;
   *n = 1;
@@ -80,7 +82,7 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
         if (h > 1e-6 * o->scale) { h *= 0.5; continue; }
         off -= jump;   /* a branch jump of F's principal value: undo it */
       }
-      if (correct(p, &t1, target, off, &F1, &dF1) != STEEP_OK) {
+      if (correct(p, &t1, target, off, &F1, &dF1, 1) != STEEP_OK) {
         if (h > hmin) { h *= 0.5; continue; }
         return PATH_SINGULAR;
       }
@@ -142,7 +144,7 @@ int path_saddle_starts(problem *p, cplx t0, cplx F0, int order, cplx c, int desc
       cplx cont = continuous_F(p, t0, F0, t);
       if (fabs(cimag(cont - F)) > 0.5) off = I * cimag(cont - F);
     }
-    if (correct(p, &t, cimag(F0), off, &F, &dF) != STEEP_OK) return STEEP_SINGULAR;
+    if (correct(p, &t, cimag(F0), off, &F, &dF, 0) != STEEP_OK) return STEEP_SINGULAR;
     starts[k] = t;
   }
   return STEEP_OK;

@@ -69,3 +69,10 @@ int problem_dF(problem *p, cplx x, cplx *F, cplx *dF) {
   *dF = d[out];
   return st;
 }
+
+cplx problem_amplitude_after_dF(problem *p, cplx x) {
+  if (p->t->nout < 2) return 1;
+  size_t out0 = (size_t)p->t->out[0], out1 = (size_t)p->t->out[1];
+  if (out1 <= out0) return p->work[out1];
+  return tape_eval_from(p->t, x, p->params, p->work, out0 + 1, out1);
+}

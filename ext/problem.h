@@ -48,4 +48,9 @@ void problem_values_batch(problem *p, const cplx *xs, size_t m, cplx *work, cplx
 /* F(x) and F'(x) by forward mode (tape_dual_upto). Returns a steep_status. */
 int problem_dF(problem *p, cplx x, cplx *F, cplx *dF);
 
+/* The amplitude g at the point of the last successful problem_dF (1 when the tape has
+ * one output): that evaluation continued by value to g's slot (tape_eval_from), not a
+ * new evaluation. */
+cplx problem_amplitude_after_dF(problem *p, cplx x);
+
 #endif

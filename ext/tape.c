@@ -324,3 +324,13 @@ int tape_dual_upto(const tape *t, cplx x, const cplx *params, cplx *v, cplx *d, 
   }
   return STEEP_OK;
 }
+
+cplx tape_eval_from(const tape *t, cplx x, const cplx *params, cplx *v, size_t from,
+                    size_t upto) {
+  for (size_t j = from; j <= upto && j < t->n; j++) {
+    const tape_ins *in = &t->ins[j];
+    cplx a = in->a >= 0 ? v[in->a] : 0, b = in->b >= 0 ? v[in->b] : 0;
+    v[j] = apply1(in, a, b, x, params);
+  }
+  return v[upto];
+}

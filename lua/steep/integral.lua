@@ -939,6 +939,16 @@ function M.quad_link(J, params, L, piece, notes)
   return v2 - v1, e1 + e2, n1 + n2, (s1 ~= "ok" and s1) or s2
 end
 
+-- The singular points of L (a cvec, kept with L): chords joined along a path keep clear.
+local function singular_points(L)
+  if not L._singular_points then
+    local pts = {}
+    for k, s in ipairs(L.singularities) do pts[k] = s.at end
+    L._singular_points = core.cvec(pts)
+  end
+  return L._singular_points
+end
+
 -- Along the steepest descent decomposition, plus residues.
 local function quad_deformed(J, params, L)
   local ok, plan = pcall(decompose.decompose, J, params, L, J.contour)
@@ -962,10 +972,20 @@ local function quad_deformed(J, params, L)
         error = e, ends = piece.ends, at = piece.through }
     elseif #piece.points >= 2 then
       local singular_end = piece.reason == "singular" or piece.reason == "stop"
+      -- (a traced path's segments are joined where F falls by at most 1 across them:
+      -- the tracer's first steps off a saddle are tiny, its later ones fall by about 2)
+      local path, levels = piece.path, nil
+      if path and not path.straight and path.F and #path.F > 0 then
+        -- (a saddle's path starts at the saddle itself, then its traced points: the join
+        -- shares b's first point, so a ends with it)
+        levels = piece.kind == "saddle"
+          and core.cvec_join({ L.saddles[piece.index].F, path.F:get(1) }, path.F) or path.F
+      end
       local v, e, ev, st = core.quad_polyline(J.tape, params, piece.points,
         { reltol = noise_tol(J, params, piece.points[1]),
           singular_start = piece.kind == "endpoint" and singular_at(L, piece.at) ~= nil,
-          singular_end = singular_end })
+          singular_end = singular_end, levels = levels, merge = levels and 1,
+          avoid = levels and singular_points(L) })
       info.evals = info.evals + ev
       if st ~= "ok" then info.status = "quadrature " .. st end
       local why = piece.path and piece.path.reason

@@ -364,6 +364,25 @@ static void test_quad_polyline(void) {
   free(scratch);
 }
 
+/* quad_merge_vertices: a straight descent path with levels falling by 0.1, 0.1, 0.3,
+ * 0.6, 2, 2 joins the first four segments (a fall of 1.1 > 1 stops before the fourth:
+ * kept 0, 3, 4, 5, 6), and a pole beside the chord keeps every segment. */
+static void test_merge_vertices(void) {
+  cplx pts[7], lev[7], pole = 0.15 + 0.05 * I;
+  double fall[7] = {0, 0.1, 0.2, 0.5, 1.1, 3.1, 5.1};
+  for (int k = 0; k < 7; k++) { pts[k] = 0.1 * k; lev[k] = -fall[k]; }
+  size_t keep[7];
+  size_t m = quad_merge_vertices(pts, lev, 7, 1.0, NULL, 0, keep);
+  check(m == 5 && keep[0] == 0 && keep[1] == 3 && keep[2] == 4 && keep[3] == 5 && keep[4] == 6,
+        "quad_merge_vertices: segments joined while Re F falls by at most 1");
+  m = quad_merge_vertices(pts, lev, 7, 1.0, &pole, 1, keep);
+  check(m == 7, "quad_merge_vertices: no chord passes near a pole");
+  /* a turn of more than 0.25 rad ends a joined stretch */
+  pts[2] = 0.1 + 0.1 * I;
+  m = quad_merge_vertices(pts, lev, 7, 1.0, NULL, 0, keep);
+  check(m >= 2 && keep[1] == 1, "quad_merge_vertices: a turn ends a joined stretch");
+}
+
 static void test_geom(void) {
   enum { NP = 64 };
   cplx c[2 * NP + 1], cw[NP + 1];
@@ -1163,6 +1182,7 @@ int main(void) {
   test_invmap_budget();
   test_rings();
   test_clog();
+  test_merge_vertices();
   test_dual();
   test_airy();
   test_multi();
