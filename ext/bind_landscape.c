@@ -11,6 +11,7 @@
 #include <stdio.h>
 #include <string.h>
 #include "bind.h"
+#include "cplx.h"
 #include "geom.h"
 #include "invmap.h"
 #include "path.h"
@@ -174,13 +175,30 @@ static int land_zeros(lua_State *L) {
   return 5;
 }
 
+/* core.aberth(coefficients, bound) -> roots (cvec), sweeps: the d roots of the monic
+ * polynomial whose coefficients a_0..a_d (a_d = 1) are given, by root_aberth (roots.h). */
+static int land_aberth(lua_State *L) {
+  size_t n = 0;
+  const cplx *a = bind_checkpoints(L, 1, &n);
+  double bound = luaL_checknumber(L, 2);
+  luaL_argcheck(L, n >= 2 && n <= 4097, 1, "2 to 4097 coefficients expected");
+  luaL_argcheck(L, bound > 0 && isfinite(bound), 2, "bound must be positive and finite");
+  int d = (int)n - 1;
+  cplx *z = bind_newcvec(L, (size_t)d);
+  lua_pushinteger(L, root_aberth(a, d, bound, z));
+  return 2;
+}
+
 /* ---- paths ---------------------------------------------------------------------- */
 
 static const char *end_text[] = {"low", "high", "edge", "stop", "singular", "flat", "bound"};
 
 /* core.trace(tape, params, start, level, opts) -> points, F values (cvecs), end, which
- * opts: descent, coarse (booleans), cutoff, ref, center, radius, scale, maxsteps, maxpts,
- *       stops (list of points), stop_r (list of radii) */
+ * opts: descent, coarse, jumps (booleans; jumps: F may jump across a branch cut, the
+ *       default), cutoff, ref, center, radius, scale, maxsteps, maxpts,
+ *       stops (points), stop_r (list of radii), skip (the index of a stop to leave out),
+ *       near (a point: stops within twice their radius of it are left out); `which` is
+ *       the index in the whole list of stops */
 static int land_trace(lua_State *L) {
   problem *p = checkproblem(L);
   cplx start = bind_checkcomplex(L, 3), level = bind_checkcomplex(L, 4);
@@ -190,7 +208,9 @@ static int land_trace(lua_State *L) {
   o.descent = lua_toboolean(L, -1);
   lua_getfield(L, 5, "coarse");
   o.coarse = lua_toboolean(L, -1);
-  lua_pop(L, 2);
+  lua_getfield(L, 5, "jumps");
+  o.jumps = lua_isnil(L, -1) || lua_toboolean(L, -1);
+  lua_pop(L, 3);
   o.cutoff = optnum(L, 5, "cutoff", 50);
   o.ref = optnum(L, 5, "ref", creal(level));
   o.center = optcomplex(L, 5, "center", 0);
@@ -213,9 +233,24 @@ static int land_trace(lua_State *L) {
     stop_r[j] = luaL_checknumber(L, -1);
     lua_pop(L, 1);
   }
-  o.stops = stops;
-  o.stop_r = stop_r;
-  o.nstops = ns;
+  /* the stops kept (a saddle's own paths leave it out; a path that starts at a stop point
+   * must leave it), with their indices in the whole list */
+  long skip = optint(L, 5, "skip", 0, 0, (long)ns) - 1;
+  lua_getfield(L, 5, "near");
+  int has_near = !lua_isnil(L, -1);
+  cplx near = has_near ? bind_checkcomplex(L, lua_gettop(L)) : 0;
+  cplx *kept = bind_array(L, ns + 1, sizeof(cplx));
+  double *kept_r = bind_array(L, ns + 1, sizeof(double));
+  size_t *index = bind_array(L, ns + 1, sizeof(size_t)), nk = 0;
+  for (size_t j = 0; j < ns; j++) {
+    if ((long)j == skip || (has_near && plain_abs(stops[j] - near) <= 2 * stop_r[j])) continue;
+    kept[nk] = stops[j];
+    kept_r[nk] = stop_r[j];
+    index[nk++] = j;
+  }
+  o.stops = kept;
+  o.stop_r = kept_r;
+  o.nstops = nk;
   cplx *pts = bind_buffer(L, bind_mulcount(L, 2 * maxpts, sizeof(cplx))), *Fs = pts + maxpts;
   int buffer = lua_gettop(L);
   size_t n = 0;
@@ -225,7 +260,7 @@ static int land_trace(lua_State *L) {
   memcpy(bind_newcvec(L, n), Fs, n * sizeof(cplx));
   bind_buffer_release(L, buffer);
   lua_pushstring(L, end_text[end]);
-  if (which >= 0) lua_pushinteger(L, which + 1);
+  if (which >= 0) lua_pushinteger(L, (lua_Integer)index[which] + 1);
   else lua_pushnil(L);
   lua_pushinteger(L, p->evals);
   return 5;
@@ -705,7 +740,8 @@ static int geo_nearest(lua_State *L) {
 }
 
 static const luaL_Reg land_funcs[] = {
-  {"zero", land_zero}, {"count", land_count}, {"zeros", land_zeros}, {"trace", land_trace},
+  {"zero", land_zero}, {"count", land_count}, {"zeros", land_zeros}, {"aberth", land_aberth},
+  {"trace", land_trace},
   {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
   {"short_stretches", land_short_stretches},
   {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},

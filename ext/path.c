@@ -2,6 +2,7 @@
  * path.c — steepest path tracing; contracts in path.h.
  */
 #include <math.h>
+#include "cplx.h"
 #include "path.h"
 
 static int finite_c(cplx z) { return isfinite(creal(z)) && isfinite(cimag(z)); }
@@ -62,6 +63,10 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
     /* never step over a stop point, or so far that Re F changes by more than ~2 */
     double hcap = 0.1 * o->radius;
     for (size_t j = 0; j < o->nstops; j++) {
+      /* (a stop farther than 2 hcap + its radius cannot lower hcap: told by the square
+       * of its distance, with room for rounding, before the modulus is taken) */
+      double lim = 2 * hcap + o->stop_r[j];
+      if (lim >= 0 && abs2(t - o->stops[j]) > lim * lim * (1 + 1e-12)) continue;
       double dist = cabs(t - o->stops[j]) - o->stop_r[j];
       hcap = fmin(hcap, fmax(0.5 * dist, hmin));
     }
@@ -78,7 +83,7 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
       /* continuity of F: compare the change with the trapezoidal integral of F' */
       cplx pred = 0.5 * (dF + dF1) * (t1 - t);
       cplx jump = (F1 + off) - (F + off) - pred;
-      if (cabs(jump) > 0.5 + 0.1 * cabs(pred)) {
+      if (o->jumps && cabs(jump) > 0.5 + 0.1 * cabs(pred)) {
         if (h > 1e-6 * o->scale) { h *= 0.5; continue; }
         off -= jump;   /* a branch jump of F's principal value: undo it */
       }
@@ -99,8 +104,11 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
     Fs[*n] = F + off;
     (*n)++;
     if (!finite_c(F) || !finite_c(dF)) return PATH_SINGULAR;
-    for (size_t j = 0; j < o->nstops; j++)
-      if (cabs(t - o->stops[j]) <= o->stop_r[j]) { *which = (int)j; return PATH_STOP; }
+    for (size_t j = 0; j < o->nstops; j++) {
+      double r = o->stop_r[j];
+      if (abs2(t - o->stops[j]) > r * r * (1 + 1e-12)) continue;   /* surely outside */
+      if (cabs(t - o->stops[j]) <= r) { *which = (int)j; return PATH_STOP; }
+    }
     if (o->descent) {
       if (log_integrand(p, t, F + off) < o->ref - o->cutoff) return PATH_LOW;
     } else if (creal(F + off) - creal(level) > o->cutoff) {

@@ -33,6 +33,10 @@ typedef struct path_opts {
   int maxsteps;
   int coarse;             /* 1: no cap on the change of Re F per step (for following a
                            * path far out once the integrand is negligible) */
+  int jumps;              /* 1: F may jump across branch cuts (a log, root or non-integer
+                           * power in it): each step's change of F is checked against F'
+                           * (which for a fast F such as t^33 also keeps steps short); 0:
+                           * F is single-valued, no check */
   const cplx *stops;      /* points where a path ends when it comes within stop_r[j] */
   const double *stop_r;
   size_t nstops;

@@ -3,19 +3,11 @@
  */
 #include <math.h>
 #include <stdlib.h>
+#include "cplx.h"
 #include "rings.h"
 
 static const double TWO_PI = 6.283185307179586;
 static const double PI = 3.141592653589793;
-
-/* |z| as lua/steep/complex.lua's hypot computes it (the plain formula where it cannot
- * overflow or underflow): the kernels below replace Lua loops and keep their results. */
-static double plain_abs(cplx z) {
-  double re = creal(z), im = cimag(z);
-  double r = sqrt(re * re + im * im);
-  if (r < 1e150 && r > 1e-150) return r;
-  return cabs(z);
-}
 
 static int by_value(const void *a, const void *b) {
   double x = *(const double *)a, y = *(const double *)b;

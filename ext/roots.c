@@ -3,6 +3,8 @@
  */
 #include <math.h>
 #include <stdint.h>
+#include "cdiv.h"
+#include "cplx.h"
 #include "roots.h"
 
 #define MAX_MULT 8
@@ -138,14 +140,6 @@ int root_count(jet_fn jet, void *ctx, cplx center, double radius, int maxpts, in
   return used >= maxpts ? ROOT_NOCONV : ROOT_OK;
 }
 
-/* |z| as lua/steep/complex.lua's hypot (the search replaces a Lua loop: same decisions). */
-static double plain_abs(cplx z) {
-  double re = creal(z), im = cimag(z);
-  double r = sqrt(re * re + im * im);
-  if (r < 1e150 && r > 1e-150) return r;
-  return cabs(z);
-}
-
 typedef struct {
   jet_fn jet;
   void *ctx;
@@ -244,4 +238,35 @@ void root_search(jet_fn jet, void *ctx, long *evals, cplx center, double radius,
   }
   *nfound = s.n;
   *nevals = s.newton;
+}
+
+/* (lua/steep/landscape.lua ran this loop; the port keeps its arithmetic, so the roots are
+ * the same to the bit: Smith's division, |z| by the plain formula.) */
+int root_aberth(const cplx *a, int d, double bound, cplx *z) {
+  const double pi = 3.141592653589793;
+  for (int k = 1; k <= d; k++) z[k - 1] = bound * cexp(I * (2 * pi * (k - 1) / d + 0.4));
+  int sweep;
+  for (sweep = 1; sweep <= 500; sweep++) {
+    double moved = 0;
+    for (int k = 0; k < d; k++) {
+      cplx x = z[k], p = a[d], dp = 0;
+      for (int j = d - 1; j >= 0; j--) {
+        dp = dp * x + p;
+        p = p * x + a[j];
+      }
+      if (plain_abs(p) == 0) continue;
+      cplx w = cdiv(p, dp), s = 0;
+      for (int j = 0; j < d; j++) {
+        if (j == k) continue;
+        cplx diff = z[k] - z[j];
+        if (plain_abs(diff) > 0) s = s + cdiv(1, diff);
+      }
+      cplx step = cdiv(w, 1 - w * s);
+      if (!(plain_abs(step) < INFINITY)) step = w;
+      z[k] = z[k] - step;
+      moved = fmax(moved, plain_abs(step) / fmax(plain_abs(z[k]), 1e-300 + bound * 1e-15));
+    }
+    if (moved < 1e-15) break;
+  }
+  return sweep;
 }

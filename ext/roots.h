@@ -57,4 +57,12 @@ void root_search(jet_fn jet, void *ctx, long *evals, cplx center, double radius,
                  const cplx *seeds, size_t nseeds, int count_pts, int poles, cplx *at,
                  int *mult, size_t *nfound, long *nevals, int *count_status, int *count);
 
+/* The d roots of the monic polynomial z^d + a[d-1] z^(d-1) + ... + a[0] (a[d] = 1) by the
+ * Aberth-Ehrlich iteration (O. Aberth, Math. Comp. 27 (1973) 339-344), Gauss-Seidel style
+ * (each root updated in place, in order), started at z_k = bound e^{i (2 pi (k-1)/d + 0.4)}
+ * (bound > 0: a bound on every root's modulus), at most 500 sweeps, stopping when no
+ * root moved by more than 1e-15 relative. Writes z[0..d-1]; returns the sweeps made.
+ * O(d^2) per sweep. */
+int root_aberth(const cplx *a, int d, double bound, cplx *z);
+
 #endif

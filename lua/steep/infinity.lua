@@ -59,7 +59,15 @@ local function ekey(E)
   return table.concat(parts, ",")
 end
 
-local function key(t) return format("%a:%a:%d|%s", t.pr, t.pi, t.q, ekey(t.E)) end
+-- (kept in the term: a term's powers and exponential part never change once made)
+local function key(t)
+  local k = t.key
+  if not k then
+    k = format("%a:%a:%d|%s", t.pr, t.pi, t.q, ekey(t.E))
+    t.key = k
+  end
+  return k
+end
 
 local function E_add(A, B)
   local by, out = {}, {}
@@ -455,8 +463,14 @@ end
 
 --- polynomial(e, var, params) -> coefficient list c[0..d] (complex values) if e is a
 -- polynomial in var (exactly, with the parameters' values), else nil.
+local polynomial_of
 function M.polynomial(e, var, params)
-  local L = M.list(e, var, params, 0)
+  return polynomial_of(M.list(e, var, params, 0))
+end
+
+-- The same from e's term list (at any direction: a polynomial's list has no remainder and
+-- no decision in it depends on the direction).
+polynomial_of = function(L)
   if not L or L.rest then return nil end
   local c, d = {}, 0
   for _, t in ipairs(L.terms) do
@@ -691,8 +705,17 @@ function M.analyze(F, g, var, params, rho)
   end
   -- a polynomial exponent of degree d (and an amplitude without exponentials): its d
   -- sectors are where Re(c_d e^{i d theta}) < 0, exact; only the 2d directions between
-  -- them need the full reading (an end along one converges with its sector, Jordan)
-  local poly, d = M.polynomial(F, var, params)
+  -- them need the full reading (an end along one converges with its sector, Jordan).
+  -- (F's list at direction 0, with its decisions: where g is 1 it is the first walk)
+  log = {}
+  local okF, Fl0 = pcall(M.list, F, var, params, 0)
+  local decisionsF = log
+  log = nil
+  if not okF then error(Fl0, 0) end
+  if g == nil or g == 1 then
+    walks[1] = { H = (Fl0 and rho) and scale(Fl0, rho) or Fl0, decisions = decisionsF }
+  end
+  local poly, d = polynomial_of(Fl0)
   if poly then out.polynomial, out.degree = poly, d end
   if poly and d >= 1 then
     local gl = (g == nil or g == 1) and { terms = {} } or M.list(g, var, params, 0)

@@ -236,37 +236,11 @@ function M.poly_roots(c, d)
     for k = 1, d do z[k] = cnew(0, 0) end
     return z, 0
   end
-  local z = {}
-  for k = 1, d do z[k] = bound * expi(2 * pi * (k - 1) / d + 0.4) end
-  local function eval(x)
-    local p, dp = a[d], cnew(0, 0)
-    for k = d - 1, 0, -1 do dp = dp * x + p; p = p * x + a[k] end
-    return p, dp
-  end
-  for _ = 1, 500 do
-    local moved = 0
-    for k = 1, d do
-      local p, dp = eval(z[k])
-      if cabs(p) == 0 then goto next_root end
-      do
-        local w = p / dp
-        local s = cnew(0, 0)
-        for j = 1, d do
-          if j ~= k then
-            local diff = z[k] - z[j]
-            if cabs(diff) > 0 then s = s + 1 / diff end
-          end
-        end
-        local step = w / (1 - w * s)
-        if not (cabs(step) < huge) then step = w end
-        z[k] = z[k] - step
-        moved = math.max(moved, cabs(step) / math.max(cabs(z[k]), 1e-300 + bound * 1e-15))
-      end
-      ::next_root::
-    end
-    if moved < 1e-15 then break end
-  end
-  return z, bound
+  -- the iteration in C (core.aberth: started at z_k = bound e^{i (2 pi (k-1)/d + 0.4)},
+  -- Gauss-Seidel sweeps until no root moves by 1e-15 relative, at most 500)
+  local coefs = {}
+  for k = 0, d do coefs[k + 1] = a[k] end
+  return core.aberth(coefs, bound):totable(), bound
 end
 
 ---------------------------------------------------------------------------------------
@@ -961,9 +935,14 @@ end
 -- points of the amplitude on descent paths (quadrature must not cross their cuts), and
 -- saddles (a path that reaches another saddle is a saddle connection). Poles of the
 -- amplitude do not bend the paths of F: they are not stops.
-local function stop_points(L, skip_saddle, descent)
-  local stops, radii, what = {}, {}, {}
+-- Kept with the landscape, per kind of path, all saddles included (a saddle's own paths
+-- leave it out by index): {points = cvec, radii, what, saddle = saddle index -> stop index}.
+local function stop_points(L, descent)
   local R = L.region.radius
+  L._stops = L._stops or {}
+  local kept = L._stops[descent and 1 or 2]
+  if kept and kept.R == R then return kept end
+  local stops, radii, what, saddle = {}, {}, {}, {}
   for j, s in ipairs(L.singularities) do
     local of_exponent = s.source:find("in the exponent", 1, true) ~= nil
     if of_exponent or (descent and s.kind == "branch") then
@@ -971,14 +950,15 @@ local function stop_points(L, skip_saddle, descent)
     end
   end
   for j, s in ipairs(L.saddles) do
-    if j ~= skip_saddle then
-      -- (a twentieth of its width at most: a path that passes that close to a saddle has
-      -- Im F within about 1e-3 of the saddle's: a connection, to the rounding of F)
-      local r = math.min(1e-4 * R, 0.05 * (s.width or huge))
-      stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, r, { "saddle", j }
-    end
+    -- (a twentieth of its width at most: a path that passes that close to a saddle has
+    -- Im F within about 1e-3 of the saddle's: a connection, to the rounding of F)
+    local r = math.min(1e-4 * R, 0.05 * (s.width or huge))
+    stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, r, { "saddle", j }
+    saddle[j] = #stops
   end
-  return stops, radii, what
+  kept = { R = R, points = core.cvec(stops), radii = radii, what = what, saddle = saddle }
+  L._stops[descent and 1 or 2] = kept
+  return kept
 end
 
 local function cvec_list(v) return v:totable() end
@@ -1040,6 +1020,18 @@ local function end_label(L, descent, reason, which, what, last)
   return reason
 end
 
+--- may_jump(J) -> whether J's exponent has a branch cut (a log, root, non-integer power or
+-- atan in it), across which its principal value jumps.
+function M.may_jump(J)
+  for _, c in ipairs(J.critical) do
+    if c.where == "exponent" and (c.what == "log" or c.what == "root" or c.what == "power"
+        or c.what == "atan") then
+      return true
+    end
+  end
+  return false
+end
+
 --- trace(J, params, L, start, level, descent, opts) -> path
 -- path = {points = list (for quadrature: up to where the integrand is negligible),
 --         traced, F = cvecs of the traced points and of F followed along them,
@@ -1048,13 +1040,15 @@ end
 function M.trace(J, params, L, start, level, descent, opts)
   opts = opts or {}
   local R = L.region.radius
-  local stops, radii, what = stop_points(L, opts.skip_saddle, descent)
-  -- a path that starts at a stop point (an endpoint on a branch point) must leave it
-  for k = #stops, 1, -1 do
-    if cabs(stops[k] - start) <= 2 * radii[k] then
-      table.remove(stops, k); table.remove(radii, k); table.remove(what, k)
-    end
-  end
+  -- the stops but the saddle whose paths these are; a path that starts at a stop point
+  -- (an endpoint on a branch point) must leave it: core.trace leaves out the stops within
+  -- twice their radius of `near`, and names a stop by its index in the whole list
+  local st = stop_points(L, descent)
+  local stops, radii, what = st.points, st.radii, st.what
+  local skip = opts.skip_saddle and st.saddle[opts.skip_saddle]
+  -- (F single-valued: no log, root or non-integer power in it, so its change over a step
+  -- need not be checked for a branch jump)
+  local jumps = M.may_jump(J)
   local ref = opts.ref or cparts(level)
   -- the length steps start from: the region's, or the start's own (a saddle's width, an
   -- endpoint's 1/|F'|) where that is smaller
@@ -1062,7 +1056,7 @@ function M.trace(J, params, L, start, level, descent, opts)
   local pts, Fs, reason, which, evals = core.trace(J.tape, params, start, level, {
     descent = descent, cutoff = opts.cutoff or 50, ref = ref, center = L.region.center,
     radius = 1000 * R, scale = scale, maxsteps = 6000, maxpts = 6000,
-    stops = stops, stop_r = radii })
+    stops = stops, stop_r = radii, skip = skip, near = start, jumps = jumps })
   -- points as a list (quadrature pieces, maps); the traced points and the values of F
   -- followed by continuity along them stay in C (cvecs) for the branch check
   local path = { points = cvec_list(pts), traced = pts, F = Fs, reason = reason, evals = evals,
@@ -1082,7 +1076,7 @@ function M.trace(J, params, L, start, level, descent, opts)
     local tp, _, r2, w2, ev2 = core.trace(J.tape, params, last, Fs:get(#Fs), {
       descent = descent, coarse = true, cutoff = 1e300, ref = -1e300,
       center = L.region.center, radius = far, scale = scale, maxsteps = 3000,
-      maxpts = 3000, stops = stops, stop_r = radii })
+      maxpts = 3000, stops = stops, stop_r = radii, skip = skip, near = start, jumps = jumps })
     path.tail = tp
     path.evals = path.evals + ev2
     tail_reason, tail_which = r2, w2

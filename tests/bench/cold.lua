@@ -16,6 +16,7 @@
 --       (tests/bench/qagi.c: qagi_deformed), time and evaluations;
 --   (b) five one-saddle integrals: cold J:landscape, J:quad and J:expand{order = 10};
 --   (c) the decomposition's cost against the number of saddles (8 to 32).
+-- Environment: STEEP_BENCH_COLD (the sections to run, e.g. "ab"; default all).
 
 local root = (arg and arg[0] or ""):match("^(.*)/tests/bench/[%w_]+%.lua$") or "."
 package.path = table.concat({ root .. "/lua/?.lua", root .. "/lua/?/init.lua",
@@ -81,13 +82,16 @@ local function per_call(runs, reps, f)
   return best
 end
 
+local sections = os.getenv("STEEP_BENCH_COLD") or "abc"
+local function section(c) return sections:find(c, 1, true) ~= nil end
+
 print()
 print("cold calls: the first call at a new parameter value")
 local t, x = steep.var "t", steep.param "x"
-do
+tape_mt = getmetatable(steep.compile(t, t))
+if section("a") then
   local J = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t),
     contour = steep.line(steep.inf(pi), steep.inf(0)), large = x }
-  tape_mt = getmetatable(J.tape)
   print()
   print("(a) Ai(x) = (1/2pi) int exp(i(t^3/3 + x t)) dt along the real line (DLMF 9.5.4); "
     .. "GSL: QAGI on the line through the saddle i sqrt(x), epsrel 1e-12")
@@ -131,7 +135,7 @@ end
 --     K(s) = -log(1 - s), n = 20, b = 1.5: for the mean of n exponential(1) variables,
 --     P(mean >= b) = Q(n, n b) (gamma law), gsl_sf_gamma_inc_Q; the integral is that
 --     probability (the pole at 0 lies left of the line).
-do
+if section("b") then
   local s, n, z, xb = steep.var "s", steep.param "n", steep.var "z", steep.param "xb"
   local function binom(a, b)
     local r = 1
@@ -195,7 +199,7 @@ end
 -- (decompose.decompose on a landscape mapped first, without paths) and the whole cold
 -- J:quad; the exponent of the growth from 8 to 32 saddles: log(T32 / T8) / log 4.
 -- Checked first: the quadrature along the deformed contour against the given one.
-do
+if section("c") then
   local decompose = require "steep.decompose"
   local c = 0.9 * steep.complex(math.cos(0.37), math.sin(0.37))
   local ms = { 8, 12, 16, 24, 32 }

@@ -575,6 +575,19 @@ static void test_roots(void) {
                 &cst, &count);
     check(cst == ROOT_OK && count == 4 && n == 3 && newton < grid_evals / 5,
           "root_search: seeds that reach the count spare the grid");
+    /* Aberth's iteration: the roots of (z - 1)(z + 2)(z - i)(z - 3i)(z + 0.5 - 0.5i), from the
+     * expanded coefficients (bound 6 >= every |root|), each found once to 1e-13 */
+    {
+      cplx rts[5] = {1, -2, I, 3 * I, -0.5 + 0.5 * I}, c[6] = {1, 0, 0, 0, 0, 0}, z[5];
+      for (int r = 0; r < 5; r++) {   /* c <- c (z - rts[r]), ascending powers */
+        for (int k = r + 1; k >= 1; k--) c[k] = c[k - 1] - rts[r] * c[k];
+        c[0] = -rts[r] * c[0];
+      }
+      int sweeps = root_aberth(c, 5, 6, z), found = 0;
+      for (int r = 0; r < 5; r++)
+        for (int k = 0; k < 5; k++) if (cabs(z[k] - rts[r]) <= 1e-13) { found++; break; }
+      check(found == 5 && sweeps < 100, "root_aberth: five known roots from the coefficients");
+    }
     cplx seed = -1.8 + 0.1 * I;
     root_search(poly_jet, &calls, &calls, 0, 3, 0, &seed, 1, 0, 0, at, mult, &n, &newton, &cst,
                 &count);
@@ -602,6 +615,7 @@ static void htape_init(htape *h, const tape_ins *ins, size_t n, size_t nparams) 
 static void path_defaults(path_opts *o, int descent) {
   memset(o, 0, sizeof *o);
   o->descent = descent;
+  o->jumps = 1;
   o->cutoff = 40;
   o->ref = 0;
   o->center = 0;

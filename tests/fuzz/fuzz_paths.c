@@ -176,6 +176,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size) {
       o.scale = scale;
       o.maxsteps = 1 + (int)fz_below(&f, 200);
       o.coarse = fz_u8(&f) & 1;
+      o.jumps = fz_u8(&f) & 1;
       o.nstops = fz_u8(&f) % 4;
       for (size_t j = 0; j < o.nstops; j++) {
         stops[j] = center + fz_near(&f, radius);
