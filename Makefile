@@ -85,13 +85,32 @@ asan: deps
 	  STEEP_EMBED_HOST=tests/embed/host_asan \
 	  $(LUA) tests/run.lua
 
-# The whole suite (and the C kernel tests) under valgrind's memcheck, plain build. A
-# definite or indirect leak or any memory error fails it.
+# The C kernel tests and a chosen part of the suite under valgrind's memcheck, plain
+# build. A definite or indirect leak or any memory error fails it. Valgrind runs the suite
+# some 35 times slower than natively (about 40 minutes whole), and make asan already runs
+# all of it with leak detection; memcheck adds what ASan does not see (reads of
+# uninitialized memory) on the classes below, chosen to reach the bindings and kernels
+# widely and every bad-input path (about 8 minutes; STEEP_SLOWDOWN stretches the
+# bad-input tests' limit on a case's time). `make memcheck MEMCHECK_CLASSES=`
+# (empty) runs the whole suite.
 VALGRIND = valgrind -q --leak-check=full --show-leak-kinds=definite,indirect \
            --errors-for-leak-kinds=definite,indirect --error-exitcode=1
+MEMCHECK_CLASSES = TestBadInput TestComplex TestExprDag TestExprErrors TestSeriesBasics \
+  TestSeriesErrors TestTapeEval TestJetsOrders TestSeriesRevert TestSeriesCompose \
+  TestQuadAiry TestQuadBranchCut TestQuadCircle TestLandscapeValleys TestLandscapeErrors \
+  TestLandscapeSaddles TestLandscapeSingularities TestExpandErrors \
+  TestExpandDegenerateSaddle TestExpandAiry TestAiry TestInfinity TestPeriodic \
+  TestStripQuadrature TestTrustSaddles TestTrustTails TestUniformAiry TestUniformPole \
+  TestMultiJets TestMultiCritical TestMultiErrors TestSaddlepointBadInput \
+  TestRoutesBadInput TestEmbed TestCuspParts TestResumInterface TestStokesAiry \
+  TestCuspPearcey TestMultiLaplace TestResumGamma TestRecipesCoefficients \
+  TestUniformCoalescence TestTrustPoles TestTrustEndpoints TestQuadDeformation \
+  TestQuadLongPath TestExpandEndpoint TestExpandStirling
 memcheck: deps
 	@$(MAKE) --no-print-directory $(MODULE) tests/c/test_kernels tests/ref/gslref.so tests/embed/host
-	STEEP_KERNEL_TESTS='$(VALGRIND) tests/c/test_kernels' $(VALGRIND) $(LUA) tests/run.lua
+	STEEP_SLOWDOWN=30 STEEP_KERNEL_TESTS='$(VALGRIND) tests/c/test_kernels' \
+	  $(VALGRIND) $(LUA) tests/run.lua \
+	  $(foreach c,$(MEMCHECK_CLASSES),-p '^$(c)%.')
 
 # libFuzzer harnesses of the C kernels (tests/fuzz/, no Lua) and of the bindings (through
 # a Lua state, fuzz_bindings), with ASan and UBSan.
@@ -167,7 +186,7 @@ help:
 	@echo "make          build the C module $(MODULE)"
 	@echo "make test     run every test (Lua and C)"
 	@echo "make asan     the test suite under ASan + UBSan"
-	@echo "make memcheck the test suite under valgrind memcheck"
+	@echo "make memcheck the kernel tests and a part of the suite under valgrind memcheck"
 	@echo "make fuzz     libFuzzer on the C kernels, SECONDS=N per harness (default 60)"
 	@echo "make bench    benchmarks (figures printed, nothing asserted)"
 	@echo "make demo     the demo analysis"

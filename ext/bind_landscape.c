@@ -295,12 +295,19 @@ static int land_saddle_starts(lua_State *L) {
  * grows with |F|; a fixed bound on the angle keeps a log cut's jump visible however large
  * F is) -- or where the integrand is negligible (Re F below Re level - 30). A path that
  * crosses a branch cut of the exponent would otherwise be integrated on the wrong sheet
- * there. */
+ * there. With a sixth argument rho the tape's exponent is rho times the integral's (an
+ * exponent turned in phase onto or past a Stokes line, |rho| = 1): a cut of log that is
+ * harmless in the integral's own exponent (2 pi i k) makes the turned one jump by
+ * rho 2 pi i k, of which the traced values (Im F held at the path's level) show the
+ * imaginary part 2 pi k Re(rho): that is divided out before the test. */
 static int land_branch_jump(lua_State *L) {
   problem *p = checkproblem(L);
   size_t n = 0, nF = 0;
   cplx *pts = bind_checkpoints(L, 3, &n), *Fc = bind_checkpoints(L, 4, &nF);
   cplx level = bind_checkcomplex(L, 5);
+  double turn = lua_isnoneornil(L, 6) ? 1 : creal(bind_checkcomplex(L, 6));
+  if (!(turn > 0.5) || !(turn <= 1 + 1e-12))
+    return luaL_argerror(L, 6, "a turn rho with |rho| = 1 and |arg rho| < pi/3 expected");
   double lr = creal(level), tol = 1e-6 * fmax(1, cabs(level));
   double tol_angle = fmax(1e-6, 1e-12 * cabs(level));
   cplx *slots = p->vals + p->t->nout;   /* as problem_integrand lays them out */
@@ -308,7 +315,8 @@ static int land_branch_jump(lua_State *L) {
     tape_eval(p->t, pts[k], p->params, p->vals, slots);
     cplx d = p->vals[0] - Fc[k];
     double fr = creal(p->vals[0]), dr = creal(d);
-    int harmless = (fabs(dr) <= tol && fabs(sin(cimag(d) / 2)) <= tol_angle) || !(fr > lr - 30);
+    int harmless = (fabs(dr) <= tol && fabs(sin(cimag(d) / turn / 2)) <= tol_angle)
+                   || !(fr > lr - 30);
     if (isfinite(dr) && !harmless) {
       lua_pushinteger(L, (lua_Integer)k + 1);
       bind_pushcomplex(L, pts[k]);
@@ -559,6 +567,25 @@ static int land_invmap_cubic(lua_State *L) {
   return invmap_results(L, st, G, (size_t)N, rho, ncoef);
 }
 
+/* core.invmap_quartic(tape, params, t1, A, zeta, eta, ua, tprime, rho, N [, ncoef]) -> as
+ * core.invmap_circle */
+static int land_invmap_quartic(lua_State *L) {
+  lua_settop(L, 11);   /* (as above) */
+  problem *p = checkproblem(L);
+  cplx t1 = bind_checkcomplex(L, 3), A = bind_checkcomplex(L, 4);
+  cplx zeta = bind_checkcomplex(L, 5), eta = bind_checkcomplex(L, 6);
+  cplx ua = bind_checkcomplex(L, 7), tprime = bind_checkcomplex(L, 8);
+  double rho = luaL_checknumber(L, 9);
+  lua_Integer N = luaL_checkinteger(L, 10);
+  luaL_argcheck(L, tprime != 0, 8, "t'(u_a) must not be zero");
+  luaL_argcheck(L, rho > 0 && isfinite(rho), 9, "radius must be positive and finite");
+  luaL_argcheck(L, N >= 8 && N <= 65536, 10, "number of points must be 8..65536");
+  lua_Integer ncoef = luaL_optinteger(L, 11, 0);
+  cplx *G = bind_newcvec(L, (size_t)N);
+  int st = invmap_quartic(p, t1, A, zeta, eta, ua, tprime, rho, (size_t)N, G);
+  return invmap_results(L, st, G, (size_t)N, rho, ncoef);
+}
+
 /* core.laurent(tape, params, p, rho, N, depth) -> cvec of a_m rho^m for m = -depth..1
  * (entry m + depth + 1), max |integrand| on the circle, and (N even) the same cvec from
  * every other point (an N/2 rule on the same samples, for an error estimate): the
@@ -745,7 +772,8 @@ static const luaL_Reg land_funcs[] = {
   {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
   {"short_stretches", land_short_stretches},
   {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},
-  {"invmap_cubic", land_invmap_cubic}, {"laurent", land_laurent},
+  {"invmap_cubic", land_invmap_cubic}, {"invmap_quartic", land_invmap_quartic},
+  {"laurent", land_laurent},
   {"ring_quietest", land_ring_quietest}, {"log_coefficient", land_log_coefficient},
   {"dF_laurent", land_dF_laurent},
   {"branch_jump", land_branch_jump}, {"ring_power", land_ring_power}, {"log_spread", land_log_spread},

@@ -62,16 +62,25 @@ static cplx wpow(cplx w, int m) {
 }
 
 /* The local map F0 - F(t0 + h) = P(w): P(w) = w^m at a saddle of order m (or m = 1 at an
- * endpoint), or P(u) = u^3/3 - zeta u for two saddles together (Chester, Friedman &
- * Ursell's cubic). */
-typedef struct { int m; int cubic; cplx zeta; } mapspec;
+ * endpoint), P(u) = u^3/3 - zeta u for two saddles together (Chester, Friedman &
+ * Ursell's cubic), or P(u) = u^4/4 - zeta u^2/2 + eta u for three (the cusp). */
+enum { MAP_POWER, MAP_CUBIC, MAP_QUARTIC };
+typedef struct { int m; int kind; cplx zeta, eta; } mapspec;
 
 static cplx mapP(const mapspec *ms, cplx w) {
-  return ms->cubic ? w * w * w / 3.0 - ms->zeta * w : wpow(w, ms->m);
+  switch (ms->kind) {
+  case MAP_CUBIC: return w * w * w / 3.0 - ms->zeta * w;
+  case MAP_QUARTIC: return w * (w * (0.25 * w * w - 0.5 * ms->zeta) + ms->eta);
+  default: return wpow(w, ms->m);
+  }
 }
 
 static cplx mapdP(const mapspec *ms, cplx w) {
-  return ms->cubic ? w * w - ms->zeta : (double)ms->m * wpow(w, ms->m - 1);
+  switch (ms->kind) {
+  case MAP_CUBIC: return w * w - ms->zeta;
+  case MAP_QUARTIC: return w * (w * w - ms->zeta) + ms->eta;
+  default: return (double)ms->m * wpow(w, ms->m - 1);
+  }
 }
 
 /* Continues the solved point *q from w0 to w1 in `steps` equal steps along a segment
@@ -183,22 +192,33 @@ static int start(problem *p, cplx t0, cplx F0, const mapspec *ms, cplx w, cplx h
 
 int invmap_circle(problem *p, cplx t0, cplx F0, int m, cplx s, double rho, size_t N,
                   cplx *G) {
-  mapspec ms = {m, 0, 0};
+  mapspec ms = {m, MAP_POWER, 0, 0};
   mappoint q;
   double w = 0.05 * rho;   /* not smaller: F0 - F cancels to rounding near the saddle */
   if (start(p, t0, F0, &ms, w, w / s, &q) != 0) return INVMAP_NEWTON;
   return circle(p, t0, F0, &ms, w, q, rho, N, G);
 }
 
-int invmap_cubic(problem *p, cplx t1, cplx A, cplx zeta, cplx ua, cplx tprime, double rho,
-                 size_t N, cplx *G) {
-  mapspec ms = {3, 1, zeta};
+/* Both models: start a little way from u_a, outwards from 0 (or along +1 when u_a = 0),
+ * with the linear guess t - t1 = t'(u_a) (u - u_a), then round the circle. */
+static int model_circle(problem *p, cplx t1, cplx A, const mapspec *ms, cplx ua, cplx tprime,
+                        double rho, size_t N, cplx *G) {
   mappoint q;
-  /* start a little way from u_a, outwards from 0 (or along +1 when u_a = 0), with the
-   * linear guess t - t1 = t'(u_a) (u - u_a) */
   cplx dir = cabs(ua) > 0 ? ua / cabs(ua) : 1;
   double eps = 0.05 * rho;
   cplx w = ua + eps * dir;
-  if (start(p, t1, A, &ms, w, tprime * (w - ua), &q) != 0) return INVMAP_NEWTON;
-  return circle(p, t1, A, &ms, w, q, rho, N, G);
+  if (start(p, t1, A, ms, w, tprime * (w - ua), &q) != 0) return INVMAP_NEWTON;
+  return circle(p, t1, A, ms, w, q, rho, N, G);
+}
+
+int invmap_cubic(problem *p, cplx t1, cplx A, cplx zeta, cplx ua, cplx tprime, double rho,
+                 size_t N, cplx *G) {
+  mapspec ms = {3, MAP_CUBIC, zeta, 0};
+  return model_circle(p, t1, A, &ms, ua, tprime, rho, N, G);
+}
+
+int invmap_quartic(problem *p, cplx t1, cplx A, cplx zeta, cplx eta, cplx ua, cplx tprime,
+                   double rho, size_t N, cplx *G) {
+  mapspec ms = {4, MAP_QUARTIC, zeta, eta};
+  return model_circle(p, t1, A, &ms, ua, tprime, rho, N, G);
 }

@@ -41,4 +41,14 @@ int invmap_circle(problem *p, cplx t0, cplx F0, int m, cplx s, double rho, size_
 int invmap_cubic(problem *p, cplx t1, cplx A, cplx zeta, cplx ua, cplx tprime, double rho,
                  size_t N, cplx *G);
 
+/* The same for three saddles near each other, by the quartic map of the cusp (Connor &
+ * Farrelly, J. Chem. Phys. 75 (1981), after Chester, Friedman & Ursell):
+ *   F(t) = A - (u^4/4 - zeta u^2/2 + eta u),  saddle t1 <-> u_a (a root of
+ *   u^3 - zeta u + eta), with t'(u_a) = tprime fixing the branch. G[j] = g(t(u_j)) t'(u_j)
+ * on |u| = rho (which must enclose the three roots' images), for the Taylor coefficients
+ * of G about u = 0. Start the trip from the root of largest modulus: the ray out of it
+ * then meets no other root. */
+int invmap_quartic(problem *p, cplx t1, cplx A, cplx zeta, cplx eta, cplx ua, cplx tprime,
+                   double rho, size_t N, cplx *G);
+
 #endif

@@ -92,6 +92,26 @@ function TestInfinity:test_bounded_oscillation()
   end
 end
 
+-- An end along a valley's edge where the integrand only oscillates: r^kappa e^{i c r^p}
+-- converges as an improper integral exactly when kappa < p - 1 (u = r^p and Dirichlet's
+-- test; common practice). Along the real axis, i t^4 with amplitude t (kappa 1 < 3)
+-- converges; with t^3 (kappa 3) it does not, and i t with amplitude 1 (kappa 0 = p - 1)
+-- neither; i t with amplitude 1/(1 + t^2)^(1/4) (kappa -1/2 < 0) converges.
+function TestInfinity:test_oscillatory_ends()
+  local cases = {
+    { I * t ^ 4, t, true, "t e^{i t^4}" },
+    { I * t ^ 4, t ^ 3, false, "t^3 e^{i t^4}" },
+    { I * t ^ 4, t ^ 2.9, true, "t^2.9 e^{i t^4}" },
+    { I * t, nil, false, "e^{i t}" },
+    { I * t, (1 + t ^ 2) ^ -0.25, true, "e^{i t} / (1 + t^2)^(1/4)" },
+  }
+  for _, c in ipairs(cases) do
+    local A = assert(analyze(c[1], c[2]))
+    local ok, cl = A.converges(0)
+    lu.assertEquals(ok, c[3], c[4] .. " (" .. cl.class .. ")")
+  end
+end
+
 -- Bell numbers' exponent e^z - n log z: strips to the right (cos(Im z) < 0), and in the
 -- left half-plane e^z dies and z^-n decays algebraically (exact).
 function TestInfinity:test_exp_exp()

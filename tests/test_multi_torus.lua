@@ -215,7 +215,7 @@ function TestMultiDiagonal:test_bivariate_exact()
         local msg = string.format("%s, n = %d, order %d: relative error %.3g, estimate %.3g",
           case.name, N, K, (v - want):abs() / want, e / want)
         lu.assertTrue((v - want):abs() <= e, msg)
-        lu.assertTrue((w - want):abs() <= 3 * f, msg .. " (one-variable route)")
+        lu.assertTrue((w - want):abs() <= f, msg .. " (one-variable route)")
         H.close(v, w, 1e-12, msg .. ": the two routes")
       end
     end

@@ -115,6 +115,32 @@ function TestTrustSaddles:test_polynomial_counts()
   end
 end
 
+-- Three saddles 2 sqrt(a) apart in a quartic: e^{-u^4/4 + a u^2/2} on the real line.
+-- The saddles' widths from F'' alone (1/sqrt(a), 1e4 at a = 1e-8) used to blow the region
+-- up to 65536, where quadrature missed the integrand (0 with error 0), and the paths of
+-- the outer saddles ran through the middle one (its stop circle wider than their
+-- distance): "could not be decomposed" for a <= 1e-4. Reference: the power series in a,
+-- sum_k (a/2)^k/k! 2 * 4^((2k+1)/4 - 1) Gamma((2k+1)/4) (termwise; Gamma from GSL).
+function TestTrustSaddles:test_close_saddles_of_a_quartic()
+  local u, a = steep.var "u", steep.param "a"
+  local J = steep.integral { var = u, exponent = -u ^ 4 / 4 + a * u ^ 2 / 2, contour = REAL_LINE }
+  for _, av in ipairs({ 1e-8, 1e-6, 1e-4, -1e-4 }) do
+    local want, term = 0, 1
+    for k = 0, 8 do
+      if k > 0 then term = term * (av / 2) / k end
+      want = want + term * 2 * 4 ^ ((2 * k + 1) / 4 - 1) * gsl.gamma((2 * k + 1) / 4)
+    end
+    local msg = "a = " .. av
+    local v, e, info = J:quad { a = av }
+    lu.assertEquals(info.status, "ok", msg)
+    within(v, e + 1e-15 * want, steep.complex(want, 0), 1e-13, "quad, " .. msg)
+    if av ~= 1e-8 then
+      local r = J:expand { a = av, order = 3 }
+      within(r.value, r.error + 1e-15 * want, steep.complex(want, 0), 1e-10, "expand, " .. msg)
+    end
+  end
+end
+
 TestTrustPoles = {}
 
 -- The residue of a pole of high order made by the exponent: D_20 = [z^20] (1+z)^20

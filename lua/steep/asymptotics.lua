@@ -8,6 +8,7 @@ local decompose = require "steep.decompose"
 local expand = require "steep.expand"
 local expr = require "steep.expr"
 local coalesce = require "steep.coalesce"
+local cusp = require "steep.cusp"
 local nearpole = require "steep.nearpole"
 local strips = require "steep.strips"
 
@@ -228,8 +229,13 @@ local function contributions_of(J, params, L, plan, order, resum, opts)
       contributions[#contributions + 1] = endpoint_contribution(J, params, piece, order, L, opts)
     end
   end
-  -- two simple saddles close together: the Airy-type uniform form for the pair
+  -- three simple saddles close together: the cusp form for the three (steep.cusp)
   local handled = {}
+  for _, c in ipairs(cusp.contributions(J, params, L, by_saddle, order_seen, order, resum,
+      plan.notes, handled)) do
+    contributions[#contributions + 1] = c
+  end
+  -- two simple saddles close together: the Airy-type uniform form for the pair
   for _, j in ipairs(order_seen) do
     local s = L.saddles[j]
     if s.order == 2 and not handled[j] then
@@ -275,7 +281,15 @@ end
 -- unsettled part).
 local function mean_of_sides(plus, minus)
   local out, used = {}, {}
-  local function key(c) return c.kind .. "@" .. tostring(c.at) end
+  -- (a uniform form covers several saddles and is keyed on either side by one of them:
+  -- match it by the set of its saddles)
+  local function key(c)
+    local pts = { tostring(c.at) }
+    if c.partner then pts[#pts + 1] = tostring(c.partner) end
+    for _, p in ipairs(c.partners or {}) do pts[#pts + 1] = tostring(p) end
+    table.sort(pts)
+    return c.kind .. "@" .. table.concat(pts, ",")
+  end
   local byk = {}
   for _, c in ipairs(minus) do byk[key(c)] = c end
   for _, c in ipairs(plus) do
@@ -306,6 +320,64 @@ local function mean_of_sides(plus, minus)
     end
   end
   return out
+end
+
+-- Near (not on) a Stokes line, at optimal truncation: a dominant saddle n's series cut
+-- at its least term leaves out a share of the subdominant saddle m that switches on
+-- smoothly across the line, S(sigma) from Berry's error function (Proc. R. Soc. A 422
+-- (1989) 7-21; resum.stokes_multiplier), where the decomposition's weights jump at the
+-- line itself. The share still missing on this side, (S - theta) times m's jump (theta =
+-- 1 on the side where m's weight already includes it), is added as a contribution of
+-- its own. Its value rests on Berry's law, the leading term in |Lambda|^(-1/2), whose
+-- error the dominant's own estimate (about half of m's jump near the line) still
+-- covers: the estimates are left as they are. Only where |Lambda| >= 8 and |sigma| < 4.
+local SIGMA_NEAR, LAMBDA_MIN = 4, 8
+local function report_num(z) return require("steep.report").num(z) end
+local function berry_smoothing(J, params, L, contributions, order, notes)
+  local resum = require "steep.resum"
+  local added = {}
+  for _, c in ipairs(contributions) do
+    local n
+    if c.kind == "saddle" and c.order == 2 and c.weights then
+      for j, s in ipairs(L.saddles) do
+        if cabs(s.at - c.at) <= 1e-12 * L.region.radius then n = j end
+      end
+    end
+    for m, sm in ipairs(n and L.saddles or {}) do
+      local sgl = L.saddles[n].F - sm.F
+      local sr, si = cparts(sgl)
+      if m ~= n and sm.order == 2 and sr > 0 and si ~= 0 and cabs(sgl) >= LAMBDA_MIN
+          and abs(si) < SIGMA_NEAR * math.sqrt(2 * sr) then
+        local S, sigma = resum.stokes_multiplier(sgl)
+        local f = S - (si > 0 and 1 or 0)
+        -- (the share at its largest, |f| |g| e^{Re F} sqrt(2 pi/|F''|), against the error
+        -- it would change: not worth tracing where it is far below it)
+        local size = abs(f) * cabs(sm.g) * math.exp(cparts(sm.F)) * math.sqrt(2 * pi / cabs(sm.F2))
+        if size > 1e-6 * c.error then
+          local jump, why = decompose.stokes_jump(J, params, L, n, m)
+          local w = jump and c.weights[jump.ray] or 0
+          if jump and w ~= 0 then
+            -- (m's jump from the minus side to the plus side: stokes_jump)
+            local unit = saddle_contribution(J, params, L, m, { { ray = jump.plus, weight = -w },
+              { ray = jump.minus, weight = w } }, order)
+            added[#added + 1] = { kind = "Stokes smoothing (Berry)", at = sm.at, order = 2,
+              F = unit.F, value = f * unit.value, error = abs(f) * unit.error,
+              used = unit.used, terms = {}, dominance = cparts(sm.F), smoothing = {
+                of = n, saddle = m, multiplier = S, sigma = sigma, share = f, jump = unit.value },
+              note = format("near a Stokes line (sigma = %.3g): saddle %d's share that saddle "
+                .. "%d's optimally truncated series leaves out: (S - %d) x its jump across the "
+                .. "line %s, Berry's multiplier S = %.4g", sigma, m, n, si > 0 and 1 or 0,
+                report_num(unit.value), S) }
+          elseif not jump then
+            notes[#notes + 1] = format("near a Stokes line of saddles %d and %d (sigma = %.3g) "
+              .. "the smoothing was not applied: %s; the dominant's estimate covers the "
+              .. "share", n, m, sigma, why)
+          end
+        end
+      end
+    end
+  end
+  for _, a in ipairs(added) do contributions[#contributions + 1] = a end
 end
 
 --- expand(J, params, opts) -> result
@@ -342,8 +414,18 @@ function M.expand(J, params, opts)
   end
   local contributions = contributions_of(J, params, L, plan, order, opts.resum, opts)
   local stokes = type(plan.stokes) == "table" and plan.stokes or nil
+  local sides
   if stokes and not stokes.settled then
-    contributions = mean_of_sides(contributions, contributions_of(J, params, L, stokes.minus, order, nil, opts))
+    local minus = contributions_of(J, params, L, stokes.minus, order, nil, opts)
+    local function total(list)
+      local v, e = cnew(0, 0), 0
+      for _, c in ipairs(list) do v, e = v + c.value, e + c.error end
+      return { value = v, error = e }
+    end
+    sides = { plus = total(contributions), minus = total(minus) }
+    contributions = mean_of_sides(contributions, minus)
+  elseif order == "optimal" and not opts.resum and plan.stokes ~= true then
+    berry_smoothing(J, params, L, contributions, order, plan.notes)
   end
   table.sort(contributions, function(a, b) return a.dominance > b.dominance end)
   -- beyond optimal truncation (lua/steep/resum.lua): replaces what it improves
@@ -386,7 +468,7 @@ function M.expand(J, params, opts)
     order = order, params = params, landscape = L, notes = plan.notes,
     stokes = plan.stokes and true or false, integral = J, status = status,
     stokes_line = stokes and { settled = stokes.settled, unsettled = unsettled,
-      by_rule = stokes.by_rule } or nil,
+      by_rule = stokes.by_rule, sides = sides, multiplier = sides and 0.5 or nil } or nil,
     resum = resummed }
   setmetatable(result, { __index = { report = M.report } })
   if opts.verify then M.verify(J, params, result, opts) end
@@ -479,6 +561,8 @@ function M.report(r, opts)
     if c.terms and c.terms[1] then
       say(format("leading term %s%s", fmtc(c.terms[1], c.error), c.note and ("; " .. c.note) or ""),
         "     ", 5)
+    elseif c.note then
+      say(c.note, "     ", 5)
     end
     local how = r.resum and require("steep.resum").describe(c)
     if how then add("     %s", how) end
@@ -495,7 +579,10 @@ function M.report(r, opts)
   elseif r.stokes_line and r.stokes_line.settled then
     say("the weights are the same on both sides of it (settled)", "on a Stokes line: ", 4)
   elseif r.stokes_line then
-    say(format("mean of both sides, unsettled part %.3g", r.stokes_line.unsettled),
+    local sd = r.stokes_line.sides
+    say(format("Stokes multiplier 1/2 (Berry): the mean of the two sides' values %s and "
+      .. "%s; unsettled part %.3g", fmtc(sd.plus.value, sd.plus.error),
+      fmtc(sd.minus.value, sd.minus.error), r.stokes_line.unsettled),
       "on a Stokes line with a genuine jump: ", 4)
   elseif r.stokes then
     add("warning: a saddle connection was found (Stokes line): see notes")

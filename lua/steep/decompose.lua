@@ -794,7 +794,10 @@ function M.decompose_uncached(J, params, L, contour, opts)
       or J.tape:eval(piece.at, params)
     local k, at, jump
     if not piece.path.straight then
-      k, at, jump = core.branch_jump(J.tape, params, piece.path.traced, piece.path.F, level)
+      -- (an exponent turned onto or past a Stokes line: its jumps measured in the
+      -- integral's own exponent, where 2 pi i n across a cut of log is harmless)
+      k, at, jump = core.branch_jump(J.tape, params, piece.path.traced, piece.path.F, level,
+        opts and opts.rotated and params[PHASE] or nil)
     end
     if k then
       plan.status = "incomplete"
@@ -964,6 +967,73 @@ function M.decompose_uncached(J, params, L, contour, opts)
     ::next_singularity::
   end
   return plan
+end
+
+--- stokes_jump(J, params, L, n, m) -> jump or nil, reason. Near (not on) a Stokes line
+-- of the simple saddles n (above) and m (below): the exponent turned to the line's phase
+-- (e^{i phi} (F_n - F_m) real and positive), one of n's descent paths runs into m; turned
+-- a little past the line either way it passes m and follows m's descent ray k_plus
+-- (phase beyond the line in the direction of Im(F_n - F_m) > 0) or k_minus. n's outward ray
+-- r then differs between the two sides by m's descent path from valley(k_minus) to
+-- valley(k_plus) (Picard-Lefschetz; Berry & Howls, Proc. R. Soc. A 434 (1991) 657-675):
+-- the contour being the same, with n's weight w on ray r, m's ray weights from the minus
+-- side to the plus side change by -w on k_plus and +w on k_minus.
+-- jump = {ray = r, plus = k_plus, minus = k_minus} in the original rays' numbering.
+function M.stokes_jump(J, params, L, n, m)
+  local sn, sm = L.saddles[n], L.saddles[m]
+  if sn.order ~= 2 or sm.order ~= 2 then return nil, "not two simple saddles" end
+  local sr, si = cparts(sn.F - sm.F)
+  if not (sr > 0) then return nil, "the lower saddle is not subdominant" end
+  local phi = -math.atan(si, sr)
+  if abs(phi) > pi / 2 then return nil, "the line is too far in phase" end
+  local K = turned(J)
+  local function side(rho)
+    local p = {}
+    for k, v in pairs(params) do p[k] = v end
+    p[PHASE] = rho
+    local Lr = turned_landscape(K, p, L)
+    return p, Lr
+  end
+  -- which ray of n runs into m on the line
+  local p0, L0 = side(expi(phi))
+  local ok, paths0 = pcall(landscape.saddle_paths, K, p0, L0, n)
+  if not ok then return nil, tostring(paths0) end
+  local r
+  for k, path in ipairs(paths0.descent) do
+    if path.ends == "saddle " .. m then r = k end
+  end
+  if not r then return nil, "no descent path of the upper saddle runs into the lower one" end
+  -- ray k of saddle j in landscape A, renumbered for landscape B (the numbering starts
+  -- from the argument of the turned coefficient: match by direction)
+  local function ray_in(A, B, j, k)
+    local a = ray_angle(A.saddles[j].coef, 2, k)
+    local best, bk = huge, k
+    for i = 1, 2 do
+      local d = abs(landscape.norm_angle(ray_angle(B.saddles[j].coef, 2, i) - a))
+      if d < best then best, bk = d, i end
+    end
+    return bk
+  end
+  for _, eps in ipairs({ 0.02, 0.06, 0.15 }) do
+    local rays = {}
+    for i, sign in ipairs({ 1, -1 }) do
+      local p, Lr = side(expi(phi + sign * eps))
+      local okn, pn = pcall(landscape.saddle_paths, K, p, Lr, n)
+      local okm, pm = pcall(landscape.saddle_paths, K, p, Lr, m)
+      if not (okn and okm) then return nil, tostring(okn and pm or pn) end
+      local via = pn.descent[ray_in(L0, Lr, n, r)].ends
+      for k = 1, 2 do
+        if pm.descent[k].ends == via and via:match("^valley") then
+          rays[i] = ray_in(Lr, L, m, k)
+        end
+      end
+      if not rays[i] then rays = nil; break end
+    end
+    if rays and rays[1] ~= rays[2] then
+      return { ray = ray_in(L0, L, n, r), plus = rays[1], minus = rays[2], phase = phi }
+    end
+  end
+  return nil, "the turned paths did not settle into m's valleys"
 end
 
 return M

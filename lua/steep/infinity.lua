@@ -611,15 +611,18 @@ function M.classify(H, th)
   return { class = "bounded", kappa = 0, phase_power = phase_power }
 end
 
--- Is an end in a direction of this class integrable (absolutely, or as an oscillatory
--- integral whose phase grows faster than linearly / with decaying size)?
+-- Is an end in a direction of this class integrable (absolutely, or as an improper
+-- oscillatory integral)? With |integrand| ~ r^kappa and phase ~ r^p (p > 0), u = r^p
+-- turns the tail into the integral of u^((kappa + 1)/p - 1) e^{iu}, which converges
+-- exactly when kappa < p - 1 (Dirichlet's test; common practice); without a phase,
+-- kappa < -1.
 local function convergent(cl)
   if cl.class == "valley" then return true end
   if cl.class == "algebraic" or cl.class == "bounded" then
     local k = cl.kappa or 0
-    if k < -1 then return true end
     local pp = cl.phase_power or 0
-    return (pp > 1 and k <= 0) or (pp >= 1 and k < 0)
+    if pp > 0 then return k < pp - 1 end
+    return k < -1
   end
   return false
 end

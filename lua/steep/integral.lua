@@ -1085,11 +1085,12 @@ function M.quad_with(J, params, L, along)
   -- (points whose integrand is negligible against the result carry no weight)
   local Fmax = 0
   local level = math.log(math.max(cabs(v), 1e-308)) - 40
+  local top = -huge   -- the largest log |g e^F| seen at a saddle or a contour point
   local function consider(F, g)
     local gm = g and cabs(g) or 1
-    if cabs(F) < huge and cparts(F) + (gm > 0 and math.log(gm) or -huge) > level then
-      Fmax = math.max(Fmax, cabs(F))
-    end
+    local lv = cparts(F) + (gm > 0 and math.log(gm) or -huge)
+    if cabs(F) < huge and lv > level then Fmax = math.max(Fmax, cabs(F)) end
+    if lv == lv then top = math.max(top, lv) end
   end
   for _, s in ipairs(L.saddles) do consider(s.F, s.g) end
   -- (the contour's finite points in one batch, singular ones giving no finite F; of a
@@ -1108,6 +1109,15 @@ function M.quad_with(J, params, L, along)
     if info.along == "deformed" and #(info.pieces or {}) == 0 and #(info.residues or {}) == 0 then
       info.notes[#info.notes + 1] = "the deformed contour has no pieces (no saddle, endpoint or "
         .. "pole lies between the contour's ends, which share one valley): the integral is 0"
+    elseif top > math.log(1e-300) then
+      -- the integrand is not small everywhere (at a saddle or on the contour it is
+      -- e^top): the pieces missed it; no number is better than a wrong 0
+      info.status = "failed"
+      e = huge
+      info.notes[#info.notes + 1] = format("quadrature found only underflowing values, yet "
+        .. "the integrand reaches e^%.4g at a saddle or on the contour: the pieces missed "
+        .. "it (the region, radius %.3g, may be far too large): the value is not known", top,
+        L.region.radius)
     else
       info.status = "underflow"
       info.notes[#info.notes + 1] = "the integrand underflows (below 1e-308) wherever it was "

@@ -869,15 +869,23 @@ function M.saddles(J, params, region, singularities, seeds, seeds_only)
   return out, info
 end
 
---- A saddle record at the zero z of F' of multiplicity mult (order mult + 1).
+--- A saddle record at the zero z of F' of multiplicity mult (order mult + 1). Its width is
+-- the length over which F changes by about 1: |c_m|^(-1/m) from the leading coefficient,
+-- or less where the next two terms take over sooner (two saddles 2e-4 apart in a quartic:
+-- c_2 ~ 1e-8 alone would call the saddle 1e4 wide where the integrand's scale is 1).
 local function saddle_at(J, params, z, mult)
   local m = mult + 1
   -- the exponent's jet alone: the amplitude may be singular at a saddle
-  local Fs = J.tape:jet(z, m + 1, params, 1)
+  local Fs = J.tape:jet(z, m + 2, params, 1)
   local _, gv = J.tape:eval(z, params)
   local coef = Fs:coef(m)
+  local width = cabs(coef) ^ (-1 / m)
+  for k = m + 1, m + 2 do
+    local ck = cabs(Fs:coef(k))
+    if ck > 0 then width = math.min(width, ck ^ (-1 / k)) end
+  end
   return { at = z, order = m, F = Fs:coef(0), F2 = 2 * Fs:coef(2), coef = coef,
-    g = gv or cnew(1, 0), width = cabs(coef) ^ (-1 / m) }
+    g = gv or cnew(1, 0), width = width }
 end
 M.saddle_at = saddle_at
 
@@ -952,7 +960,12 @@ local function stop_points(L, descent)
   for j, s in ipairs(L.saddles) do
     -- (a twentieth of its width at most: a path that passes that close to a saddle has
     -- Im F within about 1e-3 of the saddle's: a connection, to the rounding of F)
+    -- (and well inside the distance to its nearest neighbour, which the first step
+    -- off that neighbour stays inside: saddles closer than their widths stay apart)
     local r = math.min(1e-4 * R, 0.05 * (s.width or huge))
+    for k, o in ipairs(L.saddles) do
+      if k ~= j then r = math.min(r, 0.05 * cabs(o.at - s.at)) end
+    end
     stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, r, { "saddle", j }
     saddle[j] = #stops
   end

@@ -814,6 +814,44 @@ static void test_invmap_budget(void) {
   free(mem);
 }
 
+/* The quartic map of three saddles together on a map known in closed form: F(t) =
+ * -(u^4/4 - zeta u^2/2 + eta u) with u = t + b t^2, so t(u) = (sqrt(1 + 4bu) - 1)/(2b) and
+ * G = t'(u) = (1 + 4bu)^(-1/2) (exact formula). The roots 0.6, -0.1, -0.5 give zeta = 0.31,
+ * eta = -0.03; the trip starts at u_a = 0.6 (the largest) and goes round |u| = 1.2,
+ * inside the branch point u = -1/(4b) = -2.5. */
+static void test_invmap_quartic(void) {
+  const double b = 0.1;
+  const cplx zeta = 0.31, eta = -0.03;
+  htape h;
+  const tape_ins ins[16] = {
+    {OP_VAR, -1, -1, 0, 0}, {OP_CONST, -1, -1, 0, b}, {OP_POWI, 0, -1, 2, 0},
+    {OP_MUL, 1, 2, 0, 0}, {OP_ADD, 0, 3, 0, 0},                       /* u = t + b t^2 */
+    {OP_POWI, 4, -1, 2, 0}, {OP_POWI, 4, -1, 4, 0}, {OP_CONST, -1, -1, 0, 0.25},
+    {OP_MUL, 7, 6, 0, 0}, {OP_CONST, -1, -1, 0, zeta / 2}, {OP_MUL, 9, 5, 0, 0},
+    {OP_SUB, 8, 10, 0, 0}, {OP_CONST, -1, -1, 0, eta}, {OP_MUL, 12, 4, 0, 0},
+    {OP_ADD, 11, 13, 0, 0}, {OP_NEG, 14, -1, 0, 0}};              /* F = -P(u) */
+  htape_init(&h, ins, 16, 0);
+  const char *why = "";
+  check(tape_check(&h.t, &why) == -1, "hand-built tape of the quartic map is well formed");
+  void *mem = malloc(problem_bytes(&h.t));
+  problem p;
+  problem_init(&p, &h.t, NULL, mem);
+  enum { N = 64 };
+  cplx G[N], ua = 0.6;
+  cplx t1 = (csqrt(1 + 4 * b * ua) - 1) / (2 * b), tprime = 1 / csqrt(1 + 4 * b * ua);
+  double rho = 1.2, worst = 0;
+  int st = invmap_quartic(&p, t1, 0, zeta, eta, ua, tprime, rho, N, G);
+  for (int j = 0; j < N; j++) {
+    cplx w = rho * cexp(I * (6.283185307179586 * j / N));
+    worst = fmax(worst, cabs(G[j] - 1 / csqrt(1 + 4 * b * w)));
+  }
+  char msg[120];
+  snprintf(msg, sizeof msg, "invmap_quartic: G = t'(u) on |u| = 1.2 for u = t + t^2/10 "
+           "(worst error %.3g)", worst);
+  check(st == INVMAP_OK && worst < 1e-13, msg);
+  free(mem);
+}
+
 /* ---- first derivatives (tape_dual_upto) against jets of order 1 ------------------ */
 
 static void test_dual(void) {
@@ -1194,6 +1232,7 @@ int main(void) {
   test_path();
   test_tape_check();
   test_invmap_budget();
+  test_invmap_quartic();
   test_rings();
   test_clog();
   test_merge_vertices();

@@ -4,9 +4,9 @@
  * of a second polynomial, optionally with an amplitude (a pole, a polynomial, a square
  * root) as output 2. With small bounds, as the Lua layer calls them: root_newton from
  * random seeds, root_count on random circles, path_saddle_starts and path_trace
- * (maxsteps <= 200), invmap_circle and invmap_cubic (N <= 32), ring samples, quadrature along a
- * segment and the geometry of the traced path. Nothing may crash or hang (libFuzzer's
- * -timeout).
+ * (maxsteps <= 200), invmap_circle, invmap_cubic and invmap_quartic (N <= 32), ring
+ * samples, quadrature along a segment and the geometry of the traced path. Nothing may
+ * crash or hang (libFuzzer's -timeout).
  */
 #include "fuzz.h"
 #include "geom.h"
@@ -225,6 +225,20 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size) {
     if (problem_dF(&p, t1, &F1, &dF1) == STEEP_OK) {
       cplx A = F1 - zeta * ua + ua * ua * ua / 3.0;
       int st = invmap_cubic(&p, t1, A, zeta, ua, tprime, rho, N, G);
+      if (st < INVMAP_OK || st > INVMAP_SINGULAR) abort();
+    }
+    free(G);
+  }
+  if (ops & 128) {   /* the quartic map of three nearby saddles: F(t1) = A - P(ua) */
+    cplx t1 = center + fz_near(&f, 1), zeta = fz_near(&f, 2), eta = fz_near(&f, 2);
+    cplx tprime = fz_cplx(&f, 0), ua = fz_near(&f, 2), F1, dF1;
+    if (tprime == 0) tprime = 1;
+    size_t N = 8 + fz_below(&f, 25);
+    double rho = positive(&f, 1e-3, 4);
+    cplx *G = fz_alloc(N, sizeof *G);
+    if (problem_dF(&p, t1, &F1, &dF1) == STEEP_OK) {
+      cplx A = F1 + ua * (ua * (0.25 * ua * ua - 0.5 * zeta) + eta);
+      int st = invmap_quartic(&p, t1, A, zeta, eta, ua, tprime, rho, N, G);
       if (st < INVMAP_OK || st > INVMAP_SINGULAR) abort();
     }
     free(G);
