@@ -266,6 +266,40 @@ static int land_trace(lua_State *L) {
   return 5;
 }
 
+/* core.saddle_quad(tape, params, t0, F0, F2, points_a, F_a, points_b, F_b, opts)
+ *   -> value, error, evaluations, part on ray a, part on ray b; or nil, evaluations
+ * The path through a simple saddle in along ray b and out along ray a (their traced
+ * points after the saddle and F's values there, cvecs or lists), by the trapezoidal rule
+ * in the saddle's own variable (path_saddle_quad in path.h). opts: abstol, reltol. */
+static int land_saddle_quad(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx t0 = bind_checkcomplex(L, 3), F0 = bind_checkcomplex(L, 4), F2 = bind_checkcomplex(L, 5);
+  path_ray a, b;
+  size_t naF = 0, nbF = 0;
+  a.pts = bind_checkpoints(L, 6, &a.n);
+  a.F = bind_checkpoints(L, 7, &naF);
+  b.pts = bind_checkpoints(L, 8, &b.n);
+  b.F = bind_checkpoints(L, 9, &nbF);
+  if (naF != a.n) return luaL_argerror(L, 7, "as many values of F as points expected");
+  if (nbF != b.n) return luaL_argerror(L, 9, "as many values of F as points expected");
+  luaL_checktype(L, 10, LUA_TTABLE);
+  double abstol = optnum(L, 10, "abstol", 0), reltol = optnum(L, 10, "reltol", 1e-13);
+  double *work = bind_array(L, PATH_SADDLE_QUAD_DOUBLES(a.n, b.n), sizeof(double));
+  cplx res = 0, pa = 0, pb = 0;
+  double err = 0;
+  if (path_saddle_quad(p, t0, F0, F2, a, b, abstol, reltol, work, &res, &err, &pa, &pb) != 0) {
+    lua_pushnil(L);
+    lua_pushinteger(L, p->evals);
+    return 2;
+  }
+  bind_pushcomplex(L, res);
+  lua_pushnumber(L, err);
+  lua_pushinteger(L, p->evals);
+  bind_pushcomplex(L, pa);
+  bind_pushcomplex(L, pb);
+  return 5;
+}
+
 /* core.saddle_starts(tape, params, t0, F0, order, c, descent, scale) -> list of points */
 static int land_saddle_starts(lua_State *L) {
   problem *p = checkproblem(L);
@@ -769,7 +803,8 @@ static int geo_nearest(lua_State *L) {
 static const luaL_Reg land_funcs[] = {
   {"zero", land_zero}, {"count", land_count}, {"zeros", land_zeros}, {"aberth", land_aberth},
   {"trace", land_trace},
-  {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
+  {"saddle_starts", land_saddle_starts}, {"saddle_quad", land_saddle_quad},
+  {"quad_polyline", land_quad_polyline},
   {"short_stretches", land_short_stretches},
   {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},
   {"invmap_cubic", land_invmap_cubic}, {"invmap_quartic", land_invmap_quartic},
