@@ -939,6 +939,25 @@ end
 -- Steepest paths.
 ---------------------------------------------------------------------------------------
 
+-- Each saddle's distance to its nearest other saddle (huge for a lone one), kept with the
+-- landscape: read for every path traced, it would otherwise cost (saddles)^2 complex
+-- subtractions each time (the parts are read directly: the same numbers).
+local function nearest_saddle(L)
+  local kept = L._nearest_saddle
+  if kept and kept.saddles == L.saddles and kept.n == #L.saddles then return kept.d end
+  local n, re, im, d = #L.saddles, {}, {}, {}
+  for j, s in ipairs(L.saddles) do re[j], im[j] = cparts(s.at) end
+  for j = 1, n do
+    local m = huge
+    for k = 1, n do
+      if k ~= j then m = math.min(m, hypot(re[k] - re[j], im[k] - im[j])) end
+    end
+    d[j] = m
+  end
+  L._nearest_saddle = { saddles = L.saddles, n = n, d = d }
+  return d
+end
+
 -- Stop points for tracing: singularities of the exponent (paths end there), branch
 -- points of the amplitude on descent paths (quadrature must not cross their cuts), and
 -- saddles (a path that reaches another saddle is a saddle connection). Poles of the
@@ -951,6 +970,7 @@ local function stop_points(L, descent)
   local kept = L._stops[descent and 1 or 2]
   if kept and kept.R == R then return kept end
   local stops, radii, what, saddle = {}, {}, {}, {}
+  local near = nearest_saddle(L)
   for j, s in ipairs(L.singularities) do
     local of_exponent = s.source:find("in the exponent", 1, true) ~= nil
     if of_exponent or (descent and s.kind == "branch") then
@@ -962,10 +982,7 @@ local function stop_points(L, descent)
     -- Im F within about 1e-3 of the saddle's: a connection, to the rounding of F)
     -- (and well inside the distance to its nearest neighbour, which the first step
     -- off that neighbour stays inside: saddles closer than their widths stay apart)
-    local r = math.min(1e-4 * R, 0.05 * (s.width or huge))
-    for k, o in ipairs(L.saddles) do
-      if k ~= j then r = math.min(r, 0.05 * cabs(o.at - s.at)) end
-    end
+    local r = math.min(1e-4 * R, 0.05 * (s.width or huge), 0.05 * near[j])
     stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, r, { "saddle", j }
     saddle[j] = #stops
   end
@@ -1122,10 +1139,7 @@ function M.saddle_paths(J, params, L, j)
   -- saddle or singular point (two saddles close together: a longer one lands past the
   -- other saddle, on a path to the wrong valley)
   local width = math.min(R / 10, s.width or huge)
-  local step = width
-  for k, o in ipairs(L.saddles) do
-    if k ~= j then step = math.min(step, cabs(o.at - s.at) / 8) end
-  end
+  local step = math.min(width, nearest_saddle(L)[j] / 8)
   -- (singular points of the exponent only: an amplitude's pole does not bend the paths,
   -- and one at the saddle itself would leave no room at all)
   for _, o in ipairs(L.singularities or {}) do
