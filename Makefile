@@ -151,6 +151,7 @@ fuzz: deps
 bench: deps $(MODULE) tests/bench/native.so tests/bench/qagi.so tests/ref/gslref.so
 	$(LUA) tests/bench/run.lua
 	$(LUA) tests/bench/speed.lua
+	$(LUA) tests/bench/cold.lua
 
 tests/bench/native.so: tests/bench/native.c ext/bind.h ext/steep.h
 	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) -Iext -o $@ tests/bench/native.c -lm

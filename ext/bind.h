@@ -73,6 +73,10 @@ struct tape;
 const struct tape *bind_checktape(lua_State *L, int idx);
 cplx *bind_tapeparams(lua_State *L, int tidx, int pidx);
 
+/* The tally of evaluations made through the tape at idx (tape:evals()): a binding that
+ * evaluates through a problem points the problem's `tally` here. */
+long *bind_tapetally(lua_State *L, int idx);
+
 /* Per-file registration, called from luaopen_steep_core with the module table on top. */
 void bind_series_open(lua_State *L);
 void bind_tape_open(lua_State *L);

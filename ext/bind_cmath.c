@@ -8,11 +8,12 @@
 #include <cerf.h>
 #include "airy.h"
 #include "bind.h"
+#include "clog.h"
 
 #define CFUN(name, f) \
   static int cmath_##name(lua_State *L) { bind_pushcomplex(L, f(bind_checkcomplex(L, 1))); return 1; }
 CFUN(exp, cexp)
-CFUN(log, clog)
+CFUN(log, steep_clog)
 CFUN(sqrt, csqrt)
 CFUN(sin, csin)
 CFUN(cos, ccos)

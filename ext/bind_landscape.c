@@ -8,8 +8,10 @@
  * by name: output 1 is the exponent F, output 2 (if any) the amplitude g.
  */
 #include <math.h>
+#include <stdio.h>
 #include <string.h>
 #include "bind.h"
+#include "cplx.h"
 #include "geom.h"
 #include "invmap.h"
 #include "path.h"
@@ -23,6 +25,7 @@ static problem *checkproblem(lua_State *L) {
   cplx *params = bind_tapeparams(L, 1, 2);
   problem *p = bind_scratch(L, sizeof(problem));
   problem_init(p, t, params, bind_scratch(L, problem_bytes(t)));
+  p->tally = bind_tapetally(L, 1);
   return p;
 }
 
@@ -128,13 +131,74 @@ static int land_count(lua_State *L) {
   return 3;
 }
 
+/* core.zeros(tape, params, {out=, deriv=}, center, radius, opts) -> roots (cvec),
+ *   multiplicities (list), Newton's evaluations, count status (or nil), count (or nil)
+ * opts: grid (boolean: seed from the grid, and search again by random seeds while the
+ * count is not reached), seeds (points), count (at most that many points for the
+ * argument principle; 0 or absent: no count), poles (added to the count). The zeros in
+ * the order found, inside the disc or not (root_search in roots.h). */
+static int land_zeros(lua_State *L) {
+  problem *p = checkproblem(L);
+  zero_fn z;
+  checkzerofn(L, 3, p, &z);
+  cplx center = bind_checkcomplex(L, 4);
+  double radius = luaL_checknumber(L, 5);
+  luaL_argcheck(L, radius > 0 && isfinite(radius), 5, "radius must be positive and finite");
+  luaL_checktype(L, 6, LUA_TTABLE);
+  lua_getfield(L, 6, "grid");
+  int grid = lua_toboolean(L, -1);
+  lua_pop(L, 1);
+  int count_pts = (int)optint(L, 6, "count", 0, 0, 1000000);
+  int poles = (int)optint(L, 6, "poles", 0, -1000000, 1000000);
+  size_t ns = 0;
+  lua_getfield(L, 6, "seeds");
+  const cplx *seeds = lua_isnil(L, -1) ? NULL : bind_checkpoints(L, lua_gettop(L), &ns);
+  size_t cap = ROOT_SEARCH_MAX(ns);
+  cplx *at = bind_array(L, cap, sizeof(cplx));
+  int *mult = bind_array(L, cap, sizeof(int));
+  size_t n = 0;
+  long newton = 0;
+  int cst = ROOT_FAIL, count = 0;
+  root_search(zero_jet, &z, &p->evals, center, radius, grid, seeds, ns, count_pts, poles, at,
+              mult, &n, &newton, &cst, &count);
+  memcpy(bind_newcvec(L, n), at, n * sizeof(cplx));
+  lua_createtable(L, (int)n, 0);
+  for (size_t k = 0; k < n; k++) {
+    lua_pushinteger(L, mult[k]);
+    lua_rawseti(L, -2, (lua_Integer)k + 1);
+  }
+  lua_pushinteger(L, newton);
+  if (count_pts <= 0) return 3;
+  lua_pushstring(L, root_text[cst]);
+  if (cst == ROOT_FAIL) return 4;   /* (not a count's status: none was made) */
+  lua_pushinteger(L, count);
+  return 5;
+}
+
+/* core.aberth(coefficients, bound) -> roots (cvec), sweeps: the d roots of the monic
+ * polynomial whose coefficients a_0..a_d (a_d = 1) are given, by root_aberth (roots.h). */
+static int land_aberth(lua_State *L) {
+  size_t n = 0;
+  const cplx *a = bind_checkpoints(L, 1, &n);
+  double bound = luaL_checknumber(L, 2);
+  luaL_argcheck(L, n >= 2 && n <= 4097, 1, "2 to 4097 coefficients expected");
+  luaL_argcheck(L, bound > 0 && isfinite(bound), 2, "bound must be positive and finite");
+  int d = (int)n - 1;
+  cplx *z = bind_newcvec(L, (size_t)d);
+  lua_pushinteger(L, root_aberth(a, d, bound, z));
+  return 2;
+}
+
 /* ---- paths ---------------------------------------------------------------------- */
 
 static const char *end_text[] = {"low", "high", "edge", "stop", "singular", "flat", "bound"};
 
 /* core.trace(tape, params, start, level, opts) -> points, F values (cvecs), end, which
- * opts: descent, coarse (booleans), cutoff, ref, center, radius, scale, maxsteps, maxpts,
- *       stops (list of points), stop_r (list of radii) */
+ * opts: descent, coarse, jumps (booleans; jumps: F may jump across a branch cut, the
+ *       default), cutoff, ref, center, radius, scale, maxsteps, maxpts,
+ *       stops (points), stop_r (list of radii), skip (the index of a stop to leave out),
+ *       near (a point: stops within twice their radius of it are left out); `which` is
+ *       the index in the whole list of stops */
 static int land_trace(lua_State *L) {
   problem *p = checkproblem(L);
   cplx start = bind_checkcomplex(L, 3), level = bind_checkcomplex(L, 4);
@@ -144,7 +208,9 @@ static int land_trace(lua_State *L) {
   o.descent = lua_toboolean(L, -1);
   lua_getfield(L, 5, "coarse");
   o.coarse = lua_toboolean(L, -1);
-  lua_pop(L, 2);
+  lua_getfield(L, 5, "jumps");
+  o.jumps = lua_isnil(L, -1) || lua_toboolean(L, -1);
+  lua_pop(L, 3);
   o.cutoff = optnum(L, 5, "cutoff", 50);
   o.ref = optnum(L, 5, "ref", creal(level));
   o.center = optcomplex(L, 5, "center", 0);
@@ -167,9 +233,24 @@ static int land_trace(lua_State *L) {
     stop_r[j] = luaL_checknumber(L, -1);
     lua_pop(L, 1);
   }
-  o.stops = stops;
-  o.stop_r = stop_r;
-  o.nstops = ns;
+  /* the stops kept (a saddle's own paths leave it out; a path that starts at a stop point
+   * must leave it), with their indices in the whole list */
+  long skip = optint(L, 5, "skip", 0, 0, (long)ns) - 1;
+  lua_getfield(L, 5, "near");
+  int has_near = !lua_isnil(L, -1);
+  cplx near = has_near ? bind_checkcomplex(L, lua_gettop(L)) : 0;
+  cplx *kept = bind_array(L, ns + 1, sizeof(cplx));
+  double *kept_r = bind_array(L, ns + 1, sizeof(double));
+  size_t *index = bind_array(L, ns + 1, sizeof(size_t)), nk = 0;
+  for (size_t j = 0; j < ns; j++) {
+    if ((long)j == skip || (has_near && plain_abs(stops[j] - near) <= 2 * stop_r[j])) continue;
+    kept[nk] = stops[j];
+    kept_r[nk] = stop_r[j];
+    index[nk++] = j;
+  }
+  o.stops = kept;
+  o.stop_r = kept_r;
+  o.nstops = nk;
   cplx *pts = bind_buffer(L, bind_mulcount(L, 2 * maxpts, sizeof(cplx))), *Fs = pts + maxpts;
   int buffer = lua_gettop(L);
   size_t n = 0;
@@ -179,9 +260,43 @@ static int land_trace(lua_State *L) {
   memcpy(bind_newcvec(L, n), Fs, n * sizeof(cplx));
   bind_buffer_release(L, buffer);
   lua_pushstring(L, end_text[end]);
-  if (which >= 0) lua_pushinteger(L, which + 1);
+  if (which >= 0) lua_pushinteger(L, (lua_Integer)index[which] + 1);
   else lua_pushnil(L);
   lua_pushinteger(L, p->evals);
+  return 5;
+}
+
+/* core.saddle_quad(tape, params, t0, F0, F2, points_a, F_a, points_b, F_b, opts)
+ *   -> value, error, evaluations, part on ray a, part on ray b; or nil, evaluations
+ * The path through a simple saddle in along ray b and out along ray a (their traced
+ * points after the saddle and F's values there, cvecs or lists), by the trapezoidal rule
+ * in the saddle's own variable (path_saddle_quad in path.h). opts: abstol, reltol. */
+static int land_saddle_quad(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx t0 = bind_checkcomplex(L, 3), F0 = bind_checkcomplex(L, 4), F2 = bind_checkcomplex(L, 5);
+  path_ray a, b;
+  size_t naF = 0, nbF = 0;
+  a.pts = bind_checkpoints(L, 6, &a.n);
+  a.F = bind_checkpoints(L, 7, &naF);
+  b.pts = bind_checkpoints(L, 8, &b.n);
+  b.F = bind_checkpoints(L, 9, &nbF);
+  if (naF != a.n) return luaL_argerror(L, 7, "as many values of F as points expected");
+  if (nbF != b.n) return luaL_argerror(L, 9, "as many values of F as points expected");
+  luaL_checktype(L, 10, LUA_TTABLE);
+  double abstol = optnum(L, 10, "abstol", 0), reltol = optnum(L, 10, "reltol", 1e-13);
+  double *work = bind_array(L, PATH_SADDLE_QUAD_DOUBLES(a.n, b.n), sizeof(double));
+  cplx res = 0, pa = 0, pb = 0;
+  double err = 0;
+  if (path_saddle_quad(p, t0, F0, F2, a, b, abstol, reltol, work, &res, &err, &pa, &pb) != 0) {
+    lua_pushnil(L);
+    lua_pushinteger(L, p->evals);
+    return 2;
+  }
+  bind_pushcomplex(L, res);
+  lua_pushnumber(L, err);
+  lua_pushinteger(L, p->evals);
+  bind_pushcomplex(L, pa);
+  bind_pushcomplex(L, pb);
   return 5;
 }
 
@@ -282,7 +397,9 @@ static cplx integrand_one(void *ctx, cplx t) { return integrand(((batch_ctx *)ct
 /* core.quad_polyline(tape, params, points, opts) -> value, error, evaluations, status
  * opts: abstol, reltol, singular_start, singular_end (tanh-sinh on that segment), limit
  * (subintervals per segment), budget (evaluations in all; past it: status "limit"),
- * first, last (integrate the points first..last only, 1-based; default all).
+ * first, last (integrate the points first..last only, 1-based; default all); for a
+ * traced descent path, levels (F at every point) and merge (the largest fall of Re F a
+ * joined segment may span), avoid (points the joined chords keep clear of).
  * The two passes of quad_polyline (quad.h), the first with batch evaluation of the tape. */
 static int land_quad_polyline(lua_State *L) {
   problem *p = checkproblem(L);
@@ -302,6 +419,24 @@ static int land_quad_polyline(lua_State *L) {
   size_t last = (size_t)optint(L, 4, "last", (long)n, (long)first + 1, (long)n);
   pts += first - 1;
   n = last - first + 1;
+  /* a traced descent path: consecutive segments joined where F changes little
+   * (quad_merge_vertices), with F's values at the points in `levels` */
+  double drop = optnum(L, 4, "merge", 0);
+  lua_getfield(L, 4, "levels");
+  if (drop > 0 && !lua_isnil(L, -1) && first == 1 && last == n) {
+    size_t nl = 0, na = 0;
+    const cplx *levels = bind_checkpoints(L, lua_gettop(L), &nl);
+    lua_getfield(L, 4, "avoid");
+    const cplx *avoid = lua_isnil(L, -1) ? NULL : bind_checkpoints(L, lua_gettop(L), &na);
+    if (nl == n) {
+      size_t *keep = bind_array(L, n, sizeof(size_t));
+      size_t m = quad_merge_vertices(pts, levels, n, drop, avoid, na, keep);
+      cplx *merged = bind_array(L, m, sizeof(cplx));
+      for (size_t k = 0; k < m; k++) merged[k] = pts[keep[k]];
+      pts = merged;
+      n = m;
+    }
+  }
   batch_ctx c = {p, bind_array(L, p->t->n, TAPE_BLOCK * sizeof(cplx)),
                  bind_array(L, p->t->nout, 15 * QUAD_BATCH * sizeof(cplx))};
   void *scratch = bind_array(L, QUAD_POLYLINE_BYTES(n - 1), 1);
@@ -502,7 +637,7 @@ static int land_invmap_quartic(lua_State *L) {
  * (entry m + depth + 1), max |integrand| on the circle, and (N even) the same cvec from
  * every other point (an N/2 rule on the same samples, for an error estimate): the
  * trapezoidal rule on |t - p| = rho (exponentially accurate for an integrand analytic
- * on an annulus). */
+ * on an annulus); circle_laurent in rings.h. */
 static int land_laurent(lua_State *L) {
   problem *p = checkproblem(L);
   cplx c = bind_checkcomplex(L, 3);
@@ -511,29 +646,86 @@ static int land_laurent(lua_State *L) {
   luaL_argcheck(L, rho > 0 && isfinite(rho), 4, "radius must be positive and finite");
   luaL_argcheck(L, N >= 8 && N <= 65536, 5, "number of points must be 8..65536");
   luaL_argcheck(L, depth >= 1 && depth <= 1024, 6, "depth must be 1..1024");
-  cplx *f = bind_array(L, (size_t)N, sizeof(cplx));
-  double vmax = 0;
-  for (lua_Integer k = 0; k < N; k++) {
-    f[k] = integrand(p, c + rho * cexp(I * (6.283185307179586 * (double)k / (double)N)));
-    vmax = fmax(vmax, cabs(f[k]));
-  }
   cplx *root = bind_array(L, (size_t)N, sizeof(cplx));
   unit_roots((size_t)N, root);
+  cplx *work = bind_array(L, bind_mulcount(L, p->t->n, TAPE_BLOCK) +
+                                 bind_mulcount(L, p->t->nout + 2, (size_t)N), sizeof(cplx));
   int halves = N % 2 == 0;
   cplx *out = bind_newcvec(L, (size_t)depth + 2);
-  lua_pushnumber(L, vmax);
+  double vmax = 0;
   cplx *half = halves ? bind_newcvec(L, (size_t)depth + 2) : NULL;
-  for (lua_Integer m = -depth; m <= 1; m++) {
-    cplx sum = 0, sum2 = 0;
-    for (lua_Integer k = 0; k < N; k++) {
-      cplx term = f[k] * root[((k * m) % N + N) % N];
-      sum += term;
-      if (k % 2 == 0) sum2 += term;
-    }
-    out[m + depth] = sum / (double)N;
-    if (halves) half[m + depth] = sum2 / (double)(N / 2);
+  circle_laurent(p, c, rho, (int)N, (int)depth, root, work, out, half, &vmax);
+  if (halves) {
+    lua_pushnumber(L, vmax);
+    lua_insert(L, -2);
+    return 3;
   }
-  return halves ? 3 : 2;
+  lua_pushnumber(L, vmax);
+  return 2;
+}
+
+/* core.ring_quietest(tape, params, c, r0, count, n) -> rho, score, spread (or nil): the
+ * circle about c, of radius r0 2^(-i/3) for i < count, where a residue at c is best
+ * conditioned (ring_quietest in rings.h). */
+static int land_ring_quietest(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx c = bind_checkcomplex(L, 3);
+  double r0 = luaL_checknumber(L, 4);
+  lua_Integer count = luaL_checkinteger(L, 5), n = luaL_checkinteger(L, 6);
+  luaL_argcheck(L, r0 > 0 && isfinite(r0), 4, "radius must be positive and finite");
+  luaL_argcheck(L, count >= 1 && count <= 1024, 5, "number of radii must be 1..1024");
+  luaL_argcheck(L, n >= 4 && n <= 65536, 6, "number of points must be 4..65536");
+  cplx *work = bind_array(L, bind_mulcount(L, p->t->n, TAPE_BLOCK) +
+                                 bind_mulcount(L, p->t->nout + 1, (size_t)n), sizeof(cplx));
+  double rho = 0, score = 0, spread = 0;
+  if (!ring_quietest(p, c, r0, (int)count, (int)n, work, &rho, &score, &spread)) {
+    lua_pushnil(L);
+    return 1;
+  }
+  lua_pushnumber(L, rho);
+  lua_pushnumber(L, score);
+  lua_pushnumber(L, spread);
+  return 3;
+}
+
+/* The error of a kernel that met a point where F' could not be evaluated. */
+static int circle_error(lua_State *L, const char *what, cplx c, double rho) {
+  char at[64];   /* lua_pushfstring has no %g */
+  snprintf(at, sizeof at, "%.15g%+.15gi", creal(c), cimag(c));
+  return luaL_error(L, "%s: F' is not finite on the circle of radius %g about %s", what, rho, at);
+}
+
+/* core.log_coefficient(tape, params, c, rho, n) -> the coefficient a of a log(t - c) in F
+ * (circle_log_coefficient in rings.h) */
+static int land_log_coefficient(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx c = bind_checkcomplex(L, 3);
+  double rho = luaL_checknumber(L, 4);
+  lua_Integer n = luaL_checkinteger(L, 5);
+  luaL_argcheck(L, rho > 0 && isfinite(rho), 4, "radius must be positive and finite");
+  luaL_argcheck(L, n >= 4 && n <= 65536, 5, "number of points must be 4..65536");
+  cplx a = 0;
+  if (circle_log_coefficient(p, c, rho, (int)n, &a) != STEEP_OK)
+    return circle_error(L, "log_coefficient", c, rho);
+  bind_pushcomplex(L, a);
+  return 1;
+}
+
+/* core.dF_laurent(tape, params, c, rho, n, depth) -> cvec of the Laurent coefficients
+ * b_m of F' about c, m = -depth - 1..0 (entry m + depth + 2), or nil where F' could not
+ * be evaluated on the circle (circle_dF_laurent in rings.h) */
+static int land_dF_laurent(lua_State *L) {
+  problem *p = checkproblem(L);
+  cplx c = bind_checkcomplex(L, 3);
+  double rho = luaL_checknumber(L, 4);
+  lua_Integer n = luaL_checkinteger(L, 5), depth = luaL_checkinteger(L, 6);
+  luaL_argcheck(L, rho > 0 && isfinite(rho), 4, "radius must be positive and finite");
+  luaL_argcheck(L, n >= 4 && n <= 65536, 5, "number of points must be 4..65536");
+  luaL_argcheck(L, depth >= 0 && depth <= 1024, 6, "depth must be 0..1024");
+  cplx *work = bind_array(L, (size_t)n, sizeof(cplx));
+  cplx *b = bind_newcvec(L, (size_t)depth + 2);
+  if (circle_dF_laurent(p, c, rho, (int)n, (int)depth, work, b) != STEEP_OK) lua_pushnil(L);
+  return 1;
 }
 
 /* ---- rings ---------------------------------------------------------------------- */
@@ -622,12 +814,16 @@ static int geo_nearest(lua_State *L) {
 }
 
 static const luaL_Reg land_funcs[] = {
-  {"zero", land_zero}, {"count", land_count}, {"trace", land_trace},
-  {"saddle_starts", land_saddle_starts}, {"quad_polyline", land_quad_polyline},
+  {"zero", land_zero}, {"count", land_count}, {"zeros", land_zeros}, {"aberth", land_aberth},
+  {"trace", land_trace},
+  {"saddle_starts", land_saddle_starts}, {"saddle_quad", land_saddle_quad},
+  {"quad_polyline", land_quad_polyline},
   {"short_stretches", land_short_stretches},
   {"integrand_many", land_integrand_many}, {"invmap_circle", land_invmap},
   {"invmap_cubic", land_invmap_cubic}, {"invmap_quartic", land_invmap_quartic},
   {"laurent", land_laurent},
+  {"ring_quietest", land_ring_quietest}, {"log_coefficient", land_log_coefficient},
+  {"dF_laurent", land_dF_laurent},
   {"branch_jump", land_branch_jump}, {"ring_power", land_ring_power}, {"log_spread", land_log_spread},
   {"turning", geo_turning}, {"crossings", geo_crossings}, {"distance", geo_distance},
   {"nearest", geo_nearest},

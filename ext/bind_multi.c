@@ -416,6 +416,7 @@ static int quad_arc(lua_State *L) {
   cplx *params = bind_tapeparams(L, 1, 2);
   problem *p = bind_scratch(L, sizeof(problem));
   problem_init(p, t, params, bind_scratch(L, problem_bytes(t)));
+  p->tally = bind_tapetally(L, 1);
   arc_ctx a = { p, bind_checkcomplex(L, 3), luaL_checknumber(L, 4) };
   double th0 = luaL_checknumber(L, 5), th1 = luaL_checknumber(L, 6);
   if (!(a.r > 0) || !isfinite(a.r) || !isfinite(th0) || !isfinite(th1))
@@ -461,6 +462,7 @@ static int quad_ray(lua_State *L) {
   cplx *params = bind_tapeparams(L, 1, 2);
   problem *p = bind_scratch(L, sizeof(problem));
   problem_init(p, t, params, bind_scratch(L, problem_bytes(t)));
+  p->tally = bind_tapetally(L, 1);
   double angle = luaL_checknumber(L, 4);
   ray_ctx r = { p, bind_checkcomplex(L, 3), cos(angle) + I * sin(angle), luaL_checknumber(L, 5) };
   if (!(r.L > 0) || !isfinite(r.L) || !isfinite(angle))
@@ -494,6 +496,7 @@ static int quad_circle(lua_State *L) {
   cplx *params = bind_tapeparams(L, 1, 2);
   problem *p = bind_scratch(L, sizeof(problem));
   problem_init(p, t, params, bind_scratch(L, problem_bytes(t)));
+  p->tally = bind_tapetally(L, 1);
   arc_ctx a = { p, bind_checkcomplex(L, 3), luaL_checknumber(L, 4) };
   if (!(a.r > 0) || !isfinite(a.r)) return luaL_error(L, "quad_circle: radius must be positive");
   double reltol = optnum(L, 5, "reltol", 1e-13), centre = optnum(L, 5, "centre", 0);

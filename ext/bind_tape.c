@@ -16,6 +16,11 @@
 
 #define checktape(L, i) ((tape *)luaL_checkudata(L, i, STEEP_TAPE_MT))
 
+/* The userdata block starts with the tape and a tally of the evaluations made through it
+ * by every binding (values, batches, jets, and the problems of the landscape kernels):
+ * for benchmarks and tests that count work, never for decisions. */
+typedef struct { tape t; long tally; } tape_block;
+
 static size_t align16(size_t s) { return (s + 15) & ~(size_t)15; }
 
 static lua_Integer field_int(lua_State *L, int tidx, const char *key, lua_Integer dflt,
@@ -75,11 +80,12 @@ static int tape_new(lua_State *L) {
   lua_Integer np = lua_isnil(L, 3) ? 0 : table_len(L, 3, "params", STEEP_MAX_PARAMS);
   lua_Integer no = table_len(L, 4, "outputs", STEEP_MAX_TAPE);
   if (n == 0) return luaL_error(L, "tape: empty code");
-  size_t off_ins = align16(sizeof(tape));
+  size_t off_ins = align16(sizeof(tape_block));
   size_t off_out = off_ins + align16((size_t)n * sizeof(tape_ins));
   size_t off_var = off_out + align16((size_t)no * sizeof(int));
   char *mem = lua_newuserdatauv(L, off_var + (size_t)n, 1);   /* index 5 */
   tape *t = (tape *)mem;
+  ((tape_block *)mem)->tally = 0;
   t->n = (size_t)n;
   t->nparams = (size_t)np;
   t->nout = (size_t)no;
@@ -153,6 +159,10 @@ static cplx *read_params(lua_State *L, const tape *t, int pidx) {
 
 const tape *bind_checktape(lua_State *L, int idx) { return checktape(L, idx); }
 
+long *bind_tapetally(lua_State *L, int idx) {
+  return &((tape_block *)luaL_checkudata(L, idx, STEEP_TAPE_MT))->tally;
+}
+
 cplx *bind_tapeparams(lua_State *L, int tidx, int pidx) {
   return params_of(L, checktape(L, tidx), lua_absindex(L, tidx), lua_absindex(L, pidx));
 }
@@ -165,6 +175,7 @@ static int tape_eval_l(lua_State *L) {
   cplx *work = bind_array(L, t->n + t->nout, sizeof(cplx));
   cplx *out = work + t->n;
   tape_eval(t, x, p, out, work);
+  ((tape_block *)t)->tally++;
   luaL_checkstack(L, (int)t->nout, "too many outputs");
   for (size_t o = 0; o < t->nout; o++) bind_pushcomplex(L, out[o]);
   return (int)t->nout;
@@ -193,6 +204,7 @@ static int tape_eval_many(lua_State *L) {
   cplx *work = bind_array(L, bind_mulcount(L, t->n, TAPE_BLOCK), sizeof(cplx));
   cplx *out = bind_array(L, bind_mulcount(L, t->nout, m) + 1, sizeof(cplx));
   tape_eval_batch(t, xs, m, p, out, work);
+  ((tape_block *)t)->tally += (long)m;
   luaL_checkstack(L, (int)t->nout + 2, "too many outputs");
   for (size_t o = 0; o < t->nout; o++) {
     if (as_cvec) {
@@ -232,6 +244,7 @@ static int tape_jet_l(lua_State *L) {
   cplx *scratch = bind_array(L, 4 * n, sizeof(cplx));
   long bad = -1;
   int st = tape_jet_upto(t, x, p, order, work, scratch, &bad, upto);
+  ((tape_block *)t)->tally++;
   if (st != STEEP_OK) {
     char at[64];   /* lua_pushfstring has no %g nor flags such as %+ */
     snprintf(at, sizeof at, "%.15g%+.15gi", creal(x), cimag(x));
@@ -306,6 +319,14 @@ static int tape_size(lua_State *L) {
   return 2;
 }
 
+/* tape:evals() -> the evaluations made through this tape so far (every binding: values,
+ * batches, jets, Newton, paths, quadrature, counts; a jet counts one). */
+static int tape_evals(lua_State *L) {
+  checktape(L, 1);
+  lua_pushinteger(L, (lua_Integer)*bind_tapetally(L, 1));
+  return 1;
+}
+
 static int tape_tostring(lua_State *L) {
   tape *t = checktape(L, 1);
   lua_pushfstring(L, "steep.tape (%d instructions, %d parameters, %d outputs)", (int)t->n,
@@ -315,7 +336,7 @@ static int tape_tostring(lua_State *L) {
 
 static const luaL_Reg tape_methods[] = {
   {"eval", tape_eval_l}, {"eval_many", tape_eval_many}, {"jet", tape_jet_l},
-  {"dump", tape_dump}, {"params", tape_params}, {"size", tape_size},
+  {"dump", tape_dump}, {"params", tape_params}, {"size", tape_size}, {"evals", tape_evals},
   {NULL, NULL}
 };
 

@@ -2,6 +2,7 @@
  * path.c — steepest path tracing; contracts in path.h.
  */
 #include <math.h>
+#include "cplx.h"
 #include "path.h"
 
 static int finite_c(cplx z) { return isfinite(creal(z)) && isfinite(cimag(z)); }
@@ -12,18 +13,20 @@ static int eval(problem *p, cplx t, cplx *F, cplx *dF) {
   return finite_c(*F) && finite_c(*dF) ? STEEP_OK : STEEP_NONFINITE;
 }
 
-/* log |g(t) e^{F(t)}| = Re F + log|g| (no overflow or underflow of the integrand). */
+/* log |g(t) e^{F(t)}| = Re F + log|g| (no overflow or underflow of the integrand), where
+ * the last evaluation was problem_dF at t (g continues it). */
 static double log_integrand(problem *p, cplx t, cplx Fcont) {
   if (p->t->nout < 2) return creal(Fcont);
-  cplx F;
-  (void)problem_integrand(p, t, &F);
-  return creal(Fcont) + log(cabs(p->vals[1]));
+  return creal(Fcont) + log(cabs(problem_amplitude_after_dF(p, t)));
 }
 
-/* Newton's corrector onto Im(F + off) = target: moves along grad Im F = i conj(F'). */
-static int correct(problem *p, cplx *t, double target, cplx off, cplx *F, cplx *dF) {
+/* Newton's corrector onto Im(F + off) = target: moves along grad Im F = i conj(F').
+ * `known`: *F and *dF hold F and F' at *t already (the predictor's evaluation); the last
+ * evaluation made is at the returned *t. */
+static int correct(problem *p, cplx *t, double target, cplx off, cplx *F, cplx *dF,
+                   int known) {
   for (int k = 0; k < 6; k++) {
-    if (eval(p, *t, F, dF) != STEEP_OK) return STEEP_SINGULAR;
+    if (!(k == 0 && known) && eval(p, *t, F, dF) != STEEP_OK) return STEEP_SINGULAR;
     double r = cimag(*F + off) - target;
     double d2 = creal(*dF) * creal(*dF) + cimag(*dF) * cimag(*dF);
     if (fabs(r) <= 1e-13 * (1 + cabs(*F + off)) || d2 == 0) return STEEP_OK;
@@ -49,7 +52,7 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
    * there differs from it by a branch jump (a saddle on a cut of log), carry the jump. */
   if (eval(p, t, &F, &dF) == STEEP_OK && fabs(cimag(level - F)) > 0.5)
     off = I * cimag(level - F);
-  if (correct(p, &t, target, off, &F, &dF) != STEEP_OK) return PATH_SINGULAR;
+  if (correct(p, &t, target, off, &F, &dF, 0) != STEEP_OK) return PATH_SINGULAR;
   pts[0] = t;
   Fs[0] = F;
   *n = 1;
@@ -60,6 +63,10 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
     /* never step over a stop point, or so far that Re F changes by more than ~2 */
     double hcap = 0.1 * o->radius;
     for (size_t j = 0; j < o->nstops; j++) {
+      /* (a stop farther than 2 hcap + its radius cannot lower hcap: told by the square
+       * of its distance, with room for rounding, before the modulus is taken) */
+      double lim = 2 * hcap + o->stop_r[j];
+      if (lim >= 0 && abs2(t - o->stops[j]) > lim * lim * (1 + 1e-12)) continue;
       double dist = cabs(t - o->stops[j]) - o->stop_r[j];
       hcap = fmin(hcap, fmax(0.5 * dist, hmin));
     }
@@ -76,11 +83,11 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
       /* continuity of F: compare the change with the trapezoidal integral of F' */
       cplx pred = 0.5 * (dF + dF1) * (t1 - t);
       cplx jump = (F1 + off) - (F + off) - pred;
-      if (cabs(jump) > 0.5 + 0.1 * cabs(pred)) {
+      if (o->jumps && cabs(jump) > 0.5 + 0.1 * cabs(pred)) {
         if (h > 1e-6 * o->scale) { h *= 0.5; continue; }
         off -= jump;   /* a branch jump of F's principal value: undo it */
       }
-      if (correct(p, &t1, target, off, &F1, &dF1) != STEEP_OK) {
+      if (correct(p, &t1, target, off, &F1, &dF1, 1) != STEEP_OK) {
         if (h > hmin) { h *= 0.5; continue; }
         return PATH_SINGULAR;
       }
@@ -97,8 +104,11 @@ int path_trace(problem *p, cplx start, cplx level, const path_opts *o, cplx *pts
     Fs[*n] = F + off;
     (*n)++;
     if (!finite_c(F) || !finite_c(dF)) return PATH_SINGULAR;
-    for (size_t j = 0; j < o->nstops; j++)
-      if (cabs(t - o->stops[j]) <= o->stop_r[j]) { *which = (int)j; return PATH_STOP; }
+    for (size_t j = 0; j < o->nstops; j++) {
+      double r = o->stop_r[j];
+      if (abs2(t - o->stops[j]) > r * r * (1 + 1e-12)) continue;   /* surely outside */
+      if (cabs(t - o->stops[j]) <= r) { *which = (int)j; return PATH_STOP; }
+    }
     if (o->descent) {
       if (log_integrand(p, t, F + off) < o->ref - o->cutoff) return PATH_LOW;
     } else if (creal(F + off) - creal(level) > o->cutoff) {
@@ -151,8 +161,223 @@ int path_saddle_starts(problem *p, cplx t0, cplx F0, int order, cplx c, int desc
       cplx cont = continuous_F(p, t0, F0, t);
       if (fabs(cimag(cont - F)) > 0.5) off = I * cimag(cont - F);
     }
-    if (correct(p, &t, cimag(F0), off, &F, &dF) != STEEP_OK) return STEEP_SINGULAR;
+    if (correct(p, &t, cimag(F0), off, &F, &dF, 0) != STEEP_OK) return STEEP_SINGULAR;
     starts[k] = t;
   }
   return STEEP_OK;
+}
+
+/* ---- the integral along a saddle's descent path, in its own variable ------------------ */
+
+/* The u of each traced point of a ray: sqrt(Re(F0 - F)), which must increase. */
+static int ray_u(cplx F0, path_ray r, double *u) {
+  double prev = 0;
+  for (size_t k = 0; k < r.n; k++) {
+    double d = creal(F0 - r.F[k]);
+    u[k] = d > 0 ? sqrt(d) : 0;
+    if (!(u[k] > prev) || !isfinite(u[k])) return -1;
+    prev = u[k];
+  }
+  return 0;
+}
+
+#define TAYLOR_ORDER 12
+#define EPS 2.220446049250313e-16
+
+typedef struct {
+  problem *p;
+  cplx t0, F0, dt0;   /* dt/du at u = 0; F0 = c[0], the tape's F at t0 */
+  path_ray ray[2];    /* [0]: u > 0 (ray a), [1]: u < 0 (ray b) */
+  double *u[2];
+  /* Near the saddle F0 - F(t) = u^2 is solved on F's Taylor polynomial at t0 (degree
+   * TAYLOR_ORDER), whose coefficients are F's differences exactly: F(t) itself carries
+   * about eps |F0| of rounding, so t solved from it is off by eps |F0| / |F'|, a relative
+   * error of about eps |F0| / (2 u^2) in dt/du at u. Each node takes the route whose
+   * error estimate is smaller (c[13], c[14] estimate the polynomial's truncation). */
+  cplx c[TAYLOR_ORDER + 3];
+} saddle_path;
+
+static void taylor(const saddle_path *sp, cplx h, cplx *G, cplx *dG) {
+  cplx g = 0, d = 0;
+  for (int k = TAYLOR_ORDER; k >= 1; k--) {
+    d = d * h + g;
+    g = g * h + sp->c[k];
+  }
+  *G = g * h;               /* sum_{k=1..TAYLOR_ORDER} c_k h^k */
+  *dG = d * h + g;          /* its derivative */
+}
+
+/* h with G(h) = -u^2 on the Taylor polynomial, from the guess x; 0 when Newton does not
+ * settle or lands off the ray's side. */
+static int taylor_solve(const saddle_path *sp, double u, cplx x, cplx *h, cplx *dG) {
+  cplx G;
+  for (int it = 0; it < 30; it++) {
+    taylor(sp, x, &G, dG);
+    if (*dG == 0) return 0;
+    cplx step = (G + u * u) / *dG;
+    x -= step;
+    if (cabs(step) <= 1e-15 * cabs(x)) {
+      taylor(sp, x, &G, dG);
+      *h = x;
+      return creal(x * conj(sp->dt0 * u)) > 0;
+    }
+  }
+  return 0;
+}
+
+/* The relative error of g e^F dt/du at a node solved on the Taylor polynomial at h:
+ * the polynomial's truncation (the next two terms, common practice: a tail of a
+ * convergent series well inside its disc) and rounding (eps times the sum of the moduli of
+ * its terms), in G (which moves the node: f changes by about f times the shift in u^2,
+ * f falling like e^{-u^2}) and in G' (dt/du = -2u / G'), four times over. */
+static double taylor_error(const saddle_path *sp, cplx h, cplx dG) {
+  double ah = cabs(h), hk = ah, sumG = 0, sumD = 0;
+  for (int k = 1; k <= TAYLOR_ORDER; k++) {
+    sumG += cabs(sp->c[k]) * hk;
+    sumD += k * cabs(sp->c[k]) * hk / ah;
+    hk *= ah;
+  }
+  double t13 = cabs(sp->c[TAYLOR_ORDER + 1]) * hk, t14 = cabs(sp->c[TAYLOR_ORDER + 2]) * hk * ah;
+  double dG_err = ((TAYLOR_ORDER + 1) * t13 + (TAYLOR_ORDER + 2) * t14) / ah + EPS * sumD;
+  double G_err = t13 + t14 + EPS * sumG;
+  return 4 * (dG_err / cabs(dG) + G_err);
+}
+
+/* g e^F dt/du at u, or a non-finite value when the node cannot be solved; *rel set to the
+ * relative error of the value from solving for the node (the rounding of g e^F at the node
+ * is the quadrature's floor). e^F is the tape's at the node found (its rounding differs
+ * from node to node, where e^{F0 - u^2} would carry F0's own into every node alike). */
+static cplx node_value(const saddle_path *sp, double u, double *rel) {
+  problem *p = sp->p;
+  cplx F, dF;
+  *rel = 0;
+  if (u == 0) {
+    if (eval(p, sp->t0, &F, &dF) != STEEP_OK) return NAN;
+    return problem_amplitude_after_dF(p, sp->t0) * cexp(F) * sp->dt0;
+  }
+  int side = u > 0 ? 0 : 1;
+  double s = fabs(u);
+  const path_ray *r = &sp->ray[side];
+  const double *us = sp->u[side];
+  if (r->n == 0 || s > us[r->n - 1]) return NAN;
+  /* the bracketing points: (0, t0) before the first */
+  size_t lo = 0, hi = r->n - 1;
+  if (s <= us[0]) hi = 0;
+  else {
+    while (hi - lo > 1) {
+      size_t mid = (lo + hi) / 2;
+      if (us[mid] < s) lo = mid; else hi = mid;
+    }
+  }
+  cplx ta = hi == 0 ? sp->t0 : r->pts[hi - 1], tb = r->pts[hi];
+  double ua = hi == 0 ? 0 : us[hi - 1], ub = us[hi];
+  cplx seed = ta + (tb - ta) * ((s - ua) / (ub - ua)), t = seed;
+  /* Solved on the tape: Newton's residual in F is at most 4 eps (2|F0| + u^2 + 1) = d,
+   * which moves u^2 by d and G' = F' by |F''| d / |F'| (relative d / (2 u^2)) */
+  double d = 4 * EPS * (2 * cabs(sp->F0) + s * s + 1);
+  double tape_rel = 4 * d * (1 / (2 * s * s) + 1);
+  /* (the root of the equation on the path: Newton from the traced points, and it must land
+   * on the segment it started from; F0 - F = u^2 has other roots on other curves) */
+  cplx h, dG;
+  if (taylor_solve(sp, u, seed - sp->t0, &h, &dG) && cabs(sp->t0 + h - seed) <= cabs(tb - ta)) {
+    double taylor_rel = taylor_error(sp, h, dG);
+    if (taylor_rel < tape_rel) {
+      if (eval(p, sp->t0 + h, &F, &dF) != STEEP_OK) return NAN;
+      /* (the tape's F there against the polynomial's: a jet that does not describe F
+       * this far out, say past a singular point, is not used) */
+      if (cabs(F - (sp->F0 - s * s)) <= d + taylor_rel * s * s) {
+        *rel = taylor_rel;
+        return problem_amplitude_after_dF(p, sp->t0 + h) * cexp(F) * (-2 * u / dG);
+      }
+    }
+  }
+  *rel = tape_rel;
+  cplx target = sp->F0 - s * s;
+  for (int it = 0; it < 12; it++) {
+    if (eval(p, t, &F, &dF) != STEEP_OK || dF == 0) return NAN;
+    cplx r0 = F - target;
+    if (cabs(r0) <= d) {
+      if (cabs(t - seed) > cabs(tb - ta)) return NAN;   /* left its segment */
+      return problem_amplitude_after_dF(p, t) * cexp(F) * (-2 * u / dF);
+    }
+    t -= r0 / dF;
+  }
+  return NAN;
+}
+
+/* One side's nodes k h (k from `from` by `by` up to u_end), added to *sum, *abs_sum and
+ * *cond (the sum of |f| times each node's relative error); the outermost node's value and
+ * u kept in *f_end, *u_end when beyond the last. */
+static int add_nodes(const saddle_path *sp, int sign, double h, double u_end, long from,
+                     long by, cplx *sum, double *abs_sum, double *cond, cplx *f_end,
+                     double *u_out) {
+  long kmax = (long)floor(u_end / h);
+  for (long k = from; k <= kmax; k += by) {
+    double u = k * h, rel;
+    cplx f = node_value(sp, sign * u, &rel);
+    if (!isfinite(creal(f)) || !isfinite(cimag(f))) return -1;
+    *sum += f;
+    *abs_sum += cabs(f);
+    /* (and e^F's own rounding there: eps |F| in its argument, F about F0 - u^2) */
+    *cond += cabs(f) * (rel + 2 * EPS * (cabs(sp->F0) + u * u + 1));
+    if (u > *u_out) { *u_out = u; *f_end = f; }
+  }
+  return 0;
+}
+
+int path_saddle_quad(problem *p, cplx t0, cplx F0, cplx F2, path_ray a, path_ray b,
+                     double abstol, double reltol, double *work, cplx *res, double *err,
+                     cplx *part_a, cplx *part_b) {
+  saddle_path sp;
+  sp.p = p;
+  sp.t0 = t0;
+  sp.ray[0] = a;
+  sp.ray[1] = b;
+  sp.u[0] = work;
+  sp.u[1] = work + a.n;
+  if (a.n < 2 || b.n < 2 || F2 == 0) return -1;
+  if (problem_jet(p, t0, TAYLOR_ORDER + 2, 0, sp.c) != STEEP_OK || sp.c[2] == 0) return -1;
+  /* (F0 as the jet has it, so that both routes to a node measure u from the same value;
+   * it agrees with the caller's to rounding) */
+  if (!(cabs(sp.c[0] - F0) <= 1e-12 * (cabs(F0) + 1))) return -1;
+  sp.F0 = sp.c[0];
+  if (ray_u(sp.F0, a, sp.u[0]) || ray_u(sp.F0, b, sp.u[1])) return -1;
+  /* dt/du at the saddle: 1/sqrt(-c_2), the root pointing along ray a */
+  cplx dt0 = csqrt(-1.0 / sp.c[2]);
+  if (creal(dt0 * conj(a.pts[0] - t0)) < 0) dt0 = -dt0;
+  sp.dt0 = dt0;
+  /* (nodes up to u = 30 at most, where e^{-u^2} = e^{-900} is far below any tolerance:
+   * a ray that overshoots its cutoff in one long step does not cost millions of nodes) */
+  double ua = fmin(sp.u[0][a.n - 1], 30), ub = fmin(sp.u[1][b.n - 1], 30), rel0;
+  cplx sum_a = 0, sum_b = 0, end_a = 0, end_b = 0, f0 = node_value(&sp, 0, &rel0);
+  double abs_sum = cabs(f0), cond = abs_sum * 2 * EPS * (cabs(sp.F0) + 1), out_a = 0, out_b = 0;
+  if (!isfinite(abs_sum)) return -1;
+  /* level 0: step 1/2, every node; later levels the odd multiples of the new step */
+  double h = 0.5;
+  if (add_nodes(&sp, 1, h, ua, 1, 1, &sum_a, &abs_sum, &cond, &end_a, &out_a) ||
+      add_nodes(&sp, -1, h, ub, 1, 1, &sum_b, &abs_sum, &cond, &end_b, &out_b))
+    return -1;
+  cplx T = h * (f0 + sum_a + sum_b);
+  for (int level = 1; level <= 7; level++) {
+    h *= 0.5;
+    if (add_nodes(&sp, 1, h, ua, 1, 2, &sum_a, &abs_sum, &cond, &end_a, &out_a) ||
+        add_nodes(&sp, -1, h, ub, 1, 2, &sum_b, &abs_sum, &cond, &end_b, &out_b))
+      return -1;
+    cplx T2 = h * (f0 + sum_a + sum_b);
+    /* the rounding of the sum, and each node's own errors (cond) */
+    double diff = cabs(T2 - T), floor8 = 8 * EPS * h * abs_sum + h * cond;
+    T = T2;
+    if (diff <= fmax(abstol, reltol * cabs(T2)) + floor8) {
+      /* the tails past the outermost nodes: |f(u)| e^{-(v^2 - u^2)} integrated over
+       * v > u is at most |f(u)| / (2u) */
+      double tails = (out_a > 0 ? cabs(end_a) / (2 * out_a) : 0) +
+                     (out_b > 0 ? cabs(end_b) / (2 * out_b) : 0);
+      *res = T2;
+      *err = diff + floor8 + tails;
+      *part_a = h * (0.5 * f0 + sum_a);
+      *part_b = h * (0.5 * f0 + sum_b);
+      return 0;
+    }
+  }
+  return -1;
 }

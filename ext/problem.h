@@ -19,6 +19,7 @@ typedef struct problem {
   cplx *scratch;       /* 4 * (PROBLEM_MAX_JET + 1) entries */
   cplx *vals;          /* t->nout entries */
   long evals;          /* integrand or jet evaluations so far */
+  long *tally;         /* NULL, or a running total the evaluations are added to as well */
 } problem;
 
 /* Bytes of memory a problem over tape t needs (for the caller to allocate). */
@@ -40,7 +41,16 @@ cplx problem_integrand(problem *p, cplx x, cplx *F);
 void problem_integrand_batch(problem *p, const cplx *xs, size_t m, cplx *f, cplx *work,
                              cplx *out);
 
+/* The tape's outputs at m points (no exponential taken): out[o * m + i] is output o at
+ * xs[i], by tape_eval_batch. work: t->n * TAPE_BLOCK entries. Counts m evaluations. */
+void problem_values_batch(problem *p, const cplx *xs, size_t m, cplx *work, cplx *out);
+
 /* F(x) and F'(x) by forward mode (tape_dual_upto). Returns a steep_status. */
 int problem_dF(problem *p, cplx x, cplx *F, cplx *dF);
+
+/* The amplitude g at the point of the last successful problem_dF (1 when the tape has
+ * one output): that evaluation continued by value to g's slot (tape_eval_from), not a
+ * new evaluation. */
+cplx problem_amplitude_after_dF(problem *p, cplx x);
 
 #endif

@@ -205,3 +205,38 @@ int quad_polyline(quad_fn f, quad_batch_fn fb, void *ctx, const cplx *pts, size_
   *err = etotal;
   return status;
 }
+
+/* Distance from z to the segment a -> b. */
+static double seg_distance(cplx z, cplx a, cplx b) {
+  cplx d = b - a;
+  double len2 = creal(d) * creal(d) + cimag(d) * cimag(d);
+  double u = len2 > 0 ? creal((z - a) * conj(d)) / len2 : 0;
+  if (u < 0) u = 0;
+  if (u > 1) u = 1;
+  return cabs(z - (a + u * d));
+}
+
+size_t quad_merge_vertices(const cplx *pts, const cplx *levels, size_t n, double drop,
+                           const cplx *avoid, size_t navoid, size_t *keep) {
+  size_t m = 0, i = 0;
+  if (n == 0) return 0;
+  keep[m++] = 0;
+  while (i + 1 < n) {
+    size_t best = i + 1;
+    cplx first = pts[i + 1] - pts[i];
+    for (size_t k = i + 2; k < n; k++) {
+      if (!(creal(levels[i]) - creal(levels[k]) <= drop)) break;
+      cplx seg = pts[k] - pts[k - 1];
+      if (cabs(first) == 0 || cabs(seg) == 0 || fabs(carg(seg / first)) > 0.25) break;
+      double len = cabs(pts[k] - pts[i]);
+      int clear = 1;
+      for (size_t j = 0; j < navoid && clear; j++)
+        if (seg_distance(avoid[j], pts[i], pts[k]) <= len) clear = 0;
+      if (!clear) break;
+      best = k;
+    }
+    keep[m++] = best;
+    i = best;
+  }
+  return m;
+}

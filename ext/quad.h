@@ -64,6 +64,16 @@ int quad_polyline(quad_fn f, quad_batch_fn fb, void *ctx, const cplx *pts, size_
                   double abstol, double reltol, size_t limit, long budget, int sing0,
                   int sing1, void *scratch, cplx *res, double *err, long *nevals);
 
+/* The vertices to integrate along when consecutive segments of a traced descent path
+ * pts[0..n-1] (F's values at them in levels, Re F falling) may be joined: from each
+ * vertex kept, the farthest point k such that Re F falls by at most `drop` from it, every
+ * segment up to k turns by at most 0.25 rad from the first one out of it, and each of the
+ * points avoid[0..navoid-1] (poles the chord must not pass near) lies farther from the
+ * chord than its length. The first and last points are always kept. Writes the kept
+ * indices to keep[] (room for n) and returns their number. O(n navoid). */
+size_t quad_merge_vertices(const cplx *pts, const cplx *levels, size_t n, double drop,
+                           const cplx *avoid, size_t navoid, size_t *keep);
+
 /* Tanh-sinh rule on a -> b, never evaluating at the endpoints (so integrable endpoint
  * singularities are fine); halves the step until two levels agree to the tolerance, at
  * most 10 levels. */

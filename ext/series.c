@@ -4,6 +4,7 @@
 #include <math.h>
 #include <string.h>
 #include "series.h"
+#include "clog.h"
 
 void ser_mul(cplx *out, const cplx *a, const cplx *b, size_t n) {
   for (size_t k = 0; k < n; k++) {
@@ -39,7 +40,7 @@ int ser_log(cplx *out, const cplx *a, size_t n) {
   if (n == 0) return STEEP_OK;
   if (a[0] == 0) return STEEP_SINGULAR;
   cplx inv = 1.0 / a[0];
-  out[0] = clog(a[0]);
+  out[0] = steep_clog(a[0]);
   for (size_t k = 1; k < n; k++) {
     cplx s = 0;
     for (size_t j = 1; j < k; j++) s += (double)j * out[j] * a[k - j];
@@ -62,7 +63,7 @@ static void pow_tail(cplx *out, const cplx *a, cplx p, size_t n) {
 int ser_pow(cplx *out, const cplx *a, cplx p, size_t n) {
   if (n == 0) return STEEP_OK;
   if (a[0] == 0) return STEEP_BRANCH;
-  out[0] = cexp(p * clog(a[0]));
+  out[0] = cexp(p * steep_clog(a[0]));
   pow_tail(out, a, p, n);
   return STEEP_OK;
 }

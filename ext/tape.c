@@ -5,6 +5,7 @@
 #include <math.h>
 #include <string.h>
 #include "tape.h"
+#include "clog.h"
 #include "series.h"
 #include "cdiv.h"
 
@@ -75,11 +76,11 @@ static cplx powi(cplx z, long m) {
 }
 
 /* Principal-branch power with an exactly real result for a real base > 0 and real
- * exponent (cexp(c*clog(a)) leaves a rounding-level imaginary part otherwise). */
+ * exponent (cexp(c*log(a)) leaves a rounding-level imaginary part otherwise). */
 static cplx powc(cplx a, cplx c) {
   if (cimag(a) == 0 && creal(a) > 0 && cimag(c) == 0) return pow(creal(a), creal(c));
   if (a == 0) return creal(c) > 0 ? 0 : (cplx)NAN;
-  return cexp(c * clog(a));
+  return cexp(c * steep_clog(a));
 }
 
 static cplx apply1(const tape_ins *in, cplx a, cplx b, cplx x, const cplx *params) {
@@ -95,7 +96,7 @@ static cplx apply1(const tape_ins *in, cplx a, cplx b, cplx x, const cplx *param
     case OP_POWI:  return powi(a, in->k);
     case OP_POWC:  return powc(a, in->c);
     case OP_EXP:   return cexp(a);
-    case OP_LOG:   return clog(a);
+    case OP_LOG:   return steep_clog(a);
     case OP_SQRT:  return csqrt(a);
     case OP_SIN:   return csin(a);
     case OP_COS:   return ccos(a);
@@ -137,7 +138,7 @@ static void apply_block(const tape_ins *in, cplx *w, const cplx *a, const cplx *
       else for (i = 0; i < m; i++) w[i] = powi(a[i], in->k);
       break;
     case OP_EXP:   for (i = 0; i < m; i++) w[i] = cexp(a[i]); break;
-    case OP_LOG:   for (i = 0; i < m; i++) w[i] = clog(a[i]); break;
+    case OP_LOG:   for (i = 0; i < m; i++) w[i] = steep_clog(a[i]); break;
     case OP_SQRT:  for (i = 0; i < m; i++) w[i] = csqrt(a[i]); break;
     default:       for (i = 0; i < m; i++) w[i] = apply1(in, a[i], b ? b[i] : 0, xs[i], params);
   }
@@ -268,13 +269,13 @@ static int dual1(const tape_ins *in, cplx a, cplx da, cplx b, cplx db, cplx x, c
       return STEEP_OK;
     case OP_POWC:
       if (a == 0) return STEEP_BRANCH;
-      *v = cexp(in->c * clog(a));   /* as ser_pow, so values match the jets' */
+      *v = cexp(in->c * steep_clog(a));   /* as ser_pow, so values match the jets' */
       *d = cdiv(in->c * *v, a) * da;
       return STEEP_OK;
     case OP_EXP: *v = cexp(a); *d = *v * da; return STEEP_OK;
     case OP_LOG:
       if (a == 0) return STEEP_SINGULAR;
-      *v = clog(a);
+      *v = steep_clog(a);
       *d = cdiv(da, a);
       return STEEP_OK;
     case OP_SQRT:
@@ -322,4 +323,14 @@ int tape_dual_upto(const tape *t, cplx x, const cplx *params, cplx *v, cplx *d, 
     if (st != STEEP_OK) { *bad = (long)j; return st; }
   }
   return STEEP_OK;
+}
+
+cplx tape_eval_from(const tape *t, cplx x, const cplx *params, cplx *v, size_t from,
+                    size_t upto) {
+  for (size_t j = from; j <= upto && j < t->n; j++) {
+    const tape_ins *in = &t->ins[j];
+    cplx a = in->a >= 0 ? v[in->a] : 0, b = in->b >= 0 ? v[in->b] : 0;
+    v[j] = apply1(in, a, b, x, params);
+  }
+  return v[upto];
 }

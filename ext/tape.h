@@ -80,4 +80,10 @@ int tape_jet_upto(const tape *t, cplx x, const cplx *params, size_t order, cplx 
 int tape_dual_upto(const tape *t, cplx x, const cplx *params, cplx *v, cplx *d, long *bad,
                    size_t upto);
 
+/* Continues an evaluation at x whose slots 0..from-1 are in v (values: of tape_eval, or of
+ * tape_dual_upto) with slots from..upto by value (as tape_eval computes them), and
+ * returns slot upto's value. Slots up to `from` are not touched. */
+cplx tape_eval_from(const tape *t, cplx x, const cplx *params, cplx *v, size_t from,
+                    size_t upto);
+
 #endif

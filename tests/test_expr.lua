@@ -162,6 +162,27 @@ function TestTapeEval:test_eval_many_on_lists_and_cvecs()
   lu.assertEquals(#e2, 0)
 end
 
+-- tape:evals() counts every evaluation made through the tape: one per value or jet, one
+-- per point of a batch, and those of the kernels (Newton's method reports its own count).
+function TestTapeEval:test_evaluation_tally()
+  local core = require "steep.core"
+  local tape = steep.compile({ t ^ 3 / 3 - x * t, 1 + 0 * t }, t)
+  lu.assertEquals(tape:evals(), 0)
+  tape:eval(C(0.5, 0.1), { x = 2 })
+  lu.assertEquals(tape:evals(), 1)
+  tape:eval_many(steep.cvec_range(0, 1, 7), { x = 2 })
+  lu.assertEquals(tape:evals(), 8)
+  tape:jet(0.3, 5, { x = 2 })
+  lu.assertEquals(tape:evals(), 9)
+  -- F' = t^2 - x vanishes at sqrt 2 (exactly, from the seed 1.2)
+  local st, root, _, n = core.zero(tape, { x = 2 }, { out = 1, deriv = 1 }, C(1.2, 0),
+    C(0, 0), 4, 0.1, 60)
+  lu.assertEquals(st, "ok")
+  H.close(root, math.sqrt(2), 1e-15, "zero of t^2 - 2")
+  lu.assertTrue(n >= 2)
+  lu.assertEquals(tape:evals(), 9 + n)
+end
+
 function TestTapeEval:test_dump_listing()
   local tape = steep.compile({ t ^ 3 + x, t ^ 2.5 }, t)
   local d = tape:dump()

@@ -323,6 +323,35 @@ function TestLandscapeSingularities:test_simple_pole_of_the_amplitude()
   end
 end
 
+-- Where a singular point's subexpression is a polynomial by its form (landscape.poly_degree)
+-- its zeros are the polynomial's roots, not a search's: all of them in the region, each
+-- once with its multiplicity (exact values: the roots of (t - a)^2 (t - b) and t^3 + 8).
+function TestLandscapeSingularities:test_polynomial_singular_points()
+  local landscape = require "steep.landscape"
+  lu.assertEquals(landscape.poly_degree((t - 1) * (t + x) ^ 2 / 3, t), 3)
+  lu.assertEquals(landscape.poly_degree(x * t ^ 4 + steep.log(x) * t, t), 4)
+  lu.assertEquals(landscape.poly_degree(steep.exp(x) + 2, t), 0)
+  lu.assertNil(landscape.poly_degree(1 / t + 1, t))
+  lu.assertNil(landscape.poly_degree(steep.sqrt(t), t))
+  local a, b = C(0.5, 0.3), C(-1, -0.5)
+  local J = integral(-t ^ 2, 1 / ((t - a) ^ 2 * (t - b)), steep.line(steep.inf(pi), steep.inf(0)))
+  local L = J:landscape {}
+  lu.assertEquals(#L.singularities, 2, "two poles")
+  for _, s in ipairs(L.singularities) do
+    local want, order = cabs(s.at - a) < 0.1 and a or b, cabs(s.at - a) < 0.1 and 2 or 1
+    lu.assertTrue(cabs(s.at - want) <= 1e-12, "pole at " .. tostring(want))
+    lu.assertEquals(s.order, order, "order of the pole at " .. tostring(want))
+  end
+  -- three simple poles at the cube roots of -8 (2 e^{i pi/3}, -2, 2 e^{-i pi/3})
+  local K = integral(-t ^ 2, 1 / (t ^ 3 + 8), steep.line(steep.inf(pi), steep.inf(0)))
+  local poles = K:landscape { region = { center = 0, radius = 4 } }.singularities
+  lu.assertEquals(#poles, 3, "three poles")
+  for _, s in ipairs(poles) do
+    H.close(s.at ^ 3, -8, 1e-14, "a cube root of -8")
+    lu.assertEquals(s.order, 1)
+  end
+end
+
 function TestLandscapeSingularities:test_double_pole_of_the_amplitude()
   -- exp(-t^2)/(t - a)^2: a double pole with residue d/dt exp(-t^2) at a = -2a exp(-a^2)
   local a = C(0.5, 0.3)

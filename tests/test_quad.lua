@@ -330,3 +330,103 @@ function TestQuadLongPath:test_many_points_along_the_given_path()
   lu.assertEquals(info2.status, "ok")
   honest(v2, e2, want, "20000 segments and two rays")
 end
+
+---------------------------------------------------------------------------------------
+
+-- A simple saddle passed through along its two descent rays is integrated at once by
+-- the trapezoidal rule in the saddle's own variable u, F0 - F = u^2 (core.saddle_quad:
+-- geometric convergence, Trefethen & Weideman, SIAM Review 56 (2014)). Its value must
+-- lie within its own estimate (not ten times it), the estimate must stay near rounding
+-- (an inflated one fails too), and the two rays' parts must add up to the value. Where
+-- it cannot settle, or the exponent has branch cuts, the polylines take over.
+TestQuadSaddleVariable = {}
+
+local SADDLE_RULE = "trapezoidal rule in the saddle's variable"
+
+-- The number of pieces integrated by the rule, the sum of every piece's weighted value,
+-- and the rule's own error estimate (its pieces' errors: the contour's other pieces and
+-- the result's floor left out).
+local function by_rule(info)
+  local n, sum, err = 0, C(0, 0), 0
+  for _, p in ipairs(info.pieces) do
+    if p.method == SADDLE_RULE then n, err = n + 1, err + math.abs(p.weight) * p.error end
+    sum = sum + p.weight * p.value
+  end
+  return n, sum, err
+end
+
+local function within_own_estimate(v, e, ref, max_rel, msg)
+  local d = cabs(v - ref)
+  lu.assertTrue(d <= e, string.format("%s: |value - reference| = %.3g exceeds the estimate "
+    .. "%.3g", msg, d, e))
+  lu.assertTrue(e <= max_rel * cabs(ref), string.format("%s: estimate %.3g of a value %.3g",
+    msg, e, cabs(ref)))
+end
+
+-- 2 pi Ai(x) = int exp(i (t^3/3 + x t)) dt along the real line (DLMF 9.5.4, the exponential
+-- form of 9.5.1), Ai from GSL (gsl_sf_airy_Ai). At x = 100, e^F carries eps |F0| = 1.5e-13
+-- of rounding (F0 = -2/3 x^(3/2)): the bound allows for it.
+function TestQuadSaddleVariable:test_airy_integral()
+  local J = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t),
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = x }
+  for _, c in ipairs({ { 1, 1e-13 }, { 10, 1e-13 }, { 100, 1e-12 } }) do
+    local X, max_rel = c[1], c[2]
+    local msg = "Ai at x = " .. X
+    local v, e, info = J:quad { x = X }
+    lu.assertEquals(info.status, "ok", msg)
+    local n, sum, rule_err = by_rule(info)
+    lu.assertEquals(n, 2, msg .. ": both rays by the rule in u")
+    within_own_estimate(v, e, 2 * pi * gsl.airy_Ai(X), max_rel, msg)
+    -- (the contour is the saddle's path alone: the rule's own estimate bounds the error)
+    within_own_estimate(v, rule_err, 2 * pi * gsl.airy_Ai(X), max_rel, msg .. " (the rule's)")
+    H.close(sum, v, 1e-15, msg .. ": the rays' parts add up to the value")
+  end
+end
+
+-- K_nu(x) = (1/2) int_{-inf}^{inf} exp(-x cosh t + nu t) dt (DLMF 10.32.9 with the even
+-- part of e^{nu t}), K from GSL (gsl_sf_bessel_Knu_scaled times e^{-x}); nu = 1/3 at
+-- x = 25, and nu = 2.5 at x = 5 where the amplitude's growth moves the saddle off 0.
+function TestQuadSaddleVariable:test_bessel_k()
+  local nu = steep.param "nu"
+  local J = steep.integral { var = t, exponent = -x * steep.cosh(t) + nu * t,
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = x }
+  for _, c in ipairs({ { 25, 1 / 3 }, { 5, 2.5 } }) do
+    local X, NU = c[1], c[2]
+    local msg = string.format("K_%g(%g)", NU, X)
+    local v, e, info = J:quad { x = X, nu = NU }
+    lu.assertEquals(info.status, "ok", msg)
+    local n, _, rule_err = by_rule(info)
+    lu.assertEquals(n, 2, msg .. ": both rays by the rule in u")
+    local ref = 2 * gsl.bessel_Knu_scaled(NU, X) * math.exp(-X)
+    within_own_estimate(v, e, ref, 1e-13, msg)
+    within_own_estimate(v, rule_err, ref, 1e-13, msg .. " (the rule's)")
+  end
+end
+
+-- Where the rule cannot settle it gives way: int exp(-x t^2) / (t^2 + a^2) dt over the
+-- real line = (pi/a) e^{a^2 x} erfc(a sqrt x) (from memory; erfc from GSL), with poles at
+-- +-i a: at a = 0.02, x = 1 they sit at u = +-0.02 i, too close to the real u axis for
+-- the rule's finest step, so the polylines integrate; at a = 0.3, x = 10 the rule does.
+-- And an exponent with a log (branch cuts) is left to the polylines: Gamma(21) =
+-- int_0^inf t^20 e^-t dt (DLMF 5.2.1), 20! by a product of integers.
+function TestQuadSaddleVariable:test_gives_way()
+  local a = steep.param "a"
+  local G = steep.integral { var = t, exponent = -x * t ^ 2, amplitude = 1 / (t ^ 2 + a ^ 2),
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = x }
+  for _, c in ipairs({ { 1, 0.02, 0 }, { 10, 0.3, 2 } }) do
+    local X, A, rays = c[1], c[2], c[3]
+    local msg = string.format("poles at +-%g i, x = %g", A, X)
+    local v, e, info = G:quad { x = X, a = A }
+    lu.assertEquals(info.status, "ok", msg)
+    lu.assertEquals((by_rule(info)), rays, msg .. ": rays by the rule in u")
+    within_own_estimate(v, e, pi / A * math.exp(A * A * X) * gsl.erfc(A * math.sqrt(X)),
+      1e-13, msg)
+  end
+  local Gam = steep.integral { var = t, exponent = x * steep.log(t) - t,
+    contour = steep.line(0, steep.inf(0)), large = x }
+  local v, e, info = Gam:quad { x = 20 }
+  local f = 1
+  for k = 2, 20 do f = f * k end
+  lu.assertEquals((by_rule(info)), 0, "Gamma(21): a log in the exponent")
+  honest(v, e, f, "Gamma(21) by the polylines")
+end

@@ -59,7 +59,15 @@ local function ekey(E)
   return table.concat(parts, ",")
 end
 
-local function key(t) return format("%a:%a:%d|%s", t.pr, t.pi, t.q, ekey(t.E)) end
+-- (kept in the term: a term's powers and exponential part never change once made)
+local function key(t)
+  local k = t.key
+  if not k then
+    k = format("%a:%a:%d|%s", t.pr, t.pi, t.q, ekey(t.E))
+    t.key = k
+  end
+  return k
+end
 
 local function E_add(A, B)
   local by, out = {}, {}
@@ -158,9 +166,19 @@ local function dominant_raw(list, th)
   return group, best
 end
 
+-- Does no term of the list (nor its remainder) have an exponential part? Then the
+-- growths do not depend on the direction (growth() reads th only through E), and neither
+-- does a decision about the list: it holds at every direction and is not replayed.
+local function fixed_growths(list)
+  for _, t in ipairs(list.terms) do if #t.E > 0 then return false end end
+  return not (list.rest and #list.rest.E > 0)
+end
+
 local function dominant(list, th)
   local group, best = dominant_raw(list, th)
-  if log then log[#log + 1] = { kind = "dominant", list = list, group = group } end
+  if log then
+    log[#log + 1] = { kind = "dominant", list = list, group = group, fixed = fixed_growths(list) }
+  end
   return group, best
 end
 
@@ -169,13 +187,16 @@ end
 local function rest_below(list, g, th)
   if not list.rest then return true end
   local below = compare(growth(list.rest, th), g) < 0
-  if log then log[#log + 1] = { kind = "rest", list = list, below = below } end
+  if log then
+    log[#log + 1] = { kind = "rest", list = list, below = below, fixed = fixed_growths(list) }
+  end
   return below
 end
 
 -- Do the logged decisions come out the same at direction th?
 local function same_decisions(decisions, th)
   for _, d in ipairs(decisions) do
+    if d.fixed then goto next_decision end
     local group, best = dominant_raw(d.list, th)
     if d.kind == "dominant" then
       if #group ~= #d.group then return false end
@@ -183,6 +204,7 @@ local function same_decisions(decisions, th)
     elseif best then
       if (compare(growth(d.list.rest, th), best) < 0) ~= d.below then return false end
     end
+    ::next_decision::
   end
   return true
 end
@@ -441,8 +463,14 @@ end
 
 --- polynomial(e, var, params) -> coefficient list c[0..d] (complex values) if e is a
 -- polynomial in var (exactly, with the parameters' values), else nil.
+local polynomial_of
 function M.polynomial(e, var, params)
-  local L = M.list(e, var, params, 0)
+  return polynomial_of(M.list(e, var, params, 0))
+end
+
+-- The same from e's term list (at any direction: a polynomial's list has no remainder and
+-- no decision in it depends on the direction).
+polynomial_of = function(L)
   if not L or L.rest then return nil end
   local c, d = {}, 0
   for _, t in ipairs(L.terms) do
@@ -680,8 +708,17 @@ function M.analyze(F, g, var, params, rho)
   end
   -- a polynomial exponent of degree d (and an amplitude without exponentials): its d
   -- sectors are where Re(c_d e^{i d theta}) < 0, exact; only the 2d directions between
-  -- them need the full reading (an end along one converges with its sector, Jordan)
-  local poly, d = M.polynomial(F, var, params)
+  -- them need the full reading (an end along one converges with its sector, Jordan).
+  -- (F's list at direction 0, with its decisions: where g is 1 it is the first walk)
+  log = {}
+  local okF, Fl0 = pcall(M.list, F, var, params, 0)
+  local decisionsF = log
+  log = nil
+  if not okF then error(Fl0, 0) end
+  if g == nil or g == 1 then
+    walks[1] = { H = (Fl0 and rho) and scale(Fl0, rho) or Fl0, decisions = decisionsF }
+  end
+  local poly, d = polynomial_of(Fl0)
   if poly then out.polynomial, out.degree = poly, d end
   if poly and d >= 1 then
     local gl = (g == nil or g == 1) and { terms = {} } or M.list(g, var, params, 0)

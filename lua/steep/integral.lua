@@ -939,6 +939,56 @@ function M.quad_link(J, params, L, piece, notes)
   return v2 - v1, e1 + e2, n1 + n2, (s1 ~= "ok" and s1) or s2
 end
 
+local saddle_pairs
+
+-- The singular points of L (a cvec, kept with L): chords joined along a path keep clear.
+local function singular_points(L)
+  if not L._singular_points then
+    local pts = {}
+    for k, s in ipairs(L.singularities) do pts[k] = s.at end
+    L._singular_points = core.cvec(pts)
+  end
+  return L._singular_points
+end
+
+-- A simple saddle passed through (its two descent rays weighted +w and -w, each traced
+-- until its integrand is negligible) of an exponent without branch cuts: the path in along
+-- one ray and out along the other is integrated at once by the trapezoidal rule in the
+-- saddle's own variable u, F0 - F = u^2 (core.saddle_quad: geometric convergence, a few
+-- dozen nodes where Gauss-Kronrod on the traced polyline takes hundreds). Returns a table
+-- piece -> {value = the path's integral in along b, out along a; weight (of ray a);
+-- error; part (that piece's own integral); first (the piece that adds the value)}; a pair
+-- whose rule does not settle is left to the polylines.
+saddle_pairs = function(J, params, L, plan, info)
+  local out = {}
+  if landscape.may_jump(J) then return out end
+  local by = {}
+  for _, piece in ipairs(plan.pieces) do
+    if piece.kind == "saddle" then
+      by[piece.index] = by[piece.index] or {}
+      table.insert(by[piece.index], piece)
+    end
+  end
+  for j, list in pairs(by) do
+    local s = L.saddles[j]
+    local a, b = list[1], list[2]
+    if #list == 2 and s.order == 2 and a.weight == -b.weight and a.ray ~= b.ray
+        and a.path.reason == "low" and b.path.reason == "low"
+        and not a.path.straight and not b.path.straight then
+      local v, e, ev, pa, pb = core.saddle_quad(J.tape, params, s.at, s.F, s.F2,
+        a.path.traced, a.path.F, b.path.traced, b.path.F,
+        { reltol = noise_tol(J, params, s.at) })
+      info.evals = info.evals + (v and ev or e)   -- (a failed rule returns nil, evaluations)
+      if v then
+        local pair = { value = v, weight = a.weight, error = e }
+        out[a] = setmetatable({ part = pa, first = true }, { __index = pair })
+        out[b] = setmetatable({ part = -pb }, { __index = pair })
+      end
+    end
+  end
+  return out
+end
+
 -- Along the steepest descent decomposition, plus residues.
 local function quad_deformed(J, params, L)
   local ok, plan = pcall(decompose.decompose, J, params, L, J.contour)
@@ -951,8 +1001,19 @@ local function quad_deformed(J, params, L)
     evals = plan.evals, pieces = {}, residues = {} }
   if plan.status ~= "ok" then return nil, nil, info end
   local total, err = cnew(0, 0), 0
+  local paired = saddle_pairs(J, params, L, plan, info)
   for _, piece in ipairs(plan.pieces) do
-    if piece.kind == "link" then
+    local pair = paired[piece]
+    if pair then
+      -- (integrated with its partner ray: saddle_pairs)
+      if pair.first then
+        total = total + pair.weight * pair.value
+        err = err + abs(pair.weight) * pair.error
+      end
+      info.pieces[#info.pieces + 1] = { kind = piece.kind, index = piece.index, at = piece.at,
+        weight = piece.weight, value = pair.part, error = 0.5 * pair.error, ends = piece.ends,
+        method = "trapezoidal rule in the saddle's variable" }
+    elseif piece.kind == "link" then
       local v, e, ev, st = M.quad_link(J, params, L, piece, info.notes)
       info.evals = info.evals + ev
       if st ~= "ok" then info.status = "quadrature " .. st end
@@ -962,10 +1023,20 @@ local function quad_deformed(J, params, L)
         error = e, ends = piece.ends, at = piece.through }
     elseif #piece.points >= 2 then
       local singular_end = piece.reason == "singular" or piece.reason == "stop"
+      -- (a traced path's segments are joined where F falls by at most 1 across them:
+      -- the tracer's first steps off a saddle are tiny, its later ones fall by about 2)
+      local path, levels = piece.path, nil
+      if path and not path.straight and path.F and #path.F > 0 then
+        -- (a saddle's path starts at the saddle itself, then its traced points: the join
+        -- shares b's first point, so a ends with it)
+        levels = piece.kind == "saddle"
+          and core.cvec_join({ L.saddles[piece.index].F, path.F:get(1) }, path.F) or path.F
+      end
       local v, e, ev, st = core.quad_polyline(J.tape, params, piece.points,
         { reltol = noise_tol(J, params, piece.points[1]),
           singular_start = piece.kind == "endpoint" and singular_at(L, piece.at) ~= nil,
-          singular_end = singular_end })
+          singular_end = singular_end, levels = levels, merge = levels and 1,
+          avoid = levels and singular_points(L) })
       info.evals = info.evals + ev
       if st ~= "ok" then info.status = "quadrature " .. st end
       local why = piece.path and piece.path.reason

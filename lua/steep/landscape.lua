@@ -79,51 +79,68 @@ function M.critical(F, g, var)
   end
   walk(expr.lift(F), "exponent")
   if g ~= nil then walk(expr.lift(g), "amplitude") end
+  for _, c in ipairs(out) do c.degree = M.poly_degree(c.h, var) end
   return out
+end
+
+--- poly_degree(e, var) -> d when the expression e is, by its form, a polynomial in var of
+-- degree at most d (sums, products, whole powers and quotients by what does not depend on
+-- var; anything free of var counts as a constant), else nil. At most 64.
+function M.poly_degree(e, var)
+  local memo = {}
+  local function deg(n)
+    if not expr.is(n) then return 0 end
+    local m = memo[n]
+    if m ~= nil then return m or nil end
+    local op, r = n.op, nil
+    if op == "const" or op == "param" then r = 0
+    elseif op == "var" then r = (n == var) and 1 or 0
+    else
+      local a = n.a and deg(n.a)
+      local b = n.b and deg(n.b)
+      local free = (n.a == nil or a == 0) and (n.b == nil or b == 0)
+      if free then r = 0
+      elseif op == "add" or op == "sub" then r = a and b and math.max(a, b)
+      elseif op == "neg" then r = a
+      elseif op == "mul" then r = a and b and a + b
+      elseif op == "div" then r = (b == 0) and a or nil
+      elseif op == "powi" and n.k >= 0 then r = a and a * n.k
+      end
+    end
+    if r and r > 64 then r = nil end
+    memo[n] = r or false
+    return r
+  end
+  return deg(expr.lift(e))
 end
 
 ---------------------------------------------------------------------------------------
 -- Zeros in a disc.
 ---------------------------------------------------------------------------------------
 
--- A deterministic generator for extra seeds (the same region gives the same seeds).
-local function lcg(seed)
-  local s = seed
-  return function()
-    s = (s * 6364136223846793005 + 1442695040888963407) & 0x7fffffffffffffff
-    return (s >> 11) / (1 << 52)
-  end
-end
-
 --- zeros(tape, params, spec, region, opts) -> list of {at, mult}, info
 -- spec = {out =, deriv =}: the zeros of the deriv-th derivative of tape output `out`.
 -- region = {center =, radius =}. opts.seeds: extra seed points; opts.poles: the number
 -- of poles of h inside (for the argument-principle count), or false if h is not
 -- meromorphic there (then no count is made). info: {count =, found =, status =, evals =}.
+-- Newton's method runs in C (core.zeros: the seeds are a grid of 169 points, then the
+-- extra ones; where the count says zeros are missing, up to 4 rounds of 150 random seeds,
+-- the same for the same disc; following a sweep from seeds only, a shortfall is
+-- reported, not searched for: the caller falls back to a full search).
 function M.zeros(tape, params, spec, region, opts)
   opts = opts or {}
   local c, R = region.center, region.radius
-  local scale = R / 10
-  local found = {}
-  local evals = 0
-  local function try(seed)
-    local st, root, mult, ev = core.zero(tape, params, spec, seed, c, R, scale, 60)
-    evals = evals + ev
-    if st ~= "ok" then return end
-    for _, z in ipairs(found) do
-      if cabs(z.at - root) <= 1e-8 * R then return end
-    end
-    found[#found + 1] = { at = root, mult = mult }
+  local found, evals, count_status, count
+  if opts.degree and opts.poles == false and not opts.seeds_only and spec.deriv == 0 then
+    found, evals = M.polynomial_zeros(tape, params, spec, region, opts.degree)
   end
-  if not opts.seeds_only then
-    try(c)
-    for ring = 1, 6 do
-      local r, m = R * ring / 6.5, 8 * ring
-      for j = 0, m - 1 do try(c + r * expi(2 * pi * (j + 0.5 * (ring % 2)) / m)) end
-    end
-  end
-  for _, s in ipairs(opts.seeds or {}) do
-    if cabs(s - c) < R then try(s) end
+  if not found then
+    local roots, mults
+    roots, mults, evals, count_status, count = core.zeros(tape, params, spec, c, R,
+      { grid = not opts.seeds_only, seeds = opts.seeds,
+        count = opts.poles ~= false and 40000 or 0, poles = opts.poles or 0 })
+    found = {}
+    for k = 1, #roots do found[k] = { at = roots:get(k), mult = mults[k] } end
   end
   local info = { found = 0, evals = evals }
   local function total()
@@ -132,20 +149,8 @@ function M.zeros(tape, params, spec, region, opts)
     return n
   end
   if opts.poles ~= false then
-    local st, count = core.count(tape, params, spec, c, R, 40000)
-    info.count_status = st
-    if st == "ok" then info.count = count + (opts.poles or 0) end
-    local rnd = lcg(12345)
-    local round = 0
-    -- (following a sweep from seeds only, a shortfall is reported, not searched for:
-    -- the caller falls back to a full search)
-    while info.count and total() < info.count and round < 4 and not opts.seeds_only do
-      round = round + 1
-      for _ = 1, 150 do
-        local r, th = R * math.sqrt(rnd()), 2 * pi * rnd()
-        try(c + r * expi(th))
-      end
-    end
+    info.count_status = count_status
+    if count_status == "ok" then info.count = count + (opts.poles or 0) end
   end
   -- keep the zeros inside the disc, nearest the center first
   local inside = {}
@@ -167,6 +172,35 @@ function M.zeros(tape, params, spec, region, opts)
       info.count, info.found)
   end
   return inside, info
+end
+
+--- polynomial_zeros(tape, params, spec, region, d) -> list of {at, mult}, evaluations: the
+-- zeros in the disc of tape output spec.out, a polynomial of degree at most d (its form
+-- says so: M.poly_degree): its Taylor coefficients about the center by one jet, every
+-- root by poly_roots, each polished by Newton's method on the tape (the multiplicity from
+-- its jet; roots of a multiple zero polish to one), as zeros() keeps them. Nil when the
+-- jet cannot be taken at the center (an earlier output of the tape is singular there).
+function M.polynomial_zeros(tape, params, spec, region, d)
+  local c, R = region.center, region.radius
+  local ok, s = pcall(function() return select(spec.out, tape:jet(c, d, params, spec.out)) end)
+  if not ok then return nil end
+  local a = {}
+  for j = 0, d do a[j] = s:coef(j) end
+  while d > 0 and cabs(a[d]) == 0 do d = d - 1 end
+  local found, evals = {}, 1
+  if d == 0 then return found, evals end
+  for _, u in ipairs((M.poly_roots(a, d))) do
+    local st, root, mult, ev = core.zero(tape, params, spec, c + u, c, R, R / 10, 60)
+    evals = evals + ev
+    if st == "ok" then
+      local dup = false
+      for _, z in ipairs(found) do
+        if cabs(z.at - root) <= 1e-8 * R then dup = true; break end
+      end
+      if not dup then found[#found + 1] = { at = root, mult = mult } end
+    end
+  end
+  return found, evals
 end
 
 --- poly_roots(c, d) -> list of the d roots of sum_{k<=d} c[k] z^k (complex values), by
@@ -202,37 +236,11 @@ function M.poly_roots(c, d)
     for k = 1, d do z[k] = cnew(0, 0) end
     return z, 0
   end
-  local z = {}
-  for k = 1, d do z[k] = bound * expi(2 * pi * (k - 1) / d + 0.4) end
-  local function eval(x)
-    local p, dp = a[d], cnew(0, 0)
-    for k = d - 1, 0, -1 do dp = dp * x + p; p = p * x + a[k] end
-    return p, dp
-  end
-  for _ = 1, 500 do
-    local moved = 0
-    for k = 1, d do
-      local p, dp = eval(z[k])
-      if cabs(p) == 0 then goto next_root end
-      do
-        local w = p / dp
-        local s = cnew(0, 0)
-        for j = 1, d do
-          if j ~= k then
-            local diff = z[k] - z[j]
-            if cabs(diff) > 0 then s = s + 1 / diff end
-          end
-        end
-        local step = w / (1 - w * s)
-        if not (cabs(step) < huge) then step = w end
-        z[k] = z[k] - step
-        moved = math.max(moved, cabs(step) / math.max(cabs(z[k]), 1e-300 + bound * 1e-15))
-      end
-      ::next_root::
-    end
-    if moved < 1e-15 then break end
-  end
-  return z, bound
+  -- the iteration in C (core.aberth: started at z_k = bound e^{i (2 pi (k-1)/d + 0.4)},
+  -- Gauss-Seidel sweeps until no root moves by 1e-15 relative, at most 500)
+  local coefs = {}
+  for k = 0, d do coefs[k + 1] = a[k] end
+  return core.aberth(coefs, bound):totable(), bound
 end
 
 ---------------------------------------------------------------------------------------
@@ -255,15 +263,9 @@ local function log_spread(tape, params, p, rho)
 end
 
 -- The coefficient c of c*log(t - p) in F at a log point: (1/2 pi i) times the integral of
--- F' around p, by the trapezoidal rule.
+-- F' around p, by the trapezoidal rule on 64 points (in C: core.log_coefficient).
 local function log_coefficient(tape, params, p, rho)
-  local n, s = 64, cnew(0, 0)
-  for k = 0, n - 1 do
-    local u = expi(2 * pi * k / n)
-    local Fs = tape:jet(p + rho * u, 1, params)
-    s = s + Fs:coef(1) * u
-  end
-  return s * rho / n
+  return core.log_coefficient(tape, params, p, rho, 64)
 end
 
 local function near_integer(x, tol) return abs(x - floor(x + 0.5)) <= tol end
@@ -276,20 +278,14 @@ local function near_integer(x, tol) return abs(x - floor(x + 0.5)) <= tol end
 -- s.lead, s.sectors ({from, to} angles) when the leading term is clear.
 essential_sectors = function(J, params, s, p, rho)
   local n, depth = 64, 12
-  local vals = {}
-  for j = 0, n - 1 do
-    local u = expi(2 * pi * j / n)
-    local ok, Fs = pcall(J.tape.jet, J.tape, p + rho * u, 1, params, 1)
-    if not ok then return end
-    vals[j] = Fs:coef(1)
-  end
-  -- b_m = (1/n) sum F'_j u_j^(-m) rho^(-m): the coefficient of (t - p)^m
+  -- b_m = (1/n) sum F'_j u_j^(-m) rho^(-m): the coefficient of (t - p)^m, on n points (in
+  -- C: core.dF_laurent; nil where F' is not finite on the circle)
+  local b = core.dF_laurent(J.tape, params, p, rho, n, depth)
+  if not b then return end
   local lead, order, big = nil, nil, 0
   local coef = {}
   for m = -depth - 1, 0 do
-    local sum = cnew(0, 0)
-    for j = 0, n - 1 do sum = sum + vals[j] * expi(-2 * pi * j * m / n) end
-    coef[m] = sum / n * rho ^ (-m)
+    coef[m] = b:get(m + depth + 2)
     big = math.max(big, cabs(coef[m]) * rho ^ m)
   end
   for m = -depth - 1, -2 do
@@ -319,24 +315,10 @@ end
 -- max|f| (|p| + 2 rho), both parts together. Points: enough for the rule on every other
 -- point to agree (their difference is the error estimate, with both roundings).
 function M.residue(J, params, p, nearest, order)
-  local best, brho, bspread = huge, nil, 0
-  for i = 0, 60 do
-    local rho = 0.9 * nearest * 2 ^ (-i / 3)
-    local pts = {}
-    for k = 0, 63 do pts[k + 1] = p + rho * expi(2 * pi * (k + 0.5) / 64) end
-    local Fv, gv = J.tape:eval_many(core.cvec(pts), params)
-    local hi, lo = -huge, huge
-    for k = 1, 64 do
-      local fr = cparts(Fv:get(k))
-      local gm = gv and cabs(gv:get(k)) or 1
-      local l = fr + (gm > 0 and log(gm) or -huge)
-      if l ~= l then l = huge end
-      hi, lo = math.max(hi, l), math.min(lo, l)
-    end
-    local score = hi + log(cabs(p) + 2 * rho)
-    if score < best then best, brho, bspread = score, rho, hi - lo end
-  end
-  if not brho or not (best - log(cabs(p) + 2 * brho) + log(brho) < 700) then return nil end
+  -- radii 0.9 nearest 2^(-i/3), i = 0..60, 64 points each (in C: core.ring_quietest;
+  -- best is log(max|f| rho) at the radius chosen)
+  local brho, best, bspread = core.ring_quietest(J.tape, params, p, 0.9 * nearest, 61, 64)
+  if not brho or not (best < 700) then return nil end
   -- (the function's variation around the circle sets how many points the rule needs)
   local N = 256
   while N < 16 * (order + 4) or N < 8 * math.min(bspread, 1e4) do N = 2 * N end
@@ -374,7 +356,8 @@ function M.singularities(J, params, region, opts)
   local htape = J:critical_tape()
   for k, c in ipairs(crit) do
     local zs, zi = M.zeros(htape, params, { out = k, deriv = 0 }, region,
-      { poles = false, seeds = opts and opts.seeds, seeds_only = opts and opts.fast })
+      { poles = false, seeds = opts and opts.seeds, seeds_only = opts and opts.fast,
+        degree = c.degree })
     info.evals = info.evals + zi.evals
     local found = 0
     for _, z in ipairs(zs) do
@@ -960,13 +943,38 @@ end
 -- Steepest paths.
 ---------------------------------------------------------------------------------------
 
+-- Each saddle's distance to its nearest other saddle (huge for a lone one), kept with the
+-- landscape: read for every path traced, it would otherwise cost (saddles)^2 complex
+-- subtractions each time (the parts are read directly: the same numbers).
+local function nearest_saddle(L)
+  local kept = L._nearest_saddle
+  if kept and kept.saddles == L.saddles and kept.n == #L.saddles then return kept.d end
+  local n, re, im, d = #L.saddles, {}, {}, {}
+  for j, s in ipairs(L.saddles) do re[j], im[j] = cparts(s.at) end
+  for j = 1, n do
+    local m = huge
+    for k = 1, n do
+      if k ~= j then m = math.min(m, hypot(re[k] - re[j], im[k] - im[j])) end
+    end
+    d[j] = m
+  end
+  L._nearest_saddle = { saddles = L.saddles, n = n, d = d }
+  return d
+end
+
 -- Stop points for tracing: singularities of the exponent (paths end there), branch
 -- points of the amplitude on descent paths (quadrature must not cross their cuts), and
 -- saddles (a path that reaches another saddle is a saddle connection). Poles of the
 -- amplitude do not bend the paths of F: they are not stops.
-local function stop_points(L, skip_saddle, descent)
-  local stops, radii, what = {}, {}, {}
+-- Kept with the landscape, per kind of path, all saddles included (a saddle's own paths
+-- leave it out by index): {points = cvec, radii, what, saddle = saddle index -> stop index}.
+local function stop_points(L, descent)
   local R = L.region.radius
+  L._stops = L._stops or {}
+  local kept = L._stops[descent and 1 or 2]
+  if kept and kept.R == R then return kept end
+  local stops, radii, what, saddle = {}, {}, {}, {}
+  local near = nearest_saddle(L)
   for j, s in ipairs(L.singularities) do
     local of_exponent = s.source:find("in the exponent", 1, true) ~= nil
     if of_exponent or (descent and s.kind == "branch") then
@@ -974,19 +982,17 @@ local function stop_points(L, skip_saddle, descent)
     end
   end
   for j, s in ipairs(L.saddles) do
-    if j ~= skip_saddle then
-      -- (a twentieth of its width at most: a path that passes that close to a saddle has
-      -- Im F within about 1e-3 of the saddle's: a connection, to the rounding of F)
-      -- (and well inside the distance to its nearest neighbour, which the first step
-      -- off that neighbour stays inside: saddles closer than their widths stay apart)
-      local r = math.min(1e-4 * R, 0.05 * (s.width or huge))
-      for k, o in ipairs(L.saddles) do
-        if k ~= j then r = math.min(r, 0.05 * cabs(o.at - s.at)) end
-      end
-      stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, r, { "saddle", j }
-    end
+    -- (a twentieth of its width at most: a path that passes that close to a saddle has
+    -- Im F within about 1e-3 of the saddle's: a connection, to the rounding of F)
+    -- (and well inside the distance to its nearest neighbour, which the first step
+    -- off that neighbour stays inside: saddles closer than their widths stay apart)
+    local r = math.min(1e-4 * R, 0.05 * (s.width or huge), 0.05 * near[j])
+    stops[#stops + 1], radii[#radii + 1], what[#what + 1] = s.at, r, { "saddle", j }
+    saddle[j] = #stops
   end
-  return stops, radii, what
+  kept = { R = R, points = core.cvec(stops), radii = radii, what = what, saddle = saddle }
+  L._stops[descent and 1 or 2] = kept
+  return kept
 end
 
 local function cvec_list(v) return v:totable() end
@@ -1048,6 +1054,18 @@ local function end_label(L, descent, reason, which, what, last)
   return reason
 end
 
+--- may_jump(J) -> whether J's exponent has a branch cut (a log, root, non-integer power or
+-- atan in it), across which its principal value jumps.
+function M.may_jump(J)
+  for _, c in ipairs(J.critical) do
+    if c.where == "exponent" and (c.what == "log" or c.what == "root" or c.what == "power"
+        or c.what == "atan") then
+      return true
+    end
+  end
+  return false
+end
+
 --- trace(J, params, L, start, level, descent, opts) -> path
 -- path = {points = list (for quadrature: up to where the integrand is negligible),
 --         traced, F = cvecs of the traced points and of F followed along them,
@@ -1056,13 +1074,15 @@ end
 function M.trace(J, params, L, start, level, descent, opts)
   opts = opts or {}
   local R = L.region.radius
-  local stops, radii, what = stop_points(L, opts.skip_saddle, descent)
-  -- a path that starts at a stop point (an endpoint on a branch point) must leave it
-  for k = #stops, 1, -1 do
-    if cabs(stops[k] - start) <= 2 * radii[k] then
-      table.remove(stops, k); table.remove(radii, k); table.remove(what, k)
-    end
-  end
+  -- the stops but the saddle whose paths these are; a path that starts at a stop point
+  -- (an endpoint on a branch point) must leave it: core.trace leaves out the stops within
+  -- twice their radius of `near`, and names a stop by its index in the whole list
+  local st = stop_points(L, descent)
+  local stops, radii, what = st.points, st.radii, st.what
+  local skip = opts.skip_saddle and st.saddle[opts.skip_saddle]
+  -- (F single-valued: no log, root or non-integer power in it, so its change over a step
+  -- need not be checked for a branch jump)
+  local jumps = M.may_jump(J)
   local ref = opts.ref or cparts(level)
   -- the length steps start from: the region's, or the start's own (a saddle's width, an
   -- endpoint's 1/|F'|) where that is smaller
@@ -1070,7 +1090,7 @@ function M.trace(J, params, L, start, level, descent, opts)
   local pts, Fs, reason, which, evals = core.trace(J.tape, params, start, level, {
     descent = descent, cutoff = opts.cutoff or 50, ref = ref, center = L.region.center,
     radius = 1000 * R, scale = scale, maxsteps = 6000, maxpts = 6000,
-    stops = stops, stop_r = radii })
+    stops = stops, stop_r = radii, skip = skip, near = start, jumps = jumps })
   -- points as a list (quadrature pieces, maps); the traced points and the values of F
   -- followed by continuity along them stay in C (cvecs) for the branch check
   local path = { points = cvec_list(pts), traced = pts, F = Fs, reason = reason, evals = evals,
@@ -1090,7 +1110,7 @@ function M.trace(J, params, L, start, level, descent, opts)
     local tp, _, r2, w2, ev2 = core.trace(J.tape, params, last, Fs:get(#Fs), {
       descent = descent, coarse = true, cutoff = 1e300, ref = -1e300,
       center = L.region.center, radius = far, scale = scale, maxsteps = 3000,
-      maxpts = 3000, stops = stops, stop_r = radii })
+      maxpts = 3000, stops = stops, stop_r = radii, skip = skip, near = start, jumps = jumps })
     path.tail = tp
     path.evals = path.evals + ev2
     tail_reason, tail_which = r2, w2
@@ -1123,10 +1143,7 @@ function M.saddle_paths(J, params, L, j)
   -- saddle or singular point (two saddles close together: a longer one lands past the
   -- other saddle, on a path to the wrong valley)
   local width = math.min(R / 10, s.width or huge)
-  local step = width
-  for k, o in ipairs(L.saddles) do
-    if k ~= j then step = math.min(step, cabs(o.at - s.at) / 8) end
-  end
+  local step = math.min(width, nearest_saddle(L)[j] / 8)
   -- (singular points of the exponent only: an amplitude's pole does not bend the paths,
   -- and one at the saddle itself would leave no room at all)
   for _, o in ipairs(L.singularities or {}) do

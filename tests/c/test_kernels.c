@@ -22,6 +22,7 @@
 #include "problem.h"
 #include "rings.h"
 #include "tape.h"
+#include "clog.h"
 #include "kernel_check.h"
 #include "mjet.h"
 #include "mexpand.h"
@@ -363,6 +364,25 @@ static void test_quad_polyline(void) {
   free(scratch);
 }
 
+/* quad_merge_vertices: a straight descent path with levels falling by 0.1, 0.1, 0.3,
+ * 0.6, 2, 2 joins the first four segments (a fall of 1.1 > 1 stops before the fourth:
+ * kept 0, 3, 4, 5, 6), and a pole beside the chord keeps every segment. */
+static void test_merge_vertices(void) {
+  cplx pts[7], lev[7], pole = 0.15 + 0.05 * I;
+  double fall[7] = {0, 0.1, 0.2, 0.5, 1.1, 3.1, 5.1};
+  for (int k = 0; k < 7; k++) { pts[k] = 0.1 * k; lev[k] = -fall[k]; }
+  size_t keep[7];
+  size_t m = quad_merge_vertices(pts, lev, 7, 1.0, NULL, 0, keep);
+  check(m == 5 && keep[0] == 0 && keep[1] == 3 && keep[2] == 4 && keep[3] == 5 && keep[4] == 6,
+        "quad_merge_vertices: segments joined while Re F falls by at most 1");
+  m = quad_merge_vertices(pts, lev, 7, 1.0, &pole, 1, keep);
+  check(m == 7, "quad_merge_vertices: no chord passes near a pole");
+  /* a turn of more than 0.25 rad ends a joined stretch */
+  pts[2] = 0.1 + 0.1 * I;
+  m = quad_merge_vertices(pts, lev, 7, 1.0, NULL, 0, keep);
+  check(m >= 2 && keep[1] == 1, "quad_merge_vertices: a turn ends a joined stretch");
+}
+
 static void test_geom(void) {
   enum { NP = 64 };
   cplx c[2 * NP + 1], cw[NP + 1];
@@ -529,6 +549,51 @@ static void test_roots(void) {
     check(root_count(pole_jet, NULL, 0, 1, 20000, &count, &dist) == ROOT_OK && count == -1,
           "root_count: a pole counts -1");
   }
+  /* the search of a disc: from the grid every zero of h in |t| < 3 (1, -2 and the double
+   * zero i), each once, counted 4 with multiplicity; from one seed only, just its zero */
+  {
+    cplx at[ROOT_SEARCH_MAX(1)];
+    int mult[ROOT_SEARCH_MAX(1)], cst = -1, count = -1, total = 0, seen[3] = {0, 0, 0};
+    size_t n = 0;
+    long newton = 0;
+    cplx want[3] = {1, -2, I};
+    root_search(poly_jet, &calls, &calls, 0, 3, 1, NULL, 0, 20000, 0, at, mult, &n, &newton,
+                &cst, &count);
+    for (size_t k = 0; k < n; k++) {
+      total += cabs(at[k]) < 3 ? mult[k] : 0;
+      for (int j = 0; j < 3; j++)
+        if (cabs(at[k] - want[j]) <= 1e-12) seen[j] += j == 2 ? (mult[k] == 2) : (mult[k] == 1);
+    }
+    check(cst == ROOT_OK && count == 4 && total == 4 && n == 3 && seen[0] == 1 && seen[1] == 1 &&
+              seen[2] == 1 && newton > 0,
+          "root_search: every zero of h in |t| < 3 once, with multiplicity, counted 4");
+    /* seeds by each zero reach the count: the grid is not searched (one Newton run per
+     * seed, a handful of jets each, against 169 runs) */
+    cplx near[3] = {1.1, -2.1, 0.05 + 1.05 * I};
+    long grid_evals = newton;
+    root_search(poly_jet, &calls, &calls, 0, 3, 1, near, 3, 20000, 0, at, mult, &n, &newton,
+                &cst, &count);
+    check(cst == ROOT_OK && count == 4 && n == 3 && newton < grid_evals / 5,
+          "root_search: seeds that reach the count spare the grid");
+    /* Aberth's iteration: the roots of (z - 1)(z + 2)(z - i)(z - 3i)(z + 0.5 - 0.5i), from the
+     * expanded coefficients (bound 6 >= every |root|), each found once to 1e-13 */
+    {
+      cplx rts[5] = {1, -2, I, 3 * I, -0.5 + 0.5 * I}, c[6] = {1, 0, 0, 0, 0, 0}, z[5];
+      for (int r = 0; r < 5; r++) {   /* c <- c (z - rts[r]), ascending powers */
+        for (int k = r + 1; k >= 1; k--) c[k] = c[k - 1] - rts[r] * c[k];
+        c[0] = -rts[r] * c[0];
+      }
+      int sweeps = root_aberth(c, 5, 6, z), found = 0;
+      for (int r = 0; r < 5; r++)
+        for (int k = 0; k < 5; k++) if (cabs(z[k] - rts[r]) <= 1e-13) { found++; break; }
+      check(found == 5 && sweeps < 100, "root_aberth: five known roots from the coefficients");
+    }
+    cplx seed = -1.8 + 0.1 * I;
+    root_search(poly_jet, &calls, &calls, 0, 3, 0, &seed, 1, 0, 0, at, mult, &n, &newton, &cst,
+                &count);
+    check(n == 1 && cabs(at[0] + 2) <= 1e-12 && mult[0] == 1 && cst == ROOT_FAIL,
+          "root_search: from one seed and no grid, its zero -2 alone (no count)");
+  }
 }
 
 /* ---- steepest paths (path.c) -------------------------------------------------------- */
@@ -550,6 +615,7 @@ static void htape_init(htape *h, const tape_ins *ins, size_t n, size_t nparams) 
 static void path_defaults(path_opts *o, int descent) {
   memset(o, 0, sizeof *o);
   o->descent = descent;
+  o->jumps = 1;
   o->cutoff = 40;
   o->ref = 0;
   o->center = 0;
@@ -887,6 +953,55 @@ static void test_rings(void) {
         "ring_power: -t^2/2 has degree 2, leading coefficient -1/2");
   free(mem);
 
+  /* F(t) = t - 5 log t: the integrand e^t t^-5 has a pole of order 5 at 0 with residue
+   * 1/4! (the Taylor coefficient of e^t). The quietest circle about it (radii 0.9 2^(-i/3))
+   * and the trapezoidal rule on it give 1/24 to rounding; the log coefficient is -5. */
+  {
+    const tape_ins lins[5] = {
+      {OP_VAR, -1, -1, 0, 0}, {OP_LOG, 0, -1, 0, 0}, {OP_CONST, -1, -1, 0, -5},
+      {OP_MUL, 2, 1, 0, 0}, {OP_ADD, 0, 3, 0, 0}};
+    htape_init(&h, lins, 5, 0);
+    check(tape_check(&h.t, &why) == -1, "hand-built tape t - 5 log t is well formed");
+    mem = malloc(problem_bytes(&h.t));
+    problem_init(&p, &h.t, NULL, mem);
+    enum { M = 256 };
+    cplx *w = malloc((h.t.n * TAPE_BLOCK + (h.t.nout + 2) * M) * sizeof(cplx));
+    cplx root[M], out[8], half[8], a = 0;
+    double rho = 0, score = 0, spread = 0, vmax = 0;
+    int ok = ring_quietest(&p, 0, 0.9, 61, 64, w, &rho, &score, &spread);
+    /* max |f| rho on |t| = rho is e^rho rho^-4 (at the points (k + 1/2) 2pi/64, Re t is
+     * at most rho cos(pi/64)): least at rho = 4, beyond 0.9 */
+    check(ok && rho == 0.9 && fabs(score - (0.9 * cos(PI / 64) - 4 * log(0.9))) <= 1e-13 &&
+              spread > 0,
+          "ring_quietest: e^t t^-5 is quietest on the largest circle offered");
+    for (int k = 0; k < M; k++) root[k] = cexp(-I * (2 * PI * k / M));
+    circle_laurent(&p, 0, rho, M, 5, root, w, out, half, &vmax);
+    check(fabs(creal(out[4] * rho) - 1.0 / 24) <= 1e-15 && fabs(cimag(out[4] * rho)) <= 1e-15 &&
+              cabs(out[4] - half[4]) <= 1e-14 && vmax > 0,
+          "circle_laurent: the residue of e^t t^-5 at 0 is 1/24");
+    check(circle_log_coefficient(&p, 0, 0.5, 64, &a) == STEEP_OK && cabs(a + 5) <= 1e-14,
+          "circle_log_coefficient: -5 in t - 5 log t");
+    free(w);
+    free(mem);
+  }
+  /* F(t) = 2/t + 3 log t: F' = -2 t^-2 + 3 t^-1, Laurent coefficients b_-2 = -2, b_-1 = 3,
+   * the others 0 */
+  {
+    const tape_ins dins[7] = {
+      {OP_VAR, -1, -1, 0, 0}, {OP_CONST, -1, -1, 0, 2}, {OP_DIV, 1, 0, 0, 0},
+      {OP_LOG, 0, -1, 0, 0}, {OP_CONST, -1, -1, 0, 3}, {OP_MUL, 4, 3, 0, 0}, {OP_ADD, 2, 5, 0, 0}};
+    htape_init(&h, dins, 7, 0);
+    check(tape_check(&h.t, &why) == -1, "hand-built tape 2/t + 3 log t is well formed");
+    mem = malloc(problem_bytes(&h.t));
+    problem_init(&p, &h.t, NULL, mem);
+    cplx w[64], b[5];   /* m = -4..0 */
+    int st = circle_dF_laurent(&p, 0, 0.7, 64, 3, w, b);
+    double other = fmax(fmax(cabs(b[0]), cabs(b[1])), cabs(b[4]));
+    check(st == STEEP_OK && cabs(b[2] + 2) <= 1e-14 && cabs(b[3] - 3) <= 1e-14 && other <= 1e-14,
+          "circle_dF_laurent: F' = -2/t^2 + 3/t");
+    free(mem);
+  }
+
   /* geom_nearest: the first nearest segment of 0 -> 1 -> 1 + i */
   cplx poly[3] = {0, 1, 1 + I};
   size_t seg = 9;
@@ -894,6 +1009,27 @@ static void test_rings(void) {
         "geom_nearest: a point beside the second segment");
   check(fabs(geom_nearest(poly, 3, 0.5 - 0.1 * I, &seg) - 0.1) <= 1e-15 && seg == 0,
         "geom_nearest: a point below the first segment");
+}
+
+/* ---- the complex logarithm (clog.h) ----------------------------------------------- */
+
+/* steep_clog against the C library's clog: the same argument exactly, log|z| to a few
+ * units of 2^-53 absolute (near |z| = 1 too, where the library is slower), on seeded
+ * random points at every scale; 0 gives -infinity. */
+static void test_clog(void) {
+  double worst = 0;
+  int same_arg = 1;
+  for (int k = 0; k < 20000; k++) {
+    double r = k % 2 ? 1 + 1e-3 * rnd() : pow(10, 300 * rnd());
+    cplx z = r * cexp(I * PI * rnd());
+    cplx a = steep_clog(z), b = clog(z);
+    worst = fmax(worst, fabs(creal(a) - creal(b)) / fmax(1, fabs(creal(b))));
+    if (cimag(a) != cimag(b)) same_arg = 0;
+  }
+  check(worst <= 4.5e-16 && same_arg, "steep_clog: clog's value to 4.5e-16 (absolute below 1)");
+  cplx z0 = steep_clog(0);
+  check(isinf(creal(z0)) && creal(z0) < 0 && cimag(z0) == 0, "steep_clog(0) = -infinity");
+  check(cabs(steep_clog(-1) - I * PI) == 0, "steep_clog(-1) = i pi");
 }
 
 /* ---- several variables (mjet.c, mexpand.c, mcrit.c) ------------------------------ */
@@ -1098,6 +1234,8 @@ int main(void) {
   test_invmap_budget();
   test_invmap_quartic();
   test_rings();
+  test_clog();
+  test_merge_vertices();
   test_dual();
   test_airy();
   test_multi();

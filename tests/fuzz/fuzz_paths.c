@@ -4,7 +4,7 @@
  * of a second polynomial, optionally with an amplitude (a pole, a polynomial, a square
  * root) as output 2. With small bounds, as the Lua layer calls them: root_newton from
  * random seeds, root_count on random circles, path_saddle_starts and path_trace
- * (maxsteps <= 200), invmap_circle, invmap_cubic and invmap_quartic (N <= 32), ring
+ * (maxsteps <= 200), path_saddle_quad on the first two rays traced (order 2, descent), invmap_circle, invmap_cubic and invmap_quartic (N <= 32), ring
  * samples, quadrature along a segment and the geometry of the traced path. Nothing may
  * crash or hang (libFuzzer's -timeout).
  */
@@ -176,6 +176,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size) {
       o.scale = scale;
       o.maxsteps = 1 + (int)fz_below(&f, 200);
       o.coarse = fz_u8(&f) & 1;
+      o.jumps = fz_u8(&f) & 1;
       o.nstops = fz_u8(&f) % 4;
       for (size_t j = 0; j < o.nstops; j++) {
         stops[j] = center + fz_near(&f, radius);
@@ -183,10 +184,29 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size) {
       }
       o.stops = stops;
       o.stop_r = stop_r;
+      /* (the first ray's points kept for path_saddle_quad with the second) */
+      cplx *pts1 = fz_alloc(maxpts, sizeof *pts1), *Fs1 = fz_alloc(maxpts, sizeof *Fs1);
+      size_t n1 = 0;
       for (int k = 0; k < order; k++) {
         size_t n = 0;
         int which = -2;
         int end = path_trace(&p, starts[k], F0, &o, pts, Fs, maxpts, &n, &which);
+        if (k == 0 && n <= maxpts) {
+          memcpy(pts1, pts, n * sizeof *pts);
+          memcpy(Fs1, Fs, n * sizeof *Fs);
+          n1 = n;
+        }
+        if (k == 1 && order == 2 && descent && n <= maxpts) {
+          path_ray ra = {pts1, Fs1, n1}, rb = {pts, Fs, n};
+          double *work = fz_alloc(PATH_SADDLE_QUAD_DOUBLES(n1, n), sizeof *work);
+          cplx res = 0, pa = 0, pb = 0;
+          double err = 0;
+          if (path_saddle_quad(&p, t0, F0, 2 * c, ra, rb, 0, 1e-13, work, &res, &err, &pa,
+                               &pb) == 0 &&
+              (!isfinite(creal(res)) || !isfinite(cimag(res)) || !(err >= 0)))
+            abort();
+          free(work);
+        }
         if (end < PATH_LOW || end > PATH_BOUND || n > maxpts) abort();
         if (end == PATH_STOP && (which < 0 || (size_t)which >= o.nstops)) abort();
         if (n >= 2) {   /* the geometry of what was traced */
@@ -199,6 +219,8 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size) {
       }
       free(pts);
       free(Fs);
+      free(pts1);
+      free(Fs1);
     }
   }
   if (ops & 8) {   /* the inverse map on a small circle */
