@@ -351,7 +351,8 @@ function methods._landscape_uncached(J, params, region, with_paths, cont)
   if cont and cont.fast then
     -- continuation: the previous step's saddles seed Newton; no search of the region
     local sing, sinfo = landscape.singularities(J, params, region,
-      { fast = true, seeds = cont.sing_seeds or {}, radii = cont.sing_radii })
+      { fast = true, seeds = cont.sing_seeds or {}, radii = cont.sing_radii,
+        residue_radii = cont.sing_residue_radii })
     L.singularities, L.singularity_info = sing, sinfo
     L.saddles, L.saddle_count = find_saddles(sing, cont.seeds, true)
     local need = not given and needed_radius(J, params, L.saddles, L.region.center, L.region.radius) or 0

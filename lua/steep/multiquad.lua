@@ -287,7 +287,8 @@ local function make_inner(J, params, mode, centre, scale, atol)
       local L
       if prev then
         L = Jin:_landscape(p, prev.region, false, { seeds = prev.saddles, fast = true,
-          sing_seeds = prev.singularities, sing_radii = prev.radii })
+          sing_seeds = prev.singularities, sing_radii = prev.radii,
+          sing_residue_radii = prev.residue_radii })
         local sc = L.saddle_count
         if #L.saddles < #prev.saddles or #L.singularities < #prev.singularities
             or (sc and sc.count and sc.found < sc.count) then
@@ -296,10 +297,12 @@ local function make_inner(J, params, mode, centre, scale, atol)
       end
       L = L or Jin:_landscape(p, nil, false)
       local v, e, info = require("steep.integral").quad_with(Jin, p, L, "deformed")
-      prev = { region = L.region, saddles = {}, singularities = {}, radii = {} }
+      prev = { region = L.region, saddles = {}, singularities = {}, radii = {},
+        residue_radii = {} }
       for _, sd in ipairs(L.saddles) do prev.saddles[#prev.saddles + 1] = sd.at end
       for k, sg in ipairs(L.singularities) do
         prev.singularities[k], prev.radii[k] = sg.at, sg.radius or false
+        prev.residue_radii[k] = sg.residue_radius or false
       end
       return v, e, info.status
     end

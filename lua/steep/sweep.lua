@@ -98,7 +98,8 @@ local function compute_rows(J, values, i0, i1, ctx, on_row, clock0)
       row.landscape = "full search"
       if continuation and prev then
         L = J:_landscape(p, prev.region, false, { seeds = prev.saddles, fast = true,
-          sing_seeds = prev.singularities, sing_radii = prev.radii })
+          sing_seeds = prev.singularities, sing_radii = prev.radii,
+          sing_residue_radii = prev.residue_radii })
         row.landscape = "continued"
         -- fewer saddles or singularities than before, or fewer saddles than the argument
         -- principle counts (one entering the region): search the whole region again
@@ -139,10 +140,12 @@ local function compute_rows(J, values, i0, i1, ctx, on_row, clock0)
         end
       end
       row.valleys = table.concat(ends, " -> ")
-      prev = { region = L.region, saddles = {}, singularities = {}, radii = {} }
+      prev = { region = L.region, saddles = {}, singularities = {}, radii = {},
+        residue_radii = {} }
       for _, sd in ipairs(L.saddles) do prev.saddles[#prev.saddles + 1] = sd.at end
       for k, sg in ipairs(L.singularities) do
         prev.singularities[k], prev.radii[k] = sg.at, sg.radius or false
+        prev.residue_radii[k] = sg.residue_radius or false
       end
     end)
     if not ok then row.failure = tostring(err); prev = nil end
