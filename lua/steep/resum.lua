@@ -566,7 +566,9 @@ function M.apply(J, params, L, contributions, how)
   local out = {}
   for _, c in ipairs(contributions) do
     local split, why
-    if c.pair then split, why = split_pair(J, params, L, c, how) end
+    -- (a pair's pieces carry one side's weights: a contribution that is the mean of the
+    -- two sides of a Stokes line is not split)
+    if c.pair and not c.unsettled then split, why = split_pair(J, params, L, c, how) end
     c.pair = nil   -- (the decomposition's pieces: not part of the result)
     if split then
       for _, pc in ipairs(split) do out[#out + 1] = pc end
