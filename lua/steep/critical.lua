@@ -471,7 +471,10 @@ local function ascend(J, cp, shapes, x0)
     for _ = 1, 40 do
       local y = { table.unpack(x) }
       for a, k in ipairs(free) do y[k] = clip(k, x[k] + tlen * step[a]) end
-      local Fy = realF(J, cp, y)
+      -- (a step clipped onto an end where the exponent is singular, log x at x = 0: not
+      -- taken, the step halves)
+      local okF, Fy = pcall(realF, J, cp, y)
+      if not okF then Fy = 0 / 0 end
       if Fy == Fy and Fy >= Fx - 1e-15 * abs(Fx) then
         local change = 0
         for k = 1, n do change = max(change, abs(y[k] - x[k]) / (1 + abs(x[k]))) end
@@ -519,32 +522,44 @@ local function kkt_kinds(J, cp, shapes, x)
   return kinds, dirs, jac, notes
 end
 
--- The faces of the box next to an interior coordinate: the largest F on each (an ascent
--- with that coordinate held at the end) and the slope there. The expansion at x ignores
--- them; hormander.lua adds their size to the error estimate (Watson's lemma at the face:
--- relative size e^{F_face - F0} / (|slope| width sqrt(2 pi))).
+-- The faces of the box next to the point: both ends of an interior coordinate, the far
+-- end of one the point sits at an end of (half-Gaussian or Watson there: the expansion
+-- runs that coordinate to infinity). On each face the largest F (an ascent with that
+-- coordinate held at the end) and the slope there. The expansion at x ignores them;
+-- hormander.lua adds their size to the error estimate: a face's part of the integral,
+-- about e^{F_face} min(1/|slope|, width_face sqrt(pi/2)) in that coordinate, against the
+-- point's, e^{F0} times width sqrt(2 pi) (interior), width sqrt(pi/2) (half) or 1/|F'|
+-- (edge); widths from F''.
 local function face_sizes(J, cp, shapes, x, kinds)
   local out = {}
   local F0 = realF(J, cp, x)
+  local _, g0, Hc = derivs(J, cp, x)
   for k = 1, J.n do
-    if kinds[k] == "full" then
-      for _, e in ipairs({ shapes[k].lo, shapes[k].hi }) do
-        if e > -huge and e < huge then
-          local pinned = {}
-          for j = 1, J.n do pinned[j] = shapes[j] end
-          pinned[k] = { lo = e, hi = e, dir = shapes[k].dir }
-          local y = { table.unpack(x) }
-          y[k] = e
-          local ok, yb, Fb = pcall(ascend, J, cp, pinned, y)
-          if ok and Fb == Fb and Fb > -huge then
-            local _, _, Hc = derivs(J, cp, x)
-            local width = 1 / sqrt(max(abs(re_of(Hc[k][k])), 1e-300))
-            local _, gb = derivs(J, cp, yb)
-            local slope = abs(re_of(gb[k]))
-            local rel = math.exp(Fb - F0) * min(1, 1 / (slope * width * sqrt(2 * pi)))
-            out[#out + 1] = { coordinate = k, at = yb, F = Fb, relative = rel,
-              widths = abs(x[k] - e) / width }
-          end
+    local ends
+    if kinds[k] == "full" then ends = { shapes[k].lo, shapes[k].hi }
+    elseif x[k] <= shapes[k].lo then ends = { shapes[k].hi }
+    else ends = { shapes[k].lo } end
+    local hkk = abs(re_of(Hc[k][k]))
+    local width = 1 / sqrt(max(hkk, 1e-300))
+    local own = kinds[k] == "full" and width * sqrt(2 * pi)
+      or kinds[k] == "half" and width * sqrt(pi / 2)
+      or 1 / max(abs(re_of(g0[k])), 1e-300)
+    for _, e in ipairs(ends) do
+      if e > -huge and e < huge then
+        local pinned = {}
+        for j = 1, J.n do pinned[j] = shapes[j] end
+        pinned[k] = { lo = e, hi = e, dir = shapes[k].dir }
+        local y = { table.unpack(x) }
+        y[k] = e
+        local ok, yb, Fb = pcall(ascend, J, cp, pinned, y)
+        if ok and Fb == Fb and Fb > -huge then
+          local _, gb, Hb = derivs(J, cp, yb)
+          local slope = abs(re_of(gb[k]))
+          local wb = 1 / sqrt(max(abs(re_of(Hb[k][k])), 1e-300))
+          local part = min(slope > 0 and 1 / slope or huge, wb * sqrt(pi / 2))
+          local rel = math.exp(Fb - F0) * part / own
+          out[#out + 1] = { coordinate = k, at = yb, F = Fb, relative = rel,
+            widths = abs(x[k] - e) / width }
         end
       end
     end

@@ -176,13 +176,22 @@ function M.contribution(J, cp, pt, K, opts)
     safety = max(2, 1 / (1 - r))
   end
   local apre = cabs(pre)
-  local trunc = safety * mag[K] * apre
+  -- (a group may vanish by a cancellation of the amplitude's terms, 1 + x^2 - y^2 on a
+  -- symmetric Gaussian: the next group counts too, and where both vanish two more are
+  -- computed to tell a series that ends from one that only skips)
+  local omitted = mag[K] + mag[K + 1]
+  if omitted == 0 then
+    local T2 = core.multi_expand(J.tape, cp, J.varslot, x, dirs, kinds, Sigma, Mterms + 4)
+    for m = Mterms + 2, Mterms + 5 do omitted = omitted + cabs(T2[m] or cnew(0, 0)) end
+  end
+  local trunc = safety * omitted * apre
   local floor = ((128 + cabs(F0)) * EPS + EPS / rc) * absum * apre
   local scaled_value = pre * sum
   -- the faces of a box next to the point (Laplace type): their size goes into the error
   local face_err = 0
   for _, f in ipairs(pt.faces or {}) do
-    local e = f.relative * cabs(scaled_value)
+    -- (twice the face's estimated part: its size is read at the face's highest point)
+    local e = 2 * f.relative * cabs(scaled_value)
     face_err = face_err + e
     if e > 0.1 * max(trunc, floor) then
       notes[#notes + 1] = format("coordinate %d: the end of the box %.3g widths from the "
