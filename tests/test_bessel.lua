@@ -157,6 +157,42 @@ function TestBessel:test_Y_sommerfeld()
   end
 end
 
+-- On the real line itself: the integral of e^{i x cosh t} over t in R is i pi H0^(1)(x)
+-- (the Sommerfeld-type integral of DLMF 10.9 with nu = 0, x > 0; from memory), against
+-- gsl_sf_bessel_Jn(0, x) + i gsl_sf_bessel_Ynu(0, x). The ends run along the edges between
+-- valley and hill strips (|integrand| = 1 there): they were once called outside every
+-- valley ("the integral diverges there (valleys: none)"). With a Gaussian damping
+-- e^{-p t^2} the ends decay: the deformed contour's quadrature and the given line's agree,
+-- and the expansion lies within its estimate.
+function TestBessel:test_real_line_cosh()
+  local t, x, gsl = steep.var "t", steep.param "x", ref
+  local J = steep.integral { var = t, exponent = I * x * steep.cosh(t),
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = x }
+  for _, xv in ipairs({ 5, 20, 60 }) do
+    local want = I * pi * C(gsl.bessel_Jn(0, xv), gsl.bessel_Ynu(0, xv))
+    local v, e, info = J:quad { x = xv }
+    lu.assertEquals(info.status, "ok", "quad, x = " .. xv)
+    H.close(v, want, 1e-12, "quad, x = " .. xv)
+    local r = J:expand { x = xv, order = 4 }
+    lu.assertEquals(r.status, "estimated", "x = " .. xv)
+    lu.assertTrue((r.value - want):abs() <= r.error + 1e-14, string.format("expand, x = %g: "
+      .. "error %.3g, stated %.3g", xv, (r.value - want):abs(), r.error))
+  end
+  local p = steep.param "p"
+  local D = steep.integral { var = t, exponent = I * x * steep.cosh(t) - p * t * t,
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = x }
+  for _, case in ipairs({ { 10, 1 }, { 30, 2 } }) do
+    local P = { x = case[1], p = case[2] }
+    local v, e, info = D:quad(P)
+    lu.assertEquals(info.along, "deformed")
+    local g = D:quad { x = case[1], p = case[2], along = "given" }
+    H.close(v, g, 1e-12, "deformed and given contours")
+    local r = D:expand { x = case[1], p = case[2], order = 4 }
+    lu.assertTrue((r.value - v):abs() <= r.error + e, string.format("damped, x = %g", case[1]))
+    for _, n in ipairs(r.notes) do lu.assertNotStrContains(n, "without decaying") end
+  end
+end
+
 -- H1_nu(nu sec beta), beta = 0.3, 1, 1.3: the oscillatory regime, two saddles +-i beta
 -- (H1 takes the one at i beta), against J + i Y from GSL; H2 likewise (J - i Y).
 function TestBessel:test_hankel_oscillatory()

@@ -63,7 +63,12 @@ local function contour_end_label(L, e, which, from, tol)
     -- on a valley's edge the integrand does not decay exponentially: it may not be
     -- integrable there at all (t^2 e^{i t^3}, e^{i x t}): the value is then the one the
     -- deformation into the valley continues to (Abel's sense), and the plan says so
-    local abel
+    local abel, decays
+    if boundary and L.analysis then
+      -- (on the edge, the other terms may still make it decay: e^{i x cosh t - p t^2})
+      local _, cl = L.analysis.converges(e.angle)
+      decays = cl.class == "valley"
+    end
     if boundary and not tol and L.analysis and L.valleys[k].type ~= "strip" then
       local ok, cl = L.analysis.converges(e.angle)
       if not ok and cl.class ~= "unknown" then
@@ -75,7 +80,7 @@ local function contour_end_label(L, e, which, from, tol)
           e.angle, size)
       end
     end
-    return "valley " .. k, boundary, abel
+    return "valley " .. k, boundary and not decays, abel
   end
   for j, s in ipairs(L.singularities) do
     if s.kind == "sink" and cabs(s.at - e) <= 1e-9 * L.region.radius then return "sink " .. j end

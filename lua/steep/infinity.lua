@@ -559,7 +559,16 @@ function M.classify(H, th)
     end
     if D.pi ~= 0 then return { class = "wild" } end
     local re = cparts(D.c * expi(D.pr * th))
-    if abs(re) <= TOL * cmag(D.c) then return { class = "wild" } end
+    -- (purely imaginary along the ray: the ray runs on the edge between a valley strip
+    -- and a hill strip, e^{i x cosh t} on the real line; still a strip direction, and
+    -- along the ray itself the other terms decide the size: e^{i x cosh t - p t^2} decays)
+    if abs(re) <= TOL * cmag(D.c) then
+      local others = { terms = {}, rest = H.rest }
+      for _, t in ipairs(H.terms) do if t ~= D then others.terms[#others.terms + 1] = t end end
+      local cl = M.classify(others, th)
+      return { class = cl.class == "valley" and "valley" or "wild", exponential = true,
+        on_edge = true }
+    end
     return { class = re < 0 and "valley" or "hill", exponential = true }
   end
   -- no growing exponential: the pure terms decide; bounded oscillating exponentials
