@@ -448,6 +448,31 @@ function TestResumFloors:test_mean_of_sides_not_split()
   end
 end
 
+-- Just off a Stokes line (arg x = 2 pi/3 +- 3e-7 for Airy's integral): the decomposition
+-- is that side's, with the subdominant saddle's whole weight, while the dominant's Borel
+-- sum met the singulant within 1e-6 rad of its ray and took the median of the two lateral
+-- sums, as on the line: half the jump counted twice (2.4e-4 off under estimates of 3e-9,
+-- status estimated). Off the line the one lateral sum along the axis itself is taken (and
+-- the terminants likewise). Against quadrature (the project's own); exactly on the line
+-- the value stays right (the mean of the sides with the median sum).
+function TestResumFloors:test_just_off_the_stokes_line()
+  local J = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t),
+    contour = steep.path { steep.inf(5 * pi / 6), 0, steep.inf(pi / 6) }, large = x }
+  for _, d in ipairs({ 3e-7, -3e-7, 0 }) do
+    local th = 2 * pi / 3 + d
+    local xv = 5.146 * C(math.cos(th), math.sin(th))
+    local q, qe = J:quad { x = xv }
+    for _, how in ipairs({ true, "borel", "hyper" }) do
+      local r = J:expand { x = xv, order = "optimal", resum = how }
+      local err = cabs(r.value - q)
+      local msg = string.format("d = %g, resum = %s: %.3g off, estimate %.3g", d,
+        tostring(how), err, r.error)
+      lu.assertTrue(err <= r.error + qe, msg)
+      lu.assertTrue(err <= 1e-8, msg)
+    end
+  end
+end
+
 TestResumInterface = {}
 
 function TestResumInterface:test_options()

@@ -450,7 +450,7 @@ function M.expand(J, params, opts)
   table.sort(contributions, function(a, b) return a.dominance > b.dominance end)
   -- beyond optimal truncation (lua/steep/resum.lua): replaces what it improves
   local resummed = opts.resum and require("steep.resum").apply(J, params, L, contributions,
-    opts.resum)
+    opts.resum, stokes and not stokes.settled)
   local value, err, unsettled = cnew(0, 0), 0, 0
   for _, c in ipairs(contributions) do
     value = value + c.value

@@ -300,12 +300,19 @@ local NEAR = 80            -- singularities farther than this (in s) do not matt
 -- obstacle within NEAR and sweeps, on its way from the real axis, over none of those
 -- that mark true singularities (o.sweep: turning the ray across one changes the value;
 -- the poles by which a Pade approximant draws the cut of a known singulant only need
--- clearance). An obstacle of that kind on the real axis itself (within 1e-6 rad: a
--- Stokes line) cannot be avoided: the two lateral rays are returned.
-function M.choose_ray(obstacles)
-  local on_line = false
+-- clearance). An obstacle of that kind on the real axis itself (within 1e-6 rad) cannot
+-- be avoided: on a Stokes line (median true: the caller's decomposition takes the mean of
+-- the two sides there) the two lateral rays are returned, for their mean; off it, the
+-- one lateral ray that gives the sum along the real axis itself, on the side away from
+-- the obstacle (a singulant at arg +1e-7 lies above the axis: the ray below), as the
+-- steepest descent decomposition at those parameters has it.
+function M.choose_ray(obstacles, median)
+  local on_line, line_arg = false, 0
   for _, o in ipairs(obstacles) do
-    if o.r < NEAR and o.sweep ~= false and abs(o.arg) < 1e-6 then on_line = true end
+    if o.r < NEAR and o.sweep ~= false and abs(o.arg) < 1e-6 then
+      on_line = true
+      if abs(o.arg) > abs(line_arg) then line_arg = o.arg end
+    end
   end
   local function ok(theta, ignore_line)
     for _, o in ipairs(obstacles) do
@@ -325,6 +332,9 @@ function M.choose_ray(obstacles)
     for _, th in ipairs(RAYS) do
       if th > 0 and not plus and ok(th, true) then plus = th end
       if th < 0 and not minus and ok(th, true) then minus = th end
+    end
+    if plus and minus and not median and line_arg ~= 0 then
+      return { line_arg > 0 and minus or plus }, false
     end
     if plus and minus then return { plus, minus }, true end
     return { 0 }, true, "no clear ray on either side of the singularity on the real axis"
@@ -421,7 +431,7 @@ function M.sum(spec)
   for _, p in ipairs(poles) do
     obstacles[#obstacles + 1] = { r = p.r, arg = p.arg, sweep = p.r < 0.9 * nearest_known }
   end
-  local rays, lateral, why = M.choose_ray(obstacles)
+  local rays, lateral, why = M.choose_ray(obstacles, spec.median)
   if why then notes[#notes + 1] = why end
   -- the sums, class by class and degree by degree
   local total_r, total_i, total_e = 0, 0, 0

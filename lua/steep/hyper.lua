@@ -127,23 +127,25 @@ local function terminant_sums(Ms, zr, zi, phi, h, theta)
   return out
 end
 
---- terminants(Ms, Z) -> values (list of complex), errors (list):
+--- terminants(Ms, Z [, cache, median]) -> values (list of complex), errors (list):
 -- U(M, Z) = Z^-M integral_0^inf v^(M-1) e^{-v} / (1 - v/Z) dv for each M of the list
 -- (M > 0, Z != 0, principal powers), along a ray turned away from the pole v = Z; for Z on
--- the positive axis the principal value (the mean of the two lateral rays). The step is
+-- the positive axis the principal value (the mean of the two lateral rays) where median
+-- (on a Stokes line), else the lateral ray below Z's side (borel.choose_ray). The step is
 -- halved from 1/16 (to 1/64 at most) until the rule agrees with the one of twice the
 -- step to 1e-15 of the sum of |integrand|; that difference is the quadrature error (plus
 -- rounding).
-function M.terminants(Ms, Z, cache)
+function M.terminants(Ms, Z, cache, median)
   if cache then
     -- (the truncations tried share most of their terminants: compute the new ones only)
-    local key = string.format("%a,%a", cparts(Z))
+    local kr, ki = cparts(Z)
+    local key = string.format("%a,%a,%s", kr, ki, tostring(median))
     local kept = cache[key] or {}
     cache[key] = kept
     local missing = {}
     for _, m in ipairs(Ms) do if not kept[m] then missing[#missing + 1] = m end end
     if #missing > 0 then
-      local v, e = M.terminants(missing, Z)
+      local v, e = M.terminants(missing, Z, nil, median)
       for i, m in ipairs(missing) do kept[m] = { v[i], e[i] } end
     end
     local vals, errs = {}, {}
@@ -151,7 +153,7 @@ function M.terminants(Ms, Z, cache)
     return vals, errs
   end
   local zr, zi = cparts(Z)
-  local rays = borel.choose_ray({ { r = 0, arg = atan(zi, zr) } })
+  local rays = borel.choose_ray({ { r = 0, arg = atan(zi, zr) } }, median)
   local vals, errs = {}, {}
   for i = 1, #Ms do vals[i], errs[i] = cnew(0, 0), 0 end
   for _, phi in ipairs(rays) do
@@ -180,12 +182,13 @@ end
 -- ray where U's argument crosses the positive axis; the inner U on one set of nodes
 -- (its argument keeps its angle along the outer ray). Outer and inner steps 1/16; the
 -- error is the difference from steps 1/8 (plus rounding).
-function M.hyperterminants(pairs_, sm, smp)
+function M.hyperterminants(pairs_, sm, smp, median)
   local smr, smi = cparts(sm)
   local spr, spi = cparts(smp)
   local asm, asp = atan(smi, smr), atan(spi, spr)
   local lsm = log(hypot(smr, smi))
-  local outer_rays = borel.choose_ray({ { r = 0, arg = asm }, { r = 0, arg = asm - asp } })
+  local outer_rays = borel.choose_ray({ { r = 0, arg = asm }, { r = 0, arg = asm - asp } },
+    median)
   local vals, errs = {}, {}
   for i = 1, #pairs_ do vals[i], errs[i] = cnew(0, 0), 0 end
   local amin, amax, bmin, bmax = huge, 0, huge, 0
@@ -198,7 +201,7 @@ function M.hyperterminants(pairs_, sm, smp)
     local cp, sp = cos(phi), sin(phi)
     -- the inner argument Z = v sigma_mp / sigma_m: its angle is fixed along the ray
     local zang = phi + asp - asm
-    local inner_rays = borel.choose_ray({ { r = 0, arg = zang } })
+    local inner_rays = borel.choose_ray({ { r = 0, arg = zang } }, median)
     local sums = {}
     for i = 1, #pairs_ do sums[i] = { 0, 0, 0 } end
     for k = 1, #nd.r do
@@ -485,7 +488,7 @@ local function level1(n, adj, N0)
       if m > 0 then Ms[#Ms + 1] = m end
     end
     if #Ms < N1 + 1 then return nil end
-    local U, Ue = M.terminants(Ms, c.sigma, n.cache)
+    local U, Ue = M.terminants(Ms, c.sigma, n.cache, n.median)
     local kf = c.K / cnew(0, 2 * pi)
     local kabs = kf:abs()
     for l = 0, N1 - 1 do
@@ -525,7 +528,7 @@ local function level2(n, used, N0)
           local last = p.exact and N2 or min(N2 + 1, p.count - 1)
           for q = 0, last do ab[#ab + 1] = { N0 + n.mu - q - p.mu, N1 + c.mu - q - p.mu } end
           if ab[#ab][2] <= 0 then return nil, "no room for level 2" end
-          local H, He = M.hyperterminants(ab, c.sigma, p.sigma)
+          local H, He = M.hyperterminants(ab, c.sigma, p.sigma, n.median)
           for q = 0, N2 - 1 do
             local piece = k2 * p.terms[q] * H[q + 1]
             value = value + piece
@@ -582,7 +585,7 @@ function M.sum(n, cands, opts)
     for _, c in ipairs(undetermined) do
       local m0 = N0 + n.mu - c.mu
       if m0 > 0 then
-        local U = M.terminants({ m0 }, c.sigma, n.cache)
+        local U = M.terminants({ m0 }, c.sigma, n.cache, n.median)
         b = b + (c.terms[0] * U[1]):abs() / (2 * pi)
       end
     end

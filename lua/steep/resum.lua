@@ -193,7 +193,8 @@ local function by_borel(J, params, L, c)
   local classes, F0 = classes_of(J, params, c, 2 * MAX_DEGREE + 2)
   if not classes then return nil, "no series at this endpoint" end
   local sing = singulants_of(J, params, L, F0, c.at)
-  local s = borel.sum({ classes = classes, singulants = sing, max_degree = MAX_DEGREE })
+  local s = borel.sum({ classes = classes, singulants = sing, max_degree = MAX_DEGREE,
+    median = c.on_stokes_line })
   local scale = complex.apply("exp", F0)
   local value = cnew(s.re, s.im) * scale
   local err = s.error * cabs(scale)
@@ -213,7 +214,8 @@ local function by_borel(J, params, L, c)
     end
     moved[k] = { fr = cl.fr, fi = cl.fi, mu = cl.mu, cr = cr2, ci = ci2, count = cl.count }
   end
-  local s2 = borel.sum({ classes = moved, singulants = sing, max_degree = MAX_DEGREE })
+  local s2 = borel.sum({ classes = moved, singulants = sing, max_degree = MAX_DEGREE,
+    median = c.on_stokes_line })
   err = err + hypot(s2.re - s.re, s2.im - s.im) * cabs(scale) + RELATIVE_FLOOR * cabs(value)
   -- e^{F0} carries the rounding of F0 itself
   err = err + (16 + cabs(F0)) * EPS * cabs(value)
@@ -369,6 +371,7 @@ local function by_hyper(J, params, L, c)
   local count = 2 * MAX_DEGREE + 2
   local n = single_class_terms(J, params, c, count)
   if not n then return nil, "hyperasymptotics here needs a simple saddle passed through or an endpoint" end
+  n.median = c.on_stokes_line
   local pts = resurgent_points(J, params, L, count)
   local cands = candidates(J, params, L, pts, n.F, c.at, c.weights ~= nil, 1)
   local h, why = hyper.sum(n, cands)
@@ -532,6 +535,7 @@ local function split_pair(J, params, L, c, how)
     local ok, pc = pcall(plain_saddle, J, params, p.saddle, p.rays)
     if not ok then return nil, "the saddles' own series failed: " .. tostring(pc) end
     if pc then
+      pc.on_stokes_line = c.on_stokes_line
       resum_one(J, params, L, pc, how)
       if not pc.resummed then
         return nil, "the saddle at " .. tostring(pc.at) .. " could not be resummed ("
@@ -556,15 +560,19 @@ local function split_pair(J, params, L, c, how)
   return parts_
 end
 
---- apply(J, params, L, contributions, how) -> summary: replaces the value and error of
+--- apply(J, params, L, contributions, how [, on_stokes_line]) -> summary: replaces the value and error of
 -- every contribution that a method improves (the truncated ones stay in c.truncated),
 -- and says which method each used. Two saddles taken together in a uniform form are
 -- expanded apart and resummed when a method is named (how = "borel" or "hyper"), or
 -- when that beats the uniform form (how = true).
-function M.apply(J, params, L, contributions, how)
+function M.apply(J, params, L, contributions, how, on_stokes_line)
   local methods, level = {}, 0
   local out = {}
   for _, c in ipairs(contributions) do
+    -- (on a Stokes line the Laplace integrals take the mean of the two lateral sums, as
+    -- the decomposition takes the mean of the two sides; off it the one lateral sum on
+    -- the decomposition's side)
+    c.on_stokes_line = on_stokes_line or nil
     local split, why
     -- (a pair's pieces carry one side's weights: a contribution that is the mean of the
     -- two sides of a Stokes line is not split)
@@ -579,7 +587,7 @@ function M.apply(J, params, L, contributions, how)
     end
   end
   for k = #contributions, 1, -1 do contributions[k] = nil end
-  for k, c in ipairs(out) do contributions[k] = c end
+  for k, c in ipairs(out) do contributions[k] = c; c.on_stokes_line = nil end
   for _, c in ipairs(contributions) do
     if c.method ~= "exact" then methods[c.method] = true end
     if c.resummed then level = max(level, c.level) end
