@@ -67,6 +67,18 @@ function TestTrustTails:test_gaussian_off_the_origin()
       msg, (v - want):abs(), e))
     H.close(v, want, 1e-8, "quad, " .. msg)
   end
+  -- an endpoint off the origin: the integral of e^{-x (t - c)}/(1 + t - c) from c is
+  -- e^x E1(x) (gsl_sf_expint_E1_scaled); at x = 1e6, c = 3 it was 4.6e-12 relative off
+  -- under an estimate of 1.7e-14, status ok (the scale there is 1/|F'| = 1/x)
+  for _, case in ipairs({ { 1e6, 3 }, { 1e10, -7 } }) do
+    local xv, cv = case[1], case[2]
+    local E = steep.integral { var = t, exponent = -x * (t - cv), amplitude = 1 / (1 + (t - cv)),
+      contour = steep.line(cv, steep.inf(0)), large = x }
+    local want = gsl.expint_E1_scaled(xv)
+    local v, e = E:quad { x = xv }
+    lu.assertTrue((v - want):abs() <= e, string.format("quad from c = %g, x = %g: error "
+      .. "%.3g, stated %.3g", cv, xv, (v - want):abs(), e))
+  end
 end
 
 -- integral of (1 + t^2)^(-2) over the real line = pi/2 (exact): algebraic decay, the

@@ -1006,8 +1006,18 @@ local function quad_deformed(J, params, L)
   local paired = saddle_pairs(J, params, L, plan, info)
   -- the nodes' own rounding: a node near a saddle at t0 sits u |t0| off, a relative
   -- u |t0| / width of the saddle's scale (a Gaussian of width 1e-15 centred at 1e-8 was
-  -- 2.7e-10 relative off under an estimate of 3e-14); counted per saddle piece
+  -- 2.7e-10 relative off under an estimate of 3e-14); counted per saddle piece, and per
+  -- endpoint piece with the scale 1/|F'| there
   local function placement(piece, v)
+    if piece.kind == "endpoint" then
+      -- (an endpoint's scale is 1/|F'| there; the exponent's own tape: the amplitude may
+      -- be singular at the end)
+      if not J._exponent_tape then J._exponent_tape = expr.compile({ J.exponent }, J.var) end
+      local ok, Fj = pcall(J._exponent_tape.jet, J._exponent_tape, piece.at, 1, params)
+      if not ok then return 0 end
+      local slope = cabs(Fj:coef(1))
+      return slope < huge and 4 * EPS * cabs(piece.at) * slope * cabs(v) or 0
+    end
     if piece.kind ~= "saddle" then return 0 end
     local s = L.saddles[piece.index]
     if not (s and s.width and s.width > 0) then return 0 end
