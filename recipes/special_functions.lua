@@ -92,7 +92,7 @@ function M.analyse(name, params, order)
   local fa = steep.is_complex(f) and f:abs() or math.abs(f)
   local diff = (res.value - q):abs()
   return { value = res.value * f, error = res.error * fa, quad = q * f, quad_error = qe * fa,
-    agrees = diff <= 3 * (res.error + qe), status = res.status, result = res }
+    agrees = diff <= res.error + qe, status = res.status, result = res }
 end
 
 -- Words wrapped to lines of at most `width` columns, continuation lines indented.

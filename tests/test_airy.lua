@@ -17,11 +17,11 @@ local function cabs(z) return type(z) == "number" and math.abs(z) or z:abs() end
 
 TestAiry = {}
 
--- |got - want| <= 3 * (our estimate) + (the reference's error), with a message.
+-- |got - want| <= (our estimate) + (the reference's error), with a message.
 local function within(got, err, want, ref_err, msg)
   local d = cabs(got - want)
-  if not (d <= 3 * err + ref_err) then
-    lu.fail(string.format("%s: |value - reference| = %.3g exceeds 3 x %.3g + %.3g (value %s, "
+  if not (d <= err + ref_err) then
+    lu.fail(string.format("%s: |value - reference| = %.3g exceeds %.3g + %.3g (value %s, "
       .. "reference %s)", msg, d, err, ref_err, tostring(got), tostring(want)))
   end
 end

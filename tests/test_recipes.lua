@@ -38,7 +38,7 @@ end
 
 -- M.analyse: optimal truncation against quadrature at x = 10..40. The expansion's
 -- relative error falls with x, and it is within the agreement rule J:check applies
--- (|expansion - quadrature| <= 3 (estimate + quadrature error)).
+-- (|expansion - quadrature| <= estimate + quadrature error, 1x).
 function TestRecipesLaplaceEndpoint:test_optimal_truncation_honest()
   local xs = {}
   for x = 10, 40, 5 do xs[#xs + 1] = x end
@@ -61,7 +61,7 @@ function TestRecipesLaplaceEndpoint:test_optimal_truncation_honest()
     rows[7].relative_error < rows[3].relative_error, "error falls from x = 10 to 20 to 40")
   lu.assertTrue(rows[7].relative_error < 1e-13, "x = 40: relative error " .. rows[7].relative_error)
   if #bad > 0 then
-    lu.fail("optimal truncation: the error exceeds 3 x the estimate at " .. table.concat(bad, "; "))
+    lu.fail("optimal truncation: the error exceeds the estimate at " .. table.concat(bad, "; "))
   end
 end
 
@@ -145,7 +145,7 @@ local function bell_numbers(nmax)
   return B
 end
 
--- [z^n] e^{e^z - 1} = B_n / n! by the non-homogeneous route: within 3 times its error
+-- [z^n] e^{e^z - 1} = B_n / n! by the non-homogeneous route: within its error
 -- estimate, and the relative error falling with n (observed 1.2e-5 at n = 10, 1.9e-9 at
 -- n = 60).
 function TestRecipesCoefficients:test_bell_numbers()
@@ -162,7 +162,7 @@ function TestRecipesCoefficients:test_bell_numbers()
     local rel = abs(got - want) / want
     local msg = string.format("B_%d: got %.17g, want %.17g (relative error %.3g, estimate %.3g)",
       row.n, got, want, rel, row.error / abs(row.value))
-    lu.assertTrue(abs(row.value - want / fact) <= 3 * row.error, msg)
+    lu.assertTrue(abs(row.value - want / fact) <= row.error, msg)
     lu.assertTrue(rel < last, msg .. ": falls with n")
     last = rel
   end
@@ -193,7 +193,7 @@ end
 
 -- The plain two-saddle expansion (order 3) while J:expand still uses it (x = 30,
 -- a x^(2/3) >= 4): its error, relative to the size of the two saddles' terms, grows as
--- a -> 0 and stays within 3 times its estimate. Closer in, J:expand switches to the
+-- a -> 0 and stays within its estimate. Closer in, J:expand switches to the
 -- Airy-type uniform form of the pair, which agrees with quadrature to 1e-10.
 function TestRecipesMergingPoints:test_plain_expansion_degrades()
   local X = 30
@@ -209,7 +209,7 @@ function TestRecipesMergingPoints:test_plain_expansion_degrades()
     local d = cabs(r.value - q)
     local msg = string.format("a = %g: error %.3g, relative to the saddles' size %.3g, "
       .. "estimate %.3g", a, d, d / size, r.error)
-    lu.assertTrue(d <= 3 * r.error, msg)
+    lu.assertTrue(d <= r.error, msg)
     lu.assertTrue(d / size > 2 * last, msg .. string.format(" (previous %.3g)", last))
     last = d / size
   end
@@ -308,16 +308,16 @@ function TestRecipesSpecialFunctions:test_family_against_references()
   local r = sf.analyse("airy", { x = 6 }, 5)
   lu.assertTrue(r.agrees, "airy: expansion and quadrature agree")
   H.close(r.quad, gsl.airy_Ai(6), 1e-10, "Ai(6) by quadrature vs gsl_sf_airy_Ai")
-  lu.assertTrue((r.value - gsl.airy_Ai(6)):abs() <= 3 * r.error, "Ai(6) expansion within 3x")
+  lu.assertTrue((r.value - gsl.airy_Ai(6)):abs() <= r.error, "Ai(6) expansion within its estimate")
   -- Gamma(13) = 12! exactly (DLMF 5.2.1 with x = 12)
   r = sf.analyse("gamma", { x = 12 }, 6)
   H.close(r.quad, 479001600, 1e-10, "12! by quadrature")
-  lu.assertTrue((r.value - 479001600):abs() <= 3 * r.error, "12! expansion within 3x")
+  lu.assertTrue((r.value - 479001600):abs() <= r.error, "12! expansion within its estimate")
   -- e^x E1(x): gsl_sf_expint_E1
   local ref = math.exp(15) * gsl.expint_E1(15)
   r = sf.analyse("expint", { x = 15 }, 6)
   H.close(r.quad, ref, 1e-10, "e^15 E1(15) by quadrature")
-  lu.assertTrue((r.value - ref):abs() <= 3 * r.error, "e^15 E1(15) expansion within 3x")
+  lu.assertTrue((r.value - ref):abs() <= r.error, "e^15 E1(15) expansion within its estimate")
   -- a representation of one's own: the Gaussian integral of exp(-x t^2) = sqrt(pi/x)
   local steep = require "steep"
   local t, x = steep.var "t", steep.param "x"
