@@ -179,3 +179,54 @@ function TestUniformCoalescence:test_through_coalescence()
     + values[-0.003].error + 2 * values[0].error),
     string.format("no jump at the coalescence: second difference %.3g", second))
 end
+
+TestUniformEndpoint = {}
+
+-- A simple saddle a few widths from a finite endpoint (steep.nearend): the saddle's series
+-- with the endpoint's weight on its ray, less the convergent series from the saddle to the
+-- endpoint. Where the saddle and the endpoint were expanded apart their estimates grew past
+-- the value within about two widths (status suspect at every order).
+-- (a) The truncated Gaussian: integral_0^inf (1 + t) e^{-x (t - a)^2} dt =
+--     (1 + a) sqrt(pi/x)/2 erfc(-a sqrt x) + e^{-x a^2}/(2x) (exact, by parts; erfc from
+--     gsl_sf_erfc), a sqrt x from -2 to 2.
+-- (b) A gamma-type tail: integral_1^inf t^x e^{-x (1 - a) t} dt =
+--     Gamma(x + 1) Q(x + 1, x (1 - a)) / (x (1 - a))^(x + 1) (DLMF 8.2.2 and 8.2.4;
+--     gsl_sf_gamma_inc_Q, gsl_sf_lngamma), the saddle 1/(1 - a) next to the endpoint 1.
+function TestUniformEndpoint:test_saddle_near_an_endpoint()
+  local a = steep.param "a"
+  local G = steep.integral { var = t, exponent = -x * (t - a) ^ 2, amplitude = 1 + t,
+    contour = steep.line(0, steep.inf(0)), large = x }
+  local T = steep.integral { var = t, exponent = x * (steep.log(t) - t + a * t),
+    contour = steep.line(1, steep.inf(0)), large = x }
+  local function check(J, xv, av, want, msg)
+    local uniform = false
+    for _, order in ipairs({ 1, 3, 6, "optimal" }) do
+      local r = J:expand { x = xv, a = av, order = order }
+      local m = string.format("%s, order %s", msg, tostring(order))
+      lu.assertEquals(r.status, "estimated", m)
+      local d = cabs(r.value - want)
+      lu.assertTrue(d <= r.error + 1e-15 * math.abs(want), string.format("%s: error %.3g, "
+        .. "stated %.3g", m, d, r.error))
+      for _, c in ipairs(r.contributions) do
+        if c.kind:match("near an endpoint") then uniform = true end
+      end
+    end
+    return uniform
+  end
+  for _, xv in ipairs({ 100, 1000 }) do
+    for _, z in ipairs({ -2, -0.5, 0.02, 0.5, 2 }) do
+      local av = z / math.sqrt(xv)
+      local e = z < 0 and gsl.erfc(-z) or 2 - gsl.erfc(z)
+      local want = (1 + av) * math.sqrt(pi / xv) / 2 * e + math.exp(-z * z) / (2 * xv)
+      local used = check(G, xv, av, want, string.format("(a) x = %g, a sqrt x = %g", xv, z))
+      if math.abs(z) <= 0.5 then lu.assertTrue(used, "(a) the uniform form, a sqrt x = " .. z) end
+    end
+  end
+  for _, xv in ipairs({ 20, 200 }) do
+    for _, av in ipairs({ -0.05, 0.003, 0.05 }) do
+      local u = xv * (1 - av)
+      local want = math.exp(gsl.lngamma(xv + 1) - (xv + 1) * math.log(u)) * gsl.gamma_inc_Q(xv + 1, u)
+      check(T, xv, av, want, string.format("(b) x = %g, a = %g", xv, av))
+    end
+  end
+end

@@ -10,6 +10,7 @@ local expr = require "steep.expr"
 local coalesce = require "steep.coalesce"
 local cusp = require "steep.cusp"
 local nearpole = require "steep.nearpole"
+local nearend = require "steep.nearend"
 local strips = require "steep.strips"
 
 local cnew, cparts = complex.new, complex.parts
@@ -209,7 +210,7 @@ end
 -- the pair of a uniform form, for lua/steep/resum.lua).
 local function contributions_of(J, params, L, plan, order, resum, opts)
   local contributions = {}
-  local by_saddle, order_seen = {}, {}
+  local by_saddle, order_seen, endpoints = {}, {}, {}
   for _, piece in ipairs(plan.pieces) do
     if piece.kind == "saddle" then
       if not by_saddle[piece.index] then
@@ -226,7 +227,7 @@ local function contributions_of(J, params, L, plan, order, resum, opts)
             s.source, tostring(piece.at)), 0)
         end
       end
-      contributions[#contributions + 1] = endpoint_contribution(J, params, piece, order, L, opts)
+      endpoints[#endpoints + 1] = piece
     end
   end
   -- three simple saddles close together: the cusp form for the three (steep.cusp)
@@ -259,6 +260,31 @@ local function contributions_of(J, params, L, plan, order, resum, opts)
         end
       end
     end
+  end
+  -- an endpoint within a few widths of a simple saddle: the two together (steep.nearend)
+  for _, piece in ipairs(endpoints) do
+    local c
+    local j = not (opts and opts.finite_part) and nearend.find(J, params, L, piece, handled)
+    if j then
+      local ok, u, why = pcall(nearend.contribution, J, params, L, j, by_saddle[j] or {},
+        piece, order)
+      if ok and u then
+        -- (the two apart where that is better: far from the saddle the series from it to
+        -- the endpoint nearly cancels the saddle's, and the endpoint's own series is good)
+        local apart = endpoint_contribution(J, params, piece, order, L, opts)
+        local err = apart.error
+        if by_saddle[j] then
+          local ok2, sc = pcall(saddle_contribution, J, params, L, j, by_saddle[j], order, plan)
+          err = ok2 and err + sc.error or math.huge
+        end
+        if u.error < err then c, handled[j] = u, true else c = apart end
+      else
+        plan.notes[#plan.notes + 1] = format("the endpoint %s and saddle %d were expanded "
+          .. "apart: %s", tostring(piece.at), j, tostring(ok and why or u))
+      end
+    end
+    contributions[#contributions + 1] = c
+      or endpoint_contribution(J, params, piece, order, L, opts)
   end
   for _, j in ipairs(order_seen) do
     if handled[j] then goto next_saddle end
