@@ -47,8 +47,9 @@ end
 function M.find(J, params, L, piece, handled)
   local a = piece.at
   if expand.endpoint_factors(J, params, a) then return nil end
-  local ok, Fa = pcall(J.tape.eval, J.tape, a, params)
+  local ok, Fa, g = pcall(J.tape.eval, J.tape, a, params)
   if not ok or not (cabs(Fa) < math.huge) then return nil end
+  if g ~= nil and not (cabs(g) < math.huge) then return nil end   -- (singular there)
   local best, bj
   for j, s in ipairs(L.saddles) do
     if s.order == 2 and not handled[j] and s.F2 and cabs(s.F2) > 0 then
