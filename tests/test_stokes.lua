@@ -17,23 +17,9 @@ local function within(got, err, want, msg)
     msg, tostring(got), tostring(want), d, err))
 end
 
--- Ai(z) by its Maclaurin series (DLMF 9.4.1): Ai = c1 f - c2 g,
--- f = sum 3^k (1/3)_k z^{3k}/(3k)!, g = sum 3^k (2/3)_k z^{3k+1}/(3k+1)!,
--- c1 = 3^{-2/3}/Gamma(2/3), c2 = 3^{-1/3}/Gamma(1/3) (DLMF 9.2.3-9.2.4; gsl_sf_gamma).
-local function ai_maclaurin(zv)
-  local c1 = 3 ^ (-2 / 3) / gsl.gamma(2 / 3)
-  local c2 = 3 ^ (-1 / 3) / gsl.gamma(1 / 3)
-  local z3 = zv * zv * zv
-  local tf, tg = C(1, 0), zv * 1
-  local f, g = tf, tg
-  for k = 0, 200 do
-    tf = tf * z3 * (3 * (1 / 3 + k)) / ((3 * k + 1) * (3 * k + 2) * (3 * k + 3))
-    tg = tg * z3 * (3 * (2 / 3 + k)) / ((3 * k + 2) * (3 * k + 3) * (3 * k + 4))
-    f, g = f + tf, g + tg
-    if tf:abs() + tg:abs() < 1e-18 * (f:abs() + g:abs()) then break end
-  end
-  return c1 * f - c2 * g
-end
+-- Ai(z) by its Maclaurin series (DLMF 9.4.1 with Ai(0), Ai'(0) from DLMF 9.2.3-9.2.4;
+-- gsl_sf_gamma), shared with the calibration families
+local ai_maclaurin = require("calibration").ai_maclaurin
 
 TestStokesAiry = {}
 
