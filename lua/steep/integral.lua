@@ -1231,18 +1231,26 @@ function methods.series(J, opts)
   return require("steep.asymptotics").series(J, params, o)
 end
 
---- J:check{<large> = {values}, <other params>, order = N} -> verification table
-function methods.check(J, opts)
-  if type(opts) ~= "table" then error("bad argument #1 to 'check' (options table expected)", 2) end
-  if not J.large then error("check: the integral names no large parameter (large = ...)", 2) end
+--- check_values(J, opts) -> the list of values of the large parameter J:check was given,
+-- and a copy of opts with the first of them in its place (for option parsing); errors
+-- name the caller's J:check (level 3). Shared by the one- and several-variable J:check.
+function M.check_values(J, opts)
+  if type(opts) ~= "table" then error("bad argument #1 to 'check' (options table expected)", 3) end
+  if not J.large then error("check: the integral names no large parameter (large = ...)", 3) end
   local values = opts[J.large.name]
   if type(values) ~= "table" or #values == 0 then
     error(format("check: give the values of the large parameter as a list, %s = {...}",
-      J.large.name), 2)
+      J.large.name), 3)
   end
   local rest = {}
   for k, v in pairs(opts) do rest[k] = v end
   rest[J.large.name] = values[1]
+  return values, rest
+end
+
+--- J:check{<large> = {values}, <other params>, order = N} -> verification table
+function methods.check(J, opts)
+  local values, rest = M.check_values(J, opts)
   local params, o = M.split_options(J, rest, { order = true, region = true, resum = true },
     "check")
   o.resum = require("steep.resum").check_option(o.resum, "check", o.order)

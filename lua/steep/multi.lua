@@ -230,16 +230,7 @@ end
 
 --- J:check{<large> = {values}, order = K, <other params>} -> rows, verified, :report()
 function methods.check(J, opts)
-  if type(opts) ~= "table" then error("bad argument #1 to 'check' (options table expected)", 2) end
-  if not J.large then error("check: the integral names no large parameter (large = ...)", 2) end
-  local values = opts[J.large.name]
-  if type(values) ~= "table" or #values == 0 then
-    error(format("check: give the values of the large parameter as a list, %s = {...}",
-      J.large.name), 2)
-  end
-  local rest = {}
-  for k, v in pairs(opts) do rest[k] = v end
-  rest[J.large.name] = values[1]
+  local values, rest = integral.check_values(J, opts)
   local params, o = integral.split_options(J, rest, { order = true, at = true, along = true },
     "check")
   local rows = {}
