@@ -236,6 +236,44 @@ function TestTrustPoles:test_high_order_residue()
   end
 end
 
+-- A pole's residue is refined on its best circle only when first read (most poles are
+-- never crossed): before, the refined fields are off the table; any one of them read fills
+-- all, with the value of the eager refinement it replaced (the Gaussian's pole beside the
+-- saddle above: residue e^{-x p^2/2}, exact). A quadrature that crosses no pole leaves it
+-- unrefined; one that crosses it refines it.
+function TestTrustPoles:test_residue_refined_when_read()
+  local p = steep.param "p"
+  local J = steep.integral { var = t, exponent = -x * t ^ 2 / 2, amplitude = 1 / (t - p),
+    contour = REAL_LINE, large = x }
+  local pv, xv = steep.complex(0.4, 0.7), 30
+  local L = J:landscape { x = xv, p = pv, paths = false }
+  local s = L.singularities[1]
+  lu.assertEquals(s.kind, "pole")
+  lu.assertNil(rawget(s, "residue_radius"), "not refined before it is read")
+  local err = s.residue_error   -- (any of the fields)
+  lu.assertNotNil(rawget(s, "residue_radius"), "refined once read")
+  lu.assertEquals(rawget(s, "residue_error"), err)
+  local exact = require("steep.complex").apply("exp", pv * pv * (-xv / 2))
+  lu.assertTrue((s.residue - exact):abs() <= s.residue_error)
+  H.close(s.residue, exact, 1e-14, "refined residue")
+  -- the pole above the real line, the Gaussian's saddle at 0: the deformation to the
+  -- steepest path (the real line itself) crosses nothing (a new x: a new landscape)
+  local _, _, info = J:quad { x = 31, p = pv }
+  lu.assertEquals(#info.residues, 0)
+  lu.assertNil(rawget(info.landscape.singularities[1], "residue_radius"),
+    "a quadrature crossing no pole leaves its residue unrefined")
+  -- the same integrand along the line through 2i: moved down to the real line it sweeps
+  -- over the pole, whose residue is then refined and added
+  local K = steep.integral { var = t, exponent = -x * t ^ 2 / 2, amplitude = 1 / (t - p),
+    contour = steep.path { steep.inf(pi), 2 * I, steep.inf(0) }, large = x }
+  local v2, e2, info2 = K:quad { x = 31, p = pv }
+  lu.assertEquals(#info2.residues, 1)
+  lu.assertNotNil(rawget(info2.landscape.singularities[1], "residue_radius"))
+  local v1, e1 = J:quad { x = 31, p = pv }
+  local jump = 2 * pi * I * require("steep.complex").apply("exp", pv * pv * (-31 / 2))
+  within(v2 - v1, e1 + e2, -jump, 1e-12, "the two lines differ by the residue's term")
+end
+
 -- A Bromwich integral whose pole sits exactly at the saddle, and one whose pole of order
 -- a is made by -a log t in the exponent:
 --   (1/2 pi i) integral over Re s = 1/2 of (1-s)^-n e^{-s x} / s ds = Q(n, x),

@@ -302,7 +302,7 @@ local function make_inner(J, params, mode, centre, scale, atol)
       for _, sd in ipairs(L.saddles) do prev.saddles[#prev.saddles + 1] = sd.at end
       for k, sg in ipairs(L.singularities) do
         prev.singularities[k], prev.radii[k] = sg.at, sg.radius or false
-        prev.residue_radii[k] = sg.residue_radius or false
+        prev.residue_radii[k] = rawget(sg, "residue_radius") or false   -- (not refining it)
       end
       return v, e, info.status
     end

@@ -145,7 +145,7 @@ local function compute_rows(J, values, i0, i1, ctx, on_row, clock0)
       for _, sd in ipairs(L.saddles) do prev.saddles[#prev.saddles + 1] = sd.at end
       for k, sg in ipairs(L.singularities) do
         prev.singularities[k], prev.radii[k] = sg.at, sg.radius or false
-        prev.residue_radii[k] = sg.residue_radius or false
+        prev.residue_radii[k] = rawget(sg, "residue_radius") or false   -- (not refining it)
       end
     end)
     if not ok then row.failure = tostring(err); prev = nil end
