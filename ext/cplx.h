@@ -17,6 +17,15 @@ static inline double plain_abs(cplx z) {
   return cabs(z);
 }
 
+/* The complex number re + i im, set by parts (C99 6.2.5: a complex is an array of its two
+ * parts; CMPLX is C11, and re + I * im makes an infinite im a NaN real part). */
+static inline cplx cplx_of(double re, double im) {
+  cplx w;
+  ((double *)&w)[0] = re;
+  ((double *)&w)[1] = im;
+  return w;
+}
+
 /* |z|^2 by the plain formula (may overflow to infinity: only for comparisons). */
 static inline double abs2(cplx z) { return creal(z) * creal(z) + cimag(z) * cimag(z); }
 

@@ -187,6 +187,7 @@ static int ray_u(cplx F0, path_ray r, double *u) {
 typedef struct {
   problem *p;
   cplx t0, F0, dt0;   /* dt/du at u = 0; F0 = c[0], the tape's F at t0 */
+  double abs_F0;
   path_ray ray[2];    /* [0]: u > 0 (ray a), [1]: u < 0 (ray b) */
   double *u[2];
   /* Near the saddle F0 - F(t) = u^2 is solved on F's Taylor polynomial at t0 (degree
@@ -195,16 +196,22 @@ typedef struct {
    * error of about eps |F0| / (2 u^2) in dt/du at u. Each node takes the route whose
    * error estimate is smaller (c[13], c[14] estimate the polynomial's truncation). */
   cplx c[TAYLOR_ORDER + 3];
+  double abs_c[TAYLOR_ORDER + 3];   /* |c_k|, for taylor_error (once, not per node) */
+  int top;                          /* the highest k <= TAYLOR_ORDER with c_k != 0 */
 } saddle_path;
 
+/* Horner's rule in real arithmetic (C's complex product checks for infinities on every
+ * step; these values are finite), from the highest nonzero coefficient (top). */
 static void taylor(const saddle_path *sp, cplx h, cplx *G, cplx *dG) {
-  cplx g = 0, d = 0;
-  for (int k = TAYLOR_ORDER; k >= 1; k--) {
-    d = d * h + g;
-    g = g * h + sp->c[k];
+  double hr = creal(h), hi = cimag(h), gr = 0, gi = 0, dr = 0, di = 0;
+  for (int k = sp->top; k >= 1; k--) {
+    double ndr = dr * hr - di * hi + gr, ndi = dr * hi + di * hr + gi;
+    dr = ndr; di = ndi;
+    double ngr = gr * hr - gi * hi + creal(sp->c[k]), ngi = gr * hi + gi * hr + cimag(sp->c[k]);
+    gr = ngr; gi = ngi;
   }
-  *G = g * h;               /* sum_{k=1..TAYLOR_ORDER} c_k h^k */
-  *dG = d * h + g;          /* its derivative */
+  *G = cplx_of(gr * hr - gi * hi, gr * hi + gi * hr);     /* sum_{k=1..top} c_k h^k */
+  *dG = cplx_of(dr * hr - di * hi + gr, dr * hi + di * hr + gi);   /* its derivative */
 }
 
 /* h with G(h) = -u^2 on the Taylor polynomial, from the guess x; 0 when Newton does not
@@ -213,10 +220,12 @@ static int taylor_solve(const saddle_path *sp, double u, cplx x, cplx *h, cplx *
   cplx G;
   for (int it = 0; it < 30; it++) {
     taylor(sp, x, &G, dG);
-    if (*dG == 0) return 0;
-    cplx step = (G + u * u) / *dG;
+    double d2 = abs2(*dG);
+    if (!(d2 > 0 && d2 < 1e300)) return 0;
+    /* (the quotient by conj: dG is neither tiny nor huge here, so no scaling is needed) */
+    cplx step = (G + u * u) * conj(*dG) / d2;
     x -= step;
-    if (cabs(step) <= 1e-15 * cabs(x)) {
+    if (abs2(step) <= 1e-30 * abs2(x)) {
       taylor(sp, x, &G, dG);
       *h = x;
       return creal(x * conj(sp->dt0 * u)) > 0;
@@ -231,16 +240,16 @@ static int taylor_solve(const saddle_path *sp, double u, cplx x, cplx *h, cplx *
  * its terms), in G (which moves the node: f changes by about f times the shift in u^2,
  * f falling like e^{-u^2}) and in G' (dt/du = -2u / G'), four times over. */
 static double taylor_error(const saddle_path *sp, cplx h, cplx dG) {
-  double ah = cabs(h), hk = ah, sumG = 0, sumD = 0;
+  double ah = plain_abs(h), hk = ah, sumG = 0, sumD = 0;
   for (int k = 1; k <= TAYLOR_ORDER; k++) {
-    sumG += cabs(sp->c[k]) * hk;
-    sumD += k * cabs(sp->c[k]) * hk / ah;
+    sumG += sp->abs_c[k] * hk;
+    sumD += k * sp->abs_c[k] * hk / ah;
     hk *= ah;
   }
-  double t13 = cabs(sp->c[TAYLOR_ORDER + 1]) * hk, t14 = cabs(sp->c[TAYLOR_ORDER + 2]) * hk * ah;
+  double t13 = sp->abs_c[TAYLOR_ORDER + 1] * hk, t14 = sp->abs_c[TAYLOR_ORDER + 2] * hk * ah;
   double dG_err = ((TAYLOR_ORDER + 1) * t13 + (TAYLOR_ORDER + 2) * t14) / ah + EPS * sumD;
   double G_err = t13 + t14 + EPS * sumG;
-  return 4 * (dG_err / cabs(dG) + G_err);
+  return 4 * (dG_err / plain_abs(dG) + G_err);
 }
 
 /* g e^F dt/du at u, or a non-finite value when the node cannot be solved; *rel set to the
@@ -274,20 +283,22 @@ static cplx node_value(const saddle_path *sp, double u, double *rel) {
   cplx seed = ta + (tb - ta) * ((s - ua) / (ub - ua)), t = seed;
   /* Solved on the tape: Newton's residual in F is at most 4 eps (2|F0| + u^2 + 1) = d,
    * which moves u^2 by d and G' = F' by |F''| d / |F'| (relative d / (2 u^2)) */
-  double d = 4 * EPS * (2 * cabs(sp->F0) + s * s + 1);
+  double d = 4 * EPS * (2 * sp->abs_F0 + s * s + 1);
   double tape_rel = 4 * d * (1 / (2 * s * s) + 1);
   /* (the root of the equation on the path: Newton from the traced points, and it must land
    * on the segment it started from; F0 - F = u^2 has other roots on other curves) */
   cplx h, dG;
-  if (taylor_solve(sp, u, seed - sp->t0, &h, &dG) && cabs(sp->t0 + h - seed) <= cabs(tb - ta)) {
+  double seg2 = abs2(tb - ta);
+  if (taylor_solve(sp, u, seed - sp->t0, &h, &dG) && abs2(sp->t0 + h - seed) <= seg2) {
     double taylor_rel = taylor_error(sp, h, dG);
     if (taylor_rel < tape_rel) {
-      if (eval(p, sp->t0 + h, &F, &dF) != STEEP_OK) return NAN;
+      /* (the value alone: F' there is the polynomial's dG) */
+      cplx f = problem_integrand(p, sp->t0 + h, &F);
       /* (the tape's F there against the polynomial's: a jet that does not describe F
-       * this far out, say past a singular point, is not used) */
-      if (cabs(F - (sp->F0 - s * s)) <= d + taylor_rel * s * s) {
+       * this far out, say past a singular point, is not used; a non-finite F fails it) */
+      if (plain_abs(F - (sp->F0 - s * s)) <= d + taylor_rel * s * s) {
         *rel = taylor_rel;
-        return problem_amplitude_after_dF(p, sp->t0 + h) * cexp(F) * (-2 * u / dG);
+        return f * (-2 * u / dG);
       }
     }
   }
@@ -296,8 +307,8 @@ static cplx node_value(const saddle_path *sp, double u, double *rel) {
   for (int it = 0; it < 12; it++) {
     if (eval(p, t, &F, &dF) != STEEP_OK || dF == 0) return NAN;
     cplx r0 = F - target;
-    if (cabs(r0) <= d) {
-      if (cabs(t - seed) > cabs(tb - ta)) return NAN;   /* left its segment */
+    if (plain_abs(r0) <= d) {
+      if (abs2(t - seed) > seg2) return NAN;   /* left its segment */
       return problem_amplitude_after_dF(p, t) * cexp(F) * (-2 * u / dF);
     }
     t -= r0 / dF;
@@ -316,10 +327,11 @@ static int add_nodes(const saddle_path *sp, int sign, double h, double u_end, lo
     double u = k * h, rel;
     cplx f = node_value(sp, sign * u, &rel);
     if (!isfinite(creal(f)) || !isfinite(cimag(f))) return -1;
+    double af = plain_abs(f);
     *sum += f;
-    *abs_sum += cabs(f);
+    *abs_sum += af;
     /* (and e^F's own rounding there: eps |F| in its argument, F about F0 - u^2) */
-    *cond += cabs(f) * (rel + 2 * EPS * (cabs(sp->F0) + u * u + 1));
+    *cond += af * (rel + 2 * EPS * (sp->abs_F0 + u * u + 1));
     if (u > *u_out) { *u_out = u; *f_end = f; }
   }
   return 0;
@@ -341,6 +353,12 @@ int path_saddle_quad(problem *p, cplx t0, cplx F0, cplx F2, path_ray a, path_ray
    * it agrees with the caller's to rounding) */
   if (!(cabs(sp.c[0] - F0) <= 1e-12 * (cabs(F0) + 1))) return -1;
   sp.F0 = sp.c[0];
+  sp.abs_F0 = plain_abs(sp.F0);
+  sp.top = 1;
+  for (int k = 0; k < TAYLOR_ORDER + 3; k++) {
+    sp.abs_c[k] = plain_abs(sp.c[k]);
+    if (k >= 1 && k <= TAYLOR_ORDER && sp.c[k] != 0) sp.top = k;
+  }
   if (ray_u(sp.F0, a, sp.u[0]) || ray_u(sp.F0, b, sp.u[1])) return -1;
   /* dt/du at the saddle: 1/sqrt(-c_2), the root pointing along ray a */
   cplx dt0 = csqrt(-1.0 / sp.c[2]);
