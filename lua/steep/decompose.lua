@@ -548,6 +548,12 @@ end
 -- plan.notes: list of strings; plan.weights_by: "ends" or "crossings" (how the weights
 -- of saddles off the contour were found).
 function M.decompose(J, params, L, contour)
+  return M.copy_plan(M.kept_plan(J, params, L, contour))
+end
+
+--- The plan itself, kept with the landscape: read-only for the caller (decompose gives a
+-- copy to change).
+function M.kept_plan(J, params, L, contour)
   -- a landscape belongs to one set of parameter values, so its plan for a contour is
   -- kept with it (an expansion and its quadrature check decompose the same contour)
   L._plans = L._plans or setmetatable({}, { __mode = "k" })
@@ -563,7 +569,7 @@ function M.decompose(J, params, L, contour)
     end
     L._plans[contour] = kept
   end
-  return M.copy_plan(kept)
+  return kept
 end
 
 --- A copy that callers may change (residue windings, notes, the fields of a piece)

@@ -488,9 +488,10 @@ local function singular_at(L, z)
 end
 
 -- The relative tolerance quadrature can reach near z: QUAD_REL, or the rounding of
--- e^F where |F| is large (its phase carries eps |F| of noise).
-noise_tol = function(J, params, z)
-  local ok, F = pcall(J.tape.eval, J.tape, z, params)
+-- e^F where |F| is large (its phase carries eps |F| of noise). (F: F(z) when known.)
+noise_tol = function(J, params, z, F)
+  local ok = true
+  if F == nil then ok, F = pcall(J.tape.eval, J.tape, z, params) end
   local f = ok and cabs(F) or 0
   if not (f < huge) then f = 0 end
   return math.max(QUAD_REL, 8 * 2.2e-16 * (f + 1))
@@ -941,7 +942,7 @@ function M.quad_link(J, params, L, piece, notes)
   return v2 - v1, e1 + e2, n1 + n2, (s1 ~= "ok" and s1) or s2
 end
 
-local saddle_pairs
+local saddle_pairs, floor_points
 
 -- The singular points of L (a cvec, kept with L): chords joined along a path keep clear.
 local function singular_points(L)
@@ -979,7 +980,7 @@ saddle_pairs = function(J, params, L, plan, info)
         and not a.path.straight and not b.path.straight then
       local v, e, ev, pa, pb = core.saddle_quad(J.tape, params, s.at, s.F, s.F2,
         a.path.traced, a.path.F, b.path.traced, b.path.F,
-        { reltol = noise_tol(J, params, s.at) })
+        { reltol = noise_tol(J, params, s.at, s.F) })
       info.evals = info.evals + (v and ev or e)   -- (a failed rule returns nil, evaluations)
       if v then
         local pair = { value = v, weight = a.weight, error = e }
@@ -993,14 +994,16 @@ end
 
 -- Along the steepest descent decomposition, plus residues.
 local function quad_deformed(J, params, L)
-  local ok, plan = pcall(decompose.decompose, J, params, L, J.contour)
+  -- (the kept plan, read here and not changed: its notes are copied into info)
+  local ok, plan = pcall(decompose.kept_plan, J, params, L, J.contour)
   if not ok then
     -- (the decomposition refuses: the caller integrates along the given contour)
     return nil, nil, { along = "deformed", status = "failed", notes = { tostring(plan) },
       evals = 0, pieces = {}, residues = {} }
   end
-  local info = { along = "deformed", status = plan.status, notes = plan.notes,
-    evals = plan.evals, pieces = {}, residues = {} }
+  local info = { along = "deformed", status = plan.status,
+    notes = table.move(plan.notes, 1, #plan.notes, 1, {}), evals = plan.evals, pieces = {},
+    residues = {} }
   if plan.status ~= "ok" then return nil, nil, info end
   local total, err = cnew(0, 0), 0
   local paired = saddle_pairs(J, params, L, plan, info)
@@ -1119,6 +1122,32 @@ function methods.quad(J, opts)
   return M.quad_with(J, params, L, along)
 end
 
+-- The points whose |F| sets the rounding floor of a quadrature: the saddles and the
+-- contour's finite points (of a path of many points, 4096 spread along it and its ends),
+-- as {|F|, log |g e^F|}; kept with the landscape (they depend on the parameters only).
+function floor_points(J, params, L)
+  L._floor_points = L._floor_points or setmetatable({}, { __mode = "k" })
+  local kept = L._floor_points[J.contour]
+  if kept then return kept end
+  local out = {}
+  local function consider(F, g)
+    local gm = g and cabs(g) or 1
+    out[#out + 1] = { cabs(F), cparts(F) + (gm > 0 and math.log(gm) or -huge) }
+  end
+  for _, s in ipairs(L.saddles) do consider(s.F, s.g) end
+  -- (in one batch, singular points giving no finite F)
+  local fp, pts = J.contour:finite_points(), {}
+  local stride = math.max(1, #fp // 4096)
+  for k = 1, #fp, stride do pts[#pts + 1] = fp[k] end
+  if #fp > 0 and pts[#pts] ~= fp[#fp] then pts[#pts + 1] = fp[#fp] end
+  if #pts > 0 then
+    local Fs, gs = J.tape:eval_many(core.cvec(pts), params)
+    for k = 1, #pts do consider(Fs:get(k), gs and gs:get(k)) end
+  end
+  L._floor_points[J.contour] = out
+  return out
+end
+
 --- The quadrature on a landscape already mapped (sweeps reuse theirs).
 function M.quad_with(J, params, L, along)
   if J.zero_amplitude then
@@ -1159,22 +1188,10 @@ function M.quad_with(J, params, L, along)
   local Fmax = 0
   local level = math.log(math.max(cabs(v), 1e-308)) - 40
   local top = -huge   -- the largest log |g e^F| seen at a saddle or a contour point
-  local function consider(F, g)
-    local gm = g and cabs(g) or 1
-    local lv = cparts(F) + (gm > 0 and math.log(gm) or -huge)
-    if cabs(F) < huge and lv > level then Fmax = math.max(Fmax, cabs(F)) end
+  for _, pt in ipairs(floor_points(J, params, L)) do
+    local absF, lv = pt[1], pt[2]
+    if absF < huge and lv > level then Fmax = math.max(Fmax, absF) end
     if lv == lv then top = math.max(top, lv) end
-  end
-  for _, s in ipairs(L.saddles) do consider(s.F, s.g) end
-  -- (the contour's finite points in one batch, singular ones giving no finite F; of a
-  -- path of many points, 4096 spread along it and its ends)
-  local fp, pts = J.contour:finite_points(), {}
-  local stride = math.max(1, #fp // 4096)
-  for k = 1, #fp, stride do pts[#pts + 1] = fp[k] end
-  if #fp > 0 and pts[#pts] ~= fp[#fp] then pts[#pts + 1] = fp[#fp] end
-  if #pts > 0 then
-    local Fs, gs = J.tape:eval_many(core.cvec(pts), params)
-    for k = 1, #pts do consider(Fs:get(k), gs and gs:get(k)) end
   end
   e = math.max(e, (4 + Fmax) * 2.2e-16 * cabs(v))
   -- a value of exactly 0 with no error: say why, or distrust it
