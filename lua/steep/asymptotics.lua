@@ -53,7 +53,12 @@ local function saddle_contribution(J, params, L, j, rays, order, plan)
     at_endpoint = at_endpoint or piece.at_endpoint
   end
   local symmetric = (m == 2 and c[1] == -c[2])
-  if symmetric and c[1] ~= 0 and L.singularities then
+  -- (nearpole.find looks at simple poles only: without one, no series to find it by)
+  local simple_pole = false
+  for _, p in ipairs(L.singularities or {}) do
+    if p.kind == "pole" and p.order == 1 then simple_pole = true end
+  end
+  if symmetric and c[1] ~= 0 and simple_pole then
     local ok, a0, F0, sm = pcall(expand.saddle_series, J, params, s.at, 2, 4)
     if not ok then
       -- the amplitude is singular at the saddle itself (a pole there): the map from F alone
