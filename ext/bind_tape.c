@@ -220,6 +220,32 @@ static int tape_eval_many(lua_State *L) {
   return (int)t->nout;
 }
 
+/* tape:rounding(points [, params]) -> for each output a list of bounds on the rounding
+ * error of its value at the points (tape_eval_rounding); points a steep.cvec. */
+static int tape_rounding_l(lua_State *L) {
+  tape *t = checktape(L, 1);
+  size_t m = 0;
+  cplx *xs = bind_tocvec(L, 2, &m);
+  if (!xs) return luaL_typeerror(L, 2, "steep.cvec");
+  cplx *p = read_params(L, t, 3);
+  cplx *work = bind_array(L, t->n + t->nout, sizeof(cplx));
+  double *ework = bind_array(L, t->n + t->nout, sizeof(double));
+  cplx *out = work + t->n;
+  double *err = ework + t->n;
+  luaL_checkstack(L, (int)t->nout + 2, "too many outputs");
+  int first = lua_gettop(L) + 1;
+  for (size_t o = 0; o < t->nout; o++) lua_createtable(L, (int)m, 0);
+  for (size_t i = 0; i < m; i++) {
+    tape_eval_rounding(t, xs[i], p, out, err, work, ework);
+    for (size_t o = 0; o < t->nout; o++) {
+      lua_pushnumber(L, err[o]);
+      lua_rawseti(L, first + (int)o, (lua_Integer)i + 1);
+    }
+  }
+  ((tape_block *)t)->tally += (long)m;
+  return (int)t->nout;
+}
+
 static const char *status_text(int st) {
   switch (st) {
     case STEEP_SINGULAR: return "is singular there";
@@ -336,6 +362,7 @@ static int tape_tostring(lua_State *L) {
 
 static const luaL_Reg tape_methods[] = {
   {"eval", tape_eval_l}, {"eval_many", tape_eval_many}, {"jet", tape_jet_l},
+  {"rounding", tape_rounding_l},
   {"dump", tape_dump}, {"params", tape_params}, {"size", tape_size}, {"evals", tape_evals},
   {NULL, NULL}
 };

@@ -118,6 +118,64 @@ void tape_eval(const tape *t, cplx x, const cplx *params, cplx *out, cplx *work)
   for (size_t o = 0; o < t->nout; o++) out[o] = work[t->out[o]];
 }
 
+/* The rounding bound of one instruction's value v from its operands' values and bounds
+ * (ea, eb). u is the unit roundoff; a complex product is within sqrt(2) 2u of the exact
+ * one (Brent, Percival & Zimmermann, Math. Comp. 76 (2007) 1469-1481), a quotient within
+ * a few u, and the library's elementary functions within a couple of ulps (common
+ * practice), their arguments' own errors carried by the derivative. */
+static double rounding1(const tape_ins *in, cplx a, double ea, cplx b, double eb, cplx v) {
+  const double u = 1.1102230246251565e-16, mul = 2.8284271247461903 * u;
+  double av = cabs(v), aa = cabs(a), ab = cabs(b);
+  switch (in->op) {
+    case OP_CONST: return u * av;
+    case OP_VAR:
+    case OP_PARAM: return 0;
+    case OP_ADD:
+    case OP_SUB:   return ea + eb + u * av;
+    case OP_MUL:   return ab * ea + aa * eb + ea * eb + mul * av;
+    case OP_DIV:   return ab > eb ? (ea + av * eb) / (ab - eb) + 4 * u * av : INFINITY;
+    case OP_NEG:   return ea;
+    case OP_POWI: {
+      /* k a^(k-1) ea, and one product's rounding per squaring or multiplication of the
+       * binary powering (at most 2 log2 k of them) */
+      double k = fabs((double)in->k);
+      return (aa > 0 ? k * av / aa * ea : 0) + 2 * floor(log2(k + 1)) * mul * av;
+    }
+    case OP_POWC:  /* exp(c log a) */
+      return aa > ea ? av * (cabs(in->c) * ea / (aa - ea) + mul * (cabs(in->c * clog(a)) + 2))
+                     : INFINITY;
+    case OP_EXP:   return av * (ea + 2 * u);
+    case OP_LOG:   return aa > ea ? ea / (aa - ea) + 2 * u * (av + 1) : INFINITY;
+    case OP_SQRT:  return av > 0 ? ea / (2 * av) + 2 * u * av : sqrt(ea);
+    case OP_SIN:
+    case OP_COS:   return cosh(cimag(a)) * (ea + 2 * u);
+    case OP_SINH:
+    case OP_COSH:  return cosh(creal(a)) * (ea + 2 * u);
+    case OP_TAN:
+    case OP_TANH:  return (1 + av * av) * ea + 2 * u * (av + 1);
+    case OP_ATAN:  {
+      double d = cabs(1 + a * a);
+      return d > 0 ? ea / d + 2 * u * (av + 1) : INFINITY;
+    }
+    default:       return INFINITY;
+  }
+}
+
+void tape_eval_rounding(const tape *t, cplx x, const cplx *params, cplx *out, double *err,
+                        cplx *work, double *ework) {
+  for (size_t j = 0; j < t->n; j++) {
+    const tape_ins *in = &t->ins[j];
+    cplx a = in->a >= 0 ? work[in->a] : 0, b = in->b >= 0 ? work[in->b] : 0;
+    double ea = in->a >= 0 ? ework[in->a] : 0, eb = in->b >= 0 ? ework[in->b] : 0;
+    work[j] = apply1(in, a, b, x, params);
+    ework[j] = rounding1(in, a, ea, b, eb, work[j]);
+  }
+  for (size_t o = 0; o < t->nout; o++) {
+    out[o] = work[t->out[o]];
+    err[o] = ework[t->out[o]];
+  }
+}
+
 /* One instruction over a block of m <= TAPE_BLOCK points. The switch sits outside the
  * loop over points so the compiler can keep the loops tight. */
 static void apply_block(const tape_ins *in, cplx *w, const cplx *a, const cplx *b,

@@ -53,6 +53,14 @@ long tape_check(tape *t, const char **why);
 /* Values of the outputs at x: out[nout]. work: n entries. */
 void tape_eval(const tape *t, cplx x, const cplx *params, cplx *out, cplx *work);
 
+/* Values of the outputs at x and a first-order bound on each one's rounding error: err[o]
+ * for output o, propagated through the instructions from the unit roundoff of each
+ * operation and the operands' own bounds (a running error analysis, N. J. Higham,
+ * Accuracy and Stability of Numerical Algorithms, 2nd ed. (2002), sec. 3.3). The
+ * variable and the parameters are taken as exact. work: n entries; ework: n entries. */
+void tape_eval_rounding(const tape *t, cplx x, const cplx *params, cplx *out, double *err,
+                        cplx *work, double *ework);
+
 /* Block size of tape_eval_batch; work needs n * TAPE_BLOCK entries. */
 #define TAPE_BLOCK 64
 
