@@ -11,6 +11,8 @@
 #include <stdio.h>
 #include <string.h>
 #include "bind.h"
+#include "cdiv.h"
+#include "clog.h"
 #include "cplx.h"
 #include "geom.h"
 #include "invmap.h"
@@ -392,15 +394,50 @@ static cplx integrand(void *ctx, cplx t) {
 
 static const char *quad_text[] = {"ok", "limit", "nonfinite"};
 
-/* The integrand in batches (problem_integrand_batch) with its scratch memory. */
-typedef struct { problem *p; cplx *work, *out; } batch_ctx;
+/* The integrand in batches (problem_integrand_batch) with its scratch memory, less the
+ * poles' parts r_j / (t - p_j) of simple poles near the path (npoles of them: the
+ * difference is regular there, and their integrals along the polyline are added back in
+ * closed form, pole_logs). */
+typedef struct {
+  problem *p;
+  cplx *work, *out;
+  const cplx *poles, *residues;
+  size_t npoles;
+} batch_ctx;
+
+static cplx pole_parts(const batch_ctx *c, cplx t) {
+  cplx s = 0;
+  for (size_t j = 0; j < c->npoles; j++) s += cdiv(c->residues[j], t - c->poles[j]);
+  return s;
+}
 
 static void integrand_batch(void *ctx, const cplx *t, size_t m, cplx *f) {
   batch_ctx *c = ctx;
   problem_integrand_batch(c->p, t, m, f, c->work, c->out);
+  if (c->npoles)
+    for (size_t i = 0; i < m; i++) f[i] -= pole_parts(c, t[i]);
 }
 
-static cplx integrand_one(void *ctx, cplx t) { return integrand(((batch_ctx *)ctx)->p, t); }
+static cplx integrand_one(void *ctx, cplx t) {
+  batch_ctx *c = ctx;
+  cplx f = integrand(c->p, t);
+  return c->npoles ? f - pole_parts(c, t) : f;
+}
+
+/* sum_j r_j times the integral of dt / (t - p_j) along the polyline: on each segment
+ * log((b - p) / (a - p)), principal (a straight segment that misses p turns by less than
+ * pi about it); *size gets sum |r_j| |log| (the scale of its rounding). */
+static cplx pole_logs(const batch_ctx *c, const cplx *pts, size_t n, double *size) {
+  cplx s = 0;
+  *size = 0;
+  for (size_t j = 0; j < c->npoles; j++)
+    for (size_t k = 0; k + 1 < n; k++) {
+      cplx l = steep_clog(cdiv(pts[k + 1] - c->poles[j], pts[k] - c->poles[j]));
+      s += c->residues[j] * l;
+      *size += cabs(c->residues[j]) * cabs(l);
+    }
+  return s;
+}
 
 /* core.quad_polyline(tape, params, points, opts) -> value, error, evaluations, status
  * opts: abstol, reltol, singular_start, singular_end (tanh-sinh on that segment), limit
@@ -446,13 +483,28 @@ static int land_quad_polyline(lua_State *L) {
     }
   }
   batch_ctx c = {p, bind_array(L, p->t->n, TAPE_BLOCK * sizeof(cplx)),
-                 bind_array(L, p->t->nout, 15 * QUAD_BATCH * sizeof(cplx))};
+                 bind_array(L, p->t->nout, 15 * QUAD_BATCH * sizeof(cplx)), NULL, NULL, 0};
+  /* simple poles near the path whose parts are taken out (poles, residues: cvecs) */
+  lua_getfield(L, 4, "poles");
+  if (!lua_isnil(L, -1)) {
+    size_t np = 0, nr = 0;
+    c.poles = bind_checkpoints(L, lua_gettop(L), &np);
+    lua_getfield(L, 4, "residues");
+    c.residues = bind_checkpoints(L, lua_gettop(L), &nr);
+    if (nr != np) return luaL_error(L, "quad_polyline: as many residues as poles expected");
+    c.npoles = np;
+  }
   void *scratch = bind_array(L, QUAD_POLYLINE_BYTES(n - 1), 1);
   long evals = 0;
   cplx total;
   double etotal;
   int status = quad_polyline(integrand_one, integrand_batch, &c, pts, n, abstol, reltol, limit,
                              budget, sing0, sing1, scratch, &total, &etotal, &evals);
+  if (c.npoles) {
+    double size;
+    total += pole_logs(&c, pts, n, &size);
+    etotal += 8 * 2.220446049250313e-16 * size;
+  }
   bind_pushcomplex(L, total);
   lua_pushnumber(L, etotal);
   lua_pushinteger(L, evals);

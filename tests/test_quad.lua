@@ -364,12 +364,14 @@ local function within_own_estimate(v, e, ref, max_rel, msg)
 end
 
 -- 2 pi Ai(x) = int exp(i (t^3/3 + x t)) dt along the real line (DLMF 9.5.4, the exponential
--- form of 9.5.1), Ai from GSL (gsl_sf_airy_Ai). At x = 100, e^F carries eps |F0| = 1.5e-13
--- of rounding (F0 = -2/3 x^(3/2)): the bound allows for it.
+-- form of 9.5.1), Ai from GSL (gsl_sf_airy_Ai). At x = 100, e^F carries the rounding of
+-- F0 = -2/3 x^(3/2) = t^3/3 + x t at t = 10i, a sum of terms of size 1000: the running error
+-- bound through the tape puts it at 1.3e-12 (the error found is 7e-14): the bound allows
+-- for it.
 function TestQuadSaddleVariable:test_airy_integral()
   local J = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t),
     contour = steep.line(steep.inf(pi), steep.inf(0)), large = x }
-  for _, c in ipairs({ { 1, 1e-13 }, { 10, 1e-13 }, { 100, 1e-12 } }) do
+  for _, c in ipairs({ { 1, 1e-13 }, { 10, 1e-13 }, { 100, 2e-12 } }) do
     local X, max_rel = c[1], c[2]
     local msg = "Ai at x = " .. X
     local v, e, info = J:quad { x = X }

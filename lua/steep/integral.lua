@@ -144,7 +144,11 @@ end
 -- positive, or differ from the count on the first circle (a log point makes it -1 until
 -- the saddle is enclosed, as for t - z log t). With no saddle at all the region stays at
 -- the contour's scale; exponents with infinitely many saddles stop at a bound (and the
--- landscape says so).
+-- landscape says so). Past the 12 circles, one count on a far circle (FAR_DOUBLINGS
+-- doublings out) says whether saddles lie beyond: then the doubling goes on until the
+-- count settles there (the Gamma integral x log t - t - x log x + x has its saddle at
+-- t = x: at x = 520 it lay past the 12 circles, and quadrature returned 0).
+local FAR_DOUBLINGS = 40
 local function default_region(J, params, poly_saddles)
   local R0 = 1
   for _, z in ipairs(J.contour:finite_points()) do R0 = math.max(R0, 1.5 * cabs(z)) end
@@ -156,19 +160,47 @@ local function default_region(J, params, poly_saddles)
     return { center = cnew(0, 0), radius = 2 ^ math.ceil(math.log(R0, 2)) }
   end
   local counts = {}
+  local function count(k)
+    if counts[k] == nil then
+      local st, n = core.count(J.tape, params, { out = 1, deriv = 1 }, cnew(0, 0), R0 * 2 ^ k,
+        20000)
+      counts[k] = st == "ok" and n or false
+    end
+    return counts[k] or nil
+  end
   local any, first = false, nil
-  for k = 0, 11 do
-    local st, n = core.count(J.tape, params, { out = 1, deriv = 1 }, cnew(0, 0), R0 * 2 ^ k, 20000)
-    counts[k] = st == "ok" and n or nil
-    first = first or counts[k]
-    local saddle = counts[k] and (counts[k] > 0 or counts[k] ~= first)
+  local function settled(k)
+    local n = count(k)
+    first = first or n
+    local saddle = n and (n > 0 or n ~= first)
     if saddle then any = true end
-    if k >= 2 and saddle and counts[k] == counts[k - 1] and counts[k] == counts[k - 2] then
-      return { center = cnew(0, 0), radius = R0 * 2 ^ (k - 1) }
+    return k >= 2 and saddle and n == count(k - 1) and n == count(k - 2)
+  end
+  local last
+  for k = 0, 11 do
+    if settled(k) then last = k; break end
+  end
+  -- (a count that changed at the last circles: let it settle)
+  for k = 12, any and not last and 15 or 0 do
+    if settled(k) then last = k; break end
+  end
+  if not last and any then
+    -- (the count still moving at the last circle: infinitely many saddles, as for
+    -- e^{e^t}-like exponents; the landscape says so)
+    return { center = cnew(0, 0), radius = 4 * R0, bounded = true }
+  end
+  -- the far circle: the same count, or saddles beyond (go on doubling until it settles)
+  local far = count(FAR_DOUBLINGS)
+  local here = last and count(last) or first
+  if far and here and far ~= here then
+    for k = (last or 11) + 1, FAR_DOUBLINGS do
+      if count(k) == far and settled(k) then
+        return { center = cnew(0, 0), radius = R0 * 2 ^ (k - 1) }
+      end
     end
   end
-  if not any then return { center = cnew(0, 0), radius = 2 * R0 } end
-  return { center = cnew(0, 0), radius = 4 * R0, bounded = true }
+  if last then return { center = cnew(0, 0), radius = R0 * 2 ^ (last - 1) } end
+  return { center = cnew(0, 0), radius = 2 * R0 }
 end
 
 -- The largest region radius, relative to the problem's scale (1, |center| and the
@@ -942,7 +974,7 @@ function M.quad_link(J, params, L, piece, notes)
   return v2 - v1, e1 + e2, n1 + n2, (s1 ~= "ok" and s1) or s2
 end
 
-local saddle_pairs, floor_points
+local saddle_pairs, floor_points, subtracted_poles
 
 -- The singular points of L (a cvec, kept with L): chords joined along a path keep clear.
 local function singular_points(L)
@@ -992,6 +1024,37 @@ saddle_pairs = function(J, params, L, plan, info)
   return out
 end
 
+-- The simple poles within NEAR_POLE of a piece's polyline (relative to the region), whose
+-- parts r / (t - p) core.quad_polyline takes out of the integrand and adds back in closed
+-- form: next to a pole the rule's own error estimate fails (a pole 3e-7 from the path:
+-- 3.6e-11 off under an estimate of 2.5e-13) and the nodes' rounding is magnified by
+-- |p| / distance. Returns {poles, residues (cvecs), error} or nil; the error carries each
+-- residue's own error times the integral of |dt / (t - p)| along the piece (its
+-- logarithms plus pi for the near pass). Records the poles in subtracted[piece].
+local NEAR_POLE = 1e-2
+function subtracted_poles(L, piece, subtracted)
+  local poles, residues, err = {}, {}, 0
+  local R = L.region.radius
+  for _, s in ipairs(L.singularities) do
+    -- (a pole on the path itself, as one at a saddle or an end, is not beside it: the
+    -- piece's own treatment stands)
+    local d = s.kind == "pole" and s.order == 1 and #piece.points >= 2
+      and core.distance(piece.points, s.at)
+    if d and d < NEAR_POLE * R and d > 1e-10 * R and s.residue then
+      poles[#poles + 1], residues[#residues + 1] = s.at, s.residue
+      local pts, size = piece.points, pi
+      for k = 1, #pts - 1 do
+        size = size + cabs(complex.apply("log", (pts[k + 1] - s.at) / (pts[k] - s.at)))
+      end
+      err = err + s.residue_error * size
+      subtracted[piece] = subtracted[piece] or {}
+      subtracted[piece][s] = true
+    end
+  end
+  if #poles == 0 then return nil end
+  return { poles = core.cvec(poles), residues = core.cvec(residues), error = err }
+end
+
 -- Along the steepest descent decomposition, plus residues.
 local function quad_deformed(J, params, L)
   -- (the kept plan, read here and not changed: its notes are copied into info)
@@ -1006,6 +1069,7 @@ local function quad_deformed(J, params, L)
     residues = {} }
   if plan.status ~= "ok" then return nil, nil, info end
   local total, err = cnew(0, 0), 0
+  local subtracted = {}   -- piece -> set of the poles taken out of its integrand
   local paired = saddle_pairs(J, params, L, plan, info)
   -- the nodes' own rounding: a node near a saddle at t0 sits u |t0| off, a relative
   -- u |t0| / width of the saddle's scale (a Gaussian of width 1e-15 centred at 1e-8 was
@@ -1056,11 +1120,14 @@ local function quad_deformed(J, params, L)
         levels = piece.kind == "saddle"
           and core.cvec_join({ L.saddles[piece.index].F, path.F:get(1) }, path.F) or path.F
       end
+      local near = subtracted_poles(L, piece, subtracted)
       local v, e, ev, st = core.quad_polyline(J.tape, params, piece.points,
         { reltol = noise_tol(J, params, piece.points[1]),
           singular_start = piece.kind == "endpoint" and singular_at(L, piece.at) ~= nil,
           singular_end = singular_end, levels = levels, merge = levels and 1,
-          avoid = levels and singular_points(L) })
+          avoid = levels and singular_points(L), poles = near and near.poles,
+          residues = near and near.residues })
+      if near then e = e + near.error end
       info.evals = info.evals + ev
       if st ~= "ok" then info.status = "quadrature " .. st end
       local why = piece.path and piece.path.reason
@@ -1085,11 +1152,12 @@ local function quad_deformed(J, params, L)
         weight = piece.weight, value = v, error = e, ends = piece.ends }
     end
   end
-  -- poles very close to a piece of the path (relative to the region)
+  -- poles very close to a piece of the path (relative to the region), but for those
+  -- whose parts were taken out of that piece's integrand
   for _, s in ipairs(L.singularities) do
     if s.kind == "pole" then
       for _, piece in ipairs(plan.pieces) do
-        if #piece.points >= 2 then
+        if #piece.points >= 2 and not (subtracted[piece] and subtracted[piece][s]) then
           local d = core.distance(piece.points, s.at)
           if d < 1e-3 * L.region.radius and (not info.near_pole or d < info.near_pole) then
             info.near_pole = d
@@ -1122,29 +1190,56 @@ function methods.quad(J, opts)
   return M.quad_with(J, params, L, along)
 end
 
--- The points whose |F| sets the rounding floor of a quadrature: the saddles and the
--- contour's finite points (of a path of many points, 4096 spread along it and its ends),
--- as {|F|, log |g e^F|}; kept with the landscape (they depend on the parameters only).
-function floor_points(J, params, L)
+-- The points whose |F| sets the rounding floor of a quadrature: the saddles its path
+-- passes (along the deformed contour: those with pieces; along the given one: those
+-- within four widths of it) and the contour's finite points (of a path of many points,
+-- 4096 spread along it and its ends), as {|F|, log |g e^F|, the relative rounding of
+-- g e^F there (tape:rounding: F's absolute bound plus g's relative one)}. (A saddle
+-- the path does not pass, as the periodic copies of -x cosh t at i pi k off the real
+-- line, does not round the value.) Kept with the landscape: they depend on the
+-- parameters only.
+function floor_points(J, params, L, info)
   L._floor_points = L._floor_points or setmetatable({}, { __mode = "k" })
   local kept = L._floor_points[J.contour]
-  if kept then return kept end
+  if not kept then
+    local pts = {}
+    for _, s in ipairs(L.saddles) do pts[#pts + 1] = s.at end
+    local fp = J.contour:finite_points()
+    local stride = math.max(1, #fp // 4096)
+    for k = 1, #fp, stride do pts[#pts + 1] = fp[k] end
+    if #fp > 0 and pts[#pts] ~= fp[#fp] then pts[#pts + 1] = fp[#fp] end
+    kept = {}
+    if #pts > 0 then
+      -- (in one batch, singular points giving no finite F)
+      local cv = core.cvec(pts)
+      local Fs, gs = J.tape:eval_many(cv, params)
+      local eF, eg = J.tape:rounding(cv, params)
+      for k = 1, #pts do
+        local F, g = Fs:get(k), gs and gs:get(k)
+        local gm = g and cabs(g) or 1
+        local r = eF[k] + (gs and gm > 0 and eg[k] / gm or 0)
+        kept[k] = { cabs(F), cparts(F) + (gm > 0 and math.log(gm) or -huge), r == r and r or 0 }
+      end
+    end
+    L._floor_points[J.contour] = kept
+  end
+  -- the saddles passed
+  local passed = {}
+  if info.along == "deformed" then
+    for _, piece in ipairs(info.pieces or {}) do
+      if piece.kind == "saddle" then passed[piece.index] = true end
+    end
+  else
+    local line = core.cvec(J.contour:sample { radius = 8 * L.region.radius, n = 64 })
+    for j, s in ipairs(L.saddles) do
+      local w = (s.width and s.width < huge) and s.width or 0
+      passed[j] = core.distance(line, s.at) <= math.max(4 * w, 1e-9 * L.region.radius)
+    end
+  end
   local out = {}
-  local function consider(F, g)
-    local gm = g and cabs(g) or 1
-    out[#out + 1] = { cabs(F), cparts(F) + (gm > 0 and math.log(gm) or -huge) }
+  for k, pt in ipairs(kept) do
+    if k > #L.saddles or passed[k] then out[#out + 1] = pt end
   end
-  for _, s in ipairs(L.saddles) do consider(s.F, s.g) end
-  -- (in one batch, singular points giving no finite F)
-  local fp, pts = J.contour:finite_points(), {}
-  local stride = math.max(1, #fp // 4096)
-  for k = 1, #fp, stride do pts[#pts + 1] = fp[k] end
-  if #fp > 0 and pts[#pts] ~= fp[#fp] then pts[#pts + 1] = fp[#fp] end
-  if #pts > 0 then
-    local Fs, gs = J.tape:eval_many(core.cvec(pts), params)
-    for k = 1, #pts do consider(Fs:get(k), gs and gs:get(k)) end
-  end
-  L._floor_points[J.contour] = out
   return out
 end
 
@@ -1185,15 +1280,32 @@ function M.quad_with(J, params, L, along)
   -- eps |F| relative, where |F| is largest among the points that dominate (saddles,
   -- finite contour points); plus a few units in the last place of the result
   -- (points whose integrand is negligible against the result carry no weight)
-  local Fmax = 0
+  -- (and, where F is a small difference of large terms, F's own rounding there: a
+  -- running error bound through the tape, as x (1 + log s - s) near s = 1 at x = 3e15,
+  -- whose rounding of about 1 was missed)
+  local Fmax, rel = 0, 0
   local level = math.log(math.max(cabs(v), 1e-308)) - 40
   local top = -huge   -- the largest log |g e^F| seen at a saddle or a contour point
-  for _, pt in ipairs(floor_points(J, params, L)) do
-    local absF, lv = pt[1], pt[2]
-    if absF < huge and lv > level then Fmax = math.max(Fmax, absF) end
+  for _, pt in ipairs(floor_points(J, params, L, info)) do
+    local absF, lv, r = pt[1], pt[2], pt[3]
+    if absF < huge and lv > level then Fmax, rel = math.max(Fmax, absF), math.max(rel, r) end
     if lv == lv then top = math.max(top, lv) end
   end
-  e = math.max(e, (4 + Fmax) * 2.2e-16 * cabs(v))
+  e = math.max(e, ((4 + Fmax) * 2.2e-16 + rel) * cabs(v))
+  if rel > 1e-10 then
+    info.notes[#info.notes + 1] = format("the exponent is a small difference of large "
+      .. "terms near the saddles (its rounding there is %.2g): the value cannot be more "
+      .. "accurate than that; an exponent written to cancel less (a shift or a scaling of "
+      .. "the variable) does better", rel)
+  end
+  -- a value beyond doubles: no number at all
+  local vr, vi = cparts(v)
+  if not (abs(vr) < huge and abs(vi) < huge) then
+    info.status, e = "failed", huge
+    info.notes[#info.notes + 1] = format("the integrand overflows: log |g e^F| reaches %.6g "
+      .. "at a saddle or on the contour (doubles end near 709.78); subtract a constant from "
+      .. "the exponent (J:expand gives the value as a scale times a number)", top)
+  end
   -- a value of exactly 0 with no error: say why, or distrust it
   if cabs(v) == 0 and e == 0 then
     if info.along == "deformed" and #(info.pieces or {}) == 0 and #(info.residues or {}) == 0 then
