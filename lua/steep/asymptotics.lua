@@ -41,6 +41,35 @@ local function check_order(order, fname)
 end
 M.check_order = check_order
 
+-- The number of leading coefficients a[0..n-1] that doubles hold: the series' raw
+-- coefficients carry the large parameter's powers (a_k ~ x^(-k/m)), and past some order
+-- they fall below 1e-290, where doubles lose digits and then give 0 (the scaled Gamma
+-- integral at x = 10: its coefficients underflowed from order 171 on, the terms past it
+-- were 0 and the error read from them vanished: 0.7 % off under an estimate of 1e-11).
+-- A fixed order that needs more is refused; "optimal" stops there.
+local TINY_COEFFICIENT = 1e-290
+local function held_coefficients(a, n)
+  for k = 0, n - 1 do
+    local v = a[k] and cabs(a[k]) or 0
+    if v > 0 and v < TINY_COEFFICIENT then return k end
+    -- (an exact 0 right after tiny ones is an underflow, not a symmetry)
+    if v == 0 and k >= 1 and a[k - 1] and cabs(a[k - 1]) < 1e-250 and cabs(a[k - 1]) > 0 then
+      return k
+    end
+  end
+  return n
+end
+
+local function check_held(a, nraw, order, m, what)
+  local held = held_coefficients(a, nraw)
+  if held >= nraw then return nraw end
+  if order == "optimal" then return held end
+  error(format("%s: order %d needs %d coefficients of its series, but those from order %d "
+    .. "on are below what doubles hold (the large parameter's powers are in them): ask for "
+    .. "at most %d terms, or order = \"optimal\"", what, order, nraw, held,
+    math.max(1, held // m - 4)), 0)
+end
+
 -- Saddle contribution from its ray pieces (uniformly with a pole nearby: steep.nearpole).
 local function saddle_contribution(J, params, L, j, rays, order, plan)
   local s = L.saddles[j]
@@ -80,6 +109,8 @@ local function saddle_contribution(J, params, L, j, rays, order, plan)
   end
   local nraw = raw_count(order, m, symmetric)
   local a, F0, _, _, _, aerr = expand.saddle_series(J, params, s.at, m, nraw, L)
+  nraw = check_held(a, nraw, order, symmetric and m or 1,
+    format("the saddle at %s", tostring(s.at)))
   local terms, powers, _, terr = expand.saddle_terms(a, F0, m, c, nraw, aerr)
   local scale = exp_c(F0)
   local value, err, used = expand.truncate(terms, order, scale, cabs(F0), terr)
@@ -101,6 +132,7 @@ local function endpoint_contribution(J, params, piece, order, L, opts)
     error(format("the endpoint %s is a saddle of the exponent: not handled as an endpoint",
       tostring(piece.at)), 0)
   end
+  nraw = check_held(b, nraw, order, 1, format("the endpoint %s", tostring(piece.at)))
   local terms, _, terr = expand.endpoint_terms(b, beta, nraw, berr)
   local scale = exp_c(Fa) * piece.weight
   local value, err, used = expand.truncate(terms, order, scale, cabs(Fa), terr)
