@@ -136,6 +136,36 @@ function TestUniformAiry:test_expand_with_saddles_close_together()
   end
 end
 
+-- The Airy-type form at high fixed orders: each round of its recursion (G = (u^2 - zeta) H
+-- + p + q u, then H') multiplies the high coefficients' errors by about k, and the terms
+-- depend on where the recursion starts (the coefficients omitted). Both now enter the
+-- estimate (they had not: Airy at x = 0.3, order 28, 6.7e-5 off under 9.9e-14; e^3 K_1/2(3)
+-- at order 22, 8.7e-7 under 1.9e-8, both "estimated"): every order's error within its
+-- estimate. References: 2 pi Ai(x) (DLMF 9.5.4, gsl_sf_airy_Ai); e^x K_nu(x) = (1/2) int
+-- over the real line of exp(-x (cosh t - 1) + nu t) (DLMF 10.32.9, gsl_sf_bessel_Knu_scaled,
+-- sqrt(pi/6) at nu = 1/2, x = 3).
+function TestUniformAiry:test_high_orders_within_estimate()
+  local tt, xx, nu = steep.var "t", steep.param "x", steep.param "nu"
+  local A = steep.integral { var = tt, exponent = I * (tt ^ 3 / 3 + xx * tt),
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = xx }
+  local K = steep.integral { var = tt, exponent = -xx * (steep.cosh(tt) - 1) + nu * tt,
+    amplitude = 0.5, contour = steep.line(steep.inf(pi), steep.inf(0)), large = xx }
+  local aref, kref = 2 * pi * gsl.airy_Ai(0.3), gsl.bessel_Knu_scaled(0.5, 3)
+  for _, order in ipairs({ 8, 16, 24, 28, 40 }) do
+    local r = A:expand { x = 0.3, order = order }
+    local d = cabs(r.value - aref)
+    lu.assertTrue(d <= r.error, string.format("Airy x = 0.3, order %d: error %.3g, stated "
+      .. "%.3g", order, d, r.error))
+    local k = K:expand { nu = 0.5, x = 3, order = order }
+    local dk = cabs(k.value - kref)
+    lu.assertTrue(dk <= k.error, string.format("K_1/2(3), order %d: error %.3g, stated %.3g",
+      order, dk, k.error))
+  end
+  -- (and at a low order the estimate still means something)
+  local r = A:expand { x = 0.3, order = 8 }
+  lu.assertTrue(r.error <= 1e-12 * cabs(aref), "order 8: " .. r.error)
+end
+
 ---------------------------------------------------------------------------------------
 
 TestUniformCoalescence = {}

@@ -52,6 +52,8 @@ local function cubic_map(s1, s2)
 end
 M.cubic_map = cubic_map
 
+local TRUNCATION_CHECK = 16
+
 -- Taylor coefficients of G(u) about 0 from its values on |u| = rho.
 local function coefficients(J, params, s1, map, rho, n)
   local N = 256
@@ -65,15 +67,24 @@ local function coefficients(J, params, s1, map, rho, n)
 end
 
 -- G = (u^2 - zeta) H + p + q u on truncated coefficients c[0..n-1]: returns p, q, H'.
-local function reduce(c, n, zeta)
-  local h = {}
-  for k = 0, n - 1 do h[k] = cnew(0, 0) end
-  for k = n - 1, 2, -1 do h[k - 2] = c[k] + zeta * h[k] end
+-- With e[0..n-1] (bounds on the coefficients' errors), also those of p, q and H': the
+-- recursion and the derivative carry them (the k-th round multiplies the high
+-- coefficients' errors by about k!, which at 24 terms had put 8e-8 of rounding into a
+-- value estimated at 1e-13).
+local function reduce(c, n, zeta, e)
+  local h, eh = {}, {}
+  local az = cabs(zeta)
+  for k = 0, n - 1 do h[k], eh[k] = cnew(0, 0), 0 end
+  for k = n - 1, 2, -1 do
+    h[k - 2] = c[k] + zeta * h[k]
+    eh[k - 2] = e[k] + az * eh[k]
+  end
   local p = c[0] + zeta * h[0]
   local q = c[1] + zeta * h[1]
-  local dh = {}
-  for k = 0, n - 3 do dh[k] = (k + 1) * h[k + 1] end
-  return p, q, dh, n - 2
+  local ep, eq = e[0] + az * eh[0], e[1] + az * eh[1]
+  local dh, edh = {}, {}
+  for k = 0, n - 3 do dh[k], edh[k] = (k + 1) * h[k + 1], (k + 1) * eh[k + 1] end
+  return p, q, dh, n - 2, ep, eq, edh
 end
 
 -- The model's contour: each ray of the pair (weight w) is matched to the model's descent
@@ -164,45 +175,66 @@ function M.contribution(J, params, L, pair, order)
   local I0, I1, e0, e1 = model_integrals(map.zeta, from, to)
   if not I0 then return nil end
   local nterms = order == "optimal" and 6 or order
+  -- (n coefficients for the terms; TRUNCATION_CHECK more to see how the terms move when
+  -- the recursion starts further up: the omitted coefficients' share)
   local n = 2 * nterms + 22
-  local c
+  local c, c_other, used_rho
   local vm = cabs(map.v)
   for _, rho in ipairs({ 2 * vm + 1, 2 * vm + 0.6, 1.5 * vm + 0.3 }) do
-    local c1 = coefficients(J, params, s1, map, rho, n)
-    local c2 = c1 and coefficients(J, params, s1, map, 0.8 * rho + 0.1 * vm, n)
+    local c1 = coefficients(J, params, s1, map, rho, n + TRUNCATION_CHECK)
+    local c2 = c1 and coefficients(J, params, s1, map, 0.8 * rho + 0.1 * vm,
+      n + TRUNCATION_CHECK)
     if c1 and c2 then
       local ok = true
       for k = 0, 6 do
         if cabs(c1[k] - c2[k]) > 1e-8 * (cabs(c1[k]) + cabs(c1[0])) then ok = false end
       end
-      if ok then c = c1; break end
+      if ok then c, c_other, used_rho = c1, c2, rho; break end
     end
   end
   if not c then return nil end
   local scale = complex.apply("exp", map.A)
-  -- the circle's coefficients carry rounding of the size of G on it
-  local gsize, used_rho = 0, 2 * vm + 1
+  -- the circle's coefficients carry rounding of the size of G on it, divided by rho^k:
+  -- each one's error bounded by that and by its difference from the second circle's
+  local gsize = 0
   for k = 0, n - 1 do gsize = math.max(gsize, cabs(c[k]) * used_rho ^ k) end
-  local terms, value = {}, cnew(0, 0)
-  local cur, len = c, n
-  local pq = {}
-  local sizes = 0   -- the sizes the terms' rounding scales with (p I0 and q I1 may cancel)
-  for k = 1, nterms + 3 do
-    if len < 4 then break end
-    local p, q, dh, nlen = reduce(cur, len, map.zeta)
-    pq[k] = { p = p, q = q }
-    terms[k] = (p * I0 + q * I1) * scale
-    if k <= nterms then sizes = sizes + (cabs(p * I0) + cabs(q * I1)) * cabs(scale) end
-    cur, len = dh, nlen
+  local cerr = {}
+  for k = 0, n + TRUNCATION_CHECK - 1 do
+    cerr[k] = cabs(c[k] - c_other[k]) + 64 * EPS * gsize / used_rho ^ k
   end
+  -- the terms from the first len coefficients
+  local function terms_from(len)
+    local terms, pq = {}, {}
+    local sizes = 0   -- the sizes the terms' rounding scales with (p I0 and q I1 may cancel)
+    local carried = 0 -- the coefficients' errors carried into the terms used
+    local cur, ecur = c, cerr
+    for k = 1, nterms + 3 do
+      if len < 4 then break end
+      local p, q, dh, nlen, ep, eq, edh = reduce(cur, len, map.zeta, ecur)
+      pq[k] = { p = p, q = q }
+      terms[k] = (p * I0 + q * I1) * scale
+      if k <= nterms then
+        sizes = sizes + (cabs(p * I0) + cabs(q * I1)) * cabs(scale)
+        carried = carried + (ep * cabs(I0) + eq * cabs(I1)) * cabs(scale)
+      end
+      cur, len, ecur = dh, nlen, edh
+    end
+    return terms, pq, sizes, carried
+  end
+  local terms, pq, sizes, carried = terms_from(n)
+  local more = terms_from(n + TRUNCATION_CHECK)
   local used = math.min(nterms, #terms)
-  for k = 1, used do value = value + terms[k] end
+  local value, moved = cnew(0, 0), cnew(0, 0)
+  for k = 1, used do value, moved = value + terms[k], moved + (more[k] - terms[k]) end
+  -- (the terms' own dependence on where the recursion starts: saddles far apart at a high
+  -- order made the terms diverge as the coefficients grew, 8.7e-7 off under 1.9e-8)
+  carried = carried + cabs(moved)
   -- the series' remainder as for plain contributions, the model integrals' own errors,
-  -- and the rounding of e^A and of the sums (as expand.truncate's floor)
+  -- the coefficients' errors carried through, and the rounding of e^A and of the sums
+  -- (as expand.truncate's floor)
   local err = require("steep.expand").remainder(terms, used)
-  err = err + cabs(pq[1].p * scale) * e0 + cabs(pq[1].q * scale) * e1
+  err = err + cabs(pq[1].p * scale) * e0 + cabs(pq[1].q * scale) * e1 + carried
     + (128 + cabs(map.A)) * 2.220446049250313e-16 * sizes
-    + 64 * 2.220446049250313e-16 * gsize * (cabs(I0) + cabs(I1)) * cabs(scale)
   -- the saddles' F carry rounding (a few units of |F| each): zeta = v^2 with
   -- v^3 = (3/4)(F1 - F2) inherits it divided by |v| (saddles close together leave zeta
   -- less well determined); dI0/dzeta = I1, dI1/dzeta = zeta I0
