@@ -145,6 +145,34 @@ function TestInfinity:test_undecided()
   lu.assertStrContains(why, "not decided")
 end
 
+-- Undecided directions beside decided valleys: e^{-x (cosh t - 1)} cosh(nu t), whose
+-- amplitude along the imaginary axis is cos(nu y), two oscillating terms of one size (no
+-- term dominates its log), keeps its strips left and right; the undecided directions are
+-- listed, and are no valleys. The whole analysis had been dropped, and the sampled
+-- valleys missed direction 0 for nu >= 66, so that e^x K_nu(x) = int_0^inf of it (DLMF
+-- 10.32.9) was refused as divergent: now quad gives gsl_sf_bessel_Knu_scaled.
+function TestInfinity:test_undecided_beside_strips()
+  local nu = steep.param "nu"
+  local F, g = -x * (steep.cosh(t) - 1), steep.cosh(nu * t)
+  local A = assert(analyze(F, g, { x = 100, nu = 100 }))
+  lu.assertEquals(#by_type(A, "strip"), 2, "the strips right and left")
+  lu.assertNotNil(A.undecided, "the undecided directions are listed")
+  for _, th in ipairs(A.undecided) do
+    lu.assertFalse((A.converges(th)), "an undecided direction is no valley: " .. th)
+  end
+  lu.assertTrue((A.converges(0)))
+  local gsl = require "gslref"
+  local K = steep.integral { var = t, exponent = F, amplitude = g,
+    contour = steep.line(0, steep.inf(0)), large = x }
+  for _, nv in ipairs({ 75, 100 }) do
+    local v, e = K:quad { x = 100, nu = nv }
+    local want = gsl.bessel_Knu_scaled(nv, 100)
+    lu.assertTrue((v - want):abs() <= e, string.format("nu = %d: error %.3g, stated %.3g",
+      nv, (v - want):abs(), e))
+    H.close(v, want, 1e-12, "nu = " .. nv)
+  end
+end
+
 -- Cross-check against sampling: for a polynomial exponent far out, the sampled valleys
 -- lie inside the exact sectors (sampling is indicative, the sectors exact).
 function TestInfinity:test_sampling_agrees()

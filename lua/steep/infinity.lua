@@ -782,12 +782,21 @@ function M.analyze(F, g, var, params, rho)
       cells[#cells + 1] = { from = a, to = b, cl = M.classify(H_at(norm_angle(mid)), norm_angle(mid)) }
     end
   end
+  -- directions the analysis cannot decide (the amplitude a sum of oscillating terms of one
+  -- size there, as cosh(nu t) along the imaginary axis) are not valleys: an end or a
+  -- path there is refused later, while the decided directions keep their valleys (the
+  -- strips of e^{-x cosh t} cosh(nu t) were lost with them). With none decided to
+  -- converge, the analysis says why.
+  local undecided, any_valley = {}, false
   for _, c in ipairs(cells) do
-    if c.cl.class == "unknown" then
-      return nil, format("the behaviour at infinity in direction %.4g is not decided by "
-        .. "the analysis", c.from)
-    end
+    if c.cl.class == "unknown" then undecided[#undecided + 1] = c.from
+    elseif convergent(c.cl) then any_valley = true end
   end
+  if #undecided > 0 and not any_valley then
+    return nil, format("the behaviour at infinity in direction %.4g is not decided by "
+      .. "the analysis", undecided[1])
+  end
+  out.undecided = #undecided > 0 and undecided or nil
   out.cells, out.exponential = cells, exponential
   out.valleys = M.valleys_from_cells(cells, H_at, exponential)
   return out
