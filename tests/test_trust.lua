@@ -108,6 +108,50 @@ end
 
 TestTrustSaddles = {}
 
+-- Stirling's series for Gamma(x + 1) e^x / x^(x + 1/2) / sqrt(2 pi) (DLMF 5.11.3, exact
+-- coefficients by gslref.stirling_gamma), to 10 terms: at x >= 500 its error is below 1e-40.
+local function stirling(xv)
+  local g, s, q = gsl.stirling_gamma(10), 0, 1
+  for k = 1, #g do s = s + g[k] * q; q = q / xv end
+  return s
+end
+
+-- A saddle past the default search: Gamma(x + 1) e^x / x^x = integral over t > 0 of
+-- exp(x log t - t - x log x + x) (DLMF 5.2.1), whose saddle t = x lay beyond the twelve
+-- doubling circles of the default region from x = 515 on: the landscape found no saddle
+-- and quadrature returned 0 +- 0 ("underflow"). A far circle now says saddles lie beyond.
+function TestTrustSaddles:test_saddle_past_the_search()
+  local J = steep.integral { var = t, exponent = x * steep.log(t) - t - x * steep.log(x) + x,
+    contour = steep.line(0, steep.inf(0)), large = x }
+  for _, xv in ipairs({ 520, 5000, 1e6 }) do
+    local want = math.sqrt(2 * pi * xv) * stirling(xv)
+    local v, e, info = J:quad { x = xv }
+    lu.assertNotEquals(info.status, "underflow", "x = " .. xv)
+    lu.assertEquals(#info.landscape.saddles, 1, "x = " .. xv .. ": the saddle at t = x")
+    within(v, e, steep.complex(want, 0), 1e-7, "x = " .. xv)
+  end
+end
+
+-- F a small difference of large terms: x (1 + log s - s) near its saddle s = 1 is of size
+-- 1 while x s is 3e15, so F carries a rounding of about 1 there and e^F about 100 % in
+-- any method that evaluates F (its terms at s = 1 +- 1e-8 cancel). The quadrature said
+-- "ok" with an estimate of 1.6e-15 of a value 3 % off; a running error bound through the
+-- tape now puts F's rounding into the estimate, and a note says why. The integral is
+-- e^x Gamma(x + 1) / x^(x + 1) (DLMF 5.2.1), Stirling's series above.
+function TestTrustSaddles:test_exponent_rounding()
+  local J = steep.integral { var = t, exponent = x * (1 + steep.log(t) - t),
+    contour = steep.line(0, steep.inf(0)), large = x }
+  for _, xv in ipairs({ 3e14, 3e15, 520 }) do
+    local want = math.sqrt(2 * pi / xv) * stirling(xv)
+    local v, e, info = J:quad { x = xv }
+    lu.assertTrue((v - want):abs() <= e, string.format("x = %g: error %.3g exceeds the "
+      .. "stated %.3g", xv, (v - want):abs(), e))
+    local noted = false
+    for _, n in ipairs(info.notes) do noted = noted or n:find("small difference", 1, true) ~= nil end
+    lu.assertEquals(noted, xv > 1e10, "x = " .. xv .. ": a note on the cancellation")
+  end
+end
+
 -- Airy's integral far out on the oscillatory side: the saddles at +-sqrt(-x) lie at +-548,
 -- where no fixed search looks. 2 pi Ai(x) (gsl_sf_airy_Ai).
 function TestTrustSaddles:test_airy_far_saddles()
@@ -236,6 +280,27 @@ function TestTrustPoles:test_high_order_residue()
   end
 end
 
+-- A simple pole beside the path: the integral of e^{-x t^2} / (t - p) over the real line,
+-- the saddle's own path, is i pi w(p sqrt x) for Im p > 0 (DLMF 7.7.2 after t = s / sqrt x;
+-- w from libcerf). With p 3e-7 and 1e-8 above the path, Gauss-Kronrod's estimate failed
+-- (3.6e-11 off under 2.5e-13, "ok"); the pole's part r / (t - p) is now taken out of the
+-- integrand and added back in closed form.
+function TestTrustPoles:test_pole_beside_the_path()
+  local p = steep.param "p"
+  local J = steep.integral { var = t, exponent = -x * t ^ 2, amplitude = 1 / (t - p),
+    contour = REAL_LINE, large = x }
+  for _, c in ipairs({ { 1, steep.complex(1, 3e-7) }, { 1, steep.complex(0.3, 1e-8) },
+    { 50, steep.complex(-0.2, 1e-6) } }) do
+    local xv, pv = c[1], c[2]
+    local z = pv * math.sqrt(xv)
+    local wr, wi = gsl.faddeeva_w(z:re(), z:im())
+    local want = I * pi * steep.complex(wr, wi)
+    local v, e, info = J:quad { x = xv, p = pv }
+    lu.assertEquals(info.status, "ok")
+    within(v, e, want, 1e-12, string.format("x = %g, p = %s", xv, tostring(pv)))
+  end
+end
+
 -- A pole's residue is refined on its best circle only when first read (most poles are
 -- never crossed): before, the refined fields are off the table; any one of them read fills
 -- all, with the value of the eager refinement it replaced (the Gaussian's pole beside the
@@ -323,6 +388,31 @@ function TestTrustPoles:test_pole_at_the_saddle()
 end
 
 TestTrustEndpoints = {}
+
+-- Fixed orders past what doubles hold: the raw coefficients carry the large parameter's
+-- powers and underflow (a saddle's past order 170 at x = 10; Watson's b_k = (-1)^k x^-k at
+-- x = 40 past k = 181). The terms past them were 0 and the estimate read from them
+-- vanished (0.7 % off under 1e-11; -3.9e46 for 0.024 under 8.6e36, "estimated"): such
+-- an order is refused, naming the most terms doubles hold; "optimal" stops there.
+-- References: Gamma(11) e^10 / 10^11 from gsl_sf_lngamma (DLMF 5.2.1 with t = x s), and
+-- e^x E1(x) = gsl_sf_expint_E1_scaled (DLMF 6.2.2 after t -> x t).
+function TestTrustEndpoints:test_orders_past_doubles()
+  local G = steep.integral { var = t, exponent = x * (1 + steep.log(t) - t),
+    contour = steep.line(0, steep.inf(0)), large = x }
+  local E = steep.integral { var = t, exponent = -x * t, amplitude = 1 / (1 + t),
+    contour = steep.line(0, steep.inf(0)), large = x }
+  local gref = math.exp(gsl.lngamma(11) + 10 - 11 * math.log(10))
+  for _, case in ipairs({ { G, 10, 171 }, { G, 10, 200 }, { E, 40, 192 }, { E, 40, 200 } }) do
+    local J, xv, order = case[1], case[2], case[3]
+    local ok, msg = pcall(J.expand, J, { x = xv, order = order })
+    lu.assertFalse(ok, "order " .. order .. " at x = " .. xv .. " must be refused")
+    lu.assertStrContains(tostring(msg), "below what doubles hold")
+  end
+  local r = G:expand { x = 10, order = 150 }
+  within(r.value, r.error, steep.complex(gref, 0), 1e-8, "order 150")
+  local e = E:expand { x = 40, order = "optimal" }
+  within(e.value, e.error, steep.complex(gsl.expint_E1_scaled(40), 0), 1e-14, "optimal")
+end
 
 -- An end where the integrand is not integrable: t^(-3/2) e^{-2t} on [0, inf) diverges at 0.
 -- Refused by expand and quad; the continued value Gamma(-1/2) 2^(1/2) = -2 sqrt(2 pi)
