@@ -119,10 +119,11 @@ void tape_eval(const tape *t, cplx x, const cplx *params, cplx *out, cplx *work)
 }
 
 /* The rounding bound of one instruction's value v from its operands' values and bounds
- * (ea, eb). u is the unit roundoff; a complex product is within sqrt(2) 2u of the exact
- * one (Brent, Percival & Zimmermann, Math. Comp. 76 (2007) 1469-1481), a quotient within
- * a few u, and the library's elementary functions within a couple of ulps (common
- * practice), their arguments' own errors carried by the derivative. */
+ * (ea, eb). u is the unit roundoff; a complex product is within 2 sqrt(2) u of the exact
+ * one, relatively (the classical bound, Higham sec. 3.6; Brent, Percival & Zimmermann,
+ * Math. Comp. 76 (2007) 1469-1481, sharpen it to sqrt(5) u), a quotient within a few u,
+ * and the library's elementary functions within a couple of ulps (common practice), their
+ * arguments' own errors carried by the derivative. */
 static double rounding1(const tape_ins *in, cplx a, double ea, cplx b, double eb, cplx v) {
   const double u = 1.1102230246251565e-16, mul = 2.8284271247461903 * u;
   double av = cabs(v), aa = cabs(a), ab = cabs(b);
