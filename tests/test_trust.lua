@@ -301,6 +301,39 @@ function TestTrustPoles:test_pole_beside_the_path()
   end
 end
 
+-- "On the contour" measured against the problem's own scale: a Gaussian of width 1e-8
+-- (x = 1e16) with its pole 1e-9 off the real line, and Watson's integral
+-- int_0^inf e^{-x t} / (t + p) dt = e^{xp} E1(xp) (DLMF 6.2.2 after t -> t - p; gsl_sf_expint_E1_scaled)
+-- with the pole 1e-12 before its end at x = 1e8 (scale 1/x): both were refused as lying
+-- on the contour (1e-9 of the region's radius); their values now, within the estimates.
+-- A pole at 1e-20 from the line, far below the scale, is still refused.
+function TestTrustPoles:test_on_the_contour_by_scale()
+  local p = steep.param "p"
+  local G = steep.integral { var = t, exponent = -x * t ^ 2, amplitude = 1 / (t - p),
+    contour = REAL_LINE, large = x }
+  local wr, wi = gsl.faddeeva_w(0, 0.1)   -- z = p sqrt(x) = 0.1 i
+  local want = I * pi * steep.complex(wr, wi)
+  local pv = steep.complex(0, 1e-9)
+  local r = G:expand { x = 1e16, p = pv, order = 4 }
+  within(r.value, r.error, want, 1e-13, "expand, x = 1e16")
+  local v, e = G:quad { x = 1e16, p = pv }
+  within(v, e, want, 1e-13, "quad, x = 1e16")
+  local E = steep.integral { var = t, exponent = -x * t, amplitude = 1 / (t + p),
+    contour = steep.line(0, steep.inf(0)), large = x }
+  local ve, ee = E:quad { x = 1e8, p = 1e-12 }
+  within(ve, ee, steep.complex(gsl.expint_E1_scaled(1e-4), 0), 1e-13, "E1, x = 1e8")
+  local ok, msg = pcall(G.quad, G, { x = 1, p = steep.complex(0.5, 1e-20) })
+  lu.assertFalse(ok)
+  lu.assertStrContains(tostring(msg), "lies on the contour")
+  -- the pole 1e-4 before the end: the amplitude's Taylor coefficients there overflow past
+  -- order 77, which "optimal" had reported as a singular endpoint; it now stops below
+  for _, xv in ipairs({ 1e5, 1e6 }) do
+    local re = E:expand { x = xv, p = 1e-4, order = "optimal" }
+    within(re.value, re.error, steep.complex(gsl.expint_E1_scaled(xv * 1e-4), 0), 1e-3,
+      "E1 optimal, x = " .. xv)
+  end
+end
+
 -- A pole's residue is refined on its best circle only when first read (most poles are
 -- never crossed): before, the refined fields are off the table; any one of them read fills
 -- all, with the value of the eager refinement it replaced (the Gaussian's pole beside the

@@ -126,8 +126,17 @@ end
 
 local function endpoint_contribution(J, params, piece, order, L, opts)
   local nraw = raw_count(order, 1, false)
-  local b, Fa, beta, berr, logs = expand.endpoint_series(J, params, piece.at, nraw, nil, L,
-    opts)
+  local ok, b, Fa, beta, berr, logs = pcall(expand.endpoint_series, J, params, piece.at, nraw,
+    nil, L, opts)
+  -- ("optimal" with Taylor coefficients that overflow past some order: stop below it)
+  local held = not ok and order == "optimal" and tonumber(tostring(b):match("overflow past "
+    .. "order (%d+)"))
+  if held and held > 4 then
+    nraw = held - 2
+    b, Fa, beta, berr, logs = expand.endpoint_series(J, params, piece.at, nraw, nil, L, opts)
+  elseif not ok then
+    error(b, 0)
+  end
   if not b then
     error(format("the endpoint %s is a saddle of the exponent: not handled as an endpoint",
       tostring(piece.at)), 0)

@@ -88,12 +88,29 @@ local function contour_end_label(L, e, which, from, tol)
   return nil
 end
 
+--- The distance below which a singular point p counts as lying on a contour: 1e-9 of the
+-- length over which the integrand changes near p (the nearest saddle's distance plus its
+-- width, 1/|F'(p)|, the region's radius: a Gaussian of width 1e-8 with a pole 1e-9 off the
+-- line is not a pole on it), and no less than p's own rounding.
+function M.on_contour_tolerance(J, params, L, p)
+  local scale = L.region.radius
+  for _, sd in ipairs(L.saddles or {}) do
+    if sd.width and sd.width < huge then scale = math.min(scale, cabs(p - sd.at) + sd.width) end
+  end
+  if J and params then
+    local ok, Fs = pcall(J.tape.jet, J.tape, p, 1, params, 1)
+    local d = ok and cabs(Fs:coef(1)) or 0
+    if d > 0 and d < huge then scale = math.min(scale, 1 / d) end
+  end
+  return math.max(1e-9 * scale, 1e-13 * cabs(p))
+end
+
 --- Checks that no singularity lies on the contour (except integrable ones at its ends).
 function M.check_contour(L, contour, pts, J, params, finite_part)
   local R = L.region.radius
   for _, s in ipairs(L.singularities) do
     local d = core.distance(pts, s.at)
-    if d <= 1e-9 * R then
+    if d <= 1e-9 * R and d <= M.on_contour_tolerance(J, params, L, s.at) then
       local at_end = false
       if not contour.closed then
         for _, e in ipairs({ contour:start(), contour:finish() }) do

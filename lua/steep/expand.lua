@@ -500,10 +500,21 @@ function M.endpoint_series(J, params, a, n, near, L, opts)
       .. "Hadamard's finite part, the value continued in the power)", tostring(a), beta,
       tostring(a)), 0)
   end
-  -- (a jet that fails at a: a singular factor of a form not read above; said plainly)
+  -- (a jet that fails at a: a singular factor of a form not read above, said plainly;
+  -- or, where the low orders are finite, Taylor coefficients that overflow because a
+  -- singular point lies close to a: said so, with the highest order that holds)
   local function jet_at(tape, k)
     local ok, j1, j2, j3 = pcall(tape.jet, tape, a, k, params)
     if ok then return j1, j2, j3 end
+    if k > 2 and pcall(tape.jet, tape, a, 1, params) then
+      local lo, hi = 1, k
+      while hi - lo > 1 do
+        local mid = (lo + hi) // 2
+        if pcall(tape.jet, tape, a, mid, params) then lo = mid else hi = mid end
+      end
+      error(format("the integrand's Taylor coefficients at the endpoint %s overflow past "
+        .. "order %d (a singular point close to it): ask for fewer terms", tostring(a), lo), 0)
+    end
     error(format("the integrand is singular at the endpoint %s in a form the endpoint "
       .. "expansion does not read (%s); it reads amplitude factors (t - a)^beta (beta a "
       .. "number, or a parameter written base^p), sqrt(t - a) and log(t - a)^m (m <= 2) in "

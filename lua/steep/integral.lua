@@ -1032,7 +1032,7 @@ end
 -- residue's own error times the integral of |dt / (t - p)| along the piece (its
 -- logarithms plus pi for the near pass). Records the poles in subtracted[piece].
 local NEAR_POLE = 1e-2
-function subtracted_poles(L, piece, subtracted)
+function subtracted_poles(J, params, L, piece, subtracted)
   local poles, residues, err = {}, {}, 0
   local R = L.region.radius
   for _, s in ipairs(L.singularities) do
@@ -1040,7 +1040,8 @@ function subtracted_poles(L, piece, subtracted)
     -- piece's own treatment stands)
     local d = s.kind == "pole" and s.order == 1 and #piece.points >= 2
       and core.distance(piece.points, s.at)
-    if d and d < NEAR_POLE * R and d > 1e-10 * R and s.residue then
+    if d and d < NEAR_POLE * R and d > decompose.on_contour_tolerance(J, params, L, s.at)
+        and s.residue then
       poles[#poles + 1], residues[#residues + 1] = s.at, s.residue
       local pts, size = piece.points, pi
       for k = 1, #pts - 1 do
@@ -1120,7 +1121,7 @@ local function quad_deformed(J, params, L)
         levels = piece.kind == "saddle"
           and core.cvec_join({ L.saddles[piece.index].F, path.F:get(1) }, path.F) or path.F
       end
-      local near = subtracted_poles(L, piece, subtracted)
+      local near = subtracted_poles(J, params, L, piece, subtracted)
       local v, e, ev, st = core.quad_polyline(J.tape, params, piece.points,
         { reltol = noise_tol(J, params, piece.points[1]),
           singular_start = piece.kind == "endpoint" and singular_at(L, piece.at) ~= nil,
