@@ -122,6 +122,12 @@ function M.contribution(J, params, L, j, c, near, order, series)
   -- (seen: a saddlepoint tail at 1e-7 standard errors from the mean, off by 1e-8 against
   -- a series estimate of 5e-9)
   local delta = 16 * 2.220446049250313e-16 * (1 + cabs(F0) + cabs(near.Fp))
+  -- (F a difference of terms larger than F itself, as n (-log(1 - s) - s x) near the mean
+  -- where F0 ~ 1e-6 and its terms ~ 1e-2 n: their running error bound, tape:rounding;
+  -- the saddlepoint tail at n = 100, x = 0.9998 was 1.09e-11 off under 9.9e-12)
+  local eF = J.tape:rounding(core.cvec { s.at, near.pole.at }, params)
+  local run = (eF[1] or 0) + (eF[2] or 0)
+  if run == run and run < math.huge then delta = math.max(delta, 2 * run) end
   local db = math.min(delta / (2 * math.max(bmag, 1e-300)), math.sqrt(delta))
   err = err + cabs(near.r * scale) * (2 * math.sqrt(pi) + 2 * pi * bmag) * db
   local tl = {}
