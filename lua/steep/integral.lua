@@ -1237,10 +1237,9 @@ function floor_points(J, params, L, info)
       passed[j] = core.distance(line, s.at) <= math.max(4 * w, 1e-9 * L.region.radius)
     end
   end
+  -- (each point with whether the path passes it; every one counts for `top` below)
   local out = {}
-  for k, pt in ipairs(kept) do
-    if k > #L.saddles or passed[k] then out[#out + 1] = pt end
-  end
+  for k, pt in ipairs(kept) do out[k] = { pt[1], pt[2], pt[3], k > #L.saddles or passed[k] } end
   return out
 end
 
@@ -1288,8 +1287,10 @@ function M.quad_with(J, params, L, along)
   local level = math.log(math.max(cabs(v), 1e-308)) - 40
   local top = -huge   -- the largest log |g e^F| seen at a saddle or a contour point
   for _, pt in ipairs(floor_points(J, params, L, info)) do
-    local absF, lv, r = pt[1], pt[2], pt[3]
-    if absF < huge and lv > level then Fmax, rel = math.max(Fmax, absF), math.max(rel, r) end
+    local absF, lv, r, passed = pt[1], pt[2], pt[3], pt[4]
+    if passed and absF < huge and lv > level then
+      Fmax, rel = math.max(Fmax, absF), math.max(rel, r)
+    end
     if lv == lv then top = math.max(top, lv) end
   end
   e = math.max(e, ((4 + Fmax) * 2.2e-16 + rel) * cabs(v))
