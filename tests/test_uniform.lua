@@ -166,6 +166,28 @@ function TestUniformAiry:test_high_orders_within_estimate()
   lu.assertTrue(r.error <= 1e-12 * cabs(aref), "order 8: " .. r.error)
 end
 
+-- A term below 1e-13 of the largest is no rounding noise: the Airy-type form of a Hermite
+-- polynomial's two saddles near the turning point, at 6 terms, had its seventh term (2.2e-14
+-- against a largest of 0.22) dropped from the remainder, and was 2.3e-14 off under 1.1e-14.
+-- H_n(x)/n! = (1/2 pi i) oint e^{2xt - t^2} t^(-n-1) dt (DLMF 18.12.15); the reference by
+-- the recurrence h_(k+1) = (2x h_k - 2 h_(k-1))/(k+1), h_k = H_k/k! (DLMF 18.9.1), in doubles:
+-- at n = 35 its rounding is below 1e-15 relative (common practice: a forward recurrence in
+-- its dominant direction).
+function TestUniformAiry:test_small_terms_count()
+  local tt, xx, nn = steep.var "t", steep.param "x", steep.param "n"
+  local J = steep.integral { var = tt, exponent = 2 * xx * tt - tt ^ 2 - (nn + 1) * steep.log(tt),
+    amplitude = 1 / (2 * pi * I), contour = steep.circle(0, 1), large = nn }
+  local n, xv = 35, 8.1150649186011261
+  local a, b = 1, 2 * xv
+  for k = 1, n - 1 do a, b = b, (2 * xv * b - 2 * a) / (k + 1) end
+  for _, order in ipairs({ 6, 8, "optimal" }) do
+    local r = J:expand { n = n, x = xv, order = order }
+    local d = cabs(r.value - b)
+    lu.assertTrue(d <= r.error + 1e-15 * math.abs(b), string.format("order %s: error %.3g, "
+      .. "stated %.3g", tostring(order), d, r.error))
+  end
+end
+
 ---------------------------------------------------------------------------------------
 
 TestUniformCoalescence = {}

@@ -232,7 +232,10 @@ function M.contribution(J, params, L, pair, order)
   -- the series' remainder as for plain contributions, the model integrals' own errors,
   -- the coefficients' errors carried through, and the rounding of e^A and of the sums
   -- (as expand.truncate's floor)
-  local err = require("steep.expand").remainder(terms, used)
+  -- (the omitted terms as the longer recursion gives them too: those of the shorter one
+  -- can fall short, as the seventh term of a Hermite polynomial's pair, 2e-14 against 1e-15)
+  local expand_m = require "steep.expand"
+  local err = math.max(expand_m.remainder(terms, used), expand_m.remainder(more, used))
   err = err + cabs(pq[1].p * scale) * e0 + cabs(pq[1].q * scale) * e1 + carried
     + (128 + cabs(map.A)) * 2.220446049250313e-16 * sizes
   -- the saddles' F carry rounding (a few units of |F| each): zeta = v^2 with

@@ -730,8 +730,13 @@ function M.remainder(terms, used)
     if #next3 == 3 then break end
   end
   if #next3 == 0 then
-    -- the series stops (every later term vanishes), or none was computed
-    return #terms > used and 0 or huge
+    -- the series stops (every later term below 1e-13 of the largest), or none was
+    -- computed; what is below still counts (a seventh term of 2.2e-14 against a largest of
+    -- 0.22 had been dropped: the value 2.3e-14 off under 1.1e-14)
+    if #terms <= used then return huge end
+    local rest = 0
+    for k = used + 1, math.min(#terms, used + 3) do rest = rest + cabs(terms[k]) end
+    return 1.5 * rest
   end
   -- terms of alternating sign (a real series of Stieltjes type, as Watson's lemma gives
   -- for e^x E1(x)): the remainder lies between 0 and the first omitted term (DLMF 2.3
