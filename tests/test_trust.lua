@@ -422,6 +422,45 @@ end
 
 TestTrustEndpoints = {}
 
+-- An amplitude that is 0 or infinite at the contour's finite end: the descent path from
+-- the end measured the integrand's level at the end itself (log t: an infinite level,
+-- every point "negligible"; t^4: F's level alone, far above the integrand near the end),
+-- and stopped at its first step, with status "ok": int_0^inf log(t) e^{-x t} dt =
+-- (psi(1) - log x)/x (DLMF 5.2.1 and 5.9.18 differentiated in the power: gsl_sf_psi)
+-- came out as 0.026 for -0.577, and Gamma(5)/x^5 at x = 1e4 as 2e-31 for 2.4e-19
+-- (DLMF 5.2.1, gsl_sf_gamma). The level is now read a few scales down the path.
+function TestTrustEndpoints:test_amplitude_zero_or_infinite_at_the_end()
+  local L = steep.integral { var = t, exponent = -x * t, amplitude = steep.log(t),
+    contour = steep.line(0, steep.inf(0)), large = x }
+  for _, xv in ipairs({ 1, 100, 1e6 }) do
+    local v, e, info = L:quad { x = xv }
+    lu.assertEquals(info.status, "ok")
+    within(v, e, steep.complex((gsl.psi(1) - math.log(xv)) / xv, 0), 1e-13, "log t, x = " .. xv)
+  end
+  for _, c in ipairs({ { 5, 1e4 }, { 3.5, 1e8 }, { 2.7, 1e12 } }) do
+    local b, xv = c[1], c[2]
+    local P = steep.integral { var = t, exponent = -x * t, amplitude = t ^ (b - 1),
+      contour = steep.line(0, steep.inf(0)), large = x }
+    local v, e = P:quad { x = xv }
+    within(v, e, steep.complex(gsl.gamma(b) * xv ^ -b, 0), 1e-13, "t^" .. (b - 1) .. ", x = " .. xv)
+  end
+end
+
+-- Watson's lemma at the upper end of [0, 1] with (1 - t)^(g - 1): the branches of the
+-- factors the series is built from were re-derived apart from the series and read signed
+-- zeros differently: g = 0.5 came out with the opposite sign, g = 0.3 and 2.7 with a phase,
+-- all "estimated". int_0^1 (1 - t)^(g - 1) e^{x (t - 1)} dt = x^-g Gamma(g) (1 - Q(g, x))
+-- (u = 1 - t, DLMF 8.2.1; gsl_sf_gamma, gsl_sf_gamma_inc_Q).
+function TestTrustEndpoints:test_upper_end_power()
+  for _, g in ipairs({ 0.5, 0.3, 2.7 }) do
+    local W = steep.integral { var = t, exponent = x * (t - 1), amplitude = (1 - t) ^ (g - 1),
+      contour = steep.line(0, 1), large = x }
+    local want = 20 ^ -g * gsl.gamma(g) * (1 - gsl.gamma_inc_Q(g, 20))
+    local r = W:expand { x = 20, order = 4 }
+    within(r.value, r.error, steep.complex(want, 0), 1e-10, "g = " .. g)
+  end
+end
+
 -- Fixed orders past what doubles hold: the raw coefficients carry the large parameter's
 -- powers and underflow (a saddle's past order 170 at x = 10; Watson's b_k = (-1)^k x^-k at
 -- x = 40 past k = 181). The terms past them were 0 and the estimate read from them

@@ -593,14 +593,29 @@ function M.endpoint_series(J, params, a, n, near, L, opts)
     local expr = require "steep.expr"
     local phase = 1
     if beta then
-      -- the user's own power factor: the amplitude over the regular rest and the log
-      local rv = expr.is(fac.rest) and fac.rest:value(bind) or fac.rest
-      local user = J.amplitude:value(bind) / rv
+      -- the user's amplitude (without its log factor) times h'(w) against what the series
+      -- holds, G(w) w^beta, at w1 (both sides summed as series there, so that they agree
+      -- to rounding but for the branch): their ratio is exp(2 pi i k beta), k whole,
+      -- taken exactly. (Re-deriving the branches of (t - a)^beta and q^beta instead had
+      -- read the signs of zeros differently from the series: the upper end of
+      -- (1 - t)^-0.5 came out with the opposite sign, "estimated".)
+      local h1 = t1 - a
+      local wv, hk = cnew(0, 0), h1
+      for k = 1, math.min(n, 12) do wv, hk = wv - Fj:coef(k) * hk, hk * h1 end
+      local Gv, dh, wk = cnew(0, 0), cnew(0, 0), cnew(1, 0)
+      for k = 0, math.min(n - 1, 12) do
+        Gv, dh, wk = Gv + G:coef(k) * wk, dh + (k + 1) * hw:coef(k + 1) * wk, wk * wv
+      end
+      local user = J.amplitude:value(bind)
       if fac.lbase then user = user / complex.apply("log", fac.lbase:value(bind)) ^ fac.m end
-      local q1 = fac.pbase:value(bind) / (t1 - a)
-      local ours = ((t1 - a) / w1) ^ beta * w1 ^ beta * q1 ^ beta
-      phase = user / ours
-      phase = phase / cabs(phase)
+      local raw = user * dh / (Gv * wv ^ beta)
+      local unit = raw / cabs(raw)
+      local best = huge
+      for k = -4, 4 do
+        local c = complex.apply("exp", cnew(0, 2 * pi * k * beta))
+        if cabs(unit - c) < best then best, phase = cabs(unit - c), c end
+      end
+      if best > 1e-6 then phase = unit end
     end
     if fac.lbase then
       -- log(base) = log w + Lw(w), Lw = log(h/w) + log(q_b(a + h(w)))
