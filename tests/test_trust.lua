@@ -466,6 +466,31 @@ function TestTrustEndpoints:test_upper_end_power()
   end
 end
 
+-- Small scales and high pole orders, where internal limits used to surface as internal
+-- errors: Watson's series at x = 1e-3 (its coefficients carry powers of 1/x and overflow
+-- past order 103: "optimal" stops below, a fixed order is refused naming the limit), and a
+-- Bromwich integral whose -n log(1 - s) makes a pole of order n >= 1021 (beyond the
+-- Laurent sums: its residue is not computed, and the deformation does not need it).
+-- References: Gamma(1/2) x^(-1/2) (DLMF 5.2.1, gsl_sf_gamma); Q(n, 1.05 n) (DLMF 8.2.4,
+-- gsl_sf_gamma_inc_Q): (1/2 pi i) int over Re s = 1/2 of (1 - s)^-n e^{-s x} ds / s.
+function TestTrustEndpoints:test_internal_limits()
+  local W = steep.integral { var = t, exponent = -x * t, amplitude = t ^ -0.5,
+    contour = steep.line(0, steep.inf(0)), large = x }
+  local r = W:expand { x = 1e-3, order = "optimal" }
+  within(r.value, r.error, steep.complex(gsl.gamma(0.5) * 1e-3 ^ -0.5, 0), 1e-12, "x = 1e-3")
+  local ok, msg = pcall(W.expand, W, { x = 1e-3, order = 150 })
+  lu.assertFalse(ok)
+  lu.assertStrContains(tostring(msg), "overflow past order")
+  local s, n = steep.var "s", steep.param "n"
+  local B = steep.integral { var = s, exponent = -n * steep.log(1 - s) - x * s,
+    amplitude = 1 / (2 * pi * I * s),
+    contour = steep.path { steep.inf(-pi / 2), 0.5, steep.inf(pi / 2) }, large = n }
+  for _, nv in ipairs({ 1022, 1023, 3000 }) do
+    local b = B:expand { n = nv, x = 1.05 * nv, order = 3 }
+    within(b.value, b.error, steep.complex(gsl.gamma_inc_Q(nv, 1.05 * nv), 0), 1e-8, "n = " .. nv)
+  end
+end
+
 -- Fixed orders past what doubles hold: the raw coefficients carry the large parameter's
 -- powers and underflow (a saddle's past order 170 at x = 10; Watson's b_k = (-1)^k x^-k at
 -- x = 40 past k = 181). The terms past them were 0 and the estimate read from them

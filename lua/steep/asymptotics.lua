@@ -128,12 +128,19 @@ local function endpoint_contribution(J, params, piece, order, L, opts)
   local nraw = raw_count(order, 1, false)
   local ok, b, Fa, beta, berr, logs = pcall(expand.endpoint_series, J, params, piece.at, nraw,
     nil, L, opts)
-  -- ("optimal" with Taylor coefficients that overflow past some order: stop below it)
-  local held = not ok and order == "optimal" and tonumber(tostring(b):match("overflow past "
-    .. "order (%d+)"))
-  if held and held > 4 then
-    nraw = held - 2
+  -- ("optimal" with coefficients that overflow past some order, Taylor's at the end or
+  -- the series' own (their powers of 1/x at small x): stop below it; a fixed order that
+  -- needs them is refused, saying so)
+  local why = not ok and tostring(b)
+  local held = why and (tonumber(why:match("overflow past order (%d+)"))
+    or tonumber(why:match("coefficient (%d+) is not finite")))
+  if held and order == "optimal" and held > 6 then
+    nraw = held - 4
     b, Fa, beta, berr, logs = expand.endpoint_series(J, params, piece.at, nraw, nil, L, opts)
+  elseif held and not why:find("overflow past", 1, true) then
+    error(format("the endpoint %s: the series' coefficients overflow past order %d (powers "
+      .. "of a small scale, as 1/x at small x): ask for at most %d terms, or order = "
+      .. "\"optimal\"", tostring(piece.at), held, math.max(1, held - 6)), 0)
   elseif not ok then
     error(b, 0)
   end

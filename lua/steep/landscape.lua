@@ -351,6 +351,8 @@ function M.essential_sector(s, phi)
   end
 end
 
+local MAX_LAURENT_DEPTH = 1024   -- core.laurent's deepest Laurent coefficient
+
 -- A pole's residue refined when first read: s.residue, residue_error, residue_radius
 -- and residue_unknown stay off the table until one of them is asked for, then refine()
 -- sets them (from the first estimate it improves on). rawget(s, "residue_radius") tells
@@ -463,7 +465,12 @@ function M.singularities(J, params, region, opts)
     else
       s.kind = "pole"
     end
-    if s.kind == "pole" then
+    if s.kind == "pole" and s.order and s.order + 4 > MAX_LAURENT_DEPTH then
+      -- (a log point of order beyond what the Laurent sums take, as -n log(1 - s) at
+      -- n >= 1021: a pole of that order whose residue is not computed; a deformation that
+      -- sweeps over it is refused, saying so)
+      s.residue_unknown = true
+    elseif s.kind == "pole" then
       -- a log point with coefficient -n is a pole of order n: look that deep, and more
       local depth = math.max(8, (s.order or 0) + 4)
       -- where the integrand changes by large factors around the circle (a fast exponent),
