@@ -325,6 +325,50 @@ end
 
 ---------------------------------------------------------------------------------------
 
+-- Strongly skewed summands: the error estimates 2 (1 + |c1|) p / n (c1 from the
+-- standardized third and fourth cumulants at the saddlepoint, Daniels 1954) bound the
+-- error where p/n had missed by up to 75 times; the status says when the estimate is not
+-- smaller than the value. Gamma(k) summands (K = -k log(1 - s)): n k times the mean is
+-- gamma(n k, 1), so P(mean >= x) = gsl_cdf_gamma_Q(n x, n k, 1) and the density of the
+-- mean is n gsl_ran_gamma_pdf(n x, n k, 1); Poisson(lambda) sums by poisson_tail above.
+-- And a threshold between the lattice's integers is the next integer (the sum is whole).
+function TestSaddlepointLattice:test_skewed_summands()
+  for _, c in ipairs({ { 0.002, 50 }, { 0.05, 13 }, { 0.5, 20 }, { 2, 200 } }) do
+    local k, n = c[1], c[2]
+    local G = sp.distribution { K = -k * steep.log(1 - s), s = s, domain = { -huge, 1 } }
+    for _, m in ipairs({ 0.2, 1.5, 5, 30 }) do
+      local x = m * k
+      local r = G:tail { n = n, x = x }
+      local exact = gsl.cdf_gamma_Q(n * x, n * k, 1)
+      lu.assertTrue(r.p and abs(r.p - exact) <= r.error, string.format("gamma(%g), n = %d, "
+        .. "x = %g: %s against %.6g, estimate %s", k, n, x, tostring(r.p), exact,
+        tostring(r.error)))
+      local f = G:density { n = n, x = x }
+      local fexact = n * gsl.gamma_pdf(n * x, n * k, 1)
+      lu.assertTrue(abs(f.density - fexact) <= f.error, string.format("density gamma(%g), "
+        .. "n = %d, x = %g: %.6g against %.6g, estimate %.3g", k, n, x, f.density, fexact,
+        f.error))
+    end
+  end
+  for _, c in ipairs({ { 0.001, 200 }, { 0.01, 50 }, { 0.2, 10 } }) do
+    local lambda, n = c[1], c[2]
+    local P = sp.distribution { K = lambda * (steep.exp(s) - 1), s = s, lattice = true }
+    for kk = 1, 4 do
+      local r = P:tail { n = n, k = kk }
+      local exact = poisson_tail(n * lambda, kk)
+      lu.assertTrue(r.p and abs(r.p - exact) <= r.error, string.format("Poisson(%g), n = %d, "
+        .. "k = %d: %s against %.6g, estimate %s", lambda, n, kk, tostring(r.p), exact,
+        tostring(r.error)))
+    end
+  end
+  local b = bernoulli(0.3)
+  local r1, r2 = b:tail { n = 2000, k = 650.5 }, b:tail { n = 2000, k = 651 }
+  lu.assertEquals(r1.p, r2.p)
+  lu.assertStrContains(r1.note, "taken as 651")
+  local exact = gsl.cdf_binomial_Q(650, 0.3, 2000)
+  lu.assertTrue(abs(r1.p - exact) <= r1.error)
+end
+
 TestSaddlepointBadInput = {}
 
 function TestSaddlepointBadInput:test_not_convex()
