@@ -285,16 +285,22 @@ end
 -- w from libcerf). With p 3e-7 and 1e-8 above the path, Gauss-Kronrod's estimate failed
 -- (3.6e-11 off under 2.5e-13, "ok"); the pole's part r / (t - p) is now taken out of the
 -- integrand and added back in closed form.
+local P = steep.param "p"
+-- the integral of e^{-x t^2} / (t - p) over the real line, and its value i pi w(p sqrt x)
+local GAUSSIAN_WITH_POLE = steep.integral { var = t, exponent = -x * t ^ 2,
+  amplitude = 1 / (t - P), contour = REAL_LINE, large = x }
+local function gaussian_with_pole_value(xv, pv)
+  local z = pv * math.sqrt(xv)
+  local wr, wi = gsl.faddeeva_w(z:re(), z:im())
+  return I * pi * steep.complex(wr, wi)
+end
+
 function TestTrustPoles:test_pole_beside_the_path()
-  local p = steep.param "p"
-  local J = steep.integral { var = t, exponent = -x * t ^ 2, amplitude = 1 / (t - p),
-    contour = REAL_LINE, large = x }
+  local J = GAUSSIAN_WITH_POLE
   for _, c in ipairs({ { 1, steep.complex(1, 3e-7) }, { 1, steep.complex(0.3, 1e-8) },
     { 50, steep.complex(-0.2, 1e-6) } }) do
     local xv, pv = c[1], c[2]
-    local z = pv * math.sqrt(xv)
-    local wr, wi = gsl.faddeeva_w(z:re(), z:im())
-    local want = I * pi * steep.complex(wr, wi)
+    local want = gaussian_with_pole_value(xv, pv)
     local v, e, info = J:quad { x = xv, p = pv }
     lu.assertEquals(info.status, "ok")
     within(v, e, want, 1e-12, string.format("x = %g, p = %s", xv, tostring(pv)))
@@ -308,12 +314,9 @@ end
 -- on the contour (1e-9 of the region's radius); their values now, within the estimates.
 -- A pole at 1e-20 from the line, far below the scale, is still refused.
 function TestTrustPoles:test_on_the_contour_by_scale()
-  local p = steep.param "p"
-  local G = steep.integral { var = t, exponent = -x * t ^ 2, amplitude = 1 / (t - p),
-    contour = REAL_LINE, large = x }
-  local wr, wi = gsl.faddeeva_w(0, 0.1)   -- z = p sqrt(x) = 0.1 i
-  local want = I * pi * steep.complex(wr, wi)
+  local p, G = P, GAUSSIAN_WITH_POLE
   local pv = steep.complex(0, 1e-9)
+  local want = gaussian_with_pole_value(1e16, pv)   -- z = p sqrt(x) = 0.1 i
   local r = G:expand { x = 1e16, p = pv, order = 4 }
   within(r.value, r.error, want, 1e-13, "expand, x = 1e16")
   local v, e = G:quad { x = 1e16, p = pv }
