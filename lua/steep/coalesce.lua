@@ -66,25 +66,29 @@ local function coefficients(J, params, s1, map, rho, n)
   return c
 end
 
--- G = (u^2 - zeta) H + p + q u on truncated coefficients c[0..n-1]: returns p, q, H'.
--- With e[0..n-1] (bounds on the coefficients' errors), also those of p, q and H': the
--- recursion and the derivative carry them (the k-th round multiplies the high
--- coefficients' errors by about k!, which at 24 terms had put 8e-8 of rounding into a
--- value estimated at 1e-13).
-local function reduce(c, n, zeta, e)
-  local h, eh = {}, {}
+-- G = (u^2 - zeta) H + p + q u on truncated coefficients c[0..n-1] (their real and
+-- imaginary parts cr, ci: this runs over every coefficient for every term, so without a
+-- complex value each): returns p, q and H' (its parts). With e[0..n-1] (bounds on the
+-- coefficients' errors), also those of p, q and H': the recursion and the derivative
+-- carry them (the k-th round multiplies the high coefficients' errors by about k!, which
+-- at 24 terms had put 8e-8 of rounding into a value estimated at 1e-13).
+local function reduce(cr, ci, n, zeta, e)
+  local zr, zi = cparts(zeta)
   local az = cabs(zeta)
-  for k = 0, n - 1 do h[k], eh[k] = cnew(0, 0), 0 end
+  local hr, hi, eh = {}, {}, {}
+  for k = n - 2, n - 1 do hr[k], hi[k], eh[k] = 0, 0, 0 end
   for k = n - 1, 2, -1 do
-    h[k - 2] = c[k] + zeta * h[k]
+    local ar, ai = hr[k], hi[k]
+    hr[k - 2] = cr[k] + zr * ar - zi * ai
+    hi[k - 2] = ci[k] + zr * ai + zi * ar
     eh[k - 2] = e[k] + az * eh[k]
   end
-  local p = c[0] + zeta * h[0]
-  local q = c[1] + zeta * h[1]
+  local p = cnew(cr[0] + zr * hr[0] - zi * hi[0], ci[0] + zr * hi[0] + zi * hr[0])
+  local q = cnew(cr[1] + zr * hr[1] - zi * hi[1], ci[1] + zr * hi[1] + zi * hr[1])
   local ep, eq = e[0] + az * eh[0], e[1] + az * eh[1]
-  local dh, edh = {}, {}
-  for k = 0, n - 3 do dh[k], edh[k] = (k + 1) * h[k + 1], (k + 1) * eh[k + 1] end
-  return p, q, dh, n - 2, ep, eq, edh
+  local dr, di, edh = {}, {}, {}
+  for k = 0, n - 3 do dr[k], di[k], edh[k] = (k + 1) * hr[k + 1], (k + 1) * hi[k + 1], (k + 1) * eh[k + 1] end
+  return p, q, dr, di, n - 2, ep, eq, edh
 end
 
 -- The model's contour: each ray of the pair (weight w) is matched to the model's descent
@@ -203,21 +207,23 @@ function M.contribution(J, params, L, pair, order)
     cerr[k] = cabs(c[k] - c_other[k]) + 64 * EPS * gsize / used_rho ^ k
   end
   -- the terms from the first len coefficients
+  local c_re, c_im = {}, {}
+  for k = 0, n + TRUNCATION_CHECK - 1 do c_re[k], c_im[k] = cparts(c[k]) end
   local function terms_from(len)
     local terms, pq = {}, {}
     local sizes = 0   -- the sizes the terms' rounding scales with (p I0 and q I1 may cancel)
     local carried = 0 -- the coefficients' errors carried into the terms used
-    local cur, ecur = c, cerr
+    local cr, ci, ecur = c_re, c_im, cerr
     for k = 1, nterms + 3 do
       if len < 4 then break end
-      local p, q, dh, nlen, ep, eq, edh = reduce(cur, len, map.zeta, ecur)
+      local p, q, dr, di, nlen, ep, eq, edh = reduce(cr, ci, len, map.zeta, ecur)
       pq[k] = { p = p, q = q }
       terms[k] = (p * I0 + q * I1) * scale
       if k <= nterms then
         sizes = sizes + (cabs(p * I0) + cabs(q * I1)) * cabs(scale)
         carried = carried + (ep * cabs(I0) + eq * cabs(I1)) * cabs(scale)
       end
-      cur, len, ecur = dh, nlen, edh
+      cr, ci, len, ecur = dr, di, nlen, edh
     end
     return terms, pq, sizes, carried
   end

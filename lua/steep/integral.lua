@@ -1231,7 +1231,12 @@ function floor_points(J, params, L, info)
       if piece.kind == "saddle" then passed[piece.index] = true end
     end
   else
-    local line = core.cvec(J.contour:sample { radius = 8 * L.region.radius, n = 64 })
+    -- (a contour of few pieces sampled; a path of many points is its own polyline: sampling
+    -- each of 10^5 segments had cost 25 kB a point)
+    local contour = J.contour
+    local line = #contour.pieces <= 64
+      and core.cvec(contour:sample { radius = 8 * L.region.radius, n = 64 })
+      or core.cvec(contour:finite_points())
     for j, s in ipairs(L.saddles) do
       local w = (s.width and s.width < huge) and s.width or 0
       passed[j] = core.distance(line, s.at) <= math.max(4 * w, 1e-9 * L.region.radius)
