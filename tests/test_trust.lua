@@ -337,6 +337,40 @@ function TestTrustPoles:test_on_the_contour_by_scale()
   end
 end
 
+-- Laguerre polynomials by the Cauchy integral of their generating function (1 - t)^-1
+-- e^{-x t/(1 - t)} (DLMF 18.12.13) on |t| = 1/2, around the essential singularity at t = 1:
+-- (1) the descent paths end in that singularity's valley sectors, and the closure through
+-- them put the pole at 0 on the wrong side: its residue came on top of paths that already
+-- carried it (exactly twice L_10(4.2), "ok" and "estimated"); quadrature now checks such
+-- a deformation against the given contour, and an expansion against quadrature; (2) at
+-- x = -202 the integrand on the circle is 1e31 times L_50: the estimate carries each
+-- value's rounding (the running bound of F), larger than the value. References: the sum
+-- L_n(x) = sum_k (-1)^k C(n, k) x^k / k! (DLMF 18.5.12), in doubles (at x < 0 its terms are
+-- all positive; at n = 10 the cancellation leaves below 1e-11).
+function TestTrustPoles:test_essential_closure_and_cancellation()
+  local n = steep.param "n"
+  local J = steep.integral { var = t, exponent = -x * t / (1 - t) - steep.log(1 - t)
+    - (n + 1) * steep.log(t), amplitude = 1 / (2 * pi * I), contour = steep.circle(0, 0.5),
+    large = n }
+  local function laguerre(nn, xv)
+    local sum, c, f = 0.0, 1.0, 1.0   -- (floats: k! overflows Lua's integers past k = 20)
+    for k = 0, nn do
+      if k > 0 then c, f = c * (nn - k + 1) / k, f * k end
+      sum = sum + (-1) ^ k * c * xv ^ k / f
+    end
+    return sum
+  end
+  local want = laguerre(10, 4.2)
+  local v, e = J:quad { n = 10, x = 4.2 }
+  within(v, e + 1e-11, steep.complex(want, 0), 1e-10, "quad, L_10(4.2)")
+  local r = J:expand { n = 10, x = 4.2, order = 4 }
+  lu.assertTrue((r.value - want):abs() <= r.error or r.status:match("^suspect") ~= nil,
+    "expand, L_10(4.2): within its estimate or suspect, got " .. r.status)
+  local v2, e2 = J:quad { n = 50, x = -202 }
+  lu.assertTrue((v2 - laguerre(50, -202)):abs() <= e2, "L_50(-202): within the estimate")
+  lu.assertTrue(e2 > v2:abs(), "L_50(-202): the estimate says no digit is known")
+end
+
 -- A pole's residue is refined on its best circle only when first read (most poles are
 -- never crossed): before, the refined fields are off the table; any one of them read fills
 -- all, with the value of the eager refinement it replaced (the Gaussian's pole beside the
