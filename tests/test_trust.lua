@@ -503,6 +503,27 @@ function TestTrustEndpoints:test_upper_end_power()
   end
 end
 
+-- The local method (the contour through a saddle, the rest assumed exponentially smaller)
+-- only where the rest is smaller: Laplace's first integral over a whole period,
+-- P_n(cos th) = (1/2 pi) int_{-pi}^{pi} (cos th + i sin th cos p)^n dp, has saddles at its
+-- ends as large as the one inside, and came out as half the value, complex, "estimated
+-- (local method)" with an estimate of 5e-8. Now the expansion is refused, and quadrature
+-- gives P_10(cos 0.75) by the recurrence (k+1) P_(k+1) = (2k+1) z P_k - k P_(k-1) (DLMF
+-- 18.9.1; forward, stable for |z| < 1).
+function TestTrustEndpoints:test_local_method_only_when_the_rest_is_small()
+  local p, n = steep.var "p", steep.param "n"
+  local z, w = math.cos(0.75), steep.complex(0, math.sin(0.75))
+  local J = steep.integral { var = p, exponent = n * steep.log(z + w * steep.cos(p)),
+    amplitude = 1 / (2 * pi), contour = steep.line(-pi, pi), large = n }
+  local a, b = 1, z
+  for k = 1, 9 do a, b = b, ((2 * k + 1) * z * b - k * a) / (k + 1) end
+  local ok, r = pcall(J.expand, J, { n = 10, order = 4 })
+  lu.assertTrue(not ok or (r.value - b):abs() <= r.error,
+    "refused, or within its estimate: " .. tostring(ok and r.value or r))
+  local v, e = J:quad { n = 10 }
+  within(v, e + 1e-15, steep.complex(b, 0), 1e-13, "quad")
+end
+
 -- Small scales and high pole orders, where internal limits used to surface as internal
 -- errors: Watson's series at x = 1e-3 (its coefficients carry powers of 1/x and overflow
 -- past order 103: "optimal" stops below, a fixed order is refused naming the limit), and a

@@ -251,6 +251,24 @@ function M.local_plan(J, L, plan)
     end
   end
   if #pieces == 0 then return nil end
+  -- the rest must be exponentially smaller indeed: no finite point of the contour (its
+  -- ends, its corners) within e^36 of the saddles used (Laplace's first integral for P_n
+  -- over a whole period has saddles at its ends as large as the one inside: half the value,
+  -- "estimated (local method)")
+  local top = -huge
+  for _, piece in ipairs(pieces) do
+    local sd = L.saddles[piece.index]
+    local gm = cabs(sd.g)
+    top = math.max(top, cparts(sd.F) + (gm > 0 and math.log(gm) or -huge))
+  end
+  for _, z in ipairs(J.contour:finite_points()) do
+    local ok, F, g = pcall(J.tape.eval, J.tape, z, L.params)
+    if ok then
+      local gm = g and cabs(g) or 1
+      local lv = cparts(F) + (gm > 0 and math.log(gm) or -huge)
+      if lv == lv and lv > top - 36 then return nil end
+    end
+  end
   local notes = { "local method: the contour passes through the saddle(s) used; the rest of "
     .. "it is assumed exponentially smaller (the global decomposition was not settled: "
     .. plan.status .. ")" }
