@@ -503,6 +503,26 @@ function TestTrustEndpoints:test_upper_end_power()
   end
 end
 
+-- A log point of the exponent where the amplitude is singular too: t^10 (1 - t)^(1/2) /
+-- (t (1 - t)) on [0, 1] is B(10, 1/2) = 4^10 / (10 C(20, 10)) (DLMF 5.12.1 with
+-- Gamma(1/2) = sqrt(pi); exact). The end t = 1 was classified by the exponent's
+-- coefficient 1/2 alone, a sink, and quadrature gave 3e7 - 3e7 i for 0.57 ("quadrature
+-- limit"): the integrand's power there is -1/2, an integrable hill. Also the same written
+-- with (1 - t)^(-1/2) in the amplitude, whose singular end a = 1 rounds the nodes.
+function TestTrustEndpoints:test_log_point_with_a_singular_amplitude()
+  local want = 4 ^ 10 / (10 * 184756)
+  for _, spec in ipairs({
+    { 10 * steep.log(t) + 0.5 * steep.log(1 - t), 1 / (t * (1 - t)) },
+    { 9 * steep.log(t), (1 - t) ^ -0.5 } }) do
+    local J = steep.integral { var = t, exponent = spec[1], amplitude = spec[2],
+      contour = steep.line(0, 1) }
+    local v, e = J:quad {}
+    lu.assertTrue((v - want):abs() <= e, string.format("%s: error %.3g, stated %.3g",
+      tostring(spec[2]), (v - want):abs(), e))
+    lu.assertTrue(e <= 1e-5 * want, "the estimate means something: " .. e)
+  end
+end
+
 -- The local method (the contour through a saddle, the rest assumed exponentially smaller)
 -- only where the rest is smaller: Laplace's first integral over a whole period,
 -- P_n(cos th) = (1/2 pi) int_{-pi}^{pi} (cos th + i sin th cos p)^n dp, has saddles at its

@@ -120,7 +120,8 @@ function M.check_contour(L, contour, pts, J, params, finite_part)
       -- allowed: a sink where the integrand is single-valued (it just vanishes there),
       -- and at an end a branch point or a log point whose power is integrable
       local integrable_end = at_end and (s.kind == "sink" or s.kind == "branch"
-        or (s.kind == "hill" and s.coefficient and cparts(s.coefficient) > -1))
+        or (s.kind == "hill" and (s.power or s.coefficient)
+          and cparts(s.power or s.coefficient) > -1))
       local harmless = s.kind == "sink" and not s.branch
       if not (integrable_end or harmless) then
         error(format("a %s of the integrand lies on the contour at %s (%s)", s.kind,

@@ -443,6 +443,29 @@ function M.singularities(J, params, region, opts)
       local c = log_coefficient(J.tape, params, m.at, rho)
       s.coefficient = c
       local cr, ci = cparts(c)
+      -- the amplitude singular there too (a pole of 1/(t (1 - t)) at a log point of the
+      -- exponent): the integrand's own power is c plus the amplitude's, read from the
+      -- slope of log |g| between two small circles (the log point alone had made t = 1 of
+      -- t^10 (1 - t)^(1/2) / (t (1 - t)) a sink, and quadrature gave 3e7 for 0.57)
+      local amp = false
+      for k in pairs(kinds) do if k:match(":amplitude$") then amp = true end end
+      if amp then
+        local r1, r2, slope, nd = 1e-3 * rho, 1e-2 * rho, 0, 0
+        for _, th in ipairs({ 0.3, 2.4, 4.5 }) do
+          local d = expi(th)
+          local ok1, _, g1 = pcall(J.tape.eval, J.tape, m.at + d * r1, params)
+          local ok2, _, g2 = pcall(J.tape.eval, J.tape, m.at + d * r2, params)
+          if ok1 and ok2 and g1 and g2 and cabs(g1) > 0 and cabs(g2) > 0 then
+            slope, nd = slope + math.log(cabs(g2) / cabs(g1)) / math.log(r2 / r1), nd + 1
+          end
+        end
+        if nd > 0 then
+          slope = slope / nd
+          if near_integer(slope, 1e-3) then slope = floor(slope + 0.5) end
+          cr = cr + slope
+          s.power = cnew(cr, ci)   -- (the integrand's power; s.coefficient stays F's)
+        end
+      end
       -- F ~ c log(t - p): the integrand behaves like (t - p)^c. Re c > 0: it vanishes
       -- there (a sink: descent paths end there, contours may start there); a negative
       -- integer c: a pole of order -c; otherwise it blows up (a hill), and a
