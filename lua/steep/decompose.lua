@@ -678,23 +678,26 @@ function M.decompose_uncached(J, params, L, contour, opts)
         if g and g_regular then ref = ref + math.log(cabs(g)) end
         local d1 = select(2, pcall(function() return J.tape:jet(point, 1, params, 1):coef(1) end))
         local w = complex.is(d1) and cabs(d1) > 0 and 1 / cabs(d1) or nil
-        if w and w < huge then
-          -- the level the integrand reaches a few scales down the descent direction, where
-          -- an amplitude that vanishes at the end (t^4 at 0) has grown: measured from the
-          -- end alone, the path was "negligible" at its first step (t^4 e^{-x t} at
-          -- x = 1e4: 2e-31 for 2.4e-19, "ok")
+        if not g_regular and w and w < huge then
+          -- g 0 or infinite at the end: F's level there says nothing; the level the
+          -- integrand reaches a few scales down the descent direction does, where an
+          -- amplitude that vanishes at the end (t^4 at 0) has grown: measured from the end
+          -- alone, the path was "negligible" at its first step (t^4 e^{-x t} at x = 1e4:
+          -- 2e-31 for 2.4e-19, "ok"). (Only probes below the end's F: the straight line
+          -- leaves the path farther out, and a probe past a saddle or a sink read a level
+          -- the path never reaches.)
           local dir = -complex.new(cparts(d1)):conj() * (1 / cabs(d1))
           local probe = {}
           for k, m in ipairs({ 1, 4, 16 }) do probe[k] = point + dir * (m * w) end
           local okp, Fs, gs = pcall(J.tape.eval_many, J.tape, core.cvec(probe), params)
-          -- (with g 0 or infinite at the end, F's level there says nothing: the probes do)
-          if not g_regular and okp then ref = -huge end
+          local best = -huge
           for k = 1, okp and #probe or 0 do
+            local Fk = cparts(Fs:get(k))
             local gm = gs and cabs(gs:get(k)) or 1
-            local lv = cparts(Fs:get(k)) + (gm > 0 and math.log(gm) or -huge)
-            if lv == lv and lv < huge then ref = math.max(ref, lv) end
+            local lv = Fk + (gm > 0 and math.log(gm) or -huge)
+            if Fk <= ref and lv == lv and lv < huge then best = math.max(best, lv) end
           end
-          if ref == -huge then ref = cparts(F) end
+          if best > -huge then ref = best end
         end
         local path = M.negligible_end(J, params, L, point, ref, d1)
           or landscape.trace(J, params, L, point, F, true, { ref = ref, scale = w })
