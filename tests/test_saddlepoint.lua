@@ -369,6 +369,18 @@ function TestSaddlepointLattice:test_skewed_summands()
   lu.assertTrue(abs(r1.p - exact) <= r1.error)
 end
 
+-- Ends of the range: a uniform-series tail of 1 + 2e-16 (within its error of 3e-14) is 1,
+-- not "not a probability" (Q(50, 10) = 1 to doubles, gsl_sf_gamma_inc_Q); a threshold at
+-- 1e-7 of the mean of exponentials has its saddlepoint near s = -1e7, which the search had
+-- not reached ("outside the support"); P(mean >= 1e-7) = Q(10, 1e-6) = 1 to doubles.
+function TestSaddlepointLattice:test_ends_of_the_range()
+  local r = EXP:tail { n = 50, x = 0.2, method = "uniform" }
+  lu.assertEquals(r.status, "estimated")
+  lu.assertTrue(r.p <= 1 and abs(r.p - gsl.gamma_inc_Q(50, 10)) <= r.error)
+  local q = EXP:tail { n = 10, x = 1e-7 }
+  lu.assertTrue(q.p and abs(q.p - gsl.gamma_inc_Q(10, 1e-6)) <= q.error)
+end
+
 TestSaddlepointBadInput = {}
 
 function TestSaddlepointBadInput:test_not_convex()

@@ -132,6 +132,38 @@ function TestTrustSaddles:test_saddle_past_the_search()
   end
 end
 
+-- A value past doubles: Gamma(3001) = int_0^inf t^3000 e^{-t} dt (DLMF 5.2.1; log 21024 by
+-- gsl_sf_lngamma) overflows; quadrature had returned NaN with the error NaN. Now it says
+-- "failed", with an infinite error and a note.
+function TestTrustSaddles:test_value_past_doubles()
+  local J = steep.integral { var = t, exponent = x * steep.log(t) - t,
+    contour = steep.line(0, steep.inf(0)), large = x }
+  lu.assertTrue(gsl.lngamma(3001) > 709.8)
+  local _, e, info = J:quad { x = 3000 }
+  lu.assertEquals(info.status, "failed")
+  lu.assertEquals(e, math.huge)
+  local noted = false
+  for _, n in ipairs(info.notes) do noted = noted or n:find("overflows", 1, true) ~= nil end
+  lu.assertTrue(noted)
+end
+
+-- The uniform pole form next to the mean of a saddlepoint tail: b^2 = F0 - F(0) is a
+-- difference of terms of size n |s| while F0 ~ 1e-6: its rounding, by F's running error
+-- bound, now bounds the error (1.09e-11 off under 9.9e-12 before). The Bromwich integral
+-- (1/2 pi i) int over Re s = 1/2 of e^{n (-log(1 - s) - s x)} ds / s is P(mean of n
+-- exponential(1) >= x) = Q(n, n x) (DLMF 8.2.4; gsl_sf_gamma_inc_Q).
+function TestTrustSaddles:test_pole_form_next_to_the_mean()
+  local s, n, xb = steep.var "s", steep.param "n", steep.param "xbar"
+  local J = steep.integral { var = s, exponent = n * (-steep.log(1 - s) - s * xb),
+    amplitude = 1 / s, contour = steep.path { steep.inf(-pi / 2), 0.5, steep.inf(pi / 2) },
+    large = n }
+  for _, xv in ipairs({ 0.9998, 0.9999, 0.999 }) do
+    local want = I * 2 * pi * gsl.gamma_inc_Q(100, 100 * xv)
+    local r = J:expand { n = 100, xbar = xv, order = 4 }
+    within(r.value, r.error + 4e-15, want, 1e-9, "x = " .. xv)
+  end
+end
+
 -- F a small difference of large terms: x (1 + log s - s) near its saddle s = 1 is of size
 -- 1 while x s is 3e15, so F carries a rounding of about 1 there and e^F about 100 % in
 -- any method that evaluates F (its terms at s = 1 +- 1e-8 cancel). The quadrature said
