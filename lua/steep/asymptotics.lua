@@ -314,7 +314,7 @@ local function contributions_of(J, params, L, plan, order, resum, opts)
       local best, j2 = huge, nil
       for k, o in ipairs(L.saddles) do
         if k ~= j and o.order == 2 and not handled[k] then
-          local map = coalesce.cubic_map(s, o)
+          local map = coalesce.cubic_map(s, o, coalesce.ZETA_RADIUS)
           if map and cabs(map.zeta) < coalesce.ZETA_RADIUS and cabs(map.zeta) < best then
             best, j2 = cabs(map.zeta), k
           end
@@ -506,8 +506,12 @@ function M.expand(J, params, opts)
       integral = J, status = "exact: the amplitude is identically zero" }
     return setmetatable(result, { __index = { report = M.report } })
   end
-  local dF = expr.diff(J.exponent, J.var)
-  if dF.op == "const" and dF.re == 0 and dF.im == 0 then
+  -- (whether F depends on the variable at all: once per integral)
+  if J._exponent_flat == nil then
+    local dF = expr.diff(J.exponent, J.var)
+    J._exponent_flat = dF.op == "const" and dF.re == 0 and dF.im == 0
+  end
+  if J._exponent_flat then
     error("expand: the exponent " .. tostring(J.exponent) .. " does not change with "
       .. J.var.name .. " (its derivative is identically 0: no saddle, no endpoint expansion); "
       .. "the integral is a plain one (use J:quad)", 0)

@@ -30,9 +30,13 @@ M.ZETA_RADIUS = 4   -- |zeta| below which two saddles are treated together
 local function csqrt(z) return complex.apply("sqrt", z) end
 
 --- The saddle pair's map: A, zeta, v (= u of t1), t'(+-v); nil when no cube root fits.
-local function cubic_map(s1, s2)
+-- (With zeta_radius, also nil for a pair whose |zeta| is not below it.)
+local function cubic_map(s1, s2, zeta_radius)
   local A = (s1.F + s2.F) / 2
   local r = 0.75 * (s1.F - s2.F)
+  -- (|zeta| = |r|^(2/3) whichever cube root: a pair farther apart than the caller asks
+  -- for is dismissed before the roots' complex arithmetic)
+  if zeta_radius and cabs(r) >= zeta_radius ^ 1.5 then return nil end
   local best
   for k = 0, 2 do
     local v = cabs(r) ^ (1 / 3) * expi((carg(r) + 2 * pi * k) / 3)

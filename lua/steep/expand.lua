@@ -170,21 +170,23 @@ end
 -- sqrt(N) u max|G| / rho^k and an aliasing error of about |a_k| (rho/R)^N (R the radius
 -- of convergence). Coefficient k's relative error thus grows like (R/rho)^k: for n
 -- coefficients the circle is sized from the nearest known singularity (known_radius,
--- else the growth of the series a) at rho = R e^(-4.6/n) (so (R/rho)^n <= 100), within
--- [0.8 R, 0.99 R] (1000 for n <= 64), and N is a multiple of 64 with (rho/R)^N <= 1e-16 (at least 4n and
--- 256; at most 16384 but for the doubling below). A circle is trusted only if
+-- else the growth of the series a) at rho = R e^(-4.6/n) (so (R/rho)^n <= 100; for
+-- n <= 64 e^(-9/n), about 8100), within [0.75 R, 0.99 R], and N is a multiple of 64 with
+-- (rho/R)^N <= 1e-16 (at least 4n and 128; at most 16384 but for the doubling below).
+-- A circle is trusted only if
 --   * its low-order coefficients agree with the series a (reliable there): a circle past
 --     a pole of G would silently add the pole's residue to every coefficient;
 --   * the rule on every other point (N/2) agrees to 1e-6 relative for k <= N/8.
 -- When not, the radius shrinks by 0.85 (N doubled once first when only the second
 -- failed). When the coefficients fall off faster than R predicts (the known singularity
--- lies on another sheet), R is taken from their growth instead, at most twice.
+-- lies on another sheet), R is taken from their growth instead (at most 8 times the
+-- last R, twice at most), the circle 15 % further in.
 -- Returns the coefficients, how they were obtained, and an estimate of each one's
 -- absolute error: the rounding level (4 sqrt(N) + 16) u max|G| / rho^k plus the aliasing
 -- (the N/2 rule's difference times (rho/R)^(N/2) where that rule has the coefficient,
 -- |c_k| N (rho/R)^N beyond).
 local function circle_points(n, q)
-  local need = math.max(256, 4 * n, math.min(16384, 36.8 / -log(q)))
+  local need = math.max(128, 4 * n, math.min(16384, 36.8 / -log(q)))
   return 64 * math.ceil(need / 64)
 end
 
@@ -216,9 +218,9 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, series, n, L)
     local c, err = all()
     return c, "series", err
   end
-  -- (up to 64 coefficients, (R/rho)^n <= 1000 is enough: their last few only size the
-  -- first omitted term)
-  local q = math.min(0.99, math.max(0.8, exp(-(n <= 64 and 6.9 or 4.6) / n)))
+  -- (up to 64 coefficients, (R/rho)^n <= 8100 is enough: their last few only size the
+  -- first omitted term; a circle at 0.75 R needs 128 points, at 0.8 R 192)
+  local q = math.min(0.99, math.max(0.75, exp(-(n <= 64 and 9 or 4.6) / n)))
   local rho, N, doubled, regrown = q * R, circle_points(n, q), false, 0
   for _ = 1, 14 do
     local c, c2, level = M.circle_coefficients(J, params, t0, F0, m, s, n, rho, N)
@@ -251,8 +253,10 @@ local function cauchy_coefficients(J, params, t0, F0, m, s, series, n, L)
         if v > 100 * level(k) then Rc = math.min(Rc, (v / S) ^ (-1 / k)) end
       end
       if Rc < huge and Rc > 1.3 * R then
-        R, regrown = math.min(Rc, 4 * R), regrown + 1
-        rho, N, doubled = q * R, circle_points(n, q), false
+        -- (Rc, from coefficients of unknown prefactor, may overshoot by 15 %: the
+        -- circle keeps inside that, for one circle more than needed would cost more)
+        R, regrown = math.min(Rc, 8 * R), regrown + 1
+        rho, N, doubled = q * R / 1.15, circle_points(n, q), false
         goto continue
       end
     end
