@@ -46,8 +46,9 @@ tests/c/test_kernels_asan: $(KERNEL_TESTS) tests/c/kernel_check.h $(KERNEL_SRC) 
 
 # GSL, libcerf and exact-rational (GMP) reference values for the Lua tests (test-only,
 # never installed; the plain build serves make asan too).
+# (gnu11: its quadruple-precision Airy reference uses GCC's __float128)
 tests/ref/gslref.so: tests/ref/gslref.c
-	$(CC) $(WARN) -O2 -fPIC -shared $(PKG_CFLAGS) $(CFLAGS) -o $@ tests/ref/gslref.c $(PKG_LIBS) -lcerf -lgmp -lm $(LDFLAGS)
+	$(CC) $(WARN) -std=gnu11 -O2 -fPIC -shared $(PKG_CFLAGS) $(CFLAGS) -o $@ tests/ref/gslref.c $(PKG_LIBS) -lcerf -lgmp -lquadmath -lm $(LDFLAGS)
 
 # A C program embedding Lua with the extension linked in, two threads with a lua_State
 # each (tests/embed/host.c; tests/test_embed.lua runs it).

@@ -211,7 +211,7 @@ static int ai_asymptotic(cdd w, cplx *ai, cplx *aip, double *eai, double *eaip) 
   double zr = zeta_dd.re.hi, zrl = zeta_dd.re.lo, zi = zeta_dd.im.hi, zil = zeta_dd.im.lo;
   cplx w4 = csqrt(csqrt(wv));
   double c = cos(zi), s = sin(zi);
-  cplx phase = (c + zil * s) - I * (s - zil * c);   /* e^{-i (zi + zil)} */
+  cplx phase = (c - zil * s) - I * (s + zil * c);   /* e^{-i (zi + zil)}, to first order in zil */
   cplx mu_ = su / (2 * sqrt(PI) * w4), mv_ = -sv * w4 / (2 * sqrt(PI));
   double rel_u = bound_u / cabs(su) + 2 * EPS * absu / cabs(su) + (16 * EPS + extra);
   double rel_v = bound_v / cabs(sv) + 2 * EPS * absv / cabs(sv) + (16 * EPS + extra);

@@ -209,6 +209,33 @@ function TestAiry:test_identities()
   end)
 end
 
+-- Large |z| where the phase zeta = (2/3) z^(3/2) is large (on the negative axis, and where
+-- Im zeta is large off it): Ai and Ai' against their asymptotic expansions summed in
+-- quadruple precision (gslref.airy_quad; DLMF 9.7.5, 9.7.6, 9.2.12), allowing the
+-- reference's rounding to doubles. The low part of Im zeta had entered e^{-i zeta} with
+-- the wrong sign: Ai(-1000) was 2.9e-13 off under an estimate of 4.5e-16, and at
+-- 1000 e^{i pi/3} 690 times its estimate.
+function TestAiry:test_large_phase_against_quad_precision()
+  for _, r in ipairs({ 30, 120, 400, 1000, 3000 }) do
+    for _, th in ipairs({ pi, 0.93 * pi, 5 * pi / 6, 0.7 * pi, pi / 3, 0.31 * pi, -pi / 3,
+        -0.8 * pi, 0.2 }) do
+      local z = r * steep.exp(I * th)
+      local ai, aip, e, ep, st = steep.airy(z)
+      if st == "ok" then
+        local ar, ai_im, dr, di = gsl.airy_quad(z:re(), z:im())
+        local want, wantd = C(ar, ai_im), C(dr, di)
+        local msg = string.format("Ai(%g e^(%.4g i))", r, th)
+        within(ai, e, want, 2 * eps * cabs(want), msg)
+        within(aip, ep, wantd, 2 * eps * cabs(wantd), msg .. "'")
+      else
+        -- (only where the value leaves doubles: |Re zeta| beyond 700)
+        local zeta = 2 / 3 * z * steep.sqrt(z)
+        lu.assertTrue(math.abs(zeta:re()) > 700, "status " .. st .. " at " .. tostring(z))
+      end
+    end
+  end
+end
+
 -- Past the range of a double: Ai(200) ~ e^{-1886} is 0 with status "underflow" and an
 -- estimate of the smallest normal double; along ph z = 2 pi/3, |Ai(200 e^{2 pi i/3})| ~
 -- e^{1886}: infinite, "overflow", infinite estimate.

@@ -7,6 +7,10 @@
  * faddeeva_w comes from libcerf (w_of_z), not GSL: it returns the real and imaginary
  * parts of w(z) = exp(-z^2) erfc(-iz) (DLMF 7.2.3) and has no error estimate.
  * stirling_gamma comes from exact rational arithmetic (GMP), not GSL.
+ * airy_quad comes from neither: Ai and Ai' by their asymptotic expansions summed in
+ * quadruple precision (GCC's __float128, libquadmath), for |z| >= 20, where double
+ * precision cannot hold the phase zeta = (2/3) z^(3/2) to the last digit (this file is
+ * therefore compiled as gnu11).
  */
 #include <lua.h>
 #include <lauxlib.h>
@@ -28,6 +32,7 @@
 
 #include <cerf.h>
 #include <gmp.h>
+#include <quadmath.h>
 
 static int fail(lua_State *L, const char *fname, int status)
 {
@@ -308,7 +313,63 @@ static int l_stirling_gamma(lua_State *L)
   return 1;
 }
 
+/* Ai(z), Ai'(z) for |arg z| <= 2 pi/3 by DLMF 9.7.5, 9.7.6 (u_k, v_k by DLMF 9.7.2:
+ * u_k = u_{k-1} (6k-5)(6k-3)(6k-1) / ((2k-1) 216 k), v_k = -(6k+1)/(6k-1) u_k), summed in
+ * quadruple precision up to the smallest term; beyond 2 pi/3 by the connection formula
+ * Ai(z) = -w Ai(w z) - w^2 Ai(w^2 z), w = e^{2 pi i/3} (DLMF 9.2.12), and Ai' likewise
+ * (Ai'(z) = -w^2 Ai'(w z) - w Ai'(w^2 z), its derivative). For |z| >= 20 the smallest term
+ * is below 1e-60 of the sum. */
+typedef __complex128 cq;
+static void airy_quad_sector(cq z, cq *ai, cq *aip)
+{
+  cq zeta = 2.0Q / 3.0Q * z * csqrtq(z), z14 = csqrtq(csqrtq(z));
+  cq su = 0, sv = 0, zk = 1;
+  __float128 u = 1, last = 1e300Q;
+  for (int k = 0; k < 400; k++) {
+    if (k > 0) u *= (6.0Q * k - 5) * (6.0Q * k - 3) * (6.0Q * k - 1) / ((2.0Q * k - 1) * 216.0Q * k);
+    __float128 v = k == 0 ? 1 : -(6.0Q * k + 1) / (6.0Q * k - 1) * u;
+    __float128 sign = (k & 1) ? -1 : 1;
+    cq term = sign * u / zk;
+    __float128 m = cabsq(term);
+    if (m > last) break;
+    last = m;
+    su += term;
+    sv += sign * v / zk;
+    if (m < 1e-40Q) break;
+    zk *= zeta;
+  }
+  __float128 sp = sqrtq(M_PIq);
+  cq e = cexpq(-zeta);
+  *ai = e / (2 * sp * z14) * su;
+  *aip = -z14 * e / (2 * sp) * sv;
+}
+
+static int l_airy_quad(lua_State *L)
+{
+  double re = luaL_checknumber(L, 1), im = luaL_optnumber(L, 2, 0);
+  if (hypot(re, im) < 20) return luaL_error(L, "gslref.airy_quad: |z| >= 20 expected");
+  cq z = re + im * 1.0Qi, ai, aip;
+  if (fabsq(cargq(z)) <= 2 * M_PIq / 3) {
+    airy_quad_sector(z, &ai, &aip);
+  } else {
+    int lower = im < 0;
+    if (lower) z = conjq(z);
+    cq w = cexpq(2 * M_PIq / 3 * 1.0Qi), a1, d1, a2, d2;
+    airy_quad_sector(w * z, &a1, &d1);
+    airy_quad_sector(w * w * z, &a2, &d2);
+    ai = -w * a1 - w * w * a2;
+    aip = -w * w * d1 - w * d2;
+    if (lower) { ai = conjq(ai); aip = conjq(aip); }
+  }
+  lua_pushnumber(L, (double)crealq(ai));
+  lua_pushnumber(L, (double)cimagq(ai));
+  lua_pushnumber(L, (double)crealq(aip));
+  lua_pushnumber(L, (double)cimagq(aip));
+  return 4;
+}
+
 static const luaL_Reg funcs[] = {
+  { "airy_quad", l_airy_quad },
   { "airy_Ai", l_airy_Ai },
   { "airy_Ai_deriv", l_airy_Ai_deriv },
   { "airy_Bi", l_airy_Bi },
