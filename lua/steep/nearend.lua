@@ -42,7 +42,7 @@ local function endpoint_w(s, a, Fa, sm)
 end
 
 --- find(J, params, L, piece, handled) -> index of the simple saddle the endpoint piece lies
--- within M.RADIUS of (in w), or nil. The endpoint must be a plain one (no algebraic or
+-- within M.RADIUS of (in w, and w within half its size of the linear guess), or nil. The endpoint must be a plain one (no algebraic or
 -- log factor there, the amplitude regular).
 function M.find(J, params, L, piece, handled)
   local a = piece.at
@@ -56,9 +56,16 @@ function M.find(J, params, L, piece, handled)
       -- (the scale from F'' alone: |F''/2|^(1/2) e^{-i alpha}, alpha the descent angle)
       local f2 = s.F2 * 0.5
       local sm = cabs(f2) ^ 0.5 * landscape.expi(-(pi - landscape.carg(f2)) / 2)
-      local w = endpoint_w(s, a, Fa, sm)
+      local w, guess = endpoint_w(s, a, Fa, sm)
       local d = cabs(w)
-      if d > 0 and d < M.RADIUS and (not best or d < best) then best, bj = d, j end
+      -- (w must be the map's continuation from the saddle, near its linear guess: where
+      -- F' is periodic, a copy of a saddle whole periods away has F0 - F(a) small by the
+      -- period's shift alone, and Bessel's integral on [-pi, pi] paired each end with a
+      -- copy 10.9 away: 1 % off under 2e-11)
+      if d > 0 and d < M.RADIUS and cabs(w - guess) <= 0.5 * cabs(guess)
+          and (not best or d < best) then
+        best, bj = d, j
+      end
     end
   end
   return bj
