@@ -386,6 +386,31 @@ function TestMultiLaplace:test_dirichlet_quadrature_and_check()
   lu.assertStrContains(c:report(), "verified")
 end
 
+-- A maximum at the corner of the quadrant with no curvature, Watson's lemma in both
+-- variables: the rays' width comes from the slope (from the curvature alone it was 1e150,
+-- every node in the underflow: 0 with an error of 0, "ok"). References: the integral of
+-- e^{-lam (x + y)} / (1 + x + y) over the quadrant is, with s = x + y, the integral of s
+-- e^{-lam s} / (1 + s) over [0, inf) = 1/lam - e^lam E1(lam) (DLMF 6.2.2 after s -> s - 1;
+-- gsl_sf_expint_E1_scaled); of e^{-lam (x + y)}: 1/lam^2.
+function TestMultiLaplace:test_corner_maximum_without_curvature()
+  local Rp = steep.line(0, steep.inf(0))
+  local J = steep.integral { var = { x, y }, contour = { Rp, Rp }, large = lam,
+    exponent = -lam * (x + y), amplitude = 1 / (1 + x + y) }
+  local K = steep.integral { var = { x, y }, contour = { Rp, Rp }, large = lam,
+    exponent = -lam * (x + y) }
+  for _, L in ipairs({ 2, 10, 40 }) do
+    local e1, e1err = gsl.expint_E1_scaled(L)
+    local want = 1 / L - e1
+    local v, e, info = J:quad { lam = L }
+    lu.assertEquals(info.status, "ok")
+    lu.assertTrue(cabs(v - want) <= e + e1err, string.format("lam = %g: %.3g off under %.3g",
+      L, cabs(v - want), e))
+    lu.assertTrue(cabs(v - want) <= 1e-10 * want, "to 1e-10 at lam = " .. L)
+    v, e, info = K:quad { lam = L }
+    lu.assertTrue(cabs(v - 1 / L ^ 2) <= e + 4e-16 / L ^ 2, "1/lam^2 at lam = " .. L)
+  end
+end
+
 -- A maximum on an edge of the box where F falls inward (Watson's lemma in one coordinate,
 -- a Gaussian in the other): the integral over [0, inf) x R of e^{-lam (u + u^2/2 + v^2/2
 -- + u v^2)} at lam = 30 against iterated quadrature (the reference; no closed form), and

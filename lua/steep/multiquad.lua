@@ -589,11 +589,15 @@ function M.quad(J, params, opts)
   if okp then
     local pt = pts[1]
     local top = pt.x
-    local _, _, Hm = critical.derivs(J, cp, top)
+    local _, gm, Hm = critical.derivs(J, cp, top)
     local Z0 = cabs(require("steep.hormander").contribution(J, cp, pt, 1).value)
     local extent = 1
     for k = 1, n do
-      local w = 1 / sqrt(max(abs((cparts(Hm[k][k]))), 1e-300))
+      -- (the width from the curvature, or at a boundary maximum with none, Watson's,
+      -- from the slope: e^{-n(x + y)} on the quadrant had widths of 1e150, every node in
+      -- the underflow, and 0 with an error of 0, "ok"; neither: 1)
+      local rate = max(sqrt(abs((cparts(Hm[k][k])))), cabs(gm[k]))
+      local w = rate > 0 and 1 / rate or 1
       if rays then scales[k] = function(a) return max(w, cabs(a - top[k])) end end
       atol[k] = 0.1 * OUTER_TOL[n] * Z0 / extent
       extent = extent * sqrt(2 * pi) * w
@@ -668,6 +672,21 @@ function M.quad(J, params, opts)
     error(format("quad: the iterated quadrature gives a non-finite value (status %s): the "
       .. "integral diverges, or its integrand overflows double precision in the box",
       status), 0)
+  end
+  -- a value of exactly 0 with no error where the integrand is not negligible at the
+  -- samples: the rule's nodes missed it (no number is better than a wrong 0)
+  if cabs(value) == 0 and err == 0 then
+    local top = -huge
+    for i = 1, #Fs do
+      local re = cparts(Fs:get(i))
+      if re == re then top = max(top, re) end
+    end
+    if top > math.log(1e-300) then
+      status, err = "failed", huge
+      notes[#notes + 1] = format("quadrature found only underflowing values, yet e^F reaches "
+        .. "e^%.4g on the contours: the nodes missed the integrand; the value is not known",
+        top)
+    end
   end
   return value, err, { status = status, along = along, inner = inner_mode,
     outer = outer_mode, inner_calls = calls(), notes = notes }
