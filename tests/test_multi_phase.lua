@@ -125,3 +125,23 @@ function TestMultiPhase:test_reversed_contour()
   local q2 = L2:quad { lam = 30 }
   H.close(q, -q2, 1e-12, "Laplace quadrature, reversed")
 end
+
+-- Stationary phase over R^2 with four real stationary points, e^{i lam (x^3/3 - x + y^3/3
+-- - y)}: the integral is (2 pi)^2 lam^(-2/3) Ai(-lam^(2/3))^2 (DLMF 9.5.1 with t =
+-- lam^(-1/3) s, in each variable), Ai from gsl_sf_airy_Ai. The exponent is purely imaginary
+-- on the real box; a sample on the ray from steep.inf(pi) (at sin(pi) = 1.2e-16 off the
+-- axis) where F cancels to about 0 had it refused from lam = 150 on.
+function TestMultiPhase:test_four_points_large_lam()
+  local gsl = require "gslref"
+  local J = steep.integral { var = { x, y }, contour = { R, R }, large = lam,
+    exponent = lam * I * (x ^ 3 / 3 - x + y ^ 3 / 3 - y) }
+  for _, L in ipairs({ 100, 150, 300, 1000 }) do
+    local ai, aerr = gsl.airy_Ai(-L ^ (2 / 3))
+    local want = (2 * pi) ^ 2 * L ^ (-2 / 3) * ai * ai
+    local werr = (2 * pi) ^ 2 * L ^ (-2 / 3) * 2 * math.abs(ai) * aerr
+    local r = J:expand { lam = L, order = 3 }
+    lu.assertEquals(r.status, "estimated")
+    lu.assertTrue((r.value - want):abs() <= r.error + werr, string.format("lam = %g: %.3g off "
+      .. "under %.3g", L, (r.value - want):abs(), r.error))
+  end
+end

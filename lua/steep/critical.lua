@@ -345,11 +345,20 @@ end
 -- Which problem this is.
 ---------------------------------------------------------------------------------------
 
--- Samples of F over the product of the contours (a grid of up to ~600 points).
-local function sample_box(J, cp)
+-- Samples of F over the product of the contours (a grid of up to ~600 points); with
+-- `real`, the samples' rounding off the real axis is dropped (a ray from steep.inf(pi)
+-- runs at sin(pi) = 1.2e-16, and a sample where F cancels to about 0 then has an
+-- imaginary part above 1e-12 of it: stationary phase over R^2 was refused as "neither
+-- real nor imaginary").
+local function sample_box(J, cp, real)
   local lists = {}
   local per = ({ 9, 9, 7, 5 })[J.n] or 5
-  for k, C in ipairs(J.contours) do lists[k] = contour_samples(C, per) end
+  for k, C in ipairs(J.contours) do
+    lists[k] = contour_samples(C, per)
+    if real then
+      for i, z in ipairs(lists[k]) do lists[k][i] = (cparts(z)) end
+    end
+  end
   local pts = product(lists, 700)
   local Fs = M.eval_many(J, cp, pts)
   return pts, Fs
@@ -371,7 +380,7 @@ function M.classify(J, cp)
     return "other", shapes, "the contours are neither intervals of the real axis nor "
       .. "circles about 0"
   end
-  local pts, Fs = sample_box(J, cp)
+  local pts, Fs = sample_box(J, cp, true)
   local realF, imagF = true, true
   for i = 1, #pts do
     local re, im = cparts(Fs:get(i))
