@@ -754,3 +754,33 @@ function TestRoutesBadInput:test_crossings_end_leaves_valleys()
   for _, v in ipairs(path) do if v:arg() > pi / 2 then past = past + 1 end end
   lu.assertEquals(#ends, 2 * past, c:report())
 end
+
+-- Every route compare shows, for poles on both sides and at several heights, against the
+-- closed form: a route marked as agreeing lies within its estimate (plus quadrature's),
+-- one marked as disagreeing is off beyond it, and a route shown is always marked. The
+-- formula continued from its first value had been its saddle part now plus the residues
+-- it had then: off by 2 pi i Res wherever a pole had crossed a steepest path but not the
+-- held contour (and the formula derived afresh, so off, was left unmarked).
+function TestRoutesFamily:test_compare_marks_every_route()
+  local values = { 8, 3, 2, 1, 0.5, -0.5, -2, -4 }
+  for _, pole in ipairs({ C(1.2, -0.5), C(0.5, 2), C(1.2, 0.5), C(-0.7, 0.3) }) do
+    local J = family(pole)
+    local cmp = J:compare { x = values, order = 4, rescale = { var = s, t = x * s } }
+    for _, row in ipairs(cmp.rows) do
+      local want = exact(row.x, pole)
+      for _, route in ipairs({ "unrescaled", "rescaled", "formula", "corrected", "fresh" }) do
+        local v = row[route]
+        if v then
+          local msg = string.format("pole %s, x = %g, route %s", tostring(pole), row.x, route)
+          local ok = row[route .. "_ok"]
+          lu.assertIsBoolean(ok, msg .. ": marked")
+          local d = cabs(v - want)
+          local bound = (row[route .. "_error"] or 0) + row.quad_error + 1e-12 * cabs(want)
+          if ok then
+            lu.assertTrue(d <= bound, string.format("%s: %.3g off under %.3g", msg, d, bound))
+          end
+        end
+      end
+    end
+  end
+end
