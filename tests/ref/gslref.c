@@ -222,6 +222,14 @@ static int l_bessel_Inu_scaled(lua_State *L)
 }
 
 /* The regularized upper incomplete gamma function Q(a, x) (gsl_sf_gamma_inc_Q_e). */
+/* the upper incomplete gamma function Gamma(a, x), any real a, x > 0 */
+static int l_gamma_inc(lua_State *L)
+{
+  gsl_sf_result r;
+  int st = gsl_sf_gamma_inc_e(luaL_checknumber(L, 1), luaL_checknumber(L, 2), &r);
+  return push_result(L, "gamma_inc", st, &r);
+}
+
 static int l_gamma_inc_Q(lua_State *L)
 {
   gsl_sf_result r;
@@ -379,6 +387,7 @@ static const luaL_Reg funcs[] = {
   { "bessel_Ynu", l_bessel_Ynu },
   { "bessel_Knu_scaled", l_bessel_Knu_scaled },
   { "bessel_Inu_scaled", l_bessel_Inu_scaled },
+  { "gamma_inc", l_gamma_inc },
   { "gamma_inc_Q", l_gamma_inc_Q },
   { "psi", l_psi },
   { "psi_1", l_psi_1 },
