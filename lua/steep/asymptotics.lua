@@ -492,9 +492,12 @@ local function berry_smoothing(J, params, L, contributions, order, notes)
                 .. "line %s, Berry's multiplier S = %.4g", sigma, m, n, si > 0 and 1 or 0,
                 report_num(unit.value), S) }
           elseif not jump then
+            -- (the share at its largest joins the dominant's estimate: it is not there by
+            -- itself when the share is larger than the series' own error)
+            if size > c.error then c.error = c.error + size end
             notes[#notes + 1] = format("near a Stokes line of saddles %d and %d (sigma = %.3g) "
               .. "the smoothing was not applied: %s; the dominant's estimate covers the "
-              .. "share", n, m, sigma, why)
+              .. "share (at most %.3g)", n, m, sigma, why, size)
           end
         end
       end
