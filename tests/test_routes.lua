@@ -784,3 +784,32 @@ function TestRoutesFamily:test_compare_marks_every_route()
     end
   end
 end
+
+-- A sweep through the value where a pole lies exactly on the steepest path: the
+-- expansion is refused there (clearly), but the row keeps its quadrature (it had been
+-- lost with the expansion). e^{-t^2 + i x t}/(t - p), p = 0.5 + 2i, on the path Im t =
+-- x/2 at x = 4; closed form: with u = t - i x/2 the line Im u = -x/2 lies below
+-- q = p - i x/2, so the integral is e^{-x^2/4} i pi w(q) (DLMF 7.7.2, as exact() above).
+function TestRoutesFamily:test_sweep_keeps_quadrature_where_expansion_fails()
+  local p = C(0.5, 2)
+  local J = steep.integral { var = t, exponent = -t ^ 2 + I * x * t, amplitude = 1 / (t - p),
+    contour = REAL_LINE, large = x }
+  local function closed(xv)
+    return steep.exp(-xv * xv / 4) * I * pi * w(p - I * xv / 2)
+  end
+  local sw = J:sweep { x = { 3.5, 4, 4.5 }, order = 4, progress = false, workers = 1 }
+  lu.assertStrContains(sw.status, "1 of 3 rows failed")
+  for _, row in ipairs(sw.rows) do
+    local want = closed(row.x)
+    local msg = "x = " .. row.x
+    lu.assertNotNil(row.quad, msg .. ": quadrature kept")
+    lu.assertTrue(cabs(row.quad - want) <= row.quad_error + 1e-15, msg .. ": quadrature")
+    if row.x == 4 then
+      lu.assertStrContains(row.failure, "passes through the pole")
+      lu.assertStrContains(sw:report(), "failed (below)")
+    else
+      lu.assertNil(row.failure, msg)
+      lu.assertTrue(cabs(row.expansion - want) <= row.error + 1e-15, msg .. ": expansion")
+    end
+  end
+end

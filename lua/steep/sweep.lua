@@ -112,11 +112,13 @@ local function compute_rows(J, values, i0, i1, ctx, on_row, clock0)
       else
         L = J:_landscape(p, region, false)
       end
+      -- (quadrature first, and kept when the expansion fails: a pole exactly on a
+      -- steepest path stops the one, not the other)
+      local q, qe, qinfo = require("steep.integral").quad_with(J, p, L, "deformed")
+      row.quad, row.quad_error, row.quad_status = q, qe, qinfo.status
       local r = require("steep.asymptotics").expand(J, p, { order = order, landscape = L,
         resum = resum })
-      local q, qe, qinfo = require("steep.integral").quad_with(J, p, L, "deformed")
-      row.expansion, row.error, row.quad, row.quad_error = r.value, r.error, q, qe
-      row.quad_status, row.status = qinfo.status, r.status
+      row.expansion, row.error, row.status = r.value, r.error, r.status
       row.relative_error = cabs(r.value - q) / math.max(cabs(q), 1e-300)
       row.estimated = r.error / math.max(cabs(q), 1e-300)
       -- agreement needs both sides trustworthy: quadrature at its tolerance, and an
@@ -519,7 +521,9 @@ function M.sweep_report(sw, opts)
   local cells, failed = {}, {}
   for i, r in ipairs(sw.rows) do
     if r.failure then
-      cells[i] = { num(r.x, nil, 6), "failed (below)" }
+      -- (the quadrature where it was done before the expansion failed)
+      cells[i] = { num(r.x, nil, 6), "failed (below)",
+        r.quad and num(r.quad, r.quad_error, 8) or "" }
       failed[#failed + 1] = r
     else
       local flags = {}
