@@ -325,10 +325,12 @@ static int multi_homotopy(lua_State *L) {
   return 1;
 }
 
-/* core.multi_expand(tape, params, vars, point, dirs, kinds, sigma, M) -> T_0 .. T_M (a
- * list of M + 1 complex values): mexpand_terms at the point, in the local coordinates
- * x_k = point_k + dirs_k s_k; kinds: list of "full" | "half" | "edge"; sigma: the inverse
- * of -F'' over the Gaussian coordinates, as n rows of n (other entries are not read). */
+/* core.multi_expand(tape, params, vars, point, dirs, kinds, sigma, M [, lin]) -> T_0 .. T_M (a
+ * list of M + 1 complex values), and a bound on each one's rounding (a list of M + 1
+ * numbers): mexpand_terms at the point, in the local coordinates
+ * x_k = point_k + dirs_k s_k, or with lin (n rows of n) x_k = point_k + sum_j lin_kj s_j;
+ * kinds: list of "full" | "half" | "edge"; sigma: the inverse of -F'' over the Gaussian
+ * coordinates (in those local ones), as n rows of n (other entries are not read). */
 static int multi_expand(lua_State *L) {
   const tape *t = bind_checktape(L, 1);
   cplx *params = bind_tapeparams(L, 1, 2);
@@ -353,6 +355,17 @@ static int multi_expand(lua_State *L) {
   }
   lua_Integer M = luaL_checkinteger(L, 8);
   luaL_argcheck(L, M >= 0 && M <= MULTI_MAX_M, 8, "number of terms out of range");
+  /* lin (optional): the local coordinates x_k = point_k + sum_j lin_kj s_j instead of dirs */
+  cplx lin[MJET_MAX_VARS * MJET_MAX_VARS];
+  int haslin = !lua_isnoneornil(L, 9);
+  if (haslin) {
+    luaL_checktype(L, 9, LUA_TTABLE);
+    for (int k = 0; k < n; k++) {
+      lua_geti(L, 9, k + 1);
+      check_point(L, lua_gettop(L), n, lin + k * n, "lin row");
+      lua_pop(L, 1);
+    }
+  }
   int D = 3 * (int)M > (int)M + 2 ? 3 * (int)M : (int)M + 2;
   size_t lyb = mlayout_bytes(n, D);
   if (lyb == 0)
@@ -371,7 +384,8 @@ static int multi_expand(lua_State *L) {
   size_t upto = (size_t)t->out[t->nout > 1 ? 1 : 0];
   if ((size_t)t->out[0] > upto) upto = (size_t)t->out[0];
   long bad = 0;
-  int st = mjet_tape(&ly, t, params, varslot, x, dir, dj, upto, work, scratch, &bad);
+  int st = haslin ? mjet_tape_linear(&ly, t, params, varslot, x, lin, dj, upto, work, scratch, &bad)
+                  : mjet_tape(&ly, t, params, varslot, x, dir, dj, upto, work, scratch, &bad);
   if (st != STEEP_OK)
     return luaL_error(L, "multi_expand: the jet at the point fails: %s (instruction %d) %s",
                       tape_op_name(t->ins[bad].op), (int)bad + 1, status_text(st));
@@ -382,8 +396,9 @@ static int multi_expand(lua_State *L) {
   if (t->nout > 1) memcpy(gj, work + (size_t)t->out[1] * len, len * sizeof(cplx));
   else gj[0] = 1;
   cplx *terms = bind_scratch(L, (size_t)(M + 1) * sizeof(cplx));
+  double *bound = bind_scratch(L, (size_t)(M + 1) * sizeof(double));
   cplx *ms = bind_scratch(L, mexpand_scratch_len(&ly) * sizeof(cplx));
-  st = mexpand_terms(&ly, Fj, gj, kind, sigma, (int)M, terms, ms);
+  st = mexpand_terms(&ly, Fj, gj, kind, sigma, (int)M, terms, bound, ms);
   if (st == STEEP_SINGULAR)
     return luaL_error(L, "multi_expand: an edge coordinate has no slope (dF/ds = 0)");
   if (st != STEEP_OK) return luaL_error(L, "multi_expand: a term is not finite");
@@ -392,7 +407,12 @@ static int multi_expand(lua_State *L) {
     bind_pushcomplex(L, terms[m]);
     lua_rawseti(L, -2, m + 1);
   }
-  return 1;
+  lua_createtable(L, (int)M + 1, 0);
+  for (lua_Integer m = 0; m <= M; m++) {
+    lua_pushnumber(L, bound[m]);
+    lua_rawseti(L, -2, m + 1);
+  }
+  return 2;
 }
 
 /* ---- one variable along a circular arc ------------------------------------------- */

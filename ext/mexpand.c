@@ -1,6 +1,7 @@
 /*
  * mexpand.c — expansion terms at one point in several variables; contracts in mexpand.h.
  */
+#include <float.h>
 #include <math.h>
 #include <string.h>
 #include "mexpand.h"
@@ -8,9 +9,9 @@
 #define SQRT_2PI 2.50662827463100050241576528481104525
 
 size_t mexpand_scratch_len(const mlayout *ly) {
-  /* moments, P, P', R, the nonzero list of R (value + index) and weighted degrees, and
-   * the per-coordinate tables */
-  return 8 * ly->N + 8 * (size_t)(ly->deg + 1) * MJET_MAX_VARS + 16;
+  /* moments, P, P', R, the nonzero list of R (value + index) and weighted degrees, the
+   * per-coordinate tables, and the moduli of P and P' (doubles, one slot for both) */
+  return 9 * ly->N + 8 * (size_t)(ly->deg + 1) * MJET_MAX_VARS + 16;
 }
 
 double mexpand_cost(const mlayout *ly, int M) {
@@ -42,13 +43,15 @@ void mexpand_gauss_moments(const mlayout *ly, const int *kind, const cplx *Sigma
 }
 
 int mexpand_terms(const mlayout *ly, const cplx *Fj, const cplx *gj, const int *kind,
-                  const cplx *Sigma, int M, cplx *terms, cplx *scratch) {
+                  const cplx *Sigma, int M, cplx *terms, double *bound, cplx *scratch) {
   int n = ly->n, D = ly->deg;
   size_t N = ly->N;
   cplx *mom = scratch, *P = mom + N, *Pn = P + N, *Rv = Pn + N;
   size_t *Ri = (size_t *)(Rv + N);                 /* N entries (<= 2N cplx slots) */
   int *wdeg = (int *)(Rv + 3 * N);                 /* N ints */
   cplx *tab = Rv + 4 * N;                          /* per coordinate: D + 1 entries */
+  /* |P| and |P'| as built (sums of moduli), after the tables */
+  double *Pa = (double *)(tab + (size_t)MJET_MAX_VARS * (size_t)(D + 1)), *Pna = Pa + N;
   /* weighted degree: an edge coordinate counts twice (it scales as 1/lambda) */
   for (size_t i = 0; i < N; i++) {
     const unsigned char *e = ly->exps + i * (size_t)n;
@@ -100,14 +103,25 @@ int mexpand_terms(const mlayout *ly, const cplx *Fj, const cplx *gj, const int *
     Rv[nR] = Fj[i];
     Ri[nR++] = i;
   }
-  for (int m = 0; m <= M; m++) terms[m] = 0;
+  double *acc = bound;   /* (the moduli summed, in place; scaled at the end) */
+  for (int m = 0; m <= M; m++) {
+    terms[m] = 0;
+    if (acc) acc[m] = 0;
+  }
   size_t lenP = ly->upto[(3 * M < D ? 3 * M : D) + 1];
   memset(P, 0, lenP * sizeof *P);
-  for (size_t i = 0; i < ly->upto[M + 1]; i++) if (wdeg[i] <= M) P[i] = gj[i];
-  for (size_t i = 0; i < lenP; i++) if (P[i] != 0) terms[wdeg[i]] += P[i] * mom[i];
+  memset(Pa, 0, lenP * sizeof *Pa);
+  for (size_t i = 0; i < ly->upto[M + 1]; i++)
+    if (wdeg[i] <= M) P[i] = gj[i], Pa[i] = cabs(gj[i]);
+  for (size_t i = 0; i < lenP; i++)
+    if (P[i] != 0) {
+      terms[wdeg[i]] += P[i] * mom[i];
+      if (acc) acc[wdeg[i]] += 2 * Pa[i] * cabs(mom[i]);
+    }
   for (int mu = 1; mu <= M; mu++) {
     int wmax = M + 2 * mu;
     memset(Pn, 0, lenP * sizeof *Pn);
+    memset(Pna, 0, lenP * sizeof *Pna);
     for (size_t i = 0; i < lenP; i++) {
       cplx pi = P[i];
       if (pi == 0 || wdeg[i] + 3 > wmax) continue;
@@ -116,20 +130,27 @@ int mexpand_terms(const mlayout *ly, const cplx *Fj, const cplx *gj, const int *
       for (size_t r = 0; r < nR; r++) {
         size_t j = Ri[r];
         if (wdeg[j] > room) continue;
-        Pn[ly->rank[ci + ly->code[j]]] += pi * Rv[r];
+        size_t k = ly->rank[ci + ly->code[j]];
+        Pn[k] += pi * Rv[r];
+        Pna[k] += Pa[i] * cabs(Rv[r]);
       }
     }
     int any = 0;
     for (size_t i = 0; i < lenP; i++) {
       P[i] = Pn[i] / (double)mu;
+      Pa[i] = Pna[i] / (double)mu;
       if (P[i] != 0) {
         any = 1;
         terms[wdeg[i] - 2 * mu] += P[i] * mom[i];
+        /* (mu + 2 factors behind this product: the amplitude's, mu of R, the moment) */
+        if (acc) acc[wdeg[i] - 2 * mu] += (double)(mu + 2) * Pa[i] * cabs(mom[i]);
       }
     }
     if (!any) break;
   }
-  for (int m = 0; m <= M; m++)
+  for (int m = 0; m <= M; m++) {
     if (!isfinite(creal(terms[m])) || !isfinite(cimag(terms[m]))) return STEEP_NONFINITE;
+    if (acc) acc[m] *= 16 * DBL_EPSILON;
+  }
   return STEEP_OK;
 }

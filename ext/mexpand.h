@@ -40,10 +40,14 @@ double mexpand_cost(const mlayout *ly, int M);
 /* T_0 .. T_M into terms. Fj: F's jet known to degree M + 2, gj: g's jet known to degree
  * M (both in ly's order; ly->deg >= 3M). kind[k] per coordinate; Sigma: n x n row-major
  * (only the entries between Gaussian coordinates are read; a half-line coordinate must
- * be uncoupled: the caller checks). The edge rates c_k are read from Fj. Returns
+ * be uncoupled: the caller checks). The edge rates c_k are read from Fj. With `bound`
+ * (M + 1 entries, or NULL), also a running bound on each term's rounding: the sum of the
+ * moduli of everything added into it, each times the number of factors behind it, times
+ * 16 u (the jets' own relative rounding included; each term is a sum of many products
+ * that cancel, in several variables to 1e-5 of their moduli and below). Returns
  * STEEP_OK, or STEEP_SINGULAR when an edge rate is 0. O(mexpand_cost). */
 int mexpand_terms(const mlayout *ly, const cplx *Fj, const cplx *gj, const int *kind,
-                  const cplx *Sigma, int M, cplx *terms, cplx *scratch);
+                  const cplx *Sigma, int M, cplx *terms, double *bound, cplx *scratch);
 
 /* The Gaussian moments E[s^a] of all monomials of degree <= ly->deg in the coordinates
  * with kind MEXP_FULL (others: 0 unless their exponent is 0), Isserlis' recursion

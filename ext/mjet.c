@@ -148,9 +148,11 @@ static int unary_series(const tape_ins *in, cplx a0, int d, cplx *f, cplx *f2, c
   }
 }
 
-int mjet_tape(const mlayout *ly, const tape *t, const cplx *params, const int *varslot,
-              const cplx *x0, const cplx *dir, int d, size_t upto, cplx *work,
-              cplx *scratch, long *bad) {
+/* mjet_tape and mjet_tape_linear: the variables seeded along dir (diagonal) or lin (a
+ * whole linear map; then dir is not read) */
+static int tape_jets(const mlayout *ly, const tape *t, const cplx *params, const int *varslot,
+                     const cplx *x0, const cplx *dir, const cplx *lin, int d, size_t upto,
+                     cplx *work, cplx *scratch, long *bad) {
   size_t len = ly->upto[d + 1], n1 = (size_t)d + 1;
   cplx *f = scratch, *f2 = f + n1, *u = f2 + n1, *ss = u + n1;   /* ss: 4 n1 entries */
   cplx *cw = ss + 4 * n1;                                         /* compose: 2 len */
@@ -176,7 +178,11 @@ int mjet_tape(const mlayout *ly, const tape *t, const cplx *params, const int *v
       w[0] = vals[j];
     } else if (var >= 0) {
       w[0] = x0[var];
-      if (d >= 1) w[ly->rank[ly->pow[var]]] = dir ? dir[var] : 1;
+      if (d >= 1 && lin) {
+        for (int k = 0; k < ly->n; k++) w[ly->rank[ly->pow[k]]] = lin[var * ly->n + k];
+      } else if (d >= 1) {
+        w[ly->rank[ly->pow[var]]] = dir ? dir[var] : 1;
+      }
     } else {
       switch (in->op) {
         case OP_ADD: for (size_t i = 0; i < len; i++) w[i] = a[i] + b[i]; break;
@@ -221,4 +227,16 @@ void mjet_eval(const tape *t, const cplx *params, const int *varslot, int n, con
   if (t->nparams) memcpy(pbuf, params, t->nparams * sizeof *pbuf);
   for (int k = 0; k < n; k++) pbuf[varslot[k]] = x[k];
   tape_eval(t, 0, pbuf, out, work);
+}
+
+int mjet_tape(const mlayout *ly, const tape *t, const cplx *params, const int *varslot,
+              const cplx *x0, const cplx *dir, int d, size_t upto, cplx *work,
+              cplx *scratch, long *bad) {
+  return tape_jets(ly, t, params, varslot, x0, dir, NULL, d, upto, work, scratch, bad);
+}
+
+int mjet_tape_linear(const mlayout *ly, const tape *t, const cplx *params, const int *varslot,
+                     const cplx *x0, const cplx *lin, int d, size_t upto, cplx *work,
+                     cplx *scratch, long *bad) {
+  return tape_jets(ly, t, params, varslot, x0, NULL, lin, d, upto, work, scratch, bad);
 }

@@ -79,6 +79,12 @@ int mjet_tape(const mlayout *ly, const tape *t, const cplx *params, const int *v
               const cplx *x0, const cplx *dir, int d, size_t upto, cplx *work,
               cplx *scratch, long *bad);
 
+/* The same in the local coordinates x_k = x0_k + sum_j lin[k n + j] s_j (lin: n x n,
+ * row-major): a Gaussian's whitened coordinates, in which the jets are balanced. */
+int mjet_tape_linear(const mlayout *ly, const tape *t, const cplx *params, const int *varslot,
+                     const cplx *x0, const cplx *lin, int d, size_t upto, cplx *work,
+                     cplx *scratch, long *bad);
+
 /* Values of the outputs at the point x (no jets): tape_eval with the variables' slots
  * of a copy of params (pbuf, t->nparams entries) set to x. work: t->n entries. */
 void mjet_eval(const tape *t, const cplx *params, const int *varslot, int n, const cplx *x,

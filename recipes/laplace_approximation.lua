@@ -56,8 +56,9 @@ end
 function M.table(spec)
   local J = M.integral(spec)
   local rows = {}
-  local lines = { string.format("%-6s %-20s %-10s %-10s %-10s %-10s %-20s", "n", "log Z (2 corr.)",
-    "rel.err 0", "rel.err 1", "rel.err 2", "estimate", "log Z (quadrature)") }
+  local lines = { string.format("%-6s %-20s %-10s %-10s %-10s %-10s %-20s %s", "n",
+    "log Z (2 corr.)", "rel.err 0", "rel.err 1", "rel.err 2", "estimate", "log Z (quadrature)",
+    "status") }
   for _, N in ipairs(spec.n) do
     local r = {}
     for K = 1, 3 do r[K] = J:expand { n = N, order = K, seeds = spec.seeds } end
@@ -76,8 +77,16 @@ function M.table(spec)
       qtext = string.format("%.15g", math.log(qa))
     end
     rows[#rows + 1] = row
-    lines[#lines + 1] = string.format("%-6d %-20.15g %-10s %-10s %-10s %-10.3g %-20s", N,
-      row.log_value:re(), e0, e1, e2, row.estimate / r[3].value:abs(), qtext)
+    -- (the status's first word: the notes of a "suspect" one follow the table)
+    lines[#lines + 1] = string.format("%-6d %-20.15g %-10s %-10s %-10s %-10.3g %-20s %s", N,
+      row.log_value:re(), e0, e1, e2, row.estimate / r[3].value:abs(), qtext,
+      tostring(row.status):match("^[^:]*"))
+    if tostring(row.status):match("^suspect") then
+      row.why = tostring(row.status):match("^suspect: (.*)")
+    end
+  end
+  for _, row in ipairs(rows) do
+    if row.why then lines[#lines + 1] = string.format("n = %d suspect: %s", row.n, row.why) end
   end
   return rows, table.concat(lines, "\n"), J
 end

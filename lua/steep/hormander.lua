@@ -79,6 +79,39 @@ local KIND_TEXT = { full = "interior", half = "half-line (end with zero slope)",
 -- critical.contributing) with K terms: {kind, at, F, value, error, terms, raw, ...};
 -- value and error are also given relative to e^{F0} (scaled_value, scaled_error) so
 -- that a contribution beyond the range of doubles keeps its digits (log_value).
+-- The local coordinates x_k = x0_k + sum_j lin_kj u_j with the Gaussian coordinates q
+-- whitened: lin = D L over q (D = diag(dirs), L L^T = Sigma restricted to q, a Cholesky
+-- factor without conjugation: Sigma is complex symmetric), the identity times dirs for the
+-- others. nil where a pivot vanishes (the plain coordinates are used then).
+local function whitening(n, q, dirs, Sigma)
+  if #q < 2 then return nil end
+  local L = {}
+  for a = 1, #q do
+    L[a] = {}
+    for b = 1, a do
+      local sum = Sigma[q[a]][q[b]]
+      for c = 1, b - 1 do sum = sum - L[a][c] * L[b][c] end
+      if a == b then
+        if not (cabs(sum) > 1e-14 * cabs(Sigma[q[a]][q[a]])) then return nil end
+        L[a][a] = complex.apply("sqrt", cnew(cparts(sum)))
+      else
+        L[a][b] = sum / L[b][b]
+      end
+    end
+  end
+  local lin = {}
+  for k = 1, n do
+    lin[k] = {}
+    for j = 1, n do lin[k][j] = cnew(0, 0) end
+    lin[k][k] = dirs[k] * 1
+  end
+  for a, k in ipairs(q) do
+    for b = 1, a do lin[k][q[b]] = dirs[k] * L[a][b] end
+    for b = a + 1, #q do lin[k][q[b]] = cnew(0, 0) end
+  end
+  return lin
+end
+
 function M.contribution(J, cp, pt, K, opts)
   opts = opts or {}
   local n = J.n
@@ -149,24 +182,47 @@ function M.contribution(J, cp, pt, K, opts)
   end
   pre = pre * (2 * pi) ^ (#q / 2) / sqrtdet
   local Mterms = 2 * K + 2
-  local T = core.multi_expand(J.tape, cp, J.varslot, x, dirs, kinds, Sigma, Mterms)
+  -- The terms do not depend on the linear coordinates of the Gaussian: in whitened ones,
+  -- s = L u with L L^T = Sigma (a Cholesky factor, complex symmetric), the jets are
+  -- balanced and their sums cancel far less (a logistic model in 3 correlated parameters:
+  -- the fourth group's moduli summed to 1e17 times the group in the plain coordinates).
+  -- Edge coordinates keep their own (their slope is read per coordinate).
+  local lin = whitening(n, q, dirs, Sigma)
+  local uSigma = Sigma
+  if lin then
+    uSigma = {}
+    for i = 1, n do
+      uSigma[i] = {}
+      for j = 1, n do uSigma[i][j] = cnew(0, 0) end
+    end
+    for _, i in ipairs(q) do uSigma[i][i] = cnew(1, 0) end
+  end
+  local T, B = core.multi_expand(J.tape, cp, J.varslot, x, dirs, kinds, uSigma, Mterms, lin)
   -- groups by whole powers of 1/lambda
-  local G, mag = {}, {}
+  -- (with each group's rounding bound: a group not above it is noise)
+  local G, mag, rnd = {}, {}, {}
   for j = 0, K + 1 do
-    if j == 0 then G[0], mag[0] = T[1], cabs(T[1])
+    if j == 0 then G[0], mag[0], rnd[0] = T[1], cabs(T[1]), B[1]
     else
       G[j] = T[2 * j] + T[2 * j + 1]
       mag[j] = cabs(T[2 * j]) + cabs(T[2 * j + 1])
+      rnd[j] = B[2 * j] + B[2 * j + 1]
     end
   end
-  local sum, absum = cnew(0, 0), 0
-  for j = 0, K - 1 do sum, absum = sum + G[j], absum + mag[j] end
+  local sum, absum, rounding = cnew(0, 0), 0, 0
+  for j = 0, K - 1 do sum, absum, rounding = sum + G[j], absum + mag[j], rounding + rnd[j] end
+  if mag[K] <= rnd[K] then
+    notes[#notes + 1] = format("the terms past order %d are below their own rounding here "
+      .. "(the jets' sums cancel): fewer terms are as accurate", K - 1)
+  end
   -- the tail beyond the first omitted group, as a geometric series at the ratio the
   -- terms will have two groups on (ratios of asymptotic series grow roughly linearly)
   local r, r1, r2 = 0, 0, 0
   if mag[K] > 0 then
     r1 = mag[K - 1] > 0 and mag[K] / mag[K - 1] or huge
     r2 = mag[K + 1] / mag[K]
+    -- (a next group that is noise says nothing of the ratio)
+    if mag[K + 1] <= rnd[K + 1] and mag[K] > rnd[K] then r2 = r1 end
     r = max(r1, r2) + 2 * max(0, r2 - r1)
   end
   local safety, decreasing = 2, true
@@ -179,13 +235,13 @@ function M.contribution(J, cp, pt, K, opts)
   -- (a group may vanish by a cancellation of the amplitude's terms, 1 + x^2 - y^2 on a
   -- symmetric Gaussian: the next group counts too, and where both vanish two more are
   -- computed to tell a series that ends from one that only skips)
-  local omitted = mag[K] + mag[K + 1]
+  local omitted = max(mag[K], rnd[K]) + max(mag[K + 1], rnd[K + 1])
   if omitted == 0 then
-    local T2 = core.multi_expand(J.tape, cp, J.varslot, x, dirs, kinds, Sigma, Mterms + 4)
+    local T2 = core.multi_expand(J.tape, cp, J.varslot, x, dirs, kinds, uSigma, Mterms + 4, lin)
     for m = Mterms + 2, Mterms + 5 do omitted = omitted + cabs(T2[m] or cnew(0, 0)) end
   end
   local trunc = safety * omitted * apre
-  local floor = ((128 + cabs(F0)) * EPS + EPS / rc) * absum * apre
+  local floor = (((128 + cabs(F0)) * EPS + EPS / rc) * absum + rounding) * apre
   local scaled_value = pre * sum
   -- the faces of a box next to the point (Laplace type): their size goes into the error
   local face_err = 0

@@ -1154,7 +1154,7 @@ static void test_multi(void) {
   Fj[find_rank(&ly, e02)] = -0.5;
   gj[find_rank(&ly, e20)] = 1;
   cplx id[4] = {1, 0, 0, 1};
-  st = mexpand_terms(&ly, Fj, gj, kinds, id, 4, terms, ms);
+  st = mexpand_terms(&ly, Fj, gj, kinds, id, 4, terms, NULL, ms);
   check(st == STEEP_OK && cabs(terms[0]) == 0 && cabs(terms[2] - 1) < 1e-15 && cabs(terms[1]) == 0 &&
         cabs(terms[3]) == 0 && cabs(terms[4]) == 0, "mexpand_terms: a Gaussian moment exactly");
   Fj[find_rank(&ly, e20)] = 0;
@@ -1162,11 +1162,11 @@ static void test_multi(void) {
   gj[find_rank(&ly, e20)] = 0;
   gj[0] = 1;
   int kinds2[2] = {MEXP_EDGE, MEXP_FULL};
-  st = mexpand_terms(&ly, Fj, gj, kinds2, id, 4, terms, ms);
+  st = mexpand_terms(&ly, Fj, gj, kinds2, id, 4, terms, NULL, ms);
   check(st == STEEP_OK && cabs(terms[0] - 1) < 1e-15 && cabs(terms[1]) + cabs(terms[2]) +
         cabs(terms[3]) + cabs(terms[4]) == 0, "mexpand_terms: Watson times Gaussian exactly");
   Fj[find_rank(&ly, e10)] = 0;
-  check(mexpand_terms(&ly, Fj, gj, kinds2, id, 4, terms, ms) == STEEP_SINGULAR,
+  check(mexpand_terms(&ly, Fj, gj, kinds2, id, 4, terms, NULL, ms) == STEEP_SINGULAR,
         "mexpand_terms: an edge without slope is refused");
   free(Fj);
   free(gj);

@@ -86,8 +86,10 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size) {
       for (int k = 0; k < nv; k++) kinds[k] = (int)fz_below(&f, 3);
       for (int k = 0; k < nv * nv; k++) sigma[k] = fz_cplx(&f, raw);
       cplx terms[MAX_M + 1];
+      double bound[MAX_M + 1];
       cplx *ms = fz_alloc(mexpand_scratch_len(&ly), sizeof *ms);
-      st = mexpand_terms(&ly, Fj, gj, kinds, sigma, M, terms, ms);
+      /* (with and without the rounding bound: the same terms) */
+      st = mexpand_terms(&ly, Fj, gj, kinds, sigma, M, terms, (fz_u8(&f) & 1) ? bound : NULL, ms);
       if (st < STEEP_OK || st > STEEP_NONFINITE) abort();
       free(ms);
       free(Fj);
