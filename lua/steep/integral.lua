@@ -277,10 +277,38 @@ local function landscape_key(params, region, with_paths)
   return table.concat(parts, ";")
 end
 
+-- Whether two parameter tables hold the same values (numbers or complex values).
+local function same_values(a, b)
+  local n = 0
+  for k, v in pairs(a) do
+    local w = b[k]
+    if w == nil then return false end
+    local ar, ai = cparts(v)
+    local br, bi = cparts(w)
+    if ar ~= br or ai ~= bi then return false end
+    n = n + 1
+  end
+  for _ in pairs(b) do n = n - 1 end
+  return n == 0
+end
+
 function methods._landscape(J, params, region, with_paths, cont)
   -- the same parameters give the same landscape: keep the last few (expand and quad at
-  -- one point, as J:check does, map it once)
-  local key = not cont and landscape_key(params, region, with_paths)
+  -- one point, as J:check does, map it once); the last call's key is reused when its
+  -- values are the same (formatting the key costs more than comparing)
+  local key
+  if not cont then
+    local last = J._last_key
+    if last and last.region == region and last.with_paths == with_paths
+        and same_values(params, last.params) then
+      key = last.key
+    else
+      key = landscape_key(params, region, with_paths)
+      local copy = {}
+      for k, v in pairs(params) do copy[k] = v end
+      J._last_key = { params = copy, region = region, with_paths = with_paths, key = key }
+    end
+  end
   J._lcache = J._lcache or {}
   if key then
     for _, e in ipairs(J._lcache) do if e.key == key then return e.L end end
@@ -1249,7 +1277,12 @@ function floor_points(J, params, L, info)
     end
     L._floor_points[J.contour] = kept
   end
-  -- the saddles passed
+  -- the saddles passed (along the deformed contour, the kept plan's pieces: the list is
+  -- kept with the landscape too, for the next call at these values)
+  L._floor_lists = L._floor_lists or setmetatable({}, { __mode = "k" })
+  local lists = L._floor_lists[J.contour] or {}
+  L._floor_lists[J.contour] = lists
+  if lists[info.along] then return lists[info.along] end
   local passed = {}
   if info.along == "deformed" then
     for _, piece in ipairs(info.pieces or {}) do
@@ -1270,6 +1303,7 @@ function floor_points(J, params, L, info)
   -- (each point with whether the path passes it; every one counts for `top` below)
   local out = {}
   for k, pt in ipairs(kept) do out[k] = { pt[1], pt[2], pt[3], k > #L.saddles or passed[k] } end
+  if info.along == "deformed" then lists.deformed = out end
   return out
 end
 
@@ -1281,6 +1315,10 @@ end
 -- upper end of (1 - t)^-0.7 e^{20 (t - 1)} on [0, 1]: 4.6e-5 off under 2e-7 before.
 function singular_end_rounding(J, params, L)
   if J.contour.closed then return 0 end
+  -- (it depends on the parameters only: kept with the landscape, per contour)
+  L._end_rounding = L._end_rounding or setmetatable({}, { __mode = "k" })
+  local kept = L._end_rounding[J.contour]
+  if kept then return kept end
   local total = 0
   for i, a in ipairs({ J.contour:start(), J.contour:finish() }) do
     if not contour_m.is_inf(a) and cabs(a) > 0 and singular_at(L, a) then
@@ -1301,7 +1339,9 @@ function singular_end_rounding(J, params, L)
       end
     end
   end
-  return total == total and total or huge
+  total = total == total and total or huge
+  L._end_rounding[J.contour] = total
+  return total
 end
 
 --- The quadrature on a landscape already mapped (sweeps reuse theirs).
