@@ -198,6 +198,8 @@ typedef struct {
   cplx c[TAYLOR_ORDER + 3];
   double abs_c[TAYLOR_ORDER + 3];   /* |c_k|, for taylor_error (once, not per node) */
   int top;                          /* the highest k <= TAYLOR_ORDER with c_k != 0 */
+  size_t hint[2];                   /* per side, the last bracket found (nodes come in
+                                     * increasing u within a level) */
 } saddle_path;
 
 /* Horner's rule in real arithmetic (C's complex product checks for infinities on every
@@ -225,7 +227,9 @@ static int taylor_solve(const saddle_path *sp, double u, cplx x, cplx *h, cplx *
     /* (the quotient by conj: dG is neither tiny nor huge here, so no scaling is needed) */
     cplx step = (G + u * u) * conj(*dG) / d2;
     x -= step;
-    if (abs2(step) <= 1e-30 * abs2(x)) {
+    /* (quadratic convergence: a step below 1e-8 of x leaves an error near 1e-16 of it
+     * after it is taken) */
+    if (abs2(step) <= 1e-16 * abs2(x)) {
       taylor(sp, x, &G, dG);
       *h = x;
       return creal(x * conj(sp->dt0 * u)) > 0;
@@ -241,12 +245,19 @@ static int taylor_solve(const saddle_path *sp, double u, cplx x, cplx *h, cplx *
  * f falling like e^{-u^2}) and in G' (dt/du = -2u / G'), four times over. */
 static double taylor_error(const saddle_path *sp, cplx h, cplx dG) {
   double ah = plain_abs(h), hk = ah, sumG = 0, sumD = 0;
-  for (int k = 1; k <= TAYLOR_ORDER; k++) {
+  /* (the sums stop at the highest nonzero coefficient; h^(TAYLOR_ORDER + 1) only where
+   * the next two are not 0) */
+  for (int k = 1; k <= sp->top; k++) {
     sumG += sp->abs_c[k] * hk;
     sumD += k * sp->abs_c[k] * hk / ah;
     hk *= ah;
   }
-  double t13 = sp->abs_c[TAYLOR_ORDER + 1] * hk, t14 = sp->abs_c[TAYLOR_ORDER + 2] * hk * ah;
+  double t13 = 0, t14 = 0;
+  if (sp->abs_c[TAYLOR_ORDER + 1] != 0 || sp->abs_c[TAYLOR_ORDER + 2] != 0) {
+    for (int k = sp->top + 1; k <= TAYLOR_ORDER; k++) hk *= ah;
+    t13 = sp->abs_c[TAYLOR_ORDER + 1] * hk;
+    t14 = sp->abs_c[TAYLOR_ORDER + 2] * hk * ah;
+  }
   double dG_err = ((TAYLOR_ORDER + 1) * t13 + (TAYLOR_ORDER + 2) * t14) / ah + EPS * sumD;
   double G_err = t13 + t14 + EPS * sumG;
   return 4 * (dG_err / plain_abs(dG) + G_err);
@@ -256,7 +267,7 @@ static double taylor_error(const saddle_path *sp, cplx h, cplx dG) {
  * relative error of the value from solving for the node (the rounding of g e^F at the node
  * is the quadrature's floor). e^F is the tape's at the node found (its rounding differs
  * from node to node, where e^{F0 - u^2} would carry F0's own into every node alike). */
-static cplx node_value(const saddle_path *sp, double u, double *rel) {
+static cplx node_value(saddle_path *sp, double u, double *rel) {
   problem *p = sp->p;
   cplx F, dF;
   *rel = 0;
@@ -269,14 +280,22 @@ static cplx node_value(const saddle_path *sp, double u, double *rel) {
   const path_ray *r = &sp->ray[side];
   const double *us = sp->u[side];
   if (r->n == 0 || s > us[r->n - 1]) return NAN;
-  /* the bracketing points: (0, t0) before the first */
+  /* the bracketing points: (0, t0) before the first; from the last bracket forward
+   * when s lies past it (the next node usually sits in the same or the next one) */
   size_t lo = 0, hi = r->n - 1;
   if (s <= us[0]) hi = 0;
   else {
-    while (hi - lo > 1) {
-      size_t mid = (lo + hi) / 2;
-      if (us[mid] < s) lo = mid; else hi = mid;
+    size_t k = sp->hint[side];
+    if (k > 0 && k < r->n && us[k - 1] < s) {
+      while (k < r->n - 1 && us[k] < s) k++;
+      lo = k - 1, hi = k;
+    } else {
+      while (hi - lo > 1) {
+        size_t mid = (lo + hi) / 2;
+        if (us[mid] < s) lo = mid; else hi = mid;
+      }
     }
+    sp->hint[side] = hi;
   }
   cplx ta = hi == 0 ? sp->t0 : r->pts[hi - 1], tb = r->pts[hi];
   double ua = hi == 0 ? 0 : us[hi - 1], ub = us[hi];
@@ -319,7 +338,7 @@ static cplx node_value(const saddle_path *sp, double u, double *rel) {
 /* One side's nodes k h (k from `from` by `by` up to u_end), added to *sum, *abs_sum and
  * *cond (the sum of |f| times each node's relative error); the outermost node's value and
  * u kept in *f_end, *u_end when beyond the last. */
-static int add_nodes(const saddle_path *sp, int sign, double h, double u_end, long from,
+static int add_nodes(saddle_path *sp, int sign, double h, double u_end, long from,
                      long by, cplx *sum, double *abs_sum, double *cond, cplx *f_end,
                      double *u_out) {
   long kmax = (long)floor(u_end / h);
@@ -347,6 +366,7 @@ int path_saddle_quad(problem *p, cplx t0, cplx F0, cplx F2, path_ray a, path_ray
   sp.ray[1] = b;
   sp.u[0] = work;
   sp.u[1] = work + a.n;
+  sp.hint[0] = sp.hint[1] = 0;
   if (a.n < 2 || b.n < 2 || F2 == 0) return -1;
   if (problem_jet(p, t0, TAYLOR_ORDER + 2, 0, sp.c) != STEEP_OK || sp.c[2] == 0) return -1;
   /* (F0 as the jet has it, so that both routes to a node measure u from the same value;
