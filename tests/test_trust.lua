@@ -312,6 +312,42 @@ function TestTrustPoles:test_high_order_residue()
   end
 end
 
+-- An exponent shifted by a constant so that the value is of order 1: [z^n] e^{z + z^2/2}
+-- = t_n / n! (t_n the involution numbers, exact by t_n = t_{n-1} + (n - 1) t_{n-2} in
+-- tests/bigint.lua), times e^{-c} with c = K h (h = ln 10 to 30 bits: K h is exact, and
+-- e^{-c} = 10^-K e^{K (ln 10 - h)}, ln 10 = 2.302585092994045684017991454684364 from
+-- memory). F0 is then a difference of terms near 2929: its rounding, about 1e-12, had been
+-- left out of the expansion's estimate (1.5e-12 off under 9e-14, "estimated").
+function TestTrustPoles:test_shifted_exponent_rounding()
+  local big = require "bigint"
+  local z, n, c = steep.var "z", steep.param "n", steep.param "c"
+  local N = 1000
+  local t0, t1 = big.new(1), big.new(1)
+  for k = 2, N do t0, t1 = t1, t1 + t0:mul(k - 1) end
+  local f = big.new(1)
+  for k = 2, N do f = f:mul(k) end
+  -- t_N / N! = m 10^K from the leading limbs (base 1e7) of both
+  local function top(a)
+    local v = 0.0
+    for i = #a, math.max(1, #a - 3), -1 do v = v * 1e7 + a[i] end
+    return v, 7 * math.max(0, #a - 4)
+  end
+  local mt, kt = top(t1)
+  local mf, kf = top(f)
+  local m, K = mt / mf, kt - kf
+  local e = math.floor(math.log(m, 10))
+  m, K = m / 10 ^ e, K + e
+  local h = math.floor(math.log(10) * 2 ^ 30) / 2 ^ 30
+  local d = (math.log(10) - h) - 2.1707562233822494506e-16   -- (ln 10 - its double)
+  local want = steep.complex(m * math.exp(K * d), 0)
+  local J = steep.integral { var = z, exponent = z + z ^ 2 / 2 - (n + 1) * steep.log(z) - c,
+    amplitude = 1 / (2 * pi * I), contour = steep.circle(0, math.sqrt(N)), large = n }
+  for _, order in ipairs({ 6, "optimal" }) do
+    local r = J:expand { n = N, c = K * h, order = order }
+    within(r.value, r.error, want, 1e-10, "order " .. tostring(order))
+  end
+end
+
 -- A simple pole beside the path: the integral of e^{-x t^2} / (t - p) over the real line,
 -- the saddle's own path, is i pi w(p sqrt x) for Im p > 0 (DLMF 7.7.2 after t = s / sqrt x;
 -- w from libcerf). With p 3e-7 and 1e-8 above the path, Gauss-Kronrod's estimate failed
