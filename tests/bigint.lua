@@ -29,6 +29,18 @@ function Big.__add(a, b)
   return setmetatable(out, Big)
 end
 
+--- a - b for a >= b (checked: the integers are non-negative)
+function Big.__sub(a, b)
+  local out, borrow = {}, 0
+  for i = 1, #a do
+    local s = a[i] - (b[i] or 0) - borrow
+    if s < 0 then s, borrow = s + BASE, 1 else borrow = 0 end
+    out[i] = s
+  end
+  assert(borrow == 0 and #b <= #a, "bigint: a - b with b > a")
+  return setmetatable(trim(out), Big)
+end
+
 --- a * k for an integer 0 <= k < 10^11
 function Big.mul(a, k)
   assert(math.type(k) == "integer" and k >= 0 and k < 1e11)

@@ -817,3 +817,74 @@ function TestTrustSweeps:test_pole_entering()
     end
   end
 end
+
+TestTrustCoefficients = {}
+
+-- The leading digits of the big integer a as m 10^K (from its top limbs, base 1e7).
+local function big_scaled(a)
+  local v = 0.0
+  for i = #a, math.max(1, #a - 3), -1 do v = v * 1e7 + a[i] end
+  return v, 7 * math.max(0, #a - 4)
+end
+
+-- [z^n] e^{z/(1-z)} at n = 1000 on the circle through the saddle (z = (n+1)(1-z)^2):
+-- n! times it is b_n = (2n-1) b_{n-1} - (n-1)(n-2) b_{n-2} (exact, tests/bigint.lua; the
+-- recurrence from memory, checked here at n = 4: 73). Along the deformed contour, closed
+-- through the essential singularity at 1, quadrature had -4.3e33 with an estimate of
+-- 8.3e34 and status "ok", kept over the given contour's 2.8e24 within 9e12; the
+-- expansion, as wrong, was "verified against quadrature" within its estimate.
+function TestTrustCoefficients:test_essential_singularity_precise_contour()
+  local big = require "bigint"
+  local z, n = steep.var "z", steep.param "n"
+  local N = 1000
+  local b0, b1 = big.new(1), big.new(1)
+  local b = {}
+  for k = 2, N do
+    b0, b1 = b1, b1:mul(2 * k - 1) - b0:mul((k - 1) * (k - 2))
+    b[k] = b1
+  end
+  lu.assertEquals(b[4]:tonumber(), 73)
+  local f = big.new(1)
+  for k = 2, N do f = f:mul(k) end
+  local mb, kb = big_scaled(b1)
+  local mf, kf = big_scaled(f)
+  local want = steep.complex(mb / mf * 10.0 ^ (kb - kf), 0)
+  local r = 1 - (math.sqrt(1 + 4 * (N + 1)) - 1) / (2 * (N + 1))
+  local J = steep.integral { var = z, exponent = z / (1 - z) - (n + 1) * steep.log(z),
+    amplitude = 1 / (2 * pi * I), contour = steep.circle(0, r), large = n }
+  local v, e, info = J:quad { n = N }
+  within(v, e, want, 1e-10, "quadrature")
+  lu.assertEquals(info.status, "ok")
+  local x = J:expand { n = N, order = 6 }
+  local d = (x.value - want):abs()
+  lu.assertTrue(d <= x.error or x.status:match("^suspect"), "expansion: " .. x.status)
+  lu.assertTrue(not (x.status:match("^verified") and not (x.error < x.value:abs())),
+    "verified with an estimate as large as the value")
+end
+
+-- Quadrature whose estimate is as large as the value says so: [z^70] (1 - z)^(-1/2) =
+-- Gamma(70.5) / (Gamma(1/2) 70!) (DLMF 5.2.5, the Pochhammer product, computed here) along
+-- a circle of radius 1/2, far inside the saddle near 1, where the integrand cancels to
+-- below its rounding (-6.6e5 for 0.067 within 2.6e8, "ok").
+function TestTrustCoefficients:test_quadrature_without_accuracy_is_suspect()
+  local z, n = steep.var "z", steep.param "n"
+  local J = steep.integral { var = z, exponent = -0.5 * steep.log(1 - z) - (n + 1) * steep.log(z),
+    amplitude = 1 / (2 * pi * I), contour = steep.circle(0, 0.5), large = n }
+  local want = 1
+  for k = 1, 70 do want = want * (k - 0.5) / k end
+  local v, e, info = J:quad { n = 70, along = "given" }
+  within(v, e, steep.complex(want, 0), math.huge, "the estimate bounds the error")
+  lu.assertEquals(info.status, "suspect")
+  lu.assertStrContains(table.concat(info.notes, "; "), "not smaller than the value")
+  -- at n = 1500 on the circle through the saddle (1 - 1/(3n) nearly), the pole at 0 of
+  -- order 1501 keeps the deformation away, and the given contour's rule reaches its bound
+  -- of points: the status says "quadrature limit", as the README names it (it had said
+  -- "limit"), and the estimate still bounds the error
+  want = 1
+  for k = 1, 1500 do want = want * (k - 0.5) / k end
+  J = steep.integral { var = z, exponent = -0.5 * steep.log(1 - z) - (n + 1) * steep.log(z),
+    amplitude = 1 / (2 * pi * I), contour = steep.circle(0, 0.999667), large = n }
+  v, e, info = J:quad { n = 1500 }
+  within(v, e, steep.complex(want, 0), 1e-9, "n = 1500")
+  lu.assertEquals(info.status, "quadrature limit")
+end
