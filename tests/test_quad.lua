@@ -421,8 +421,10 @@ function TestQuadSaddleVariable:test_gives_way()
     local v, e, info = G:quad { x = X, a = A }
     lu.assertEquals(info.status, "ok", msg)
     lu.assertEquals((by_rule(info)), rays, msg .. ": rays by the rule in u")
+    -- (2e-13: the poles' residues carry the rounding of 1/(t^2 + a^2) on their circles,
+    -- which cancels there, by a running error bound)
     within_own_estimate(v, e, pi / A * math.exp(A * A * X) * gsl.erfc(A * math.sqrt(X)),
-      1e-13, msg)
+      2e-13, msg)
   end
   local Gam = steep.integral { var = t, exponent = x * steep.log(t) - t,
     contour = steep.line(0, steep.inf(0)), large = x }
