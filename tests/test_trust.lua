@@ -888,3 +888,28 @@ function TestTrustCoefficients:test_quadrature_without_accuracy_is_suspect()
   within(v, e, steep.complex(want, 0), 1e-9, "n = 1500")
   lu.assertEquals(info.status, "quadrature limit")
 end
+
+-- A barely integrable end with log factors: the integral over [0, inf) of t^(b-1) log(t)^m
+-- e^{-x t} is Gamma(b) x^-b L for m = 1 and Gamma(b) x^-b (L^2 + psi'(b)) for m = 2, L =
+-- psi(b) - log x (Gamma(b) x^-b differentiated in b: DLMF 5.2.2, 5.15.1; gsl_sf_gamma,
+-- gsl_sf_psi, gsl_sf_psi_1). Tanh-sinh's nodes stop about 1e-300 from the end, and for
+-- b = 0.05 the part left there, (1e-300)^0.05 log^2 / 0.05, is not negligible: the
+-- estimate missed it (4.7e-9 off under 1.2e-9, "ok").
+function TestTrustEndpoints:test_barely_integrable_end_with_logs()
+  for _, b in ipairs({ 0.05, 0.1 }) do
+    for _, m in ipairs({ 1, 2 }) do
+      local J = steep.integral { var = t, exponent = -x * t,
+        amplitude = t ^ (b - 1) * steep.log(t) ^ m, contour = steep.line(0, steep.inf(0)),
+        large = x }
+      for _, X in ipairs({ 1, 100 }) do
+        local G = gsl.gamma(b) * X ^ (-b)
+        local L = gsl.psi(b) - math.log(X)
+        local want = m == 1 and G * L or G * (L * L + gsl.psi_1(b))
+        local v, e, info = J:quad { x = X }
+        lu.assertEquals(info.status, "ok")
+        within(v, e + 1e-15 * math.abs(want), steep.complex(want, 0), 1e-11,
+          string.format("b = %g, m = %d, x = %g", b, m, X))
+      end
+    end
+  end
+end
