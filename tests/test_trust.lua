@@ -913,3 +913,30 @@ function TestTrustEndpoints:test_barely_integrable_end_with_logs()
     end
   end
 end
+
+-- A value below the normal range of doubles: the integral over [1, inf) of e^{-x t} is
+-- e^-x / x, 3.1e-314 at x = 715 (subnormal). Quadrature had called such a value "ok" with
+-- an error of 0; it is "underflow", known to within the smallest normal double.
+function TestTrustEndpoints:test_subnormal_value()
+  local J = steep.integral { var = t, exponent = -x * t, contour = steep.line(1, steep.inf(0)),
+    large = x }
+  local v, e, info = J:quad { x = 715 }
+  lu.assertEquals(info.status, "underflow")
+  lu.assertTrue(e >= 2.2250738585072014e-308)
+  lu.assertTrue((v - math.exp(-715) / 715):abs() <= e)
+end
+
+-- A saddle that is a singular point of the amplitude (t^(1/2) with the saddle of
+-- e^{-x t^2} at t = 0, an end of the contour): the expansion is refused in words, not
+-- with a position in steep's source, and quadrature gives Gamma(3/4) / (2 x^(3/4))
+-- (t = s^(1/2) in Euler's integral, DLMF 5.2.1; gsl_sf_gamma).
+function TestTrustEndpoints:test_saddle_at_a_singular_end()
+  local J = steep.integral { var = t, exponent = -x * t ^ 2, amplitude = t ^ 0.5,
+    contour = steep.line(0, steep.inf(0)), large = x }
+  local ok, msg = pcall(J.expand, J, { x = 10, order = 3 })
+  lu.assertFalse(ok)
+  lu.assertStrContains(tostring(msg), "J:quad gives the value")
+  lu.assertNil(tostring(msg):find("%.lua:%d+:"), "no source position: " .. tostring(msg))
+  local v, e = J:quad { x = 10 }
+  within(v, e + 1e-15, steep.complex(gsl.gamma(0.75) / (2 * 10 ^ 0.75), 0), 1e-13, "quadrature")
+end

@@ -325,7 +325,14 @@ function M.saddle_series(J, params, t0, m, n, L)
         error(format("expansion needs jets of order %d (at most %d) where no Cauchy "
           .. "circle could be trusted: ask for fewer terms", order, core.max_order), 0)
       end
-      local Fj, gj = J.tape:jet(t0, order, params)
+      local ok, Fj, gj = pcall(J.tape.jet, J.tape, t0, order, params)
+      if not ok then
+        -- (the amplitude or F singular at the saddle itself, as t^(1/2) at a saddle at
+        -- t = 0 that is also an end of the contour: no Taylor series there)
+        error(format("the saddle at %s is a singular point of the integrand (%s): its series "
+          .. "does not exist there; J:quad gives the value", tostring(t0),
+          tostring(Fj):gsub("^.-:%d+: ", "")), 0)
+      end
       Fc, gc, have = Fj:coefs(), gj:coefs(), order   -- Fc[k + 1] = f_k
     end
   end

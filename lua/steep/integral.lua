@@ -1452,6 +1452,15 @@ function M.quad_with(J, params, L, along)
       .. "at a saddle or on the contour (doubles end near 709.78); subtract a constant from "
       .. "the exponent (J:expand gives the value as a scale times a number)", top)
   end
+  -- a value below the normal range of doubles (subnormal): its digits are gone, and it
+  -- is known only to within the smallest normal double (as steep.airy says of one); it
+  -- had been "ok" with an error of 0 (B(300, 900) I_0.15(300, 900): 1.7e-313)
+  if cabs(v) > 0 and cabs(v) < 2.2250738585072014e-308 then
+    info.status = "underflow"
+    e = math.max(e, 2.2250738585072014e-308)
+    info.notes[#info.notes + 1] = "the value is below the normal range of doubles (1e-308): "
+      .. "it is known to within that only"
+  end
   -- a value of exactly 0 with no error: say why, or distrust it
   if cabs(v) == 0 and e == 0 then
     if info.along == "deformed" and #(info.pieces or {}) == 0 and #(info.residues or {}) == 0 then
