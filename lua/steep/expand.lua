@@ -759,6 +759,22 @@ function M.truncate(terms, order, scale, logsize, term_errors)
       local env = math.sqrt(cabs(before) * cabs(after))
       if best < 0.5 * env then best = env end
     end
+    -- the smallest term not well below the first: the series does not fall here, and
+    -- the terms it leaves out may first rise in a hump (Kummer's integral at x = 0.5: the
+    -- end's series gave -1.2 within 9.9 for -26): the error is at least the first term
+    -- and the hump's terms together, up to where they fall below half the first
+    if size[bi] and size[bi] >= 0.5 * size[1] then
+      -- (the hump ends where the terms fall below half the first, or where, past their
+      -- peak, they start to grow again: the divergent tail beyond is not summed)
+      local hump, peaked = size[1], false
+      for k = 2, n do
+        if k > bi and size[k] < 0.5 * size[1] then break end
+        if peaked and size[k] > size[k - 1] then break end
+        if k > 2 and size[k] < size[k - 1] then peaked = true end
+        hump = hump + size[k]
+      end
+      best = math.max(best, hump)
+    end
     -- at the smallest term the remainder is that term times a factor that grows like
     -- sqrt(pi N/2) off the real axis (Olver's bound for the saddle-point remainder in a
     -- Stokes sector, DLMF 9.7(iii) for Airy's: the subdominant exponential switching on
