@@ -956,3 +956,29 @@ function TestTrustEndpoints:test_series_without_a_fall()
     (r.value - want):abs(), r.error))
   lu.assertStrContains(r.status, "suspect")
 end
+
+-- Watson's series of e^x E1(x) = the integral of e^{-x t}/(1 + t) along the ray to
+-- inf e^{-i arg x}, next to its Stokes line arg x = pi (the pole 1e-3 from the ray),
+-- optimally truncated: the remainder reaches the smallest term times sqrt(pi N / 2)
+-- itself there (1.00 to 1.03 times it), and the estimate had no room. Reference: E1 by
+-- its convergent series, E1(z) = -gamma - log z - sum (-z)^k / (k k!) (DLMF 6.6.2; Euler's
+-- constant from DLMF 5.2.3), in double precision (terms below 30 times the value here).
+function TestTrustEndpoints:test_watson_next_to_a_stokes_line()
+  local gamma_e = 0.57721566490153286
+  for _, c in ipairs({ { 2, -(pi - 1e-3) }, { 3, pi - 1e-3 }, { 15, pi - 1e-3 } }) do
+    local r, th = c[1], c[2]
+    local z = steep.complex(r * math.cos(th), r * math.sin(th))
+    local sum, term = steep.complex(0, 0), steep.complex(1, 0)
+    for k = 1, 200 do
+      term = term * (-z) / k
+      sum = sum + term / k
+    end
+    local want = steep.exp(z) * (-gamma_e - steep.log(z) - sum)
+    local J = steep.integral { var = t, exponent = -x * t, amplitude = 1 / (1 + t),
+      contour = steep.line(0, steep.inf(-th)), large = x }
+    local res = J:expand { x = z, order = "optimal" }
+    local d = (res.value - want):abs()
+    lu.assertTrue(d <= res.error + 1e-13 * want:abs(), string.format("r = %g: %.3g off under %.3g",
+      r, d, res.error))
+  end
+end

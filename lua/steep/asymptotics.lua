@@ -151,7 +151,9 @@ local function endpoint_contribution(J, params, piece, order, L, opts)
   nraw = check_held(b, nraw, order, 1, format("the endpoint %s", tostring(piece.at)))
   local terms, _, terr = expand.endpoint_terms(b, beta, nraw, berr)
   local scale = exp_c(Fa) * piece.weight
-  local value, err, used = expand.truncate(terms, order, scale, cabs(Fa), terr)
+  -- (room 1.25 for an endpoint's series: Berry's smoothing is not applied to it, and next
+  -- to a Stokes line its remainder reaches the optimal term's bound itself)
+  local value, err, used = expand.truncate(terms, order, scale, cabs(Fa), terr, 1.25)
   local tl, omitted = {}, {}
   for k = 1, used do tl[k] = terms[k] * scale end
   for k = used + 1, math.min(#terms, used + 3) do omitted[#omitted + 1] = terms[k] * scale end

@@ -693,7 +693,8 @@ end
 -- rounding floor (128 + logsize) u sum |terms used| |scale| (u = 2^-52): Gamma here is good
 -- to about 2e-14 relative, and e^F with |F| = logsize carries |F| u of its own; without
 -- the floor a series that terminates (all further terms zero) would claim no error.
-function M.truncate(terms, order, scale, logsize, term_errors)
+-- room (default 1) widens optimal truncation's factor for series that need it.
+function M.truncate(terms, order, scale, logsize, term_errors, room)
   scale = scale or 1
   local n = #terms
   local function floor(used)
@@ -780,7 +781,10 @@ function M.truncate(terms, order, scale, logsize, term_errors)
     -- Stokes sector, DLMF 9.7(iii) for Airy's: the subdominant exponential switching on
     -- is of the size of the smallest term times that); a real alternating series keeps
     -- the smallest term (Stieltjes)
-    local factor = M.alternating(terms, bi) and 1.5 or math.max(1.5, math.sqrt(pi * bi / 2))
+    -- (`room` multiplies it: an endpoint's series next to a Stokes line reaches that
+    -- bound itself, e^x E1(x) at arg x = pi - 1e-3 by 1.00 to 1.03 times it)
+    local factor = M.alternating(terms, bi) and 1.5
+      or math.max(1.5, (room or 1) * math.sqrt(pi * bi / 2))
     return s * scale, math.max(factor * best * cabs(scale), floor(bi - 1)) + coef_errors(bi - 1),
       bi - 1
   end
