@@ -982,3 +982,14 @@ function TestTrustEndpoints:test_watson_next_to_a_stokes_line()
       r, d, res.error))
   end
 end
+
+-- An expansion whose value is beyond doubles says "failed" (as quadrature does), not
+-- "suspect" with inf + nan i: Airy's integral at x = 200 e^{2 pi i/3}, where |Ai| is
+-- about e^1886 (DLMF 9.7.5: |e^{-zeta}| with zeta = (2/3) x^(3/2)).
+function TestTrustEndpoints:test_expansion_past_doubles_fails()
+  local J = steep.integral { var = t, exponent = I * (t ^ 3 / 3 + x * t),
+    contour = steep.line(steep.inf(pi), steep.inf(0)), large = x }
+  local r = J:expand { x = 200 * steep.exp(2 * pi * I / 3), order = 4 }
+  lu.assertStrContains(r.status, "failed")
+  lu.assertEquals(r.error, math.huge)
+end

@@ -632,6 +632,12 @@ function M.expand(J, params, opts)
     end
   end
   if #reasons > 0 then status = "suspect: " .. table.concat(reasons, "; ") end
+  -- a value beyond doubles: no number (the terms are there, their scale e^F overflows)
+  local vr, vi = cparts(value)
+  if not (abs(vr) < huge and abs(vi) < huge) then
+    status, err = "failed: the value overflows doubles (a contribution's e^F is beyond "
+      .. "1e308: subtract a constant from the exponent)", huge
+  end
   local result = { value = value, error = err, contributions = contributions,
     order = order, params = params, landscape = L, notes = plan.notes,
     stokes = plan.stokes and true or false, integral = J, status = status,
