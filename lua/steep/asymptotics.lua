@@ -527,18 +527,10 @@ local function exponent_rounding(J, params, contributions)
       end
     end
   end
-  if #pts == 0 then return end
-  local ok, eF, eg = pcall(J.tape.rounding, J.tape, core.cvec(pts), params)
-  if not ok then return end
-  local okv, _, gs = pcall(J.tape.eval_many, J.tape, core.cvec(pts), params)
+  local rounding = landscape.relative_rounding(J, params, pts)
   for i, c in ipairs(contributions) do
     local rel = 0
-    for _, k in ipairs(at[i] or {}) do
-      local r = eF[k] or 0
-      local g = okv and gs and gs:get(k)
-      if g and eg and eg[k] and cabs(g) > 0 then r = r + eg[k] / cabs(g) end
-      if r == r and r < huge then rel = math.max(rel, r) end
-    end
+    for _, k in ipairs(at[i] or {}) do rel = math.max(rel, rounding[k]) end
     if rel > 0 then c.error = c.error + rel * cabs(c.value) end
   end
 end

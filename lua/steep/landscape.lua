@@ -302,18 +302,26 @@ essential_sectors = function(J, params, s, p, rho)
   end
 end
 
---- residue(J, params, p, nearest, order [, hint]) -> residue, error estimate, radius (or nil): the
--- residue of the integrand at the pole p by the trapezoidal rule on the circle where it is
--- best conditioned. The rule's rounding is about u max|f| rho on the circle, against a
--- residue that for a pole of high order (t^-30 e^{x t}, made by -30 log t in the
--- exponent) may be far smaller than |f| near the pole: the radius minimizing
--- max|f| rho is found on a geometric grid below 0.9 times the distance to the next
--- singular point (the circle's own saddle point; for a coefficient integral it is the
--- saddle of the coefficient's Cauchy integral). The points p + rho e^{i theta} themselves
--- carry u |p| of rounding, which moves f by a relative u |p| / rho near a pole: a circle
--- much smaller than |p| loses digits (1e-12 at rho = 1.7e-6), so the radius minimizes
--- max|f| (|p| + 2 rho), both parts together. Points: enough for the rule on every other
--- point to agree (their difference is the error estimate, with both roundings).
+--- relative_rounding(J, params, pts) -> list: at each point, the relative rounding of
+-- g e^F by the running error bound through the tape (tape:rounding): F's absolute bound
+-- plus g's relative one; 0 where it cannot be had (a singular point).
+function M.relative_rounding(J, params, pts)
+  local out = {}
+  for k = 1, #pts do out[k] = 0 end
+  if #pts == 0 then return out end
+  local cv = core.cvec(pts)
+  local ok, eF, eg = pcall(J.tape.rounding, J.tape, cv, params)
+  if not ok then return out end
+  local okv, _, gs = pcall(J.tape.eval_many, J.tape, cv, params)
+  for k = 1, #pts do
+    local r = eF[k] or 0
+    local g = okv and gs and gs:get(k)
+    if g and eg and eg[k] and cabs(g) > 0 then r = r + eg[k] / cabs(g) end
+    out[k] = (r == r and r < huge) and r or 0
+  end
+  return out
+end
+
 -- The relative rounding of g e^F on the circle |t - p| = rho: the running error bound
 -- through the tape (tape:rounding) at 16 points, its largest (F's absolute bound plus g's
 -- relative one), and at least 8 u. Where F is a sum of large terms (n log(e^z - 1) - m
@@ -324,21 +332,24 @@ local function circle_rounding(J, params, p, rho)
   for k = 0, 15 do
     pts[#pts + 1] = p + rho * cnew(math.cos(2 * math.pi * k / 16), math.sin(2 * math.pi * k / 16))
   end
-  local cv = core.cvec(pts)
-  local ok, eF, eg = pcall(J.tape.rounding, J.tape, cv, params)
-  local okv, _, gs = pcall(J.tape.eval_many, J.tape, cv, params)
-  local rel = 8 * 2.2e-16
-  if not ok then return rel end
-  for k = 1, #pts do
-    local r = eF[k] or 0
-    local g = okv and gs and gs:get(k)
-    if g and eg and eg[k] and cabs(g) > 0 then r = r + eg[k] / cabs(g) end
-    if r == r and r < huge then rel = math.max(rel, r + 8 * 2.2e-16) end
-  end
-  return rel
+  local rel = 0
+  for _, r in ipairs(M.relative_rounding(J, params, pts)) do rel = math.max(rel, r) end
+  return rel + 8 * 2.2e-16
 end
-M.circle_rounding = circle_rounding
 
+--- residue(J, params, p, nearest, order [, hint]) -> residue, error estimate, radius (or nil): the
+-- residue of the integrand at the pole p by the trapezoidal rule on the circle where it is
+-- best conditioned. The rule's rounding is about r max|f| rho on the circle (r the
+-- values' relative rounding, at least 8 u: circle_rounding), against a
+-- residue that for a pole of high order (t^-30 e^{x t}, made by -30 log t in the
+-- exponent) may be far smaller than |f| near the pole: the radius minimizing
+-- max|f| rho is found on a geometric grid below 0.9 times the distance to the next
+-- singular point (the circle's own saddle point; for a coefficient integral it is the
+-- saddle of the coefficient's Cauchy integral). The points p + rho e^{i theta} themselves
+-- carry u |p| of rounding, which moves f by a relative u |p| / rho near a pole: a circle
+-- much smaller than |p| loses digits (1e-12 at rho = 1.7e-6), so the radius minimizes
+-- max|f| (|p| + 2 rho), both parts together. Points: enough for the rule on every other
+-- point to agree (their difference is the error estimate, with both roundings).
 function M.residue(J, params, p, nearest, order, hint)
   -- radii 0.9 nearest 2^(-i/3), i = 0..60, 64 points each (in C: core.ring_quietest;
   -- best is log(max|f| rho) at the radius chosen). Following a sweep, the radius the
