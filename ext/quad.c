@@ -104,9 +104,6 @@ int quad_adaptive(quad_fn f, void *ctx, cplx a, cplx b, double abstol, double re
   return finite_c(total) && isfinite(etotal) ? QUAD_OK : QUAD_NONFINITE;
 }
 
-/* Tanh-sinh: x = tanh(pi/2 sinh u), weight pi/2 cosh u / cosh^2(pi/2 sinh u); nodes at
- * distance d = 1 - |x| = 2 / (1 + exp(pi sinh|u|)) from the ends, computed directly so
- * that no node rounds onto an endpoint. */
 /* The part of the integral between an end and the rule's nearest node there, at
  * distance l1 (value f1; the next node l2, f2): for f ~ (t - end)^beta (log factors
  * included by the local slope) it is l1 |f1| / p with p = beta + 1 read from the two
@@ -121,6 +118,9 @@ static double end_part(double l1, double f1, double l2, double f2) {
   return l1 * f1 / p;
 }
 
+/* Tanh-sinh: x = tanh(pi/2 sinh u), weight pi/2 cosh u / cosh^2(pi/2 sinh u); nodes at
+ * distance d = 1 - |x| = 2 / (1 + exp(pi sinh|u|)) from the ends, computed directly so
+ * that no node rounds onto an endpoint. */
 int quad_tanhsinh(quad_fn f, void *ctx, cplx a, cplx b, double abstol, double reltol,
                   cplx *res, double *err, long *nevals) {
   const double pi2 = 1.5707963267948966;

@@ -76,7 +76,8 @@ size_t quad_merge_vertices(const cplx *pts, const cplx *levels, size_t n, double
 
 /* Tanh-sinh rule on a -> b, never evaluating at the endpoints (so integrable endpoint
  * singularities are fine); halves the step until two levels agree to the tolerance, at
- * most 10 levels. */
+ * most 10 levels. The error: the two levels' difference, plus the parts between each end
+ * and the nearest node there (read from the power law of the two nearest nodes). */
 int quad_tanhsinh(quad_fn f, void *ctx, cplx a, cplx b, double abstol, double reltol,
                   cplx *res, double *err, long *nevals);
 
