@@ -75,10 +75,6 @@ M.check_order = check_order
 local KIND_TEXT = { full = "interior", half = "half-line (end with zero slope)",
   edge = "end (Watson's lemma)" }
 
---- contribution(J, cp, pt, K) -> the contribution of the point pt (from
--- critical.contributing) with K terms: {kind, at, F, value, error, terms, raw, ...};
--- value and error are also given relative to e^{F0} (scaled_value, scaled_error) so
--- that a contribution beyond the range of doubles keeps its digits (log_value).
 -- The local coordinates x_k = x0_k + sum_j lin_kj u_j with the Gaussian coordinates q
 -- whitened: lin = D L over q (D = diag(dirs), L L^T = Sigma restricted to q, a Cholesky
 -- factor without conjugation: Sigma is complex symmetric), the identity times dirs for the
@@ -112,6 +108,10 @@ local function whitening(n, q, dirs, Sigma)
   return lin
 end
 
+--- contribution(J, cp, pt, K) -> the contribution of the point pt (from
+-- critical.contributing) with K terms: {kind, at, F, value, error, terms, raw, ...};
+-- value and error are also given relative to e^{F0} (scaled_value, scaled_error) so
+-- that a contribution beyond the range of doubles keeps its digits (log_value).
 function M.contribution(J, cp, pt, K, opts)
   opts = opts or {}
   local n = J.n
