@@ -24,7 +24,8 @@ M.n = n
 
 --- M.large_powers{A =, B =, saddle = z0 (the positive saddle, found if omitted), order = 6}
 -- -> {series = J:series result (one term more than order), at = function(n) -> value,
--- error estimate}. The estimate is the size of the first term left out (common practice
+-- error estimate, status ("estimated", or "suspect: ..." where the estimate is not
+-- smaller than the value)}. The estimate is the size of the first term left out (common practice
 -- for an asymptotic series: Flajolet & Sedgewick 2009, VIII), plus the rounding of
 -- e^{n phi}: a relative 4 u (1 + |n phi|) (u = 2^-52).
 function M.large_powers(spec)
@@ -57,7 +58,10 @@ function M.large_powers(spec)
       end
       local value = s / (2 * math.pi * steep.I)
       local rounding = 4 * 2 ^ -52 * (1 + size) * value:abs()
-      return value, omitted / (2 * math.pi) + rounding
+      local err = omitted / (2 * math.pi) + rounding
+      -- (the status as J:expand words it: an estimate as large as the value says nothing)
+      return value, err, err < value:abs() and "estimated"
+        or "suspect: the error estimate is not smaller than the value"
     end,
   }
 end
@@ -94,9 +98,9 @@ if arg and arg[0] and arg[0]:match("coefficients%.lua$") then
   print("Invented example: [z^n] (1 + z + z^2)^n * (1 + z/2)")
   local lp = M.large_powers { A = 1 + z / 2, B = 1 + z + z ^ 2 }
   for _, nv in ipairs({ 10, 50, 200 }) do
-    local v, err = lp.at(nv)
-    print(string.format("  n = %-4d  %s  (error %.2g, %d terms)", nv, steep.show(v, err, 12), err,
-      lp.order))
+    local v, err, status = lp.at(nv)
+    print(string.format("  n = %-4d  %s  (error %.2g, %d terms, %s)", nv, steep.show(v, err, 12),
+      err, lp.order, status))
   end
   print("Invented example: [z^n] exp(e^z - 1) (times n! these are the Bell numbers)")
   for _, row in ipairs(M.nonhomogeneous { P = steep.exp(z) - 1, n = { 10, 20, 40 } }) do

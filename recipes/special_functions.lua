@@ -124,20 +124,22 @@ function M.table(names)
     if ok then
       rows[#rows + 1] = { name, table.concat(ps, ","), steep.show(r.value, r.error),
         string.format("%.2g", r.error), steep.show(r.quad, r.quad_error),
-        string.format("%.3g", (r.value - r.quad):abs() / r.quad:abs()), tostring(r.agrees) }
+        string.format("%.3g", (r.value - r.quad):abs() / r.quad:abs()), tostring(r.agrees),
+        tostring(r.status):match("^[^:]*") }
     else
       -- the expansion failed: say why (below the table), and give quadrature's value
       local qok, q, qe = pcall(rep.integral.quad, rep.integral, rep.sample)
       local f = rep.prefactor(rep.sample)
       local fa = steep.is_complex(f) and f:abs() or math.abs(f)
       rows[#rows + 1] = { name, table.concat(ps, ","), "failed (see below)", "",
-        qok and steep.show(q * f, qe * fa) or "failed", "", "" }
+        qok and steep.show(q * f, qe * fa) or "failed", "", "", "failed" }
       why[#why + 1] = wrap(name .. ": the expansion failed: "
         .. tostring(r):gsub("^.-expand: ", ""), 100, 4)
       if not qok then why[#why + 1] = wrap(name .. ": quadrature failed too: " .. tostring(q), 100, 4) end
     end
   end
-  local head = { "name", "parameters", "expansion", "error", "quadrature", "rel.err", "agrees" }
+  local head = { "name", "parameters", "expansion", "error", "quadrature", "rel.err", "agrees",
+    "status" }
   local width = {}
   for c, h in ipairs(head) do
     width[c] = #h
