@@ -201,4 +201,25 @@ function M.sqrt_det(A)
   return s, ev, minre / math.max(maxabs, 1e-300)
 end
 
+--- cholesky(A) -> L (lower triangular, L L^T = A) for a complex symmetric A (no
+-- conjugation: the square roots are principal), or nil where a pivot vanishes against
+-- its diagonal entry (1e-14). The whitening of a Gaussian whose covariance is A.
+function M.cholesky(A)
+  local n, L = #A, {}
+  for a = 1, n do
+    L[a] = {}
+    for b = 1, a do
+      local sum = c(A[a][b])
+      for k = 1, b - 1 do sum = sum - L[a][k] * L[b][k] end
+      if a == b then
+        if not (cabs(sum) > 1e-14 * cabs(A[a][a])) then return nil end
+        L[a][a] = complex.apply("sqrt", sum)
+      else
+        L[a][b] = sum / L[b][b]
+      end
+    end
+  end
+  return L
+end
+
 return M

@@ -76,25 +76,13 @@ local KIND_TEXT = { full = "interior", half = "half-line (end with zero slope)",
   edge = "end (Watson's lemma)" }
 
 -- The local coordinates x_k = x0_k + sum_j lin_kj u_j with the Gaussian coordinates q
--- whitened: lin = D L over q (D = diag(dirs), L L^T = Sigma restricted to q, a Cholesky
--- factor without conjugation: Sigma is complex symmetric), the identity times dirs for the
+-- whitened: lin = D L over q (D = diag(dirs), L L^T = Sigma restricted to q: cmatrix.cholesky,
+-- without conjugation, Sigma being complex symmetric), the identity times dirs for the
 -- others. nil where a pivot vanishes (the plain coordinates are used then).
 local function whitening(n, q, dirs, Sigma)
   if #q < 2 then return nil end
-  local L = {}
-  for a = 1, #q do
-    L[a] = {}
-    for b = 1, a do
-      local sum = Sigma[q[a]][q[b]]
-      for c = 1, b - 1 do sum = sum - L[a][c] * L[b][c] end
-      if a == b then
-        if not (cabs(sum) > 1e-14 * cabs(Sigma[q[a]][q[a]])) then return nil end
-        L[a][a] = complex.apply("sqrt", cnew(cparts(sum)))
-      else
-        L[a][b] = sum / L[b][b]
-      end
-    end
-  end
+  local L = cmatrix.cholesky(cmatrix.sub(Sigma, q))
+  if not L then return nil end
   local lin = {}
   for k = 1, n do
     lin[k] = {}
